@@ -1,0 +1,32 @@
+# specgen: the two commands a fresh machine needs are `make demo` and `make test`.
+PYTHON ?= python3
+VENV   := .venv
+PY     := $(VENV)/bin/python
+STAMP  := $(VENV)/.installed
+
+.PHONY: demo test bench sysdeps install clean
+
+# System libraries WeasyPrint needs (Pango, HarfBuzz, fontconfig) and the PDF tools the tests use.
+sysdeps:
+	@sh tools/sysdeps.sh
+
+$(STAMP): pyproject.toml
+	@sh tools/sysdeps.sh
+	@test -x $(PY) || $(PYTHON) -m venv $(VENV)
+	@$(PY) -m pip install -q --upgrade pip
+	@$(PY) -m pip install -q -e '.[test]'
+	@touch $(STAMP)
+
+install: $(STAMP)
+
+demo: $(STAMP)
+	$(VENV)/bin/specgen demo --out out/demo
+
+test: $(STAMP)
+	$(PY) -m pytest
+
+bench: $(STAMP)
+	$(PY) bench/run.py
+
+clean:
+	rm -rf $(VENV) out build *.egg-info

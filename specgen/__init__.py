@@ -1,0 +1,3 @@
+"""specgen: one YAML spec per wound part + the shop's catalogue -> a trusted design -> shop documents."""
+
+__version__ = "0.1.0"
