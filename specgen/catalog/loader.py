@@ -1,0 +1,473 @@
+"""Load and check the shop catalogue (a folder of YAML files).
+
+``load_catalog(dir)`` returns a frozen ``Catalog`` or raises the first ``SpecError``;
+``check_catalog(dir)`` returns every problem found (for ``specgen catalog check``).
+
+Where the catalogue comes from: ``--catalog DIR`` > ``$SPECGEN_CATALOG`` > the copy shipped in the package.
+"""
+
+from __future__ import annotations
+
+import os
+from decimal import Decimal
+from pathlib import Path
+
+from ..errors import SpecError
+from ..loading import LMap, Reader, load_yaml
+from .models import (CORE_SHAPES, MATERIAL_FAMILIES, WIRE_KINDS, Bobbin, Catalog, Core, Material,
+                     Shop, Sleeving, Tape, Varnish, Wire)
+
+TOP_KEYS = ("wires", "cores", "bobbins", "materials", "tapes", "sleevings", "varnishes", "shop")
+
+CORE_DIMS = {
+    "EI": (("tongue",), ("window_width", "window_height", "leg", "yoke")),
+    "toroid": (("od", "id", "height"), ()),
+    "E": (("width", "height", "depth", "window_width", "window_height", "centre_leg_width"), ("centre_leg_depth",)),
+    "EFD": (("width", "height", "depth", "window_width", "window_height", "centre_leg_width"), ("centre_leg_depth",)),
+    "ETD": (("width", "height", "depth", "window_width", "window_height", "centre_leg_diameter"), ()),
+    "PQ": (("width", "height", "depth", "window_width", "window_height", "centre_leg_diameter"), ()),
+    "POT": (("outer_diameter", "inner_diameter", "post_diameter", "height", "window_height"), ("post_hole",)),
+    "RM": (("outer_diameter", "inner_diameter", "post_diameter", "height", "window_height"), ("post_hole",)),
+}
+
+
+def shipped_catalog_dir() -> Path:
+    here = Path(__file__).resolve().parent.parent
+    packaged = here / "data" / "catalog"
+    if packaged.is_dir():
+        return packaged
+    return here.parent / "catalog"
+
+
+def resolve_catalog_dir(explicit: str | os.PathLike | None = None) -> Path:
+    if explicit:
+        p = Path(explicit)
+    elif os.environ.get("SPECGEN_CATALOG"):
+        p = Path(os.environ["SPECGEN_CATALOG"])
+    else:
+        return shipped_catalog_dir()
+    if not p.exists():
+        raise SpecError("no such catalogue folder", file=str(p))
+    if not p.is_dir():
+        raise SpecError("is not a folder; a catalogue is a folder of YAML files", file=str(p))
+    return p
+
+
+# ----------------------------------------------------------------------------------------------
+
+def _pct(r: Reader, key: str, default=None) -> Decimal:
+    """A fraction written '45 %' (or a plain number 0.45), kept as Decimal."""
+    value = r.raw(key, default)
+    if value is default and default is not None:
+        return Decimal(str(default))
+    text = str(value).strip()
+    try:
+        if text.endswith("%"):
+            out = Decimal(text[:-1].strip()) / Decimal(100)
+        else:
+            out = Decimal(text)
+    except Exception:
+        raise r.error(f"expected a percentage like '45 %', got '{value}'", key) from None
+    if not out.is_finite() or out < 0 or out > 10:
+        raise r.error(f"expected a percentage like '45 %', got '{value}'", key)
+    return out
+
+
+def _thermal_class(r: Reader, key: str = "thermal_class") -> int:
+    from ..physics_classes import IEC_60085
+
+    value = r.integer(key)
+    if value not in IEC_60085:
+        raise r.error(f"{value} is not an IEC 60085 thermal class ({', '.join(str(c) for c in IEC_60085)})", key)
+    return value
+
+
+def _plain(data):
+    """The entry's content as plain dicts/lists, for fingerprints."""
+    if isinstance(data, dict):
+        return {str(k): _plain(v) for k, v in data.items()}
+    if isinstance(data, list):
+        return [_plain(v) for v in data]
+    if hasattr(data, "isoformat"):
+        return data.isoformat()
+    return data
+
+
+def _wire(r: Reader) -> Wire:
+    kind = r.choice("kind", WIRE_KINDS)
+    common = dict(
+        id=r.text("id"), kind=kind, label=r.text("label", "") or r.data.get("id", ""),
+        conductor=r.choice("conductor", ("copper", "aluminium"), "copper"),
+        thermal_class_c=_thermal_class(r), price_per_kg=r.decimal("price_per_kg"),
+        source=r.text("source"), grade=r.text("grade", ""), raw=_plain(r.data),
+    )
+    if kind in ("round", "tiw"):
+        bare = r.quantity("bare_diameter", "length")
+        overall = r.quantity("overall_diameter", "length")
+        if overall < bare:
+            raise r.error("overall diameter is smaller than the bare diameter", "overall_diameter")
+        w = Wire(**common, strands=1, strand_diameter_m=bare, strand_overall_m=overall,
+                 overall_diameter_m=overall, awg=r.integer("awg", None, minimum=-3, maximum=56),
+                 insulation_rating=r.choice("insulation_rating", ("functional", "basic", "supplementary",
+                                                                   "double", "reinforced"), "functional"))
+    elif kind == "litz":
+        strands = r.integer("strands", minimum=2, maximum=100000)
+        d = r.quantity("strand_diameter", "length")
+        ds = r.quantity("strand_overall_diameter", "length")
+        overall = r.quantity("overall_diameter", "length")
+        if ds < d:
+            raise r.error("strand overall diameter is smaller than the bare strand", "strand_overall_diameter")
+        if overall < d * strands ** 0.5:
+            raise r.error("bundle diameter is too small to hold its strands", "overall_diameter")
+        w = Wire(**common, strands=strands, strand_diameter_m=d, strand_overall_m=ds, overall_diameter_m=overall)
+    else:
+        t = r.quantity("thickness", "length")
+        wd = r.quantity("width", "length")
+        if kind == "strip":
+            ot = r.quantity("overall_thickness", "length")
+            ow = r.quantity("overall_width", "length")
+            if ot < t or ow < wd:
+                raise r.error("overall size is smaller than the bare conductor", "overall_thickness")
+        else:
+            ot, ow = t, wd
+        w = Wire(**common, thickness_m=t, width_m=wd, overall_thickness_m=ot, overall_width_m=ow)
+    r.done()
+    return w
+
+
+def _material(r: Reader) -> Material:
+    st = r.mapping("steinmetz")
+    out = dict(
+        id=r.text("id"), name=r.text("name"), family=r.choice("family", MATERIAL_FAMILIES),
+        b_sat_25c_t=r.quantity("b_sat_25c", "flux_density"),
+        b_sat_100c_t=r.quantity("b_sat_100c", "flux_density"),
+        b_r_t=r.quantity("b_r", "flux_density", allow_zero=True),
+        h_c_a_m=r.quantity("h_c", "field", allow_zero=True),
+        mu_initial=r.number("mu_initial", minimum=1.0),
+        density_kg_m3=r.quantity("density", "density"),
+        curie_c=r.quantity("curie", "temperature"),
+        price_per_kg=r.decimal("price_per_kg"), source=r.text("source"),
+        steinmetz_k=st.number("k", minimum=0.0), steinmetz_alpha=st.number("alpha", minimum=0.5, maximum=3.0),
+        steinmetz_beta=st.number("beta", minimum=1.0, maximum=4.0),
+        steinmetz_f_min_hz=st.quantity("f_min", "frequency"),
+        steinmetz_f_max_hz=st.quantity("f_max", "frequency"),
+        steinmetz_b_max_t=st.quantity("b_max", "flux_density"),
+        b_design_t=r.quantity("b_design", "flux_density", None),
+        lamination_thickness_m=r.quantity("lamination_thickness", "length", 0.0),
+        stacking_factor=r.number("stacking_factor", 1.0, minimum=0.3, maximum=1.0),
+        raw=_plain(r.data),
+    )
+    st.done()
+    if out["steinmetz_f_max_hz"] < out["steinmetz_f_min_hz"]:
+        raise st.error("f_max is below f_min", "f_max")
+    if out["b_r_t"] > out["b_sat_25c_t"]:
+        raise r.error("remanence is above saturation", "b_r")
+    ro = r.mapping("rolloff", None)
+    if ro is not None:
+        out.update(rolloff_a=ro.number("a", minimum=0.01), rolloff_b=ro.number("b", minimum=0.0),
+                   rolloff_c=ro.number("c", minimum=0.1, maximum=5.0))
+        ro.done()
+    r.done()
+    m = Material(**out)
+    if m.is_powder and m.rolloff_a is None:
+        raise r.error("a powder material needs its DC-bias roll-off curve (rolloff: {a, b, c})", "rolloff")
+    return m
+
+
+def _core(r: Reader) -> Core:
+    shape = r.raw("shape")
+    shape = str(shape).strip()
+    if shape.lower() == "toroid":
+        shape = "toroid"
+    else:
+        shape = shape.upper()
+    if shape not in CORE_SHAPES:
+        raise r.error(f"expected one of {', '.join(CORE_SHAPES)}; got '{r.data.get('shape')}'", "shape")
+    d = r.mapping("dims")
+    need, optional = CORE_DIMS[shape]
+    dims = {k: d.quantity(k, "length") for k in need}
+    for k in optional:
+        if d.has(k):
+            dims[k] = d.quantity(k, "length")
+    if shape == "RM":
+        dims["ring_fraction"] = d.number("ring_fraction", 0.6, minimum=0.1, maximum=1.0)
+    elif shape == "POT":
+        dims["ring_fraction"] = d.number("ring_fraction", 1.0, minimum=0.1, maximum=1.0)
+    d.done()
+    _check_core_dims(shape, dims, d)
+    stacks = ()
+    if shape == "EI" or r.has("stacks"):
+        raw_stacks = r.list_of("stacks")
+        if not raw_stacks:
+            raise r.error("needs at least one stack height", "stacks")
+        sr = Reader({f"stacks[{i}]": v for i, v in enumerate(raw_stacks)}, r.file, r.path, r.line_of("stacks"))
+        stacks = tuple(sr.quantity(f"stacks[{i}]", "length") for i in range(len(raw_stacks)))
+    ov = r.mapping("override", None)
+    override = {}
+    if ov is not None:
+        for key, dim in (("ae", "area"), ("le", "length"), ("ve", "volume")):
+            if ov.has(key):
+                override[key] = ov.quantity(key, dim)
+        ov.done()
+    core = Core(
+        id=r.text("id"), shape=shape, material=r.text("material"), dims=dims,
+        price=r.decimal("price"), price_unit=r.choice("price_unit", ("set", "kg"), "set"),
+        source=r.text("source"), stacks_m=stacks,
+        stacking_factor=r.number("stacking_factor", 1.0, minimum=0.3, maximum=1.0),
+        pieces=r.integer("pieces", 1, minimum=1, maximum=4), gappable=r.boolean("gappable", False),
+        coating_m=r.quantity("coating", "length", 0.0, allow_zero=True),
+        override=override, mass_kg=r.quantity("mass", "mass", None), raw=_plain(r.data),
+    )
+    r.done()
+    return core
+
+
+def _check_core_dims(shape: str, dims: dict, d: Reader) -> None:
+    def bad(key, why):
+        raise d.error(why, key)
+
+    if shape == "toroid":
+        if dims["id"] >= dims["od"]:
+            bad("id", "inner diameter must be smaller than the outer diameter")
+    elif shape in ("E", "EFD", "ETD", "PQ"):
+        centre = dims.get("centre_leg_width", dims.get("centre_leg_diameter"))
+        if dims["window_width"] >= dims["width"]:
+            bad("window_width", "window is as wide as the core: no outer legs left")
+        if centre >= dims["window_width"]:
+            bad("window_width", "centre leg fills the window")
+        if dims["window_height"] >= dims["height"]:
+            bad("window_height", "window is as high as the core: no yoke left")
+    elif shape in ("POT", "RM"):
+        if not dims["post_diameter"] < dims["inner_diameter"] < dims["outer_diameter"]:
+            bad("inner_diameter", "needs post_diameter < inner_diameter < outer_diameter")
+        if dims["window_height"] >= dims["height"]:
+            bad("window_height", "window is as high as the core: no plates left")
+
+
+def _bobbin(r: Reader) -> Bobbin:
+    shape = r.choice("shape", ("rect", "round"))
+    tube_w = r.quantity("tube_width", "length")
+    tube_d = r.quantity("tube_depth", "length", tube_w) if shape == "rect" else tube_w
+    if shape == "round":
+        r.raw("tube_depth", None)
+    pins_raw = r.raw("pins")
+    if isinstance(pins_raw, list):
+        pins = tuple(str(p).strip() for p in pins_raw)
+        if len(set(pins)) != len(pins):
+            raise r.error("pin names repeat", "pins")
+    else:
+        n = r.integer("pins", minimum=0, maximum=200)
+        pins = tuple(str(i) for i in range(1, n + 1))
+    b = Bobbin(
+        id=r.text("id"), core=r.text("core"), shape=shape, tube_width_m=tube_w, tube_depth_m=tube_d,
+        breadth_m=r.quantity("breadth", "length"), height_m=r.quantity("height", "length"),
+        pins=pins, pin_pitch_m=r.quantity("pin_pitch", "length", 0.005),
+        pin_rows=r.integer("pin_rows", 2 if len(pins) > 4 else 1, minimum=1, maximum=2),
+        sections=r.integer("sections", 1, minimum=1, maximum=4), thermal_class_c=_thermal_class(r),
+        price=r.decimal("price"), source=r.text("source"), stack_m=r.quantity("stack", "length", None),
+        clips=r.integer("clips", 0, minimum=0, maximum=8), raw=_plain(r.data),
+    )
+    r.done()
+    return b
+
+
+def _tape(r: Reader) -> Tape:
+    t = Tape(id=r.text("id"), name=r.text("name"), thickness_m=r.quantity("thickness", "length"),
+             dielectric_strength_v_m=r.quantity("dielectric_strength", "electric_field"),
+             thermal_class_c=_thermal_class(r), width_m=r.quantity("width", "length"),
+             price_per_m2=r.decimal("price_per_m2"), source=r.text("source"), raw=_plain(r.data))
+    r.done()
+    return t
+
+
+def _sleeving(r: Reader) -> Sleeving:
+    s = Sleeving(id=r.text("id"), name=r.text("name"), bore_m=r.quantity("bore", "length"),
+                 wall_m=r.quantity("wall", "length"), breakdown_v=r.quantity("breakdown_voltage", "voltage"),
+                 thermal_class_c=_thermal_class(r), price_per_m=r.decimal("price_per_m"),
+                 source=r.text("source"), raw=_plain(r.data))
+    r.done()
+    return s
+
+
+def _varnish(r: Reader) -> Varnish:
+    v = Varnish(id=r.text("id"), name=r.text("name"), thermal_class_c=_thermal_class(r),
+                cure_temperature_c=r.quantity("cure_temperature", "temperature"),
+                cure_time_s=r.quantity("cure_time", "time"),
+                usage_m3_per_m3=r.number("usage", 0.15, minimum=0.0, maximum=1.0),
+                price_per_litre=r.decimal("price_per_litre"), source=r.text("source"), raw=_plain(r.data))
+    r.done()
+    return v
+
+
+def _shop(r: Reader) -> Shop:
+    cd = r.mapping("current_density")
+    densities = {str(k): cd.quantity(k, "current_density") for k in cd.data}
+    if "natural" not in densities:
+        raise cd.error("needs at least the 'natural' cooling case")
+    hp = r.mapping("hipot")
+    hipot = {
+        "functional_v": hp.quantity("functional", "voltage", 500.0),
+        "basic_v": hp.quantity("basic", "voltage"),
+        "supplementary_v": hp.quantity("supplementary", "voltage", None),
+        "reinforced_v": hp.quantity("reinforced", "voltage"),
+        "type_duration_s": hp.quantity("type_duration", "time", 60.0),
+        "routine_factor": hp.number("routine_factor", 1.2, minimum=1.0, maximum=2.0),
+        "routine_duration_s": hp.quantity("routine_duration", "time", 1.0),
+        "trip_current_a": hp.quantity("trip_current", "current", 0.005),
+    }
+    if hipot["supplementary_v"] is None:
+        hipot["supplementary_v"] = hipot["basic_v"]
+    hp.done()
+    ir = r.mapping("insulation_resistance")
+    insulation_resistance = {"voltage_v": ir.quantity("voltage", "voltage"),
+                             "minimum_ohm": ir.quantity("minimum", "resistance")}
+    ir.done()
+    tol = r.mapping("tolerances")
+    tolerances = {k: float(_pct(tol, k)) for k in ("dcr", "ratio", "inductance", "open_circuit_voltage")}
+    tol.done()
+    fmt = r.text("work_order_format", "WO-{year}-{seq:05d}")
+    try:
+        fmt.format(year=2026, seq=1, part="X")
+    except (KeyError, IndexError, ValueError):
+        raise r.error("work-order format may use only {year}, {seq} and {part}", "work_order_format") from None
+    labor = r.mapping("labor")
+    shop = Shop(
+        name=r.text("name"), currency=r.text("currency", "USD"), labor_rate=r.decimal("labor_rate"),
+        overhead=_pct(r, "overhead"), margin=_pct(r, "margin"),
+        setup_time_s=r.quantity("setup_time", "time", allow_zero=True), scrap_wire=_pct(r, "scrap_wire"),
+        current_density_a_m2=densities, bulge_factor=r.number("bulge_factor", 1.12, minimum=1.0, maximum=1.6),
+        lead_length_m=r.quantity("lead_length", "length", 0.1, allow_zero=True),
+        flux_limit_fraction=r.number("flux_limit_fraction", 0.8, minimum=0.3, maximum=1.0),
+        hotspot_margin_k=r.quantity("hotspot_margin", "temperature_difference", 10.0, allow_zero=True),
+        work_order_format=fmt, hipot=hipot, insulation_resistance=insulation_resistance,
+        tolerances=tolerances, labor={"data": labor.data, "file": labor.file, "path": labor.path},
+        source=r.text("source"), raw=_plain(r.data),
+    )
+    labor._seen.update(labor.data.keys())   # the quote module reads and checks these
+    r.done()
+    return shop
+
+
+_BUILDERS = {"wires": _wire, "cores": _core, "bobbins": _bobbin, "materials": _material,
+             "tapes": _tape, "sleevings": _sleeving, "varnishes": _varnish}
+
+
+def _read_dir(root: Path, problems: list | None):
+    """Parse every YAML file; with ``problems`` given, collect errors instead of raising."""
+
+    def fail(err: SpecError):
+        if problems is None:
+            raise err
+        problems.append(err)
+
+    files = sorted(list(root.glob("*.yaml")) + list(root.glob("*.yml")))
+    if not files:
+        raise SpecError("holds no .yaml files; is this a catalogue folder?", file=str(root))
+    tables = {k: {} for k in _BUILDERS}
+    locations: dict = {}
+    shop = None
+    for path in files:
+        try:
+            data = load_yaml(path, "catalogue file")
+        except SpecError as err:
+            fail(err)
+            continue
+        name = str(path)
+        if data is None:
+            continue
+        try:
+            top = Reader(data, name)
+        except SpecError as err:
+            fail(err)
+            continue
+        for key in data:
+            if key not in TOP_KEYS:
+                fail(top.error(f"unknown section '{key}'; a catalogue file holds {', '.join(TOP_KEYS)}", key))
+                continue
+            if key == "shop":
+                try:
+                    if shop is not None:
+                        raise top.error("a second 'shop' section; there is one shop", key)
+                    shop = _shop(top.mapping("shop"))
+                except SpecError as err:
+                    fail(err)
+                continue
+            try:
+                entries = top.items(key)
+            except SpecError as err:
+                fail(err)
+                continue
+            for entry in entries:
+                try:
+                    obj = _BUILDERS[key](entry)
+                except SpecError as err:
+                    fail(err)
+                    continue
+                if obj.id in locations:
+                    f, ln = locations[obj.id]
+                    fail(entry.error(f"id '{obj.id}' is used twice (first at {f}:{ln})", "id"))
+                    continue
+                tables[key][obj.id] = obj
+                locations[obj.id] = (name, entry.line_of("id"))
+    if shop is None:
+        fail(SpecError("no 'shop' section (labor rate, margins, test voltages) in any catalogue file",
+                       file=str(root)))
+    return tables, shop, locations
+
+
+def _cross_check(tables: dict, locations: dict, problems: list | None) -> None:
+    def fail(item_id, key, message):
+        f, ln = locations.get(item_id, (None, None))
+        err = SpecError(message, file=f, line=ln, path=f"{item_id}.{key}")
+        if problems is None:
+            raise err
+        problems.append(err)
+
+    from ..physics import geometry
+
+    for core in tables["cores"].values():
+        if core.material not in tables["materials"]:
+            fail(core.id, "material", f"unknown material '{core.material}'")
+    for bob in tables["bobbins"].values():
+        core = tables["cores"].get(bob.core)
+        if core is None:
+            fail(bob.id, "core", f"unknown core '{bob.core}'")
+            continue
+        if core.is_toroid:
+            fail(bob.id, "core", f"'{bob.core}' is a toroid; toroids are wound without a bobbin")
+            continue
+        try:
+            breadth = geometry.window_breadth_m(core.shape, core.dims)
+            height = geometry.window_height_m(core.shape, core.dims)
+        except Exception as exc:  # a shape the geometry cannot size is a catalogue problem, not a crash
+            fail(core.id, "dims", f"cannot size the window: {exc}")
+            continue
+        if bob.breadth_m > breadth + 1e-9:
+            fail(bob.id, "breadth", f"winding breadth {bob.breadth_m * 1e3:.2f} mm does not fit the core's "
+                                    f"window length {breadth * 1e3:.2f} mm")
+        if bob.height_m > height + 1e-9:
+            fail(bob.id, "height", f"build height {bob.height_m * 1e3:.2f} mm is more than the core's "
+                                   f"window depth {height * 1e3:.2f} mm")
+        if core.shape == "EI" and bob.stack_m is not None and core.stacks_m and \
+                not any(abs(bob.stack_m - s) < 1e-6 for s in core.stacks_m):
+            fail(bob.id, "stack", f"stack {bob.stack_m * 1e3:g} mm is not one of the stacks stocked for '{core.id}'")
+
+
+def load_catalog(root: str | os.PathLike | None = None) -> Catalog:
+    """Load the catalogue folder (see ``resolve_catalog_dir``) or raise the first SpecError."""
+    path = resolve_catalog_dir(root)
+    tables, shop, locations = _read_dir(path, None)
+    _cross_check(tables, locations, None)
+    return Catalog(root=str(path), shop=shop, locations=locations, **tables)
+
+
+def check_catalog(root: str | os.PathLike | None = None) -> list:
+    """Every problem in the catalogue, in file order, as SpecErrors (an empty list is a clean bill)."""
+    problems: list = []
+    try:
+        path = resolve_catalog_dir(root)
+        tables, shop, locations = _read_dir(path, problems)
+        _cross_check(tables, locations, problems)
+    except SpecError as err:
+        problems.append(err)
+    return problems

@@ -1,0 +1,231 @@
+"""The shop's stock as small frozen value objects, every dimension an SI float (temperatures in degC).
+
+Each object keeps ``source`` (where its figures come from) and ``raw`` (its canonical YAML content),
+so a fingerprint can cover exactly the catalogue entries a design used.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass, field
+from decimal import Decimal
+from typing import Any
+
+WIRE_KINDS = ("round", "litz", "foil", "strip", "tiw")
+CORE_SHAPES = ("EI", "toroid", "E", "ETD", "EFD", "PQ", "RM", "POT")
+MATERIAL_FAMILIES = ("silicon_steel_no", "silicon_steel_go", "ferrite", "iron_powder",
+                     "alloy_powder", "amorphous", "nanocrystalline")
+
+
+@dataclass(frozen=True)
+class Wire:
+    id: str
+    kind: str                      # round | litz | foil | strip | tiw
+    label: str                     # how the shop says it: "AWG 24 grade 2", "100 x 0.08 mm Litz"
+    conductor: str                 # copper | aluminium
+    thermal_class_c: int           # IEC 60085 class of the enamel/insulation
+    price_per_kg: Decimal
+    source: str
+    strands: int = 1
+    strand_diameter_m: float = 0.0     # bare conductor of one strand (round, litz, tiw)
+    strand_overall_m: float = 0.0      # insulated strand
+    overall_diameter_m: float = 0.0    # the finished wire or bundle (round, litz, tiw)
+    thickness_m: float = 0.0           # foil / strip bare
+    width_m: float = 0.0               # foil / strip bare
+    overall_thickness_m: float = 0.0   # foil / strip with insulation (foil: the tape is separate)
+    overall_width_m: float = 0.0
+    grade: str = ""                    # insulation build: grade 1/2/3, single/heavy/triple
+    awg: int | None = None
+    insulation_rating: str = "functional"   # tiw: 'reinforced' (its own insulation counts)
+    raw: dict = field(default_factory=dict, compare=False, repr=False)
+
+    @property
+    def is_round(self) -> bool:
+        return self.kind in ("round", "litz", "tiw")
+
+    @property
+    def strand_area_m2(self) -> float:
+        if self.is_round:
+            return math.pi / 4.0 * self.strand_diameter_m ** 2
+        # rectangular strip: corner radii ignored (a few percent, conservative for DCR)
+        return self.thickness_m * self.width_m
+
+    @property
+    def copper_area_m2(self) -> float:
+        """Conductor cross-section of the whole wire (all strands of a Litz bundle)."""
+        return self.strand_area_m2 * self.strands
+
+
+@dataclass(frozen=True)
+class Material:
+    id: str
+    name: str
+    family: str
+    b_sat_25c_t: float
+    b_sat_100c_t: float
+    b_r_t: float                   # remanence (residual flux density)
+    h_c_a_m: float                 # coercive force
+    mu_initial: float              # relative, small-signal
+    density_kg_m3: float
+    steinmetz_k: float             # P_v [W/m^3] = k * f[Hz]^alpha * B_pk[T]^beta
+    steinmetz_alpha: float
+    steinmetz_beta: float
+    steinmetz_f_min_hz: float
+    steinmetz_f_max_hz: float
+    steinmetz_b_max_t: float
+    curie_c: float
+    price_per_kg: Decimal
+    source: str
+    b_design_t: float | None = None          # a preferred working flux density, if the shop has one
+    lamination_thickness_m: float = 0.0
+    stacking_factor: float = 1.0
+    rolloff_a: float | None = None           # powders: mu/mu_i = 1 / (a + b * H^c), H in A/m
+    rolloff_b: float | None = None
+    rolloff_c: float | None = None
+    raw: dict = field(default_factory=dict, compare=False, repr=False)
+
+    @property
+    def is_powder(self) -> bool:
+        return self.family in ("iron_powder", "alloy_powder")
+
+    @property
+    def is_lamination(self) -> bool:
+        return self.family in ("silicon_steel_no", "silicon_steel_go", "amorphous", "nanocrystalline")
+
+
+@dataclass(frozen=True)
+class Core:
+    id: str
+    shape: str                     # EI | toroid | E | ETD | EFD | PQ | RM | POT
+    material: str                  # Material id
+    dims: dict                     # shape-specific dimensions in metres (see DEVELOPERS.md)
+    price: Decimal                 # per set (a pair of halves, a toroid, or laminations per kg: see price_unit)
+    price_unit: str                # 'set' | 'kg'
+    source: str
+    stacks_m: tuple = ()           # EI and stacked toroids: the stack heights stocked
+    stacking_factor: float = 1.0   # laminations and tape-wound cores
+    pieces: int = 1                # parts per set (2 halves; laminations counted in the design)
+    gappable: bool = False         # the shop can grind the centre leg or shim this set
+    coating_m: float = 0.0         # toroid: coating or core-box wall on each face
+    override: dict = field(default_factory=dict)   # measured ae_m2, le_m, ve_m3 replacing the computed ones
+    mass_kg: float | None = None
+    raw: dict = field(default_factory=dict, compare=False, repr=False)
+
+    @property
+    def is_toroid(self) -> bool:
+        return self.shape == "toroid"
+
+
+@dataclass(frozen=True)
+class Bobbin:
+    id: str
+    core: str                      # Core id it fits
+    shape: str                     # rect | round (winding surface of the tube)
+    tube_width_m: float            # rect: outer size of the tube across the centre leg width
+    tube_depth_m: float            # rect: outer size along the stack/depth; round: = tube_width (the diameter)
+    breadth_m: float               # winding breadth between the flanges
+    height_m: float                # build height available from the tube to the window edge
+    pins: tuple                    # pin names in order, e.g. ('1','2',...,'8')
+    pin_pitch_m: float
+    pin_rows: int                  # 1 or 2 (pins split between the two sides)
+    sections: int                  # 1, or 2 for a split (two-chamber) bobbin
+    thermal_class_c: int
+    price: Decimal
+    source: str
+    stack_m: float | None = None   # EI: the stack it is moulded for
+    clips: int = 0                 # clips or clamps per set (pulled with the bobbin)
+    raw: dict = field(default_factory=dict, compare=False, repr=False)
+
+
+@dataclass(frozen=True)
+class Tape:
+    id: str
+    name: str
+    thickness_m: float
+    dielectric_strength_v_m: float
+    thermal_class_c: int
+    width_m: float
+    price_per_m2: Decimal
+    source: str
+    raw: dict = field(default_factory=dict, compare=False, repr=False)
+
+
+@dataclass(frozen=True)
+class Sleeving:
+    id: str
+    name: str
+    bore_m: float
+    wall_m: float
+    breakdown_v: float
+    thermal_class_c: int
+    price_per_m: Decimal
+    source: str
+    raw: dict = field(default_factory=dict, compare=False, repr=False)
+
+
+@dataclass(frozen=True)
+class Varnish:
+    id: str
+    name: str
+    thermal_class_c: int
+    cure_temperature_c: float
+    cure_time_s: float
+    usage_m3_per_m3: float         # varnish taken up per volume of winding (common practice ~ 0.1-0.2)
+    price_per_litre: Decimal
+    source: str
+    raw: dict = field(default_factory=dict, compare=False, repr=False)
+
+
+@dataclass(frozen=True)
+class Shop:
+    name: str
+    currency: str
+    labor_rate: Decimal            # per hour
+    overhead: Decimal              # fraction (0.45)
+    margin: Decimal                # fraction
+    setup_time_s: float            # per lot
+    scrap_wire: Decimal            # fraction of wire
+    current_density_a_m2: dict     # cooling -> A/m^2
+    bulge_factor: float
+    lead_length_m: float           # each lead, beyond the pin
+    flux_limit_fraction: float     # default B limit = fraction x B_sat at hot spot
+    hotspot_margin_k: float        # hot spot above the average winding temperature (common practice)
+    work_order_format: str
+    hipot: dict                    # see shop.yaml: basic/reinforced voltages, durations, trip current
+    insulation_resistance: dict    # test voltage, minimum resistance
+    tolerances: dict               # dcr, ratio, inductance (fractions)
+    labor: dict                    # the quote's time model (seconds), read by the quote module
+    source: str
+    raw: dict = field(default_factory=dict, compare=False, repr=False)
+
+
+@dataclass(frozen=True)
+class Catalog:
+    """The whole stock, by id. Built by ``catalog.loader.load_catalog``."""
+
+    root: str
+    wires: dict
+    cores: dict
+    bobbins: dict
+    materials: dict
+    tapes: dict
+    sleevings: dict
+    varnishes: dict
+    shop: Shop
+    locations: dict = field(default_factory=dict, compare=False, repr=False)   # id -> (file, line)
+
+    KINDS = ("wires", "cores", "bobbins", "materials", "tapes", "sleevings", "varnishes")
+
+    def get(self, kind: str, item_id: str) -> Any:
+        table = getattr(self, kind)
+        return table.get(item_id)
+
+    def find(self, item_id: str) -> tuple[str, Any] | None:
+        for kind in self.KINDS:
+            obj = getattr(self, kind).get(item_id)
+            if obj is not None:
+                return kind, obj
+        return None
+
+    def bobbins_for(self, core_id: str) -> list:
+        return [b for b in self.bobbins.values() if b.core == core_id]
