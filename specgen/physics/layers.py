@@ -1,0 +1,72 @@
+"""AC resistance of one layer from the MMF on its two faces (Dowell's layer form).
+
+Dowell's averaged factor for m layers assumes the MMF rises from zero through a plain winding. With
+interleaving (P-S-P) or sections, the MMF on a layer's faces is whatever the build puts there, so the
+factor is taken layer by layer:
+
+    Fr_layer = D [ (F1^2 + F2^2) / (F2 - F1)^2 * xi1(D)  -  4 F1 F2 / (F2 - F1)^2 * xi2(D) ]
+
+    xi1 = (sinh 2D + sin 2D) / (cosh 2D - cos 2D)
+    xi2 = (sinh D cos D + cosh D sin D) / (cosh 2D - cos 2D)
+
+with F1, F2 the ampere-turns enclosed at the layer's inner and outer faces. For F1 = (m-1) I, F2 = m I
+the mean over m = 1..M equals Dowell's M-layer factor exactly (tested).
+
+References
+----------
+Dowell, P. L., "Effects of eddy currents in transformer windings", Proc. IEE 113(8), 1966.
+Ferreira, J. A., "Improved analytical modeling of conductive losses in magnetic components",
+IEEE Trans. Power Electronics 9(1), 1994 (the layer-by-layer form with boundary MMFs).
+"""
+
+from __future__ import annotations
+
+import numpy as np
+
+
+def _xi(delta):
+    d = np.asarray(delta, dtype=float)
+    small = d < 0.02
+    ds = np.where(small, 0.02, d)
+    big = ds > 20.0
+    dc = np.minimum(ds, 20.0)
+    den = np.cosh(2 * dc) - np.cos(2 * dc)
+    xi1 = (np.sinh(2 * dc) + np.sin(2 * dc)) / den
+    xi2 = (np.sinh(dc) * np.cos(dc) + np.cosh(dc) * np.sin(dc)) / den
+    # large D: xi1 -> 1, xi2 -> 2 e^-D (cos D + sin D)... both bounded; use the limits
+    xi1 = np.where(big, 1.0, xi1)
+    xi2 = np.where(big, 0.0, xi2)
+    return xi1, xi2, small
+
+
+def layer_fr(delta, f_inner, f_outer):
+    """Rac/Rdc of one layer of normalised thickness ``delta`` = h/skin depth between face MMFs.
+
+    Parameters
+    ----------
+    delta : float or array
+        Layer thickness over skin depth (round wire: the equivalent-foil value, see dowell.round_wire_delta).
+    f_inner, f_outer : float or array
+        Ampere-turns enclosed at the layer's two faces (any consistent unit; only ratios matter).
+
+    Returns
+    -------
+    Fr : float or array, >= 1 for a layer carrying current.
+
+    Below D = 0.02 the low-frequency series Fr = 1 + D^4 (4a/45 + 7b/180) is used, with
+    a = (F1^2 + F2^2)/(F2 - F1)^2 and b = 4 F1 F2/(F2 - F1)^2; for F1 = (m-1), F2 = m its mean over the
+    layers is Dowell's 1 + (5M^2 - 1) D^4/45. (Checked against 50-digit mpmath evaluation of the closed
+    form; in double precision the closed form itself is accurate down to D ~ 0.01.)
+    """
+    d = np.asarray(delta, dtype=float)
+    f1 = np.asarray(f_inner, dtype=float)
+    f2 = np.asarray(f_outer, dtype=float)
+    span = f2 - f1
+    span = np.where(np.abs(span) < 1e-300, 1e-300, span)
+    a = (f1 ** 2 + f2 ** 2) / span ** 2
+    b = 4.0 * f1 * f2 / span ** 2
+    xi1, xi2, small = _xi(d)
+    exact = d * (a * xi1 - b * xi2)
+    series = 1.0 + d ** 4 * (4.0 * a / 45.0 + 7.0 * b / 180.0)
+    out = np.where(small, series, exact)
+    return float(out) if out.ndim == 0 else out
