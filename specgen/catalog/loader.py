@@ -144,6 +144,7 @@ def _material(r: Reader) -> Material:
         b_r_t=r.quantity("b_r", "flux_density", allow_zero=True),
         h_c_a_m=r.quantity("h_c", "field", allow_zero=True),
         mu_initial=r.number("mu_initial", minimum=1.0),
+        mu_amplitude=r.number("mu_amplitude", None, minimum=1.0),
         density_kg_m3=r.quantity("density", "density"),
         curie_c=r.quantity("curie", "temperature"),
         price_per_kg=r.decimal("price_per_kg"), source=r.text("source"),

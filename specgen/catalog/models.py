@@ -77,12 +77,18 @@ class Material:
     price_per_kg: Decimal
     source: str
     b_design_t: float | None = None          # a preferred working flux density, if the shop has one
+    mu_amplitude: float | None = None        # relative permeability at the working flux (steels: far above mu_i)
     lamination_thickness_m: float = 0.0
     stacking_factor: float = 1.0
     rolloff_a: float | None = None           # powders: mu/mu_i = 1 / (a + b * H^c), H in A/m
     rolloff_b: float | None = None
     rolloff_c: float | None = None
     raw: dict = field(default_factory=dict, compare=False, repr=False)
+
+    @property
+    def mu_working(self) -> float:
+        """Permeability for the magnetizing current at working flux: amplitude if known, else initial."""
+        return self.mu_amplitude or self.mu_initial
 
     @property
     def is_powder(self) -> bool:

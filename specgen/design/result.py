@@ -1,0 +1,330 @@
+"""The Design: every derived number of one part, and its checks. Documents read this; nothing recomputes.
+
+All values SI floats (temperatures degC). ``Design.to_dict()`` is the stable JSON of ``specgen design --json``.
+"""
+
+from __future__ import annotations
+
+from dataclasses import asdict, dataclass, field
+from typing import Any
+
+
+@dataclass(frozen=True)
+class Check:
+    level: str       # pass | warn | fail
+    code: str        # stable identifier, e.g. 'saturation', 'fit'
+    message: str     # one plain sentence a shop engineer acts on
+
+
+@dataclass(frozen=True)
+class Layer:
+    index: int                 # 1-based within its section
+    turns: int
+    build_to_centre_m: float   # from the tube (or the toroid's inner face) to the layer's centre line
+    mlt_m: float               # mean length of one turn of this layer
+    length_m: float            # turns x mlt
+    turns_capacity: int        # how many turns this layer holds (the last may be partial)
+
+
+@dataclass(frozen=True)
+class Section:
+    winding: str
+    index: int                 # 1..sections of its winding
+    order: int                 # 1-based place in the build
+    turns: int
+    turns_per_layer: int       # capacity of the first layer
+    layers: tuple              # of Layer
+    margin_m: float            # creepage margin each side
+    usable_breadth_m: float
+    start_build_m: float
+    end_build_m: float         # after the last wire layer (before the tape that follows)
+    tape_after: str | None     # tape id wrapped after this section
+    tape_after_layers: int
+    start_pin: str
+    finish_pin: str
+    fr: float                  # AC resistance factor of this section (Dowell, at its MMF position)
+
+
+@dataclass(frozen=True)
+class WindingResult:
+    name: str
+    role: str
+    turns: int
+    voltage_v: float | None          # at full load (secondary) or nominal (primary)
+    voltage_max_v: float | None
+    open_circuit_v: float | None     # secondary at nominal primary, no load
+    current_a: float                 # rms at full load
+    wire: str                        # catalogue id
+    wire_label: str
+    wire_kind: str
+    strands: int                     # in hand
+    copper_area_m2: float            # all strands
+    overall_diameter_m: float
+    layers: int
+    turns_per_layer: int
+    length_m: float                  # including leads
+    mass_kg: float
+    dcr_20c_ohm: float
+    dcr_hot_ohm: float
+    current_density_a_m2: float
+    fr: float                        # Rac/Rdc of the whole winding
+    copper_loss_w: float
+    start: str
+    finish: str
+    direction: str
+    sections: tuple                  # of Section
+    margin_m: float
+    lead_sleeving: str | None
+    thermal_class_c: int
+    dot_pin: str                     # the terminal marked with the polarity dot
+
+
+@dataclass(frozen=True)
+class CoreResult:
+    id: str
+    shape: str
+    material: str
+    material_name: str
+    ae_m2: float
+    le_m: float
+    ve_m3: float
+    wa_m2: float
+    amin_m2: float
+    mass_kg: float
+    stack_m: float | None
+    count: int
+    laminations: int | None          # EI: E+I pairs per unit
+    bobbin: str | None
+    b_sat_hot_t: float
+    b_r_t: float
+    h_c_a_m: float
+    mu_initial: float
+    effective_from: str              # 'IEC 60205 from dimensions' or 'measured (catalogue override)'
+    window_breadth_m: float
+    window_height_m: float
+    surface_area_m2: float
+
+
+@dataclass(frozen=True)
+class Build:
+    height_m: float                  # sum of layers, tapes and wraps
+    bulged_height_m: float           # x the shop's bulge factor
+    available_m: float               # bobbin build height (toroid: the inner radius less the minimum hole)
+    ku: float                        # sum(N * A_cu) / W_a
+    fits: bool
+    fill_fraction: float             # bulged height / available
+    hole_m: float | None             # toroid: hole left for the shuttle
+
+
+@dataclass(frozen=True)
+class Losses:
+    copper_w: float
+    core_w: float
+    total_w: float
+    core_loss_density_w_m3: float
+
+
+@dataclass(frozen=True)
+class HipotTest:
+    between: str                     # "P - S1+S2", "all windings - core"
+    a: str
+    b: str
+    rating: str
+    working_voltage_v: float
+    type_voltage_v: float            # a.c. rms for type_duration
+    type_duration_s: float
+    routine_voltage_v: float         # production: routine_factor x type voltage for routine_duration
+    routine_duration_s: float
+    trip_current_a: float
+    basis: str
+
+
+@dataclass(frozen=True)
+class Limit:
+    name: str                        # what is measured
+    item: str                        # winding or pair
+    nominal: float
+    low: float | None
+    high: float | None
+    unit: str                        # SI unit of nominal/low/high ('ohm', 'V', 'H', ':1')
+    condition: str
+
+
+@dataclass(frozen=True)
+class TestPlan:
+    dcr: tuple                       # Limits at 20 degC
+    ratio: tuple                     # Limits (Np/Ns)
+    open_circuit: tuple              # Limits (V at nominal primary)
+    inductance: tuple                # Limits
+    polarity: tuple                  # sentences
+    hipot: tuple                     # HipotTests
+    insulation_resistance_v: float
+    insulation_resistance_min_ohm: float
+    alpha_per_k: float               # for correcting a DCR reading to 20 degC
+
+
+@dataclass(frozen=True)
+class MaterialLine:
+    kind: str                        # core | laminations | bobbin | clip | wire | tape | sleeving | varnish
+    id: str
+    description: str
+    quantity: float                  # per unit, in `unit`
+    unit: str                        # 'pcs' | 'm' | 'kg' | 'm2' | 'l'
+    mass_kg: float | None            # per unit where it matters (wire, laminations)
+    note: str = ""
+
+
+@dataclass(frozen=True)
+class InductorResult:
+    inductance_h: float              # as built, at the rated current (powder: at full bias)
+    inductance_zero_bias_h: float
+    inductance_at_full_bias_h: float
+    target_h: float
+    gap_m: float | None
+    gap_arrangement: str             # centre | spacer | none
+    spacer_m: float | None           # spacer thickness (each of the outer and centre legs)
+    grind_m: float | None            # centre-leg grind depth (one half ground)
+    fringing_factor: float
+    al_nh: float
+    energy_j: float
+    h_dc_a_m: float
+    rolloff_pct: float               # % of initial permeability lost at full DC current
+    current_dc_a: float
+    current_peak_a: float
+    ripple_a: float
+    delta_b_t: float
+    b_dc_t: float
+
+
+@dataclass(frozen=True)
+class Design:
+    part: str
+    title: str
+    revision: str
+    status: str
+    customer: str
+    kind: str
+    frequency_hz: float
+    waveform: str
+    duty: float
+    ambient_c: float
+    cooling: str
+    insulation_class_c: int
+    b_peak_t: float                  # at the primary's nominal voltage (inductor: at rated peak current)
+    b_peak_max_t: float              # at the top of the primary range (inductor: at over-current)
+    b_limit_t: float
+    b_limit_basis: str
+    b_sat_hot_t: float
+    h_peak_a_m: float
+    magnetizing_inductance_h: float | None
+    magnetizing_current_a: float | None
+    core: CoreResult
+    windings: tuple
+    build: Build
+    losses: Losses
+    winding_temp_c: float
+    hot_spot_c: float
+    temperature_rise_k: float
+    efficiency: float | None
+    regulation_pct: float | None
+    output_power_w: float | None
+    checks: tuple
+    tests: TestPlan
+    materials: tuple
+    inductor: InductorResult | None
+    catalog_ids: tuple               # every catalogue entry this design read
+    iterations: int
+    notes: str = ""
+    history: tuple = ()
+    fingerprint: str = ""
+    extra: dict = field(default_factory=dict)
+
+    @property
+    def failed(self) -> list:
+        return [c for c in self.checks if c.level == "fail"]
+
+    @property
+    def warnings(self) -> list:
+        return [c for c in self.checks if c.level == "warn"]
+
+    def winding(self, name: str) -> WindingResult:
+        for w in self.windings:
+            if w.name == name:
+                return w
+        raise KeyError(name)
+
+    def to_dict(self) -> dict[str, Any]:
+        """The stable JSON (``specgen design --json``); shop units appear only in key names."""
+        c = self.core
+        out: dict[str, Any] = {
+            "part": self.part, "title": self.title, "revision": self.revision, "status": self.status,
+            "customer": self.customer, "kind": self.kind, "fingerprint": self.fingerprint,
+            "frequency_hz": self.frequency_hz, "waveform": self.waveform, "duty": self.duty,
+            "ambient_c": self.ambient_c, "cooling": self.cooling, "insulation_class_c": self.insulation_class_c,
+            "b_peak_t": self.b_peak_t, "b_peak_max_t": self.b_peak_max_t, "b_limit_t": self.b_limit_t,
+            "b_limit_basis": self.b_limit_basis, "b_sat_hot_t": self.b_sat_hot_t, "h_peak_a_m": self.h_peak_a_m,
+            "magnetizing_inductance_h": self.magnetizing_inductance_h,
+            "magnetizing_current_a": self.magnetizing_current_a,
+            "core": {
+                "id": c.id, "shape": c.shape, "material": c.material, "ae_mm2": c.ae_m2 * 1e6,
+                "le_mm": c.le_m * 1e3, "ve_mm3": c.ve_m3 * 1e9, "wa_mm2": c.wa_m2 * 1e6,
+                "mass_g": c.mass_kg * 1e3, "stack_mm": c.stack_m * 1e3 if c.stack_m else None,
+                "count": c.count, "laminations": c.laminations, "bobbin": c.bobbin,
+                "effective_from": c.effective_from, "surface_area_cm2": c.surface_area_m2 * 1e4,
+            },
+            "windings": [{
+                "name": w.name, "role": w.role, "turns": w.turns, "voltage_v": w.voltage_v,
+                "voltage_max_v": w.voltage_max_v, "open_circuit_v": w.open_circuit_v, "current_a": w.current_a,
+                "wire": w.wire, "wire_label": w.wire_label, "strands": w.strands,
+                "copper_area_mm2": w.copper_area_m2 * 1e6, "layers": w.layers,
+                "turns_per_layer": w.turns_per_layer, "length_m": w.length_m, "mass_g": w.mass_kg * 1e3,
+                "dcr_20c_ohm": w.dcr_20c_ohm, "dcr_hot_ohm": w.dcr_hot_ohm,
+                "current_density_a_mm2": w.current_density_a_m2 / 1e6, "fr": w.fr,
+                "copper_loss_w": w.copper_loss_w, "start": w.start, "finish": w.finish,
+                "direction": w.direction, "dot_pin": w.dot_pin, "margin_mm": w.margin_m * 1e3,
+                "sections": [{
+                    "index": s.index, "order": s.order, "turns": s.turns, "turns_per_layer": s.turns_per_layer,
+                    "layers": [{"turns": l.turns, "mlt_mm": l.mlt_m * 1e3,
+                                "build_mm": l.build_to_centre_m * 1e3} for l in s.layers],
+                    "start_pin": s.start_pin, "finish_pin": s.finish_pin, "fr": s.fr,
+                } for s in w.sections],
+            } for w in self.windings],
+            "build": {
+                "height_mm": self.build.height_m * 1e3, "bulged_height_mm": self.build.bulged_height_m * 1e3,
+                "available_mm": self.build.available_m * 1e3, "ku": self.build.ku, "fits": self.build.fits,
+                "fill_fraction": self.build.fill_fraction,
+                "hole_mm": self.build.hole_m * 1e3 if self.build.hole_m is not None else None,
+            },
+            "losses": {"copper_w": self.losses.copper_w, "core_w": self.losses.core_w,
+                       "total_w": self.losses.total_w,
+                       "core_loss_density_kw_m3": self.losses.core_loss_density_w_m3 / 1e3},
+            "winding_temp_c": self.winding_temp_c, "hot_spot_c": self.hot_spot_c,
+            "temperature_rise_k": self.temperature_rise_k, "efficiency": self.efficiency,
+            "regulation_pct": self.regulation_pct, "output_power_w": self.output_power_w,
+            "checks": [asdict(ch) for ch in self.checks],
+            "tests": _plain(asdict(self.tests)),
+            "materials": [asdict(m) for m in self.materials],
+            "catalog_ids": list(self.catalog_ids),
+        }
+        if self.inductor is not None:
+            i = self.inductor
+            out.update({
+                "inductance_h": i.inductance_h, "inductance_zero_bias_h": i.inductance_zero_bias_h,
+                "inductance_at_full_bias_h": i.inductance_at_full_bias_h, "target_inductance_h": i.target_h,
+                "gap_mm": i.gap_m * 1e3 if i.gap_m is not None else None, "gap_arrangement": i.gap_arrangement,
+                "spacer_mm": i.spacer_m * 1e3 if i.spacer_m is not None else None,
+                "grind_mm": i.grind_m * 1e3 if i.grind_m is not None else None,
+                "fringing_factor": i.fringing_factor, "al_nh": i.al_nh, "energy_j": i.energy_j,
+                "h_dc_a_m": i.h_dc_a_m, "rolloff_pct": i.rolloff_pct, "current_dc_a": i.current_dc_a,
+                "current_peak_a": i.current_peak_a, "ripple_a": i.ripple_a, "delta_b_t": i.delta_b_t,
+                "b_dc_t": i.b_dc_t,
+            })
+        return out
+
+
+def _plain(obj):
+    if isinstance(obj, dict):
+        return {k: _plain(v) for k, v in obj.items()}
+    if isinstance(obj, (list, tuple)):
+        return [_plain(v) for v in obj]
+    return obj

@@ -1,0 +1,400 @@
+"""The part spec: one YAML file per part, parsed into frozen objects (SI floats, degC).
+
+The format (see DEVELOPERS.md and ``specgen new``)::
+
+    part: BH-1042
+    title: Control transformer 230 V to 2 x 12 V, 60 VA
+    revision: A
+    status: released            # draft | released | obsolete
+    customer: Quillfeather Irrigation
+    kind: transformer           # transformer | inductor
+    core: {id: EI-100, stack: 32 mm, bobbin: BOB-EI100-32}
+    operating: {frequency: 50 Hz, waveform: sine, ambient: 40 degC, cooling: natural, insulation_class: 130}
+    windings:                   # the electrical windings; list order is the build order unless build_order says
+      - {name: P, role: primary, voltage: 230 V, voltage_max: 253 V, wire: auto, start: "1", finish: "2", direction: cw}
+      - {name: S1, role: secondary, voltage: 12 V, current: 2.5 A, wire: auto, start: "5", finish: "6", direction: cw}
+    insulation: {...}
+    history: [...]
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+
+from ..errors import SpecError
+from ..loading import Reader, load_yaml, parse_yaml, read_text
+
+ROLES = ("primary", "secondary", "auxiliary", "shield", "main")
+WAVEFORMS = ("sine", "square", "unipolar")
+STATUSES = ("draft", "released", "obsolete")
+COOLING = ("natural", "forced", "potted")
+RATINGS = ("functional", "basic", "supplementary", "double", "reinforced")
+MAX_TURNS = 20000
+
+
+@dataclass(frozen=True)
+class TapeUse:
+    tape: str            # catalogue id
+    layers: int
+
+
+@dataclass(frozen=True)
+class Barrier:
+    """The insulation required between two windings, or a winding and the core."""
+    a: str               # winding name
+    b: str               # winding name or 'core'
+    rating: str          # functional | basic | supplementary | double | reinforced
+    working_voltage_v: float
+    line: int | None = None
+
+
+@dataclass(frozen=True)
+class Winding:
+    name: str
+    role: str
+    voltage_v: float | None          # rms (sine), amplitude (square/unipolar); secondary: at full load
+    voltage_min_v: float | None
+    voltage_max_v: float | None
+    current_a: float | None          # rms
+    va: float | None
+    wire: str                        # catalogue id or 'auto'
+    strands: int                     # strands in hand (parallel), 0 = decide
+    start: str                       # pin names
+    finish: str
+    direction: str                   # cw | ccw, seen from the start flange
+    sections: int
+    section_pins: tuple              # tie pins between sections
+    turns: int | None                # a fixed turn count (overrides the calculation)
+    margin_m: float | None           # creepage margin each side (None: the insulation default)
+    lead_sleeving: str | None
+    match: str | None = None         # wind the same turns as this winding (series/parallel pairs)
+    line: int | None = None
+    path: str = ""
+
+
+@dataclass(frozen=True)
+class InductorReq:
+    inductance_h: float | None       # at full DC current
+    current_dc_a: float              # DC (choke) or rms (AC reactor)
+    ripple_a: float                  # peak-to-peak at the operating frequency
+    current_peak_a: float | None     # over-current the part must not saturate at
+    duty: float
+    voltage_drop_v: float | None     # AC reactor: drop across it at rated current
+    gap: str                         # 'auto' | 'none' | a fixed gap given as gap_m
+    gap_m: float | None
+    gap_arrangement: str             # centre | spacer | none
+
+
+@dataclass(frozen=True)
+class Spec:
+    file: str
+    part: str
+    title: str
+    revision: str
+    status: str
+    customer: str
+    kind: str
+    core_id: str
+    stack_m: float | None
+    core_count: int
+    bobbin_id: str | None
+    frequency_hz: float
+    waveform: str
+    duty: float
+    ambient_c: float
+    cooling: str
+    insulation_class_c: int
+    flux_limit_t: float | None
+    efficiency_guess: float
+    windings: tuple
+    build_order: tuple               # (winding name, section index 1..n)
+    layer_tape: TapeUse | None
+    winding_tape: TapeUse | None
+    outer_wrap: TapeUse | None
+    margin_m: float
+    margin_tape: str | None
+    sleeving: str | None
+    varnish: str | None
+    barriers: tuple
+    inductor: InductorReq | None
+    notes: str
+    history: tuple
+    data: dict = field(compare=False, repr=False, default_factory=dict)   # the parsed YAML, for fingerprints
+
+    def winding(self, name: str) -> Winding:
+        for w in self.windings:
+            if w.name == name:
+                return w
+        raise KeyError(name)
+
+
+def _pin(r: Reader, key: str, default=None) -> str | None:
+    value = r.raw(key, default)
+    if value is None:
+        return None
+    if isinstance(value, (dict, list, bool)):
+        raise r.error("expected a pin name like '1' or 'A3'", key)
+    return str(value).strip()
+
+
+def _tape_use(r: Reader, key: str) -> TapeUse | None:
+    if not r.has(key):
+        r.raw(key, None)
+        return None
+    t = r.mapping(key)
+    out = TapeUse(tape=t.text("tape"), layers=t.integer("layers", 1, minimum=0, maximum=50))
+    t.done()
+    return out
+
+
+def _winding(r: Reader, kind: str) -> Winding:
+    roles = ROLES
+    role = r.choice("role", roles, "main" if kind == "inductor" else None)
+    sections = r.integer("sections", 1, minimum=1, maximum=16)
+    spins = tuple(str(p).strip() for p in r.list_of("section_pins", [])) if r.has("section_pins") else ()
+    if sections > 1 and len(spins) != sections - 1:
+        raise r.error(f"a winding in {sections} sections needs {sections - 1} tie pin(s) in section_pins "
+                      f"(where one section finishes and the next starts)", "section_pins")
+    strands = r.integer("strands", 0, minimum=0, maximum=64)
+    turns = r.integer("turns", None, minimum=1, maximum=MAX_TURNS)
+    w = Winding(
+        name=r.text("name", max_len=40), role=role,
+        voltage_v=r.quantity("voltage", "voltage", None),
+        voltage_min_v=r.quantity("voltage_min", "voltage", None),
+        voltage_max_v=r.quantity("voltage_max", "voltage", None),
+        current_a=r.quantity("current", "current", None),
+        va=r.quantity("va", "apparent_power", None),
+        wire=r.text("wire", "auto", max_len=60), strands=strands,
+        start=_pin(r, "start"), finish=_pin(r, "finish"),
+        direction=r.choice("direction", ("cw", "ccw"), "cw"), sections=sections, section_pins=spins,
+        turns=turns, margin_m=r.quantity("margin", "length", None, allow_zero=True),
+        lead_sleeving=r.text("lead_sleeving", None), match=r.text("match", None), line=r.line, path=r.path,
+    )
+    r.done()
+    if w.start == w.finish:
+        raise r.error(f"starts and finishes on the same pin '{w.start}'", "finish")
+    if w.voltage_min_v and w.voltage_max_v and w.voltage_min_v > w.voltage_max_v:
+        raise r.error("voltage_min is above voltage_max", "voltage_min")
+    if w.voltage_v and w.voltage_max_v and w.voltage_max_v < w.voltage_v:
+        raise r.error("voltage_max is below the nominal voltage", "voltage_max")
+    if w.voltage_v and w.voltage_min_v and w.voltage_min_v > w.voltage_v:
+        raise r.error("voltage_min is above the nominal voltage", "voltage_min")
+    return w
+
+
+def parse_spec(data, name: str) -> Spec:
+    r = Reader(data, name)
+    kind = r.choice("kind", ("transformer", "inductor"))
+    core = r.mapping("core")
+    op = r.mapping("operating")
+    waveform = op.choice("waveform", WAVEFORMS, "sine")
+    from ..physics_classes import IEC_60085
+
+    ins_class = op.raw("insulation_class", 130)
+    cls = _insulation_class(op, ins_class, IEC_60085)
+    freq = op.quantity("frequency", "frequency")
+    if freq > 50e6:
+        raise op.error("frequency above 50 MHz is outside what this tool models", "frequency")
+    if freq < 1.0:
+        raise op.error("frequency below 1 Hz; for DC chokes give the ripple frequency", "frequency")
+    ambient = op.quantity("ambient", "temperature", 25.0)
+    if not -60.0 <= ambient <= 200.0:
+        raise op.error(f"ambient {ambient:g} degC is outside -60..200 degC", "ambient")
+    duty = op.number("duty", 0.5, minimum=0.01, maximum=0.99)
+    spec_kw = dict(
+        frequency_hz=freq, waveform=waveform, duty=duty, ambient_c=ambient,
+        cooling=op.choice("cooling", COOLING, "natural"), insulation_class_c=cls,
+        flux_limit_t=op.quantity("flux_limit", "flux_density", None),
+        efficiency_guess=op.number("efficiency", 0.9, minimum=0.3, maximum=0.999),
+    )
+    op.done()
+
+    wreaders = r.items("windings", min_items=1)
+    windings = tuple(_winding(w, kind) for w in wreaders)
+    names = [w.name for w in windings]
+    for i, w in enumerate(windings):
+        if names.index(w.name) != i:
+            raise wreaders[i].error(f"a second winding named '{w.name}'", "name")
+        if w.name.lower() == "core":
+            raise wreaders[i].error("'core' is reserved for barriers to the core", "name")
+    if kind == "transformer":
+        prim = [w for w in windings if w.role == "primary"]
+        if len(prim) != 1:
+            raise r.error(f"a transformer needs exactly one primary winding, found {len(prim)}", "windings")
+        p = prim[0]
+        pr = wreaders[windings.index(p)]
+        if p.voltage_v is None and p.turns is None:
+            raise pr.error("the primary needs its voltage", "voltage")
+        for w, wr in zip(windings, wreaders):
+            if w.role in ("secondary", "auxiliary"):
+                if w.voltage_v is None:
+                    raise wr.error(f"a {w.role} winding needs its voltage at full load", "voltage")
+                if w.current_a is None and w.va is None:
+                    raise wr.error(f"a {w.role} winding needs its current (or va)", "current")
+            if w.role == "main":
+                raise wr.error("role 'main' is for inductors; a transformer's windings are primary, "
+                               "secondary, auxiliary or shield", "role")
+    else:
+        if len(windings) != 1:
+            raise r.error("an inductor here has exactly one winding (split it with sections: N)", "windings")
+
+    for w, wr in zip(windings, wreaders):
+        if w.match is not None:
+            other = next((o for o in windings if o.name == w.match), None)
+            if other is None or other is w:
+                raise wr.error(f"'{w.match}' names no other winding", "match")
+            if other.role != w.role or other.voltage_v != w.voltage_v:
+                raise wr.error(f"only a winding of the same role and voltage can match {w.match}", "match")
+    order = _build_order(r, windings)
+    ins = r.mapping("insulation", None)
+    ins_kw = dict(layer_tape=None, winding_tape=None, outer_wrap=None, margin_m=0.0, margin_tape=None,
+                  sleeving=None, varnish=None, barriers=())
+    if ins is not None:
+        ins_kw.update(
+            layer_tape=_tape_use(ins, "layer_tape"), winding_tape=_tape_use(ins, "winding_tape"),
+            outer_wrap=_tape_use(ins, "outer_wrap"),
+            margin_m=ins.quantity("margin", "length", 0.0, allow_zero=True),
+            margin_tape=ins.text("margin_tape", None), sleeving=ins.text("sleeving", None),
+            varnish=ins.text("varnish", None), barriers=_barriers(ins, names),
+        )
+        ins.done()
+
+    inductor = None
+    if kind == "inductor":
+        inductor = _inductor(r.mapping("inductor"), core)
+    elif r.has("inductor"):
+        raise r.error("only an inductor has an 'inductor' section", "inductor")
+
+    stack = core.quantity("stack", "length", None)
+    spec = Spec(
+        file=name, part=r.text("part", max_len=60), title=r.text("title", "", max_len=200),
+        revision=r.text("revision", "", max_len=4).strip().upper(),
+        status=r.choice("status", STATUSES, "draft"), customer=r.text("customer", "", max_len=200),
+        kind=kind, core_id=core.text("id"), stack_m=stack,
+        core_count=core.integer("count", 1, minimum=1, maximum=8), bobbin_id=core.text("bobbin", None),
+        windings=windings, build_order=order, inductor=inductor,
+        notes=r.text("notes", "", max_len=5000), history=_history(r), data=data, **spec_kw, **ins_kw,
+    )
+    core.done(("gap", "gap_arrangement"))
+    r.done()
+    from ..revision_letters import is_valid_revision
+
+    if spec.revision and not is_valid_revision(spec.revision):
+        raise r.error(f"'{spec.revision}' is not a drawing revision letter (A..Y without I, O, Q, S, X, Z; "
+                      f"then AA, AB, ...)", "revision")
+    return spec
+
+
+def _insulation_class(r: Reader, value, table) -> int:
+    text = str(value).strip().upper()
+    for num, letter in table.items():
+        if text in (str(num), letter, f"{num} ({letter})", f"{num}({letter})", f"CLASS {letter}", f"CLASS {num}"):
+            return num
+    r.raw("insulation_class", None)
+    raise r.error(f"'{value}' is not an IEC 60085 thermal class "
+                  f"({', '.join(f'{n} ({l})' for n, l in table.items())})", "insulation_class")
+
+
+def _build_order(r: Reader, windings) -> tuple:
+    by_name = {w.name: w for w in windings}
+    if not r.has("build_order"):
+        r.raw("build_order", None)
+        return tuple((w.name, k) for w in windings for k in range(1, w.sections + 1))
+    raw = r.list_of("build_order")
+    order = []
+    for i, item in enumerate(raw):
+        text = str(item).strip()
+        name, _, sec = text.partition(".")
+        if name not in by_name:
+            raise r.item_error("build_order", i, f"'{text}' names no winding (windings: {', '.join(by_name)})")
+        w = by_name[name]
+        if sec:
+            if not sec.isdigit() or not 1 <= int(sec) <= w.sections:
+                raise r.item_error("build_order", i, f"'{text}': winding {name} has sections 1..{w.sections}")
+            order.append((name, int(sec)))
+        else:
+            if w.sections != 1:
+                raise r.item_error("build_order", i, f"'{text}': winding {name} is in {w.sections} sections; "
+                                                     f"name them {name}.1 .. {name}.{w.sections}")
+            order.append((name, 1))
+    want = {(w.name, k) for w in windings for k in range(1, w.sections + 1)}
+    if len(set(order)) != len(order):
+        raise r.error("a section appears twice in build_order", "build_order")
+    missing = want - set(order)
+    if missing:
+        miss = ", ".join(f"{n}.{k}" if by_name[n].sections > 1 else n for n, k in sorted(missing))
+        raise r.error(f"build_order leaves out {miss}", "build_order")
+    return tuple(order)
+
+
+def _barriers(ins: Reader, names) -> tuple:
+    out = []
+    for b in ins.items("barriers", []):
+        between = b.list_of("between")
+        if len(between) != 2:
+            raise b.error("'between' names two windings, or a winding and 'core'", "between")
+        a, c = (str(x).strip() for x in between)
+        for x in (a, c):
+            for part in x.split("+"):     # "S1+S2": windings tied together for the test
+                if part.strip() not in ("core", "all") and part.strip() not in names:
+                    raise b.error(f"'{part.strip()}' names no winding (windings: {', '.join(names)}, "
+                                  f"'all' or 'core')", "between")
+        if a == c:
+            raise b.error("a barrier is between two different things", "between")
+        out.append(Barrier(a=a, b=c, rating=b.choice("rating", RATINGS),
+                           working_voltage_v=b.quantity("working_voltage", "voltage"), line=b.line))
+        b.done()
+    return tuple(out)
+
+
+def _inductor(r: Reader, core: Reader) -> InductorReq:
+    gap_raw = core.raw("gap", "auto")
+    gap_m = None
+    if isinstance(gap_raw, str) and gap_raw.strip().lower() in ("auto", "none"):
+        gap = gap_raw.strip().lower()
+    else:
+        gap = "fixed"
+        gap_m = core.quantity("gap", "length", allow_zero=True)
+    arrangement = core.choice("gap_arrangement", ("centre", "spacer", "none"), "centre" if gap != "none" else "none")
+    req = InductorReq(
+        inductance_h=r.quantity("inductance", "inductance", None),
+        current_dc_a=r.quantity("current", "current"),
+        ripple_a=r.quantity("ripple", "current", 0.0, allow_zero=True),
+        current_peak_a=r.quantity("current_peak", "current", None),
+        duty=r.number("duty", 0.5, minimum=0.01, maximum=0.99),
+        voltage_drop_v=r.quantity("voltage_drop", "voltage", None),
+        gap=gap, gap_m=gap_m, gap_arrangement=arrangement,
+    )
+    r.done()
+    if (req.inductance_h is None) == (req.voltage_drop_v is None):
+        raise r.error("give either the inductance (choke) or the voltage_drop at rated current (AC reactor)")
+    if req.current_peak_a is not None and req.current_peak_a < req.current_dc_a:
+        raise r.error("current_peak is below the rated current", "current_peak")
+    return req
+
+
+def _history(r: Reader) -> tuple:
+    out = []
+    for h in r.items("history", []):
+        out.append({
+            "revision": h.text("revision", ""), "date": str(h.raw("date", "")), "by": h.text("by", ""),
+            "note": h.text("note", ""), "fingerprint": h.text("fingerprint", ""),
+        })
+        h.done()
+    return tuple(out)
+
+
+def load_spec(path) -> Spec:
+    """Read and parse one spec file; every mistake is a located SpecError."""
+    name = str(path)
+    data = load_yaml(path, "spec file")
+    if data is None:
+        raise SpecError("is empty; a spec needs at least part, kind, core, operating and windings", file=name)
+    return parse_spec(data, name)
+
+
+def load_spec_text(text: str, name: str) -> Spec:
+    data = parse_yaml(text, name)
+    if data is None:
+        raise SpecError("is empty", file=name)
+    return parse_spec(data, name)
