@@ -1,0 +1,180 @@
+"""The command line: thin wrappers over the library (specgen.api and friends), nothing else.
+
+Exit codes: 0 success, 1 a design check failed (or verify found a mismatch), 2 bad input.
+A user's mistake is one line on stderr, never a traceback.
+"""
+
+from __future__ import annotations
+
+import functools
+import importlib
+import json
+import sys
+from pathlib import Path
+from typing import Optional
+
+import typer
+
+from . import __version__
+from .errors import DesignFailed, SpecError
+
+app = typer.Typer(name="specgen", no_args_is_help=True, add_completion=False, pretty_exceptions_enable=False,
+                  help="Specs, calculations, work orders and quotes for custom wound magnetics.")
+catalog_app = typer.Typer(name="catalog", no_args_is_help=True, help="The shop's stock: list, show, check.")
+app.add_typer(catalog_app)
+
+CatalogOpt = typer.Option(None, "--catalog", envvar="SPECGEN_CATALOG", metavar="DIR",
+                          help="Catalogue folder (default: the one shipped with specgen).")
+JsonOpt = typer.Option(False, "--json", help="Print the result as JSON.")
+
+
+def guarded(fn):
+    """Turn our error types into one line and an exit code (2 bad input, 1 failed check)."""
+
+    @functools.wraps(fn)
+    def wrapper(*args, **kwargs):
+        try:
+            return fn(*args, **kwargs)
+        except SpecError as err:
+            typer.echo(f"error: {err}", err=True)
+            raise typer.Exit(2)
+        except DesignFailed as err:
+            typer.echo(f"refused: {err}", err=True)
+            for ch in err.failed:
+                typer.echo(f"  FAIL {ch.code}: {ch.message}", err=True)
+            raise typer.Exit(1)
+        except KeyboardInterrupt:
+            typer.echo("interrupted", err=True)
+            raise typer.Exit(130)
+        except BrokenPipeError:
+            raise typer.Exit(0)
+
+    return wrapper
+
+
+def print_json(obj) -> None:
+    typer.echo(json.dumps(obj, indent=2, ensure_ascii=False, default=str))
+
+
+def _version(value: bool):
+    if value:
+        typer.echo(f"specgen {__version__}")
+        raise typer.Exit()
+
+
+@app.callback()
+def _root(version: bool = typer.Option(False, "--version", callback=_version, is_eager=True,
+                                       help="Print the version and exit.")):
+    """specgen: one YAML spec per part + the shop's catalogue -> design, work orders, quotes, change summaries."""
+
+
+# ------------------------------------------------------------------------------------------------ catalog
+
+KINDS = {"wires": "wires", "wire": "wires", "cores": "cores", "core": "cores", "bobbins": "bobbins",
+         "bobbin": "bobbins", "materials": "materials", "material": "materials", "tapes": "tapes",
+         "tape": "tapes", "sleevings": "sleevings", "sleeving": "sleevings", "varnishes": "varnishes",
+         "varnish": "varnishes"}
+
+
+@catalog_app.command("list")
+@guarded
+def catalog_list(kind: str = typer.Argument(..., help="wires, cores, bobbins, materials, tapes, sleevings, varnishes"),
+                 catalog: Optional[Path] = CatalogOpt, as_json: bool = JsonOpt):
+    """List one kind of catalogue item."""
+    from .catalog import views
+    from .catalog.loader import load_catalog
+
+    table = KINDS.get(kind.lower())
+    if table is None:
+        raise SpecError(f"unknown kind '{kind}'; one of {', '.join(sorted(set(KINDS.values())))}", path="KIND")
+    cat = load_catalog(catalog)
+    rows = views.rows(cat, table)
+    if as_json:
+        print_json(rows)
+    else:
+        typer.echo(views.text_table(rows))
+
+
+@catalog_app.command("show")
+@guarded
+def catalog_show(item_id: str = typer.Argument(..., metavar="ID"), catalog: Optional[Path] = CatalogOpt,
+                 as_json: bool = JsonOpt):
+    """Show one catalogue item with its computed properties and source."""
+    from .catalog import views
+    from .catalog.loader import load_catalog
+
+    cat = load_catalog(catalog)
+    info = views.show(cat, item_id)
+    if as_json:
+        print_json(info)
+    else:
+        typer.echo(views.text_show(info))
+
+
+@catalog_app.command("check")
+@guarded
+def catalog_check(folder: Optional[Path] = typer.Argument(None, metavar="[DIR]"),
+                  catalog: Optional[Path] = CatalogOpt):
+    """Validate a catalogue folder; every problem with its file and line (exit 2 if any)."""
+    from .catalog.loader import check_catalog, resolve_catalog_dir
+
+    target = folder or catalog
+    problems = check_catalog(target)
+    if problems:
+        for p in problems:
+            typer.echo(str(p), err=True)
+        typer.echo(f"{len(problems)} problem(s) in {resolve_catalog_dir(target) if target else 'the catalogue'}",
+                   err=True)
+        raise typer.Exit(2)
+    typer.echo(f"catalogue {resolve_catalog_dir(target)}: no problems")
+
+
+# ------------------------------------------------------------------------------------------------ design
+
+@app.command("design")
+@guarded
+def design_cmd(spec: Path = typer.Argument(..., metavar="SPEC.yaml"), catalog: Optional[Path] = CatalogOpt,
+               as_json: bool = JsonOpt):
+    """Run the whole calculation for one part and print it (exit 1 if a check fails)."""
+    from .api import design_file
+    from .report import design_report
+
+    d = design_file(spec, catalog)
+    if as_json:
+        print_json(d.to_dict())
+    else:
+        typer.echo(design_report(d))
+    if d.failed:
+        raise typer.Exit(1)
+
+
+@app.command("demo")
+@guarded
+def demo_cmd(out: Path = typer.Option(Path("specgen-demo"), "--out", metavar="DIR",
+                                      help="Where to write the demo's documents."),
+             catalog: Optional[Path] = CatalogOpt):
+    """Run the main job on the shipped demo shop: designs, work orders, quotes, a change summary."""
+    from .demo import run_demo
+
+    run_demo(out, catalog, echo=typer.echo)
+
+
+# commands that live in their own modules (work orders, register, quotes, revisions, search)
+for _name in ("orders", "workorder", "quote", "revision_cmds", "search"):
+    _mod = importlib.import_module(f"specgen.commands.{_name}")
+    if hasattr(_mod, "register"):
+        _mod.register(app)
+    elif hasattr(_mod, "app"):
+        app.add_typer(_mod.app)
+
+
+def main() -> None:
+    try:
+        app()
+    except SpecError as err:      # raised while parsing options, before a command's guard
+        typer.echo(f"error: {err}", err=True)
+        sys.exit(2)
+
+
+if __name__ == "__main__":
+    main()

@@ -1,0 +1,1 @@
+"""Documents the shop runs on: work orders, quotes, change summaries. They read a Design; never physics."""

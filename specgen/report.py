@@ -1,0 +1,115 @@
+"""Plain-text tables of a Design for the terminal (no colour codes: it is piped and printed too)."""
+
+from __future__ import annotations
+
+from .design.result import Design
+from .physics_classes import IEC_60085
+
+
+def _table(headers: list, rows: list, align: str | None = None) -> str:
+    cells = [[str(h) for h in headers]] + [[("" if c is None else str(c)) for c in r] for r in rows]
+    widths = [max(len(row[i]) for row in cells) for i in range(len(headers))]
+    align = align or ("l" + "r" * (len(headers) - 1))
+    lines = []
+    for n, row in enumerate(cells):
+        parts = [c.ljust(w) if a == "l" else c.rjust(w) for c, w, a in zip(row, widths, align)]
+        lines.append("  ".join(parts).rstrip())
+        if n == 0:
+            lines.append("  ".join("-" * w for w in widths))
+    return "\n".join(lines)
+
+
+def _si(v, unit: str, scale: float = 1.0, digits: int = 4) -> str:
+    if v is None:
+        return "-"
+    return f"{v / scale:.{digits}g} {unit}"
+
+
+def design_report(d: Design) -> str:
+    c = d.core
+    out = []
+    head = f"{d.part} rev {d.revision or '-'} ({d.status})  {d.title}"
+    out.append(head)
+    out.append("=" * len(head))
+    if d.customer:
+        out.append(f"customer {d.customer}")
+    if d.fingerprint:
+        out.append(f"fingerprint {d.fingerprint[:12]}")
+    out.append("")
+    out.append("Core and operating point")
+    core_rows = [
+        ["core", f"{c.id} ({c.shape}, {c.material_name})"],
+        ["stack / count", (f"{c.stack_m * 1e3:g} mm" if c.stack_m else "-") + f", {c.count} set(s)"
+         + (f", {c.laminations} lamination pairs" if c.laminations else "")],
+        ["bobbin", c.bobbin or "none (toroid)"],
+        ["Ae / le / Ve", f"{c.ae_m2 * 1e6:.1f} mm² / {c.le_m * 1e3:.1f} mm / {c.ve_m3 * 1e9:,.0f} mm³  "
+                         f"({c.effective_from})"],
+        ["window Wa", f"{c.wa_m2 * 1e6:.1f} mm²"],
+        ["frequency, waveform", f"{d.frequency_hz:g} Hz, {d.waveform}" + (f" (duty {d.duty:g})"
+                                                                          if d.waveform == "unipolar" else "")],
+        ["B_pk nominal / max", f"{d.b_peak_t:.3f} T / {d.b_peak_max_t:.3f} T  (limit {d.b_limit_t:.3f} T: "
+                               f"{d.b_limit_basis})"],
+        ["B_sat at hot spot", f"{d.b_sat_hot_t:.3f} T"],
+        ["H_pk = N I / le", f"{d.h_peak_a_m:.4g} A/m"],
+    ]
+    if d.magnetizing_current_a is not None:
+        core_rows.append(["magnetizing", f"{d.magnetizing_current_a * 1e3:.4g} mA rms, "
+                                         f"L_m {d.magnetizing_inductance_h:.4g} H"])
+    if d.inductor is not None:
+        i = d.inductor
+        core_rows += [
+            ["inductance", f"{i.inductance_h * 1e6:.4g} µH built (target {i.target_h * 1e6:.4g} µH); "
+                           f"{i.inductance_zero_bias_h * 1e6:.4g} µH at no bias"],
+            ["gap", "none" if not i.gap_m else
+             f"{i.gap_m * 1e3:.2f} mm, {i.gap_arrangement}"
+             + (f" (spacer {i.spacer_m * 1e3:.2f} mm in every leg)" if i.spacer_m else "")
+             + (f" (grind centre leg {i.grind_m * 1e3:.2f} mm)" if i.grind_m else "")
+             + f", fringing F {i.fringing_factor:.3f}"],
+            ["AL, energy", f"{i.al_nh:.4g} nH/turn², {i.energy_j * 1e3:.4g} mJ"],
+            ["DC bias", f"H_dc {i.h_dc_a_m:.4g} A/m, roll-off {i.rolloff_pct:.1f} %"],
+            ["current", f"{i.current_dc_a:g} A, ripple {i.ripple_a:g} A p-p, peak {i.current_peak_a:g} A; "
+                        f"ΔB {i.delta_b_t * 1e3:.1f} mT"],
+        ]
+    out.append(_table(["", ""], core_rows, "ll"))
+    out.append("")
+    out.append("Windings (build order by section, see the work order)")
+    rows = []
+    for w in d.windings:
+        rows.append([w.name, w.role, w.turns, f"{w.wire}" + (f" x{w.strands}" if w.strands > 1 else ""),
+                     w.layers, w.turns_per_layer, f"{w.length_m:.2f}", f"{w.dcr_20c_ohm:.4g}",
+                     f"{w.dcr_hot_ohm:.4g}", f"{w.current_a:.3g}", f"{w.current_density_a_m2 / 1e6:.2f}",
+                     f"{w.fr:.2f}", f"{w.start}-{w.finish}", w.dot_pin])
+    out.append(_table(["name", "role", "turns", "wire", "layers", "t/layer", "length m", "DCR 20°C Ω",
+                       f"DCR {d.hot_spot_c:.0f}°C Ω", "I A", "J A/mm²", "Fr", "pins", "dot"], rows,
+                      "llrlrrrrrrrrll"))
+    volts = [w for w in d.windings if w.open_circuit_v]
+    if volts:
+        out.append("")
+        out.append("  " + "; ".join(f"{w.name}: {w.voltage_v:.3f} V at full load, {w.open_circuit_v:.3f} V open "
+                                    f"circuit" for w in volts))
+    out.append("")
+    b = d.build
+    out.append("Build and fill")
+    out.append(_table(["", ""], [
+        ["build height", f"{b.height_m * 1e3:.2f} mm, x bulge = {b.bulged_height_m * 1e3:.2f} mm"],
+        ["available", f"{b.available_m * 1e3:.2f} mm ({b.fill_fraction:.0%} used)" + ("" if b.fits else "  DOES NOT FIT")],
+        ["window utilisation Ku", f"{b.ku:.3f}"],
+    ] + ([["hole left", f"{b.hole_m * 1e3:.1f} mm"]] if b.hole_m is not None else []), "ll"))
+    out.append("")
+    out.append("Losses and temperature")
+    l = d.losses
+    rows = [["copper", f"{l.copper_w:.3f} W"], ["core", f"{l.core_w:.3f} W ({l.core_loss_density_w_m3 / 1e3:.1f} kW/m³)"],
+            ["total", f"{l.total_w:.3f} W"],
+            ["rise / hot spot", f"{d.temperature_rise_k:.1f} K / {d.hot_spot_c:.1f} °C "
+                                f"(class {d.insulation_class_c} ({IEC_60085.get(d.insulation_class_c, '?')}))"]]
+    if d.efficiency is not None:
+        rows.append(["efficiency", f"{d.efficiency * 100:.2f} %"])
+    if d.regulation_pct is not None:
+        rows.append(["regulation", f"{d.regulation_pct:.2f} %"])
+    out.append(_table(["", ""], rows, "ll"))
+    out.append("")
+    out.append("Checks")
+    mark = {"pass": "pass", "warn": "WARN", "fail": "FAIL"}
+    for ch in d.checks:
+        out.append(f"  {mark[ch.level]:4}  {ch.code:16} {ch.message}")
+    return "\n".join(out)
