@@ -6,7 +6,6 @@ A user's mistake is one line on stderr, never a traceback.
 
 from __future__ import annotations
 
-import functools
 import importlib
 import json
 import sys
@@ -16,7 +15,8 @@ from typing import Optional
 import typer
 
 from . import __version__
-from .errors import DesignFailed, SpecError
+from .commands._common import guarded, print_json
+from .errors import SpecError
 
 app = typer.Typer(name="specgen", no_args_is_help=True, add_completion=False, pretty_exceptions_enable=False,
                   help="Specs, calculations, work orders and quotes for custom wound magnetics.")
@@ -26,34 +26,6 @@ app.add_typer(catalog_app)
 CatalogOpt = typer.Option(None, "--catalog", envvar="SPECGEN_CATALOG", metavar="DIR",
                           help="Catalogue folder (default: the one shipped with specgen).")
 JsonOpt = typer.Option(False, "--json", help="Print the result as JSON.")
-
-
-def guarded(fn):
-    """Turn our error types into one line and an exit code (2 bad input, 1 failed check)."""
-
-    @functools.wraps(fn)
-    def wrapper(*args, **kwargs):
-        try:
-            return fn(*args, **kwargs)
-        except SpecError as err:
-            typer.echo(f"error: {err}", err=True)
-            raise typer.Exit(2)
-        except DesignFailed as err:
-            typer.echo(f"refused: {err}", err=True)
-            for ch in err.failed:
-                typer.echo(f"  FAIL {ch.code}: {ch.message}", err=True)
-            raise typer.Exit(1)
-        except KeyboardInterrupt:
-            typer.echo("interrupted", err=True)
-            raise typer.Exit(130)
-        except BrokenPipeError:
-            raise typer.Exit(0)
-
-    return wrapper
-
-
-def print_json(obj) -> None:
-    typer.echo(json.dumps(obj, indent=2, ensure_ascii=False, default=str))
 
 
 def _version(value: bool):
