@@ -7,22 +7,37 @@ from .physics_classes import IEC_60085
 
 
 def _table(headers: list, rows: list, align: str | None = None) -> str:
-    cells = [[str(h) for h in headers]] + [[("" if c is None else str(c)) for c in r] for r in rows]
+    has_header = any(str(h) for h in headers)
+    cells = ([[str(h) for h in headers]] if has_header else []) + \
+        [[("" if c is None else str(c)) for c in r] for r in rows]
     widths = [max(len(row[i]) for row in cells) for i in range(len(headers))]
     align = align or ("l" + "r" * (len(headers) - 1))
     lines = []
     for n, row in enumerate(cells):
         parts = [c.ljust(w) if a == "l" else c.rjust(w) for c, w, a in zip(row, widths, align)]
-        lines.append("  ".join(parts).rstrip())
-        if n == 0:
-            lines.append("  ".join("-" * w for w in widths))
+        lines.append("  " + "  ".join(parts).rstrip())
+        if n == 0 and has_header:
+            lines.append("  " + "  ".join("-" * w for w in widths))
     return "\n".join(lines)
+
+
+def freq(hz: float) -> str:
+    return f"{hz / 1e3:g} kHz" if hz >= 1e3 else f"{hz:g} Hz"
 
 
 def _si(v, unit: str, scale: float = 1.0, digits: int = 4) -> str:
     if v is None:
         return "-"
     return f"{v / scale:.{digits}g} {unit}"
+
+
+def waveform_text(d: Design) -> str:
+    """How the core is driven: a DC choke carries DC with a triangular ripple, not the spec's waveform."""
+    if d.inductor is not None and d.inductor.b_dc_t > 0:
+        return "DC with triangular ripple"
+    if d.waveform == "unipolar":
+        return f"unipolar pulse, duty {d.duty:g}"
+    return d.waveform
 
 
 def design_report(d: Design) -> str:
@@ -45,8 +60,7 @@ def design_report(d: Design) -> str:
         ["Ae / le / Ve", f"{c.ae_m2 * 1e6:.1f} mm² / {c.le_m * 1e3:.1f} mm / {c.ve_m3 * 1e9:,.0f} mm³  "
                          f"({c.effective_from})"],
         ["window Wa", f"{c.wa_m2 * 1e6:.1f} mm²"],
-        ["frequency, waveform", f"{d.frequency_hz:g} Hz, {d.waveform}" + (f" (duty {d.duty:g})"
-                                                                          if d.waveform == "unipolar" else "")],
+        ["frequency, waveform", f"{freq(d.frequency_hz)}, {waveform_text(d)}"],
         ["B_pk nominal / max", f"{d.b_peak_t:.3f} T / {d.b_peak_max_t:.3f} T  (limit {d.b_limit_t:.3f} T: "
                                f"{d.b_limit_basis})"],
         ["B_sat at hot spot", f"{d.b_sat_hot_t:.3f} T"],
