@@ -91,7 +91,6 @@ def _fast_table() -> dict:
         add([p + "m^2", p + "m**2", p + "m²"], "area", f * f)
         add([p + "m^3", p + "m**3", p + "m³"], "volume", f ** 3)
     add(["in", "inch"], "length", 0.0254)
-    add(["mil"], "length", 25.4e-6)
     add(["kg"], "mass", 1.0)
     add(["g"], "mass", 1e-3)
     add(["mg"], "mass", 1e-6)
@@ -119,7 +118,7 @@ def _fast_table() -> dict:
     add(["kV/mm"], "electric_field", 1e6)
     add(["V/mm"], "electric_field", 1e3)
     add(["V/um", "V/µm"], "electric_field", 1e6)
-    add(["ohm*m", "ohm m"], "resistivity", 1.0)
+    add(["ohm*m"], "resistivity", 1.0)
     return t
 
 
