@@ -18,9 +18,12 @@ from . import __version__
 from .commands._common import guarded, print_json
 from .errors import SpecError
 
+# rich_markup_mode=None: plain help, so the quick commands do not import rich (~50 ms)
 app = typer.Typer(name="specgen", no_args_is_help=True, add_completion=False, pretty_exceptions_enable=False,
+                  rich_markup_mode=None,
                   help="Specs, calculations, work orders and quotes for custom wound magnetics.")
-catalog_app = typer.Typer(name="catalog", no_args_is_help=True, help="The shop's stock: list, show, check.")
+catalog_app = typer.Typer(name="catalog", no_args_is_help=True, rich_markup_mode=None,
+                          help="The shop's stock: list, show, check.")
 app.add_typer(catalog_app)
 
 CatalogOpt = typer.Option(None, "--catalog", envvar="SPECGEN_CATALOG", metavar="DIR",
@@ -140,12 +143,25 @@ for _name in ("orders", "workorder", "quote", "revision_cmds", "search"):
         app.add_typer(_mod.app)
 
 
-def main() -> None:
+def main(argv: list | None = None) -> None:
+    """Run the CLI; a usage mistake is one line too (click's own report spans three)."""
+    import click
+
     try:
-        app()
+        code = app(args=argv, standalone_mode=False)
+    except click.UsageError as err:
+        where = err.ctx.command_path if err.ctx is not None else "specgen"
+        typer.echo(f"error: {err.format_message()} (see `{where} --help`)", err=True)
+        sys.exit(2)
+    except click.Abort:
+        typer.echo("interrupted", err=True)
+        sys.exit(130)
+    except click.exceptions.Exit as ex:
+        sys.exit(ex.exit_code)
     except SpecError as err:      # raised while parsing options, before a command's guard
         typer.echo(f"error: {err}", err=True)
         sys.exit(2)
+    sys.exit(code if isinstance(code, int) else 0)
 
 
 if __name__ == "__main__":

@@ -455,11 +455,79 @@ def _cross_check(tables: dict, locations: dict, problems: list | None) -> None:
 
 
 def load_catalog(root: str | os.PathLike | None = None) -> Catalog:
-    """Load the catalogue folder (see ``resolve_catalog_dir``) or raise the first SpecError."""
+    """Load the catalogue folder (see ``resolve_catalog_dir``) or raise the first SpecError.
+
+    A successfully checked catalogue is cached (a pickle under the user's cache folder, keyed on every
+    file's name, size and modification time and on specgen's own loader), so the quick commands skip
+    the YAML parse and the geometry cross-check. ``SPECGEN_CACHE=0`` turns the cache off.
+    """
     path = resolve_catalog_dir(root)
+    key = _cache_key(path)
+    cached = _cache_read(key)
+    if cached is not None:
+        return cached
     tables, shop, locations = _read_dir(path, None)
     _cross_check(tables, locations, None)
-    return Catalog(root=str(path), shop=shop, locations=locations, **tables)
+    cat = Catalog(root=str(path), shop=shop, locations=locations, **tables)
+    _cache_write(key, cat)
+    return cat
+
+
+def _cache_dir() -> Path | None:
+    if os.environ.get("SPECGEN_CACHE", "1") in ("0", "no", "off", "false"):
+        return None
+    base = os.environ.get("XDG_CACHE_HOME") or os.path.join(os.path.expanduser("~"), ".cache")
+    return Path(base) / "specgen"
+
+
+def _cache_key(path: Path) -> str | None:
+    import hashlib
+
+    if _cache_dir() is None:
+        return None
+    h = hashlib.sha256()
+    from .. import __version__
+
+    h.update(__version__.encode())
+    for own in (Path(__file__), Path(__file__).with_name("models.py"), Path(__file__).parent.parent / "loading.py"):
+        st = own.stat()
+        h.update(f"{own.name}:{st.st_size}:{st.st_mtime_ns}".encode())
+    h.update(str(path.resolve()).encode())
+    for f in sorted(list(path.glob("*.yaml")) + list(path.glob("*.yml"))):
+        st = f.stat()
+        h.update(f"{f.name}:{st.st_size}:{st.st_mtime_ns}".encode())
+    return h.hexdigest()[:32]
+
+
+def _cache_read(key: str | None):
+    if key is None:
+        return None
+    import pickle
+
+    try:
+        with open(_cache_dir() / f"catalog-{key}.pickle", "rb") as fh:
+            obj = pickle.load(fh)
+        return obj if isinstance(obj, Catalog) else None
+    except Exception:       # a missing, stale or unreadable cache is simply rebuilt
+        return None
+
+
+def _cache_write(key: str | None, cat: Catalog) -> None:
+    if key is None:
+        return
+    import pickle
+
+    try:
+        folder = _cache_dir()
+        folder.mkdir(parents=True, exist_ok=True)
+        for old in folder.glob("catalog-*.pickle"):
+            if old.stat().st_mtime < __import__("time").time() - 7 * 86400:
+                old.unlink(missing_ok=True)
+        from ..atomic import write_atomic
+
+        write_atomic(folder / f"catalog-{key}.pickle", pickle.dumps(cat, protocol=pickle.HIGHEST_PROTOCOL))
+    except Exception:       # no cache folder (read-only home, say): run uncached
+        pass
 
 
 def check_catalog(root: str | os.PathLike | None = None) -> list:
