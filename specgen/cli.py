@@ -94,6 +94,7 @@ def catalog_check(folder: Optional[Path] = typer.Argument(None, metavar="[DIR]")
     from .catalog.loader import check_catalog, resolve_catalog_dir
 
     target = folder or catalog
+    resolve_catalog_dir(target)        # a missing folder is one line, not a problem list
     problems = check_catalog(target)
     if problems:
         for p in problems:
