@@ -152,7 +152,7 @@ def main(argv: list | None = None) -> None:
         code = app(args=argv, standalone_mode=False)
     except click.UsageError as err:
         where = err.ctx.command_path if err.ctx is not None else "specgen"
-        typer.echo(f"error: {err.format_message()} (see `{where} --help`)", err=True)
+        typer.echo(f"{where}: {err.format_message()} (see `{where} --help`)", err=True)
         sys.exit(2)
     except click.Abort:
         typer.echo("interrupted", err=True)
@@ -160,7 +160,7 @@ def main(argv: list | None = None) -> None:
     except click.exceptions.Exit as ex:
         sys.exit(ex.exit_code)
     except SpecError as err:      # raised while parsing options, before a command's guard
-        typer.echo(f"error: {err}", err=True)
+        typer.echo(str(err), err=True)
         sys.exit(2)
     sys.exit(code if isinstance(code, int) else 0)
 

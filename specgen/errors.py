@@ -18,13 +18,21 @@ class SpecError(Exception):
         self.path = path
         super().__init__(str(self))
 
+    MAX_MESSAGE = 400   # messages quote the user's value; a 5 MB string must not become a 5 MB line
+
     def __str__(self) -> str:
         where = []
         if self.file:
             where.append(str(self.file) + (f":{self.line}" if self.line else ""))
         if self.path:
             where.append(self.path)
-        return ": ".join(where + [self.message])
+        return one_line(": ".join(where + [self.message]), self.MAX_MESSAGE + 200)
+
+
+def one_line(text: str, limit: int) -> str:
+    """A message as exactly one line: control characters shown escaped, long text clipped."""
+    text = text.replace("\r", "\\r").replace("\n", "\\n").replace("\t", "\\t")
+    return text if len(text) <= limit else text[: limit - 1] + "…"
 
 
 class DesignFailed(Exception):

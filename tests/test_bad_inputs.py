@@ -50,7 +50,7 @@ def test_bad_spec_is_one_located_line(case, tmp_path, capsys):
     code, lines = run(["design", str(spec)], capsys)
     assert code == 2, lines
     assert len(lines) == 1, lines
-    assert lines[0].startswith(f"error: {spec}"), lines[0]
+    assert lines[0].startswith(f"{spec}"), lines[0]
     assert expected(case) in lines[0], lines[0]
     assert "Traceback" not in lines[0]
     assert snapshot(tmp_path) == before
@@ -63,7 +63,7 @@ def test_a_line_number_is_given_where_the_file_has_one(tmp_path, capsys):
         spec = tmp_path / case.name
         shutil.copyfile(case, spec)
         _, lines = run(["design", str(spec)], capsys)
-        rest = lines[0][len(f"error: {spec}"):]
+        rest = lines[0][len(f"{spec}"):]
         if rest.startswith(":") and rest[1:].split(":", 1)[0].isdigit():
             located += 1
     assert located >= len(SPEC_CASES) - 3      # the empty file, a top-level list and a NUL-byte file
@@ -101,7 +101,7 @@ def test_long_but_allowed_file_with_an_overlong_title(tmp_path, capsys):
 
 def test_folder_as_spec(tmp_path, capsys):
     code, lines = run(["design", str(tmp_path)], capsys)
-    assert code == 2 and lines == [f"error: {tmp_path}: is a folder, expected a spec file"]
+    assert code == 2 and lines == [f"{tmp_path}: is a folder, expected a spec file"]
 
 
 @pytest.mark.parametrize("argv, fragment", [

@@ -18,7 +18,7 @@ def guarded(fn):
         try:
             return fn(*args, **kwargs)
         except SpecError as err:
-            typer.echo(f"error: {err}", err=True)
+            typer.echo(str(err), err=True)
             raise typer.Exit(2)
         except DesignFailed as err:
             typer.echo(f"refused: {err}", err=True)

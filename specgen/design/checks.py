@@ -54,11 +54,12 @@ def run_checks(*, spec, cat, parts, windings, build, built, temp, b_peak, b_peak
     else:
         ind = inductor
         if b_peak_max > bsat:
-            n = windings[0].turns
+            # N = L I_pk / (B_limit Ae), plus one for the gap rounded down to the shop's step
+            need = math.ceil(ind.inductance_h * ind.current_peak_a / (limit * parts.ae_m2) - 1e-9) + 1
             out.append(Check("fail", "saturation",
                              f"B_pk {_fmt_t(b_peak_max)} at the peak current {ind.current_peak_a:.3g} A exceeds "
-                             f"B_sat {_fmt_t(bsat)} at {temp.hot_c:.0f} °C: use a core with more Ae, or more "
-                             f"turns with a larger gap (about {math.ceil(n * b_peak_max / (0.9 * bsat))} turns)"))
+                             f"B_sat {_fmt_t(bsat)} at {temp.hot_c:.0f} °C: use more turns with a larger gap, about "
+                             f"{need} turns (or let specgen choose them), or a core with more Ae"))
         elif b_peak_max > limit * 1.0005:
             out.append(Check("warn", "saturation",
                              f"B_pk {_fmt_t(b_peak_max)} at the peak current is above the {_fmt_t(limit)} working "
@@ -114,8 +115,10 @@ def run_checks(*, spec, cat, parts, windings, build, built, temp, b_peak, b_peak
                                                 f"{spec.ambient_c:g} °C ambient), class {cls} ({letter}) limit"))
     for w in windings:
         if w.thermal_class_c < temp.hot_c:
+            better = min((c for c in IEC_60085 if c >= temp.hot_c), default=None)
             out.append(Check("fail", "wire-class", f"winding {w.name}: wire {w.wire} is class {w.thermal_class_c}, "
-                                                   f"below the {temp.hot_c:.0f} °C hot spot"))
+                                                   f"below the {temp.hot_c:.0f} °C hot spot: use class "
+                                                   f"{better or 'higher'} wire or lower the loss"))
         elif w.thermal_class_c < cls:
             out.append(Check("warn", "wire-class", f"winding {w.name}: wire {w.wire} is class {w.thermal_class_c}, "
                                                    f"below the insulation system class {cls}"))
@@ -129,7 +132,7 @@ def run_checks(*, spec, cat, parts, windings, build, built, temp, b_peak, b_peak
         parts_classes.append((f"varnish {spec.varnish}", cat.varnishes[spec.varnish].thermal_class_c))
     for sid in {spec.sleeving, *[w.lead_sleeving for w in windings]} - {None}:
         parts_classes.append((f"sleeving {sid}", cat.sleevings[sid].thermal_class_c))
-    for name, c in parts_classes:
+    for name, c in dict(parts_classes).items():     # a tape used twice is checked once
         if c < temp.hot_c:
             out.append(Check("fail", "material-class", f"{name} is class {c}, below the {temp.hot_c:.0f} °C hot spot"))
         elif c < cls:

@@ -409,9 +409,23 @@ def _layer_fr_wire(w: Wire, strands: int, turns: int, sb: SectionBuild, delta: f
 # ------------------------------------------------------------------------------------------------ helpers
 
 def b_sat_at_t(material: Material, temp_c: float) -> float:
-    """B_sat interpolated linearly between its 25 and 100 degC values (extrapolated beyond, never < 0)."""
+    """B_sat interpolated linearly between its 25 and 100 degC values, extrapolated beyond.
+
+    Extrapolation is held above 5 % of the 25 degC value: far past the Curie point the line would cross
+    zero, and a design that hot fails its temperature check anyway.
+    """
     slope = (material.b_sat_100c_t - material.b_sat_25c_t) / 75.0
-    return max(0.0, material.b_sat_25c_t + slope * (temp_c - 25.0))
+    return max(0.05 * material.b_sat_25c_t, material.b_sat_25c_t + slope * (temp_c - 25.0))
+
+
+MAX_HOT_C = 1000.0   # the thermal loop stops here: a design this hot fails its checks, no need to iterate further
+
+
+def too_many_turns(spec: Spec, turns: float, what: str, *keys) -> SpecError:
+    from .spec import MAX_TURNS
+
+    return _spec_error(spec, f"{what} needs {turns:,.0f} turns, more than the {MAX_TURNS:,} this tool winds: "
+                             f"the requirement does not suit core {spec.core_id}", *keys)
 
 
 def _flux_limit(spec: Spec, cat: Catalog, material: Material, hot_c: float) -> tuple[float, str]:
@@ -497,6 +511,7 @@ def thermal_state(total_loss_w: float, parts: _Parts, spec: Spec, cat: Catalog) 
         rise *= 0.6    # forced air roughly halves the rise of natural convection (common practice, from memory)
     elif spec.cooling == "potted":
         rise *= 0.85
+    rise = min(rise, MAX_HOT_C - spec.ambient_c)
     winding = spec.ambient_c + rise
     return _Thermal(winding, winding + cat.shop.hotspot_margin_k, rise)
 

@@ -15,9 +15,9 @@ import math
 from ..catalog.models import Catalog
 from ..physics import gap as gapmod, permeability
 from .engine import (_Parts, _Thermal, _WState, _core_loss_w_m3, _flux_limit, _lay_out, _section_frs,
-                     _spec_error, b_sat_at_t, choose_wire, finish, thermal_state)
+                     _spec_error, b_sat_at_t, choose_wire, finish, thermal_state, too_many_turns)
 from .result import Check, Design, InductorResult
-from .spec import Spec
+from .spec import MAX_TURNS, Spec
 
 GAP_STEP_M = 1e-5          # gaps are ground or shimmed to 0.01 mm (common practice)
 RIPPLE_SKIN_FRACTION = 0.2 # ripple rms below 20 % of DC: the DC current sets the wire, skin depth ignored (common practice)
@@ -57,9 +57,14 @@ def design_inductor(spec: Spec, cat: Catalog, parts: _Parts) -> Design:
     G = parts.window_breadth_m
     ae, le, mu = parts.ae_m2, parts.le_m, mat.mu_initial
 
+    if mat.is_powder and req.gap == "fixed":
+        raise _spec_error(spec, f"{parts.core.id} is a powder core: its gap is distributed in the material; "
+                                f"remove core.gap", "core", "gap")
+
     def magnetics(temp: _Thermal) -> dict:
         b_limit = _flux_limit(spec, cat, mat, temp.hot_c)
-        out = {"b_limit": b_limit, "arrangement": "none", "gap": None, "spacer": None, "grind": None, "F": 1.0}
+        out = {"b_limit": b_limit, "arrangement": "none", "gap": None, "spacer": None, "grind": None, "F": 1.0,
+               "notes": []}
         if mat.is_powder:
             a, b, c = mat.rolloff_a, mat.rolloff_b, mat.rolloff_c
             n = w.turns or permeability.turns_for_biased_inductance(target, i_dc if not ac else i_op_pk, ae, le,
@@ -87,7 +92,10 @@ def design_inductor(spec: Spec, cat: Catalog, parts: _Parts) -> Design:
             lg = 0.0
             n = w.turns or _turns_for_l(target, ae, le, mu, 0.0, G)
         else:
-            n = w.turns or max(1, math.ceil(gapmod.turns_for_peak_b(target, i_pk, limit, ae) - 1e-9))
+            n_float = gapmod.turns_for_peak_b(target, i_pk, limit, ae)
+            if not n_float < MAX_TURNS:
+                raise too_many_turns(spec, n_float, f"{target * 1e6:.4g} µH at {i_pk:g} A", "inductor")
+            n = w.turns or max(1, math.ceil(n_float - 1e-9))
             lg = gapmod.gap_for_inductance_m(target, n, ae, le, mu, G)
             if lg is None:          # even without a gap L is short: more turns, no gap
                 if w.turns:
@@ -109,11 +117,13 @@ def design_inductor(spec: Spec, cat: Catalog, parts: _Parts) -> Design:
         arrangement = req.gap_arrangement if lg > 0 else "none"
         if arrangement == "centre" and parts.core.shape == "EI":
             arrangement = "spacer"
-            extra.append(Check("warn", "gap", "laminations cannot be ground in the centre leg only: the gap is "
-                                              "made with a spacer (butt gap) in every leg"))
+            out["notes"].append(Check("warn", "gap", "laminations cannot be ground in the centre leg only: the gap "
+                                                     "is made with a spacer (butt gap) in every leg"))
         if lg > 0 and not parts.core.gappable and req.gap == "auto":
-            extra.append(Check("warn", "gap", f"{parts.core.id} is not marked gappable in the catalogue: "
-                                              f"confirm the shop can grind or shim it"))
+            out["notes"].append(Check("warn", "gap", f"{parts.core.id} is not marked gappable in the catalogue: "
+                                                     f"confirm the shop can grind or shim it"))
+        if n > MAX_TURNS:
+            raise too_many_turns(spec, n, f"{target * 1e6:.4g} µH at {i_pk:g} A", "inductor")
         out.update(n=n, l_built=l_built, l0=l_built, lfull=l_built, gap=lg if lg > 0 else 0.0,
                    arrangement=arrangement, F=gapmod.fringing_factor(lg, ae, G) if lg > 0 else 1.0,
                    spacer=lg / 2.0 if arrangement == "spacer" else None,
@@ -160,6 +170,7 @@ def design_inductor(spec: Spec, cat: Catalog, parts: _Parts) -> Design:
 
     n = mg["n"]
     l_built = mg["l_built"]
+    extra += mg["notes"]          # from the last pass only: the loop re-runs magnetics() each iteration
     ind = InductorResult(
         inductance_h=l_built, inductance_zero_bias_h=mg["l0"], inductance_at_full_bias_h=mg["lfull"],
         target_h=target, gap_m=None if mat.is_powder else mg["gap"], gap_arrangement=mg["arrangement"],
@@ -189,6 +200,9 @@ def design_inductor(spec: Spec, cat: Catalog, parts: _Parts) -> Design:
 
 
 def _turns_for_l(target_h: float, ae: float, le: float, mu: float, lg: float, window_m: float) -> int:
-    """Smallest N meeting L with a fixed gap: L grows as N^2 (fringing does not depend on N)."""
+    """Smallest N meeting L with a fixed gap: L grows as N^2 (fringing does not depend on N).
+
+    Capped one above MAX_TURNS so the caller's turn check reports an impossible requirement."""
     l1 = gapmod.inductance_gapped_h(1, ae, le, mu, lg, window_m if lg > 0 else None)
-    return max(1, math.ceil(math.sqrt(target_h / l1) - 1e-9))
+    n = math.sqrt(target_h / l1)
+    return MAX_TURNS + 1 if not n < MAX_TURNS else max(1, math.ceil(n - 1e-9))

@@ -380,7 +380,7 @@ def _history(r: Reader) -> tuple:
             "revision": h.text("revision", ""), "date": str(h.raw("date", "")), "by": h.text("by", ""),
             "note": h.text("note", ""), "fingerprint": h.text("fingerprint", ""),
         })
-        h.done()
+        h.done(("parts",))     # per-key fingerprints written by `specgen release`
     return tuple(out)
 
 

@@ -8,9 +8,9 @@ from dataclasses import dataclass
 from ..catalog.models import Catalog
 from ..physics import faraday
 from .engine import (_Built, _Parts, _Thermal, _WState, _core_loss_w_m3, _dcr, _flux_limit, _lay_out,
-                     _lengths, _section_frs, _spec_error, choose_wire, finish, thermal_state)
+                     _lengths, _section_frs, _spec_error, choose_wire, finish, thermal_state, too_many_turns)
 from .result import Check, Design
-from .spec import Spec
+from .spec import MAX_TURNS, Spec
 
 WIRE_CHOICE_TEMP_C = 100.0   # skin depth for the strand limit taken at a typical hot copper temperature
 MAGNETIZING_WARN = 0.35     # magnetizing current above this share of the primary current (common practice)
@@ -78,6 +78,9 @@ def design_transformer(spec: Spec, cat: Catalog, parts: _Parts) -> Design:
         if prim.turns:
             return prim.turns
         n = faraday.turns_for_voltage(vp_max, f, swing_limit(b_limit[0]), parts.ae_m2, wf, spec.duty)
+        if not n < MAX_TURNS:
+            raise too_many_turns(spec, n, f"the primary at {vp_max:g} V, {f:g} Hz", "windings", 
+                                 spec.windings.index(prim), "voltage")
         return max(1, math.ceil(n - 1e-9))
 
     wires: dict = {}
@@ -112,6 +115,9 @@ def design_transformer(spec: Spec, cat: Catalog, parts: _Parts) -> Design:
                 turns, current = (w.turns or 1), 0.0
             else:
                 turns = w.turns or max(1, math.ceil(np_turns * w.voltage_v / vp - 1e-9))
+                if turns > MAX_TURNS:
+                    raise too_many_turns(spec, turns, f"winding {w.name} at {w.voltage_v:g} V", "windings", i,
+                                         "voltage")
                 current = load_current[w.name]
             states[w.name] = _WState(w, i, wire, strands, turns, current, reason)
         built = None
@@ -129,15 +135,17 @@ def design_transformer(spec: Spec, cat: Catalog, parts: _Parts) -> Design:
                         st.turns, changed = cap, True
             lengths = _lengths(built, cat.shop.lead_length_m)
             rp = _dcr(states[prim.name], lengths[prim.name], temp.hot_c)
+            # the primary carries every load's current referred through its ratio, so its drop is shared
+            i_ref = sum(states[w.name].current_a * states[w.name].turns / np_turns for w in loads)
             for w in loads:
                 st = states[w.name]
                 rs = _dcr(st, lengths[w.name], temp.hot_c)
                 ratio = st.turns / np_turns
-                # resistive drop referred to the secondary (resistive load, leakage reactance neglected)
-                v_loaded = vp * ratio - st.current_a * (rs + rp * ratio ** 2)
+                # resistive drops (resistive load, in phase; leakage reactance neglected)
+                v_loaded = ratio * (vp - i_ref * rp) - st.current_a * rs
                 loaded[w.name] = v_loaded
-                if w.turns is None and v_loaded < w.voltage_v - 1e-9:
-                    volts_per_turn = vp / np_turns
+                if w.turns is None and v_loaded < w.voltage_v - 1e-9 and st.turns <= MAX_TURNS:
+                    volts_per_turn = (vp - i_ref * rp) / np_turns
                     st.turns += max(1, math.ceil((w.voltage_v - v_loaded) / volts_per_turn - 1e-9))
                     changed = True
             for w in loads:      # matched pairs wind the larger of their two turn counts
@@ -205,6 +213,12 @@ def design_transformer(spec: Spec, cat: Catalog, parts: _Parts) -> Design:
     voltages = {prim.name: vp, **{k: v for k, v in ev.loaded_v.items()}}
     h_peak = faraday.h_field_a_m(ev.np, ev.imag_pk, parts.le_m)
     extra = []
+    for w in loads:
+        got = ev.loaded_v.get(w.name)
+        if w.turns is not None and got is not None and got < w.voltage_v * 0.995:
+            extra.append(Check("warn", "output-voltage",
+                               f"winding {w.name} has fixed turns ({w.turns}) and delivers {got:.3f} V at full load, "
+                               f"below the {w.voltage_v:g} V asked: add turns or remove the fixed count"))
     p = ev.states[prim.name]
     if p.current_a > 0 and ev.imag / p.current_a > MAGNETIZING_WARN:
         extra.append(Check("warn", "magnetizing",

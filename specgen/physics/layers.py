@@ -58,6 +58,11 @@ def layer_fr(delta, f_inner, f_outer):
     layers is Dowell's 1 + (5M^2 - 1) D^4/45. (Checked against 50-digit mpmath evaluation of the closed
     form; in double precision the closed form itself is accurate down to D ~ 0.01.)
     """
+    with np.errstate(over="ignore", invalid="ignore", divide="ignore"):
+        return _layer_fr(delta, f_inner, f_outer)
+
+
+def _layer_fr(delta, f_inner, f_outer):
     d = np.asarray(delta, dtype=float)
     f1 = np.asarray(f_inner, dtype=float)
     f2 = np.asarray(f_outer, dtype=float)
