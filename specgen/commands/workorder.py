@@ -1,5 +1,51 @@
-"""Commands: filled in by the workorder work."""
+"""``specgen workorder``: issue a shop-floor work order (PDF + HTML) from a released spec.
+
+A thin wrapper over :func:`specgen.documents.workorder.issue_work_order`; WeasyPrint is imported only
+inside the command, when a PDF is rendered.
+
+Exit codes: 0 issued; 1 a design check failed (the failed checks are listed, no number is taken);
+2 a user's mistake, including a spec that is not released (without ``--draft``) or a released spec
+that no longer matches its release record.
+"""
+
+from __future__ import annotations
+
+from pathlib import Path
+from typing import Optional
+
+import typer
+
+from ._common import guarded
 
 
 def register(app) -> None:
-    """Add this module's commands to the root Typer app."""
+    """Add ``workorder`` to the root Typer app."""
+
+    @app.command("workorder")
+    @guarded
+    def workorder_cmd(
+        spec: Path = typer.Argument(..., metavar="SPEC.yaml", help="The part's spec file."),
+        qty: str = typer.Option(..., "--qty", metavar="N", help="Pieces in the lot (1..1,000,000)."),
+        due: Optional[str] = typer.Option(None, "--due", metavar="YYYY-MM-DD", help="Due date."),
+        lot: Optional[str] = typer.Option(None, "--lot", metavar="TEXT", help="Lot or batch reference."),
+        out: Path = typer.Option(Path("."), "--out", metavar="DIR", help="Folder for the PDF and HTML."),
+        draft: bool = typer.Option(False, "--draft",
+                                   help="Allow a spec that is not released: every page is marked "
+                                        "'DRAFT - NOT FOR PRODUCTION' and the number is recorded void."),
+        register_path: Optional[Path] = typer.Option(
+            None, "--register", metavar="PATH",
+            help="Work-order register (default: $SPECGEN_REGISTER, else specgen-register.sqlite beside the spec)."),
+        number: Optional[str] = typer.Option(None, "--number", metavar="NUM",
+                                             help="Use this number (from the ERP) instead of the next one."),
+        by: Optional[str] = typer.Option(None, "--by", metavar="NAME", help="Who issues it (default: login name)."),
+        catalog: Optional[Path] = typer.Option(None, "--catalog", envvar="SPECGEN_CATALOG", metavar="DIR",
+                                               help="Catalogue folder (default: the one shipped with specgen)."),
+    ):
+        """Issue a work order: winding instructions, drawings and test sheet for the floor."""
+        from ..documents.workorder import issue_work_order
+
+        issued = issue_work_order(spec, qty=qty, due=due, lot=lot, out_dir=out, draft=draft,
+                                  register_path=register_path, number=number, by=by, catalog_dir=catalog,
+                                  warn=lambda msg: typer.echo(f"warning: {msg}", err=True))
+        typer.echo(str(issued.pdf))
+        typer.echo(str(issued.html))

@@ -1,0 +1,661 @@
+"""The shop-floor work order: context builder, issue flow, and the demo's work orders.
+
+``build_context`` turns a Design (plus the catalogue entries it names, for pins, tape thicknesses and
+cure data) into plain dicts and strings for ``templates/workorder.html``; it computes no physics: every
+number is the Design's, formatted here once by the helpers below (the tests format their expected
+strings with the same helpers). ``issue_work_order`` is the whole flow of ``specgen workorder``:
+validate the options, run the design, refuse what must not reach the floor, take a number from the
+register, render (a failed render voids the number), write the PDF and the HTML together atomically.
+
+WeasyPrint is imported only when a PDF is rendered (through ``specgen.documents.render``).
+"""
+
+from __future__ import annotations
+
+import datetime as _dt
+import math
+import re
+import sys
+import time
+from dataclasses import dataclass, field
+from pathlib import Path
+
+from ..errors import DesignFailed, SpecError
+
+UNCONTROLLED = "Printed copies are uncontrolled: check the revision before use"
+WATERMARK = "DRAFT - NOT FOR PRODUCTION"
+HIPOT_CAUTION = (
+    "HAZARDOUS VOLTAGE during the hipot and insulation-resistance tests.",
+    "Trained and authorised personnel only.",
+    "Test only in the interlocked fixture; never bypass the interlock or touch the part while the test runs.",
+    "Discharge the part after the test before handling it.",
+)
+STANDARDS_NOTE = ("The figures printed are defaults to be confirmed against the applicable product safety "
+                  "standard, the customer's drawing, local codes and licensed practice.")
+DCR_FORMULA = "R20 = Rt / (1 + α (t − 20))"
+MAX_QTY = 1_000_000
+MAX_LOT_CHARS = 40
+_NUMBER_RE = re.compile(r"[A-Za-z0-9][A-Za-z0-9._-]{0,59}")
+_PREFIXES = {-9: "n", -6: "µ", -3: "m", 0: "", 3: "k", 6: "M", 9: "G"}
+
+
+# ------------------------------------------------------------------------------------------------ formatting
+# One set of helpers for everything printed; the tests use the same ones to build expected strings.
+
+def sig(x: float, digits: int = 4) -> str:
+    """``x`` to ``digits`` significant figures, trailing zeros kept (21.42, 0.07018, 7.500, 843.0)."""
+    if x == 0 or not math.isfinite(x):
+        return "0" if x == 0 else str(x)
+    decimals = max(0, digits - 1 - int(math.floor(math.log10(abs(x)))))
+    text = f"{x:.{decimals}f}"
+    # rounding may carry into a new digit (9.9996 -> 10.000): drop the extra decimal
+    if decimals > 0 and len(text.replace("-", "").replace(".", "").lstrip("0")) > digits:
+        text = f"{x:.{decimals - 1}f}"
+    return text
+
+
+def fmt_eng(value: float | None, unit: str, digits: int = 4) -> str:
+    """An SI value with an engineering prefix: 0.07018 ohm -> '70.18 mΩ', 4.748e-5 H -> '47.48 µH'."""
+    if value is None:
+        return "—"
+    if value == 0:
+        return f"0 {unit}"
+    exp = int(math.floor(math.log10(abs(value)) / 3.0)) * 3
+    exp = max(-9, min(9, exp))
+    scaled = value / 10.0 ** exp
+    text = sig(scaled, digits)
+    if abs(float(text)) >= 1000 and exp < 9:
+        exp += 3
+        text = sig(value / 10.0 ** exp, digits)
+    return f"{text} {_PREFIXES[exp]}{unit}"
+
+
+def fmt_ohm(value: float | None) -> str:
+    return fmt_eng(value, "Ω")
+
+
+def fmt_henry(value: float | None) -> str:
+    return fmt_eng(value, "H")
+
+
+def fmt_volt(value: float | None) -> str:
+    return fmt_eng(value, "V")
+
+
+def fmt_test_volt(value: float) -> str:
+    """A test voltage as the test station's dial reads it: '3600 V'."""
+    return f"{value:.0f} V"
+
+
+def fmt_seconds(value: float) -> str:
+    if value >= 3600 and abs(value / 3600 - round(value / 3600)) < 1e-9:
+        return f"{value / 3600:g} h"
+    if value >= 60 and abs(value / 60 - round(value / 60)) < 1e-9 and value >= 600:
+        return f"{value / 60:g} min"
+    return f"{value:g} s"
+
+
+def fmt_ma(value_a: float) -> str:
+    return f"{value_a * 1e3:g} mA"
+
+
+def fmt_ratio(value: float) -> str:
+    return f"{sig(value, 4)} : 1"
+
+
+def fmt_mm(value_m: float) -> str:
+    mm = value_m * 1e3
+    if mm < 1:
+        return f"{mm:.2f} mm"
+    if mm < 10:
+        return f"{mm:.1f} mm"
+    return f"{mm:.0f} mm"
+
+
+def fmt_m(value_m: float) -> str:
+    if value_m < 10:
+        return f"{value_m:.2f} m"
+    if value_m < 1000:
+        return f"{value_m:.1f} m"
+    return f"{value_m:,.0f} m"
+
+
+def fmt_mass(value_kg: float | None) -> str:
+    if value_kg is None:
+        return ""
+    if value_kg < 1.0:
+        return f"{sig(value_kg * 1e3, 4)} g"
+    return f"{sig(value_kg, 4)} kg"
+
+
+def fmt_litre(value_l: float) -> str:
+    return f"{sig(value_l * 1e3, 3)} ml" if value_l < 1.0 else f"{sig(value_l, 3)} l"
+
+
+def fmt_count(n: float, unit: str) -> str:
+    n = int(round(n))
+    names = {"pcs": ("piece", "pieces"), "sets": ("set", "sets"), "pairs": ("pair", "pairs")}
+    one, many = names.get(unit, (unit, unit))
+    return f"{n:,} {one if n == 1 else many}"
+
+
+def fmt_temp(value_c: float) -> str:
+    return f"{value_c:g} °C"
+
+
+def direction_text(direction: str, toroid: bool) -> str:
+    word = "CLOCKWISE (CW)" if direction == "cw" else "COUNTER-CLOCKWISE (CCW)"
+    if toroid:
+        return f"{word}, seen from above, the wire passing down through the hole"
+    return f"{word}, seen from the start flange / pin side"
+
+
+# ------------------------------------------------------------------------------------------------ context
+
+
+def section_label(winding, section) -> str:
+    return winding.name if len(winding.sections) == 1 else f"{winding.name}.{section.index}"
+
+
+def _sections_in_order(design) -> list:
+    out = []
+    for w in design.windings:
+        for s in w.sections:
+            out.append((s.order, w, s))
+    out.sort(key=lambda t: t[0])
+    return [(w, s) for _o, w, s in out]
+
+
+def _layer_height_m(section) -> float:
+    if not section.layers:
+        return 0.0
+    return 2.0 * (section.layers[0].build_to_centre_m - section.start_build_m)
+
+
+def _pins_of(condition: str) -> str:
+    m = re.match(r"pins\s+(\S+)", condition or "")
+    return m.group(1).rstrip(",") if m else ""
+
+
+def _tidy(description: str) -> str:
+    """Drop a trailing ', 30 mm wide' when the same width is already named ('..., 30 mm, 30 mm wide')."""
+    m = re.search(r",\s*([\d.]+\s*mm) wide$", description)
+    if m and m.group(1) in description[:m.start()]:
+        return description[:m.start()]
+    return description
+
+
+def _materials(design, qty: int, scrap: float) -> list:
+    rows = []
+    for m in design.materials:
+        row = {"kind": m.kind, "id": m.id, "description": _tidy(m.description), "note": m.note,
+               "per_unit": "", "lot": "", "mass_unit": "", "mass_lot": ""}
+        if m.unit == "m":
+            factor = 1.0 + scrap if m.kind == "wire" else 1.0
+            row["per_unit"] = fmt_m(m.quantity)
+            row["lot"] = fmt_m(m.quantity * qty * factor)
+            if m.mass_kg is not None:
+                row["mass_unit"] = fmt_mass(m.mass_kg)
+                row["mass_lot"] = fmt_mass(m.mass_kg * qty * factor)
+            if m.kind == "wire":
+                row["note"] = (m.note + "; " if m.note else "") + f"lot includes {scrap:.0%} scrap allowance"
+        elif m.unit == "l":
+            row["per_unit"] = fmt_litre(m.quantity)
+            row["lot"] = fmt_litre(m.quantity * qty)
+        else:
+            row["per_unit"] = fmt_count(m.quantity, m.unit)
+            row["lot"] = fmt_count(m.quantity * qty, m.unit)
+            if m.mass_kg is not None:
+                row["mass_unit"] = fmt_mass(m.mass_kg)
+                row["mass_lot"] = fmt_mass(m.mass_kg * qty)
+        rows.append(row)
+    return rows
+
+
+def _limit_row(lim, fmt) -> dict:
+    return {"name": lim.name, "item": lim.item, "condition": lim.condition, "pins": _pins_of(lim.condition),
+            "nominal": fmt(lim.nominal), "low": fmt(lim.low) if lim.low is not None else "—",
+            "high": fmt(lim.high) if lim.high is not None else "—"}
+
+
+def _inductance_fmt(lim):
+    if lim.name.startswith("AL"):
+        return lambda v: f"{sig(v * 1e9, 4)} nH/turn²"
+    return fmt_henry
+
+
+def _tape_thickness(cat, tape_id: str | None) -> float:
+    if not tape_id or tape_id not in cat.tapes:
+        return 0.0
+    return cat.tapes[tape_id].thickness_m
+
+
+def _drawings(design, spec, cat) -> dict:
+    from . import drawings as dr
+
+    toroid = design.core.shape == "toroid"
+    index = {w.name: i for i, w in enumerate(design.windings)}
+    coils = [dr.Coil(winding=w.name, label=section_label(w, s), start=s.start_pin, finish=s.finish_pin,
+                     turns=s.turns, colour_index=index[w.name]) for w, s in _sections_in_order(design)]
+    dots = {w.name: w.dot_pin for w in design.windings}
+    if toroid or design.core.bobbin is None or design.core.bobbin not in cat.bobbins:
+        pins = []
+        for w in design.windings:
+            for s in w.sections:
+                for p in (s.start_pin, s.finish_pin):
+                    if p and p not in pins:
+                        pins.append(p)
+        pin_svg = dr.pin_diagram(pins, 1, coils, dots, leads=True)
+    else:
+        b = cat.bobbins[design.core.bobbin]
+        pin_svg = dr.pin_diagram(list(b.pins), b.pin_rows, coils, dots)
+
+    tf = 2.0 if toroid else 1.0          # tape on a toroid is half-lapped (the build's own rule)
+    layer_tape = spec.layer_tape if spec is not None else None
+    lt = _tape_thickness(cat, layer_tape.tape) * layer_tape.layers * tf if layer_tape else 0.0
+    secs = []
+    for w, s in _sections_in_order(design):
+        lh = _layer_height_m(s)
+        secs.append(dr.SectionDraw(
+            order=s.order, label=section_label(w, s), winding=w.name, turns=s.turns, start_m=s.start_build_m,
+            end_m=s.end_build_m, layer_height_m=lh,
+            layers=tuple(dr.LayerBand(l.turns, l.turns_capacity, l.build_to_centre_m) for l in s.layers),
+            margin_m=s.margin_m, wire_diameter_m=w.overall_diameter_m, strands=w.strands,
+            round_wire=w.wire_kind in ("round", "litz", "tiw"), tape_after=s.tape_after,
+            tape_after_m=_tape_thickness(cat, s.tape_after) * s.tape_after_layers * tf,
+            layer_tape_m=lt if len(s.layers) > 1 else 0.0, colour_index=index[w.name]))
+    if toroid:
+        core = cat.cores.get(design.core.id)
+        dims = core.dims if core is not None else {}
+        window_svg, scale = dr.toroid_sector(dims.get("id", 0.0), dims.get("od", 0.0),
+                                             core.coating_m if core is not None else 0.0,
+                                             design.build.available_m, design.build.bulged_height_m, secs)
+    else:
+        first = design.windings[0].sections[0]
+        breadth = first.usable_breadth_m + 2 * first.margin_m
+        window_svg, scale = dr.window_section(breadth, design.build.available_m, design.build.bulged_height_m,
+                                              secs)
+    return {"pin_svg": pin_svg, "window_svg": window_svg, "window_scale": dr.scale_text(scale),
+            "dot_legend": dr.DOT_LEGEND}
+
+
+def build_context(design, spec, cat, *, number: str, qty: int, due: str | None = None, lot: str | None = None,
+                  issued: str | None = None, issued_by: str | None = None, draft: bool = False) -> dict:
+    """Everything the work-order template shows, as plain dicts and strings (SVG as Markup)."""
+    from .. import revision
+
+    d = design
+    toroid = d.core.shape == "toroid"
+    shop = cat.shop
+    scrap = float(shop.scrap_wire)
+    lead_m = shop.lead_length_m
+    issued = issued or _dt.date.today().isoformat()
+    fp12 = revision.short(d.fingerprint) if d.fingerprint else "not computed"
+    head = {
+        "number": number, "part": d.part, "title": d.title, "revision": d.revision, "status": d.status,
+        "customer": d.customer, "qty": f"{qty:,}", "qty_int": qty, "due": due or "not set", "lot": lot or "—",
+        "issued": issued, "issued_by": issued_by or "—", "fingerprint": fp12, "shop": shop.name,
+        "uncontrolled": UNCONTROLLED, "draft": bool(draft), "watermark": WATERMARK,
+    }
+    pin_word = "lead" if toroid else "pin"
+    summary = [
+        ("Part", f"{d.part} rev {d.revision} ({d.status})"), ("Kind", d.kind),
+        ("Core", f"{d.core.id}, {d.core.material_name}"
+                 + (f", stack {fmt_mm(d.core.stack_m)}" if d.core.stack_m and not toroid else "")),
+        ("Former", d.core.bobbin if d.core.bobbin else "none (toroid, wound on the core)"),
+        ("Windings", ", ".join(f"{w.name} {w.turns} t" for w in d.windings)),
+        ("Operating", f"{d.frequency_hz:g} Hz, insulation class {d.insulation_class_c}"),
+    ]
+
+    # ---- floor steps: gap, windings in build order, core assembly, varnish
+    steps = []
+    n = 0
+    layer_tape = spec.layer_tape if spec is not None else None
+    margin_tape = spec.margin_tape if spec is not None else None
+    ind = d.inductor
+    al_limit = next((l for l in d.tests.inductance if l.name.startswith("AL")), None)
+    if ind is not None and ind.gap_m:
+        n += 1
+        lines = []
+        if ind.gap_arrangement == "spacer" and ind.spacer_m:
+            lines.append(f"Put a spacer {fmt_mm(ind.spacer_m)} thick between the two halves on every leg "
+                         f"(both outer legs and the centre leg).")
+        elif ind.grind_m:
+            lines.append(f"Grind the centre leg of ONE core half by {fmt_mm(ind.grind_m)}; leave the other half "
+                         f"and the outer legs as they are. Gap {fmt_mm(ind.gap_m)}.")
+        else:
+            lines.append(f"Gap the set to {fmt_mm(ind.gap_m)}.")
+        if al_limit is not None:
+            f = _inductance_fmt(al_limit)
+            lines.append(f"AL CHECK BEFORE WINDING: clamp the gapped halves with a 10-turn test coil, measure L "
+                         f"and take AL = L / 100. Accept {f(al_limit.low)} to {f(al_limit.high)} "
+                         f"(nominal {f(al_limit.nominal)}). Reject or re-grind a set outside this.")
+        steps.append({"n": n, "kind": "gap", "heading": f"Prepare the core: air gap {fmt_mm(ind.gap_m)}",
+                      "lines": lines, "rows": [], "layers": [], "dot": ""})
+
+    order = _sections_in_order(d)
+    last_order = order[-1][1].order if order else 0
+    for w, s in order:
+        n += 1
+        label = section_label(w, s)
+        first_sec = s.index == 1
+        last_sec = s.index == len(w.sections)
+        dot = ""
+        if w.dot_pin == s.start_pin and first_sec:
+            dot = f"Mark the polarity dot at {pin_word} {s.start_pin} (start of {w.name})."
+        elif w.dot_pin == s.finish_pin and last_sec:
+            dot = f"Mark the polarity dot at {pin_word} {s.finish_pin} (finish of {w.name})."
+        last_layer = s.layers[-1] if s.layers else None
+        nl = len(s.layers)
+        layers_text = f"{nl} layer{'s' if nl != 1 else ''}, {s.turns_per_layer} turns per layer"
+        if nl > 1 and last_layer is not None and last_layer.turns != s.turns_per_layer:
+            layers_text += f" (last layer {last_layer.turns})"
+        elif nl == 1 and s.turns < s.turns_per_layer:
+            layers_text = f"1 layer of {s.turns} turns (it holds {s.turns_per_layer}): space them evenly"
+        start_value = s.start_pin
+        finish_value = s.finish_pin + ("" if last_sec else f"  (tie {pin_word}: {w.name}.{s.index + 1} starts here)")
+        if dot and w.dot_pin == s.start_pin:
+            start_value += f"   ● DOT: mark {pin_word} {s.start_pin} with the polarity dot"
+        if dot and w.dot_pin == s.finish_pin:
+            finish_value += f"   ● DOT: mark {pin_word} {s.finish_pin} with the polarity dot"
+        rows = [
+            (f"Start {pin_word}", start_value, "dot" if dot and w.dot_pin == s.start_pin else "key"),
+            ("Direction", direction_text(w.direction, toroid), "key"),
+            ("Wire", f"{w.wire}: {w.wire_label}, {w.strands} in hand", "key"),
+            ("Layers", layers_text, ""),
+        ]
+        if not toroid:
+            rows.append(("Margins", (f"{fmt_mm(s.margin_m)} each side: {margin_tape} built up to the "
+                                     f"height of each layer" if margin_tape else f"{fmt_mm(s.margin_m)} each side")
+                         if s.margin_m > 0 else "none", ""))
+        if len(s.layers) > 1 and layer_tape:
+            rows.append(("Between layers", f"{layer_tape.tape} × {layer_tape.layers}"
+                         + (", half-lapped" if toroid else ""), ""))
+        else:
+            rows.append(("Between layers", "— (one layer)" if len(s.layers) <= 1 else "no tape", ""))
+        if s.tape_after:
+            what = "outer wrap" if s.order == last_order else "before the next section"
+            rows.append(("After this section", f"{s.tape_after} × {s.tape_after_layers} ({what}"
+                         + (", half-lapped)" if toroid else ")"), "key"))
+        else:
+            rows.append(("After this section", "no tape", ""))
+        rows.append((f"Finish {pin_word}", finish_value, "dot" if dot and w.dot_pin == s.finish_pin else "key"))
+        ends = [x for x, yes in (("start", first_sec), ("finish", last_sec)) if yes]
+        if ends:
+            sleeve = f"; sleeve with {w.lead_sleeving}" if w.lead_sleeving else ""
+            beyond = "beyond the pin" if not toroid else "free lead"
+            rows.append(("Leads", f"{fmt_mm(lead_m)} {beyond} at the {' and '.join(ends)}{sleeve}", ""))
+        heading = f"Wind {label}" + (f" (section {s.index} of {len(w.sections)})" if len(w.sections) > 1 else "")
+        steps.append({"n": n, "kind": "wind", "heading": heading, "turns": s.turns, "winding": w.name,
+                      "wire": w.wire, "rows": rows, "dot": dot, "lines": [],
+                      "layers": [{"index": l.index, "turns": l.turns} for l in s.layers]})
+
+    # core assembly
+    core_lines = []
+    lam = next((m for m in d.materials if m.kind == "laminations"), None)
+    core_line = next((m for m in d.materials if m.kind == "core"), None)
+    clips = next((m for m in d.materials if m.kind == "clip"), None)
+    if lam is not None:
+        if d.kind == "inductor":
+            core_lines.append(f"Stack {fmt_count(lam.quantity, 'pairs')} of {lam.id}: E pieces together, I pieces "
+                              f"together, with the gap spacer between them.")
+        else:
+            core_lines.append(f"Stack {fmt_count(lam.quantity, 'pairs')} of {lam.id} laminations (E and I) into the "
+                              f"bobbin, interleaving the E pieces from alternate sides; press the stack tight.")
+    elif core_line is not None and not toroid:
+        core_lines.append(f"Fit the core {core_line.id} ({core_line.note}) into the wound bobbin"
+                          + (", the ground half with its gap inside the bobbin" if ind is not None and ind.grind_m
+                             else "") + ".")
+        if clips is not None:
+            core_lines.append(f"Fit {fmt_count(clips.quantity, 'pcs')} {clips.id}.")
+    if core_lines:
+        n += 1
+        steps.append({"n": n, "kind": "core", "heading": "Assemble the core", "lines": core_lines, "rows": [],
+                      "layers": [], "dot": ""})
+
+    varnish = None
+    vline = next((m for m in d.materials if m.kind == "varnish"), None)
+    if vline is not None:
+        v = cat.varnishes.get(vline.id)
+        n += 1
+        cure = (f"{fmt_temp(v.cure_temperature_c)} for {fmt_seconds(v.cure_time_s)}" if v is not None
+                else "see the varnish data")
+        varnish = {"n": n, "id": vline.id, "name": vline.description, "cure": cure,
+                   "lines": [f"Dip in {vline.description} ({vline.id}) until the bubbles stop; drain.",
+                             f"Cure in the varnish oven: {cure} (catalogue figures)."],
+                   "caution": [f"Hot varnish oven: parts, racks and oven walls at {cure.split(' for ')[0]}. "
+                               f"Let parts cool before handling; wear heat-resistant gloves at the oven.",
+                               "Solvent vapour: dip and drain under the extraction, keep the oven ventilation "
+                               "running, no open flame or sparks nearby.",
+                               "Wear solvent-resistant gloves and eye protection when handling wet varnish.",
+                               f"Cure temperature and time from the catalogue: {cure}."]}
+
+    # ---- tests
+    t = d.tests
+    dcr = [_limit_row(l, fmt_ohm) for l in t.dcr]
+    ratio = [_limit_row(l, fmt_ratio) for l in t.ratio]
+    ocv = [_limit_row(l, fmt_volt) for l in t.open_circuit]
+    inductance = [_limit_row(l, _inductance_fmt(l)) for l in t.inductance]
+    hipot = [{"between": h.between, "rating": h.rating, "working": fmt_test_volt(h.working_voltage_v),
+              "type_v": fmt_test_volt(h.type_voltage_v), "type_s": fmt_seconds(h.type_duration_s),
+              "routine_v": fmt_test_volt(h.routine_voltage_v), "routine_s": fmt_seconds(h.routine_duration_s),
+              "trip": fmt_ma(h.trip_current_a), "basis": h.basis} for h in t.hipot]
+    columns = ["S/N"] + [f"DCR {l.item}" for l in t.dcr] + [f"ratio {l.item}" for l in t.ratio]
+    if t.inductance:
+        columns.append(f"L {t.inductance[0].item}")
+    if t.polarity:
+        columns.append("polarity")
+    columns += ["hipot", "IR", "pass / fail", "initials"]
+    serials = [str(i) for i in range(1, min(qty, 10) + 1)] + (["…"] if qty > 10 else [])
+    tests = {
+        "dcr": dcr, "ratio": ratio, "ocv": ocv, "inductance": inductance, "polarity": list(t.polarity),
+        "hipot": hipot, "alpha": f"{t.alpha_per_k:g}", "formula": DCR_FORMULA,
+        "ir_voltage": f"{t.insulation_resistance_v:.0f} V d.c.",
+        "ir_min": fmt_eng(t.insulation_resistance_min_ohm, "Ω", 3),
+        "columns": columns, "serials": serials,
+    }
+    history = []
+    for e in d.history or ():
+        fp = str(e.get("fingerprint") or "") if isinstance(e, dict) else ""
+        history.append({"revision": str(e.get("revision", "")), "date": str(e.get("date", "")),
+                        "by": str(e.get("by", "")), "note": str(e.get("note", "")),
+                        "fingerprint": revision.short(fp) if fp else "not recorded"})
+    ctx = {
+        "head": head, "summary": summary, "materials": _materials(d, qty, scrap),
+        "scrap": f"{scrap:.0%}", "steps": steps, "varnish": varnish, "tests": tests,
+        "caution": list(HIPOT_CAUTION), "standards_note": STANDARDS_NOTE, "notes": (d.notes or "").strip(),
+        "history": history, "warnings": [c.message for c in d.warnings], "toroid": toroid,
+        "pin_word": pin_word,
+    }
+    ctx.update(_drawings(d, spec, cat))
+    return ctx
+
+
+def render_work_order_html(design, spec, cat, **kwargs) -> str:
+    from .render import render_html
+
+    return render_html("workorder.html", **build_context(design, spec, cat, **kwargs))
+
+
+# ------------------------------------------------------------------------------------------------ issuing
+
+def check_qty(qty) -> int:
+    text = str(qty).strip().replace("_", "").replace(",", "")
+    try:
+        value = int(text)
+    except ValueError:
+        raise SpecError(f"expected a whole number of pieces, got {str(qty)!r}", path="--qty") from None
+    if not 1 <= value <= MAX_QTY:
+        raise SpecError(f"{value} is outside 1..{MAX_QTY:,}", path="--qty")
+    return value
+
+
+def check_due(due) -> str | None:
+    if due is None or str(due).strip() == "":
+        return None
+    text = str(due).strip()
+    try:
+        if not re.fullmatch(r"\d{4}-\d{2}-\d{2}", text):
+            raise ValueError
+        return _dt.date.fromisoformat(text).isoformat()
+    except ValueError:
+        raise SpecError(f"expected a real date as YYYY-MM-DD, got {text!r}", path="--due") from None
+
+
+def check_lot(lot) -> str | None:
+    if lot is None:
+        return None
+    text = str(lot).strip()
+    if not text:
+        return None
+    if len(text) > MAX_LOT_CHARS:
+        raise SpecError(f"at most {MAX_LOT_CHARS} characters, got {len(text)}", path="--lot")
+    if any(ord(c) < 32 or 0x7F <= ord(c) <= 0x9F for c in text):
+        raise SpecError("control characters are not allowed", path="--lot")
+    return text
+
+
+def check_number(number) -> str | None:
+    if number is None:
+        return None
+    text = str(number).strip()
+    if not _NUMBER_RE.fullmatch(text):
+        raise SpecError(f"{text!r} is not usable as a file name; use letters, digits, '.', '_' and '-' "
+                        "(starting with a letter or digit, at most 60)", path="--number")
+    return text
+
+
+@dataclass
+class Issued:
+    number: str
+    pdf: Path
+    html: Path
+    register: Path
+    warnings: list = field(default_factory=list)
+    seconds: float = 0.0
+
+
+def _release_problems(spec, design, cat) -> tuple[list, list]:
+    """(problems that refuse a released spec, warnings) from the release record."""
+    from .. import api, revision
+
+    problems, warnings = [], []
+    check = revision.check_release(spec.data, api.catalog_entries(design.catalog_ids, cat))
+    entry = revision.history_entry(spec.data)
+    unrecorded = entry is not None and not str(entry.get("fingerprint") or "").strip()
+    for p in check.problems:
+        if unrecorded and p.startswith("changed since"):
+            continue
+        problems.append(p)
+    if unrecorded:
+        warnings.append("fingerprint not recorded; release the spec with `specgen release`")
+    return problems, warnings
+
+
+def issue_from_design(spec_path, spec, design, cat, *, qty, due=None, lot=None, out_dir=".", draft=False,
+                      register_path=None, number=None, by=None, warn=None) -> Issued:
+    """Issue one work order for an already computed design (the CLI and the demo come through here)."""
+    from ..register import Register, default_register_path
+    from .render import write_pdf_and_html
+
+    t0 = time.perf_counter()
+    warn = warn or (lambda msg: print(f"warning: {msg}", file=sys.stderr))
+    qty = check_qty(qty)
+    due = check_due(due)
+    lot = check_lot(lot)
+    number = check_number(number)
+    if design.failed:
+        raise DesignFailed(f"{design.part} rev {design.revision}: {len(design.failed)} design check(s) failed; "
+                           "no work order issued", design.failed)
+    status = spec.status or "draft"
+    warnings = []
+    if status != "released":
+        if not draft:
+            raise SpecError(f"is {status!r}; work orders are issued from released revisions only "
+                            "(--draft prints a marked copy that is not for production)",
+                            file=str(spec_path), path="status")
+    else:
+        problems, notes = _release_problems(spec, design, cat)
+        warnings += notes
+        if problems:
+            message = "; ".join(problems)
+            if not draft:
+                raise SpecError(f"released revision {spec.revision} does not match its release record: {message}; "
+                                "release it again with `specgen release` (or print a --draft)",
+                                file=str(spec_path))
+            warnings.append(message)
+    for w in warnings:
+        warn(w)
+    out = Path(out_dir)
+    try:
+        out.mkdir(parents=True, exist_ok=True)
+    except OSError as err:
+        raise SpecError(f"cannot create the output folder: {err.strerror or err}", file=str(out)) from None
+    shop_register = cat.shop.raw.get("register") if isinstance(cat.shop.raw, dict) else None
+    reg_path = default_register_path(spec_path, register_path, shop_setting=shop_register)
+    fmt = cat.shop.work_order_format.replace("{part}", design.part)
+    with Register.open(reg_path) as reg:
+        with reg.issuing(design.part, design.revision, design.fingerprint or "-", qty, lot, due,
+                         issued_by=by, fmt=fmt, number=number) as num:
+            check_number(num)
+            order = reg.get(num)
+            html = render_work_order_html(design, spec, cat, number=num, qty=qty, due=due, lot=lot,
+                                          issued=order.issued_at[:10], issued_by=order.issued_by, draft=draft)
+            pdf_path, html_path = out / f"{num}.pdf", out / f"{num}.html"
+            blocked: list = []
+            write_pdf_and_html(html, pdf_path, html_path, blocked)
+        reg.attach_files(num, [str(pdf_path), str(html_path)])
+        if draft:
+            # a draft copy is traceable but never built for production: listed as void with the reason
+            reg.void(num, "draft copy: not for production")
+    for url in blocked:
+        warn(f"the renderer was refused {url[:80]}")
+    return Issued(num, pdf_path, html_path, reg_path, warnings, time.perf_counter() - t0)
+
+
+def issue_work_order(spec_path, *, qty, due=None, lot=None, out_dir=".", draft=False, register_path=None,
+                     number=None, by=None, catalog_dir=None, warn=None) -> Issued:
+    """``specgen workorder``: options checked first, then load, design, refuse or issue."""
+    from ..api import run_design
+    from ..catalog.loader import load_catalog
+    from ..design.spec import load_spec
+
+    check_qty(qty)
+    check_due(due)
+    check_lot(lot)
+    check_number(number)
+    cat = load_catalog(catalog_dir)
+    spec = load_spec(spec_path)
+    design = run_design(spec, cat)
+    return issue_from_design(spec_path, spec, design, cat, qty=qty, due=due, lot=lot, out_dir=out_dir,
+                             draft=draft, register_path=register_path, number=number, by=by, warn=warn)
+
+
+def demo_workorders(designs, out_dir, register_path=None, echo=print, *, cat=None) -> list:
+    """One work order per demo part (qty 50, lot DEMO-<part>) into ``out_dir``.
+
+    designs: part -> (spec_path, Spec, Design). The register is ``register_path`` or
+    ``specgen-register.sqlite`` in ``out_dir``. ``cat``: the catalogue the designs used (default: the
+    shipped one). Returns the Issued records; a part whose design fails is reported and skipped.
+    """
+    from ..catalog.loader import load_catalog
+
+    out = Path(out_dir)
+    out.mkdir(parents=True, exist_ok=True)
+    cat = cat or load_catalog(None)
+    reg = Path(register_path) if register_path else out / "specgen-register.sqlite"
+    done = []
+    notes = []
+    for part, (spec_path, spec, design) in sorted(designs.items()):
+        try:
+            issued = issue_from_design(spec_path, spec, design, cat, qty=50, lot=f"DEMO-{part}", out_dir=out,
+                                       register_path=reg, draft=spec.status != "released",
+                                       warn=lambda m, p=part: notes.append(f"{p}: {m}"))
+        except DesignFailed as err:
+            echo(f"{part:8} work order refused: {err}")
+            continue
+        done.append(issued)
+        echo(f"{part:8} work order {issued.number}  {issued.pdf}  ({issued.seconds:.1f} s)")
+    for n in notes:
+        echo(f"  note {n}")
+    return done
