@@ -1,5 +1,99 @@
-"""Commands: filled in by the quote work."""
+"""``specgen quote``: price a part at quantity breaks from the same Design the shop floor uses.
+
+Outputs:
+- default: write ``<part>-rev<R>-quote.pdf`` and ``.html`` into ``--out`` (default: the current
+  folder) and print the cost build-up and price table;
+- ``--json`` / ``--csv``: print only that to stdout (machine-readable, nothing else mixed in); the
+  PDF is written only when ``--out`` is given, and its "wrote" line goes to stderr.
+A design with a failed check is refused (exit 1), an obsolete revision or a bad option is one line
+and exit 2. Drafts are quoted as budgetary (see ``specgen.quote``).
+"""
+
+from __future__ import annotations
+
+import csv
+import io
+from pathlib import Path
+from typing import Optional
+
+import typer
+
+from ._common import guarded, print_json
 
 
 def register(app) -> None:
-    """Add this module's commands to the root Typer app."""
+    """Add ``quote`` to the root Typer app."""
+
+    @app.command("quote")
+    @guarded
+    def quote_cmd(
+        spec: Path = typer.Argument(..., metavar="SPEC.yaml", help="The part's spec file."),
+        qty: str = typer.Option("100,500,2500", "--qty", metavar="N,N,...",
+                                help="Quantity breaks, comma-separated whole numbers."),
+        as_json: bool = typer.Option(False, "--json", help="Print the quote as JSON (no PDF unless --out)."),
+        as_csv: bool = typer.Option(False, "--csv", help="Print one CSV row per quantity break (no PDF unless --out)."),
+        out: Optional[Path] = typer.Option(None, "--out", metavar="DIR",
+                                           help="Folder for the PDF and HTML (default: current folder)."),
+        nre: Optional[str] = typer.Option(None, "--nre", metavar="AMOUNT", help="One-time tooling / NRE charge."),
+        valid_days: str = typer.Option("30", "--valid-days", metavar="N", help="Days the quote is valid."),
+        catalog: Optional[Path] = typer.Option(None, "--catalog", envvar="SPECGEN_CATALOG", metavar="DIR",
+                                               help="Catalogue folder (default: the one shipped with specgen)."),
+    ):
+        """Quote a part: unit and extended price per quantity break, copper sensitivity, a PDF."""
+        from ..api import run_design
+        from ..catalog.loader import load_catalog
+        from ..design.spec import load_spec
+        from ..errors import SpecError
+        from ..quote import (CSV_FIELDS, build_quote, parse_amount, parse_days, parse_quantities,
+                             quote_csv_rows, quote_table)
+
+        if as_json and as_csv:
+            raise SpecError("choose one of --json or --csv", path="--json")
+        quantities = parse_quantities(qty)
+        nre_amount = parse_amount(nre, "--nre")
+        days = parse_days(valid_days)
+        out_dir = _out_dir(out) if (out is not None or not (as_json or as_csv)) else None
+        cat = load_catalog(catalog)
+        spec_obj = load_spec(spec)
+        design = run_design(spec_obj, cat)
+        q = build_quote(spec_obj, design, cat, quantities, nre=nre_amount, valid_days=days)
+        written = []
+        if out_dir is not None:
+            from ..documents.quote_doc import write_quote
+
+            _make_dir(out_dir)
+            written = write_quote(q, out_dir)
+        if as_json:
+            print_json(q.to_dict())
+        elif as_csv:
+            buf = io.StringIO()
+            writer = csv.DictWriter(buf, fieldnames=CSV_FIELDS, lineterminator="\n")
+            writer.writeheader()
+            writer.writerows(quote_csv_rows(q))
+            typer.echo(buf.getvalue(), nl=False)
+        else:
+            typer.echo(quote_table(q))
+        for path in written:
+            if path.suffix == ".pdf":
+                typer.echo(f"wrote {path}", err=bool(as_json or as_csv))
+
+
+def _out_dir(out: Optional[Path]) -> Path:
+    from ..errors import SpecError
+
+    folder = Path(out) if out is not None else Path.cwd()
+    if folder.suffix.lower() in (".pdf", ".html", ".htm") and not folder.is_dir():
+        raise SpecError("names a folder for the quote, not a file; it is written there as <part>-rev<R>-quote.pdf",
+                        file=str(folder), path="--out")
+    if folder.exists() and not folder.is_dir():
+        raise SpecError("is a file, expected a folder for the quote", file=str(folder), path="--out")
+    return folder
+
+
+def _make_dir(folder: Path) -> None:
+    from ..errors import SpecError
+
+    try:
+        folder.mkdir(parents=True, exist_ok=True)
+    except OSError as exc:
+        raise SpecError(f"cannot create the folder: {exc.strerror}", file=str(folder), path="--out") from None

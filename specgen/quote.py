@@ -1,0 +1,635 @@
+"""The quote's cost model: pure functions over a Design, the catalogue and the shop figures.
+
+Everything here reads the ``Design`` (lengths, masses, turns, layers) and catalogue prices; nothing
+recomputes physics, so the quote prices exactly what the work order builds. Money is ``Decimal``
+throughout. Floats from the Design enter as ``Decimal(repr(x))`` (the shortest decimal that reads
+back as the same float) and nothing is rounded until the unit price.
+
+Material per unit (one line per ``Design.materials`` entry)
+    wire          mass_kg x price_per_kg x (1 + shop.scrap_wire). The Design's mass is the
+                  conductor's; the enamel or serving adds a percent or two that the catalogue price
+                  per kg is taken to cover (common practice: magnet wire is sold by weight).
+    laminations   price_unit "kg": mass_kg x price; price_unit "set": Design.core.count x price.
+    core          price_unit "kg": mass_kg x price; else sets x price per set.
+    bobbin        pieces x price.
+    clip          the catalogue carries no price for clips: priced at 0 and flagged on the line
+                  (add a price to the catalogue to charge for them). No price is invented here.
+    tape          length_m x width_m x price_per_m2.
+    sleeving      length_m x price_per_m.
+    varnish       litres x price_per_litre.
+    anything else priced at 0 and flagged, for the same reason as clips.
+
+Labor per unit (seconds, from ``shop.labor``, located errors through ``loading.Reader``)
+    winding       each section: turns x 60 / turns_per_minute x factor, where turns_per_minute is
+                  toroid_turns_per_minute on a toroid (shuttle winder) else bobbin_turns_per_minute,
+                  and factor multiplies fine_wire_factor (overall diameter below fine_wire_below),
+                  heavy_wire_factor (overall diameter above heavy_wire_above; foil and strip always)
+                  and litz_factor (Litz). Strands in hand are laid together: the same turns time.
+    per winding   per_winding for each section (each section is a separate pass: lead in, lead out).
+    taping        per_layer_tape per wrap: (layers - 1) x the spec's layer-tape wraps inside each
+                  section, plus the section's tape_after_layers (winding insulation or outer wrap).
+    terminations  per_termination x (sections + 1) per winding: start, finish and each tie pin;
+                  strands in hand on one pin count once.
+    assembly      core_assembly x core sets, plus per_lamination x 2 x lamination pairs (E and I
+                  are stacked piece by piece).
+    impregnation  impregnation, when the Design lists a varnish.
+    test          test, every unit.
+    setup         shop.setup_time per lot, divided by the lot quantity.
+    labor cost    seconds / 3600 x shop.labor_rate.
+
+Price (common practice in custom-magnetics quoting; the conventions chosen here)
+    overhead      shop.overhead x direct labor (a labor burden: benches, oven, test station),
+                  not applied to material.
+    cost          material + labor + overhead, per unit at the lot quantity.
+    unit price    cost / (1 - shop.margin): the margin is a fraction of the selling price (gross
+                  margin), so 22 % margin means 22 % of what the customer pays is margin.
+    rounding      the unit price to the cent, ROUND_HALF_UP, once; the extended price is that
+                  rounded unit price x quantity (so the customer's arithmetic checks). NRE/tooling
+                  is a separate one-time line, rounded the same way, never amortised into the unit.
+    copper        sensitivity: the unit price with every copper wire's price per kg x 0.8 and
+                  x 1.2 (only the wire lines whose conductor is copper move; Litz and
+                  triple-insulated copper wire move with their whole price per kg).
+
+Release
+    a design with a failed check is not quoted (``DesignFailed``, exit 1), like a work order:
+    sales must not promise a part the shop floor will refuse to build. An obsolete revision is a
+    user's mistake (``SpecError``). A draft, or a released spec whose content changed since its
+    release, is quoted as *budgetary* with the reason on the quote: a price to plan with, firm
+    only once the revision is released.
+"""
+
+from __future__ import annotations
+
+import datetime as _dt
+from dataclasses import dataclass, field
+from decimal import ROUND_HALF_UP, Decimal, InvalidOperation
+from typing import Any, Iterable
+
+from .errors import DesignFailed, SpecError
+
+CENT = Decimal("0.01")
+COPPER_LOW = Decimal("0.8")
+COPPER_HIGH = Decimal("1.2")
+MAX_BREAKS = 12
+MAX_QUANTITY = 10_000_000
+_SIXTY = Decimal(60)
+_HOUR = Decimal(3600)
+
+
+def dec(x: float | int | Decimal) -> Decimal:
+    """A Design float as Decimal via its shortest round-trip text (never the binary expansion)."""
+    if isinstance(x, Decimal):
+        return x
+    if isinstance(x, bool):
+        raise TypeError("a boolean is not an amount")
+    return Decimal(repr(x)) if isinstance(x, float) else Decimal(int(x))
+
+
+def plain(x: Decimal) -> str:
+    """A Decimal without trailing zeros or exponent: 90.0 -> '90', 0.80 -> '0.8'."""
+    text = f"{x.normalize():f}"
+    return text
+
+
+def cents(amount: Decimal) -> Decimal:
+    """To the cent, half up (the quote's one rounding rule)."""
+    return amount.quantize(CENT, rounding=ROUND_HALF_UP)
+
+
+# ------------------------------------------------------------------------------------------------ time model
+
+@dataclass(frozen=True)
+class TimeModel:
+    """The shop's labor figures (catalog/shop.yaml ``labor``), times in seconds as Decimal."""
+
+    bobbin_turns_per_minute: Decimal
+    toroid_turns_per_minute: Decimal
+    fine_wire_below_m: float
+    fine_wire_factor: Decimal
+    heavy_wire_above_m: float
+    heavy_wire_factor: Decimal
+    litz_factor: Decimal
+    per_winding_s: Decimal
+    per_layer_tape_s: Decimal
+    per_termination_s: Decimal
+    core_assembly_s: Decimal
+    per_lamination_s: Decimal
+    impregnation_s: Decimal
+    test_s: Decimal
+
+
+def time_model(shop) -> TimeModel:
+    """Parse ``shop.labor`` ({"data", "file", "path"}); every mistake is located in shop.yaml."""
+    from .loading import Reader
+
+    labor = shop.labor
+    r = Reader(labor["data"], labor.get("file"), labor.get("path", "shop.labor"))
+
+    def num(key: str, minimum: float) -> Decimal:
+        value = r.number(key, minimum=minimum)
+        return dec(value)
+
+    def secs(key: str) -> Decimal:
+        return dec(r.quantity(key, "time", allow_zero=True))
+
+    model = TimeModel(
+        bobbin_turns_per_minute=num("bobbin_turns_per_minute", 1e-6),
+        toroid_turns_per_minute=num("toroid_turns_per_minute", 1e-6),
+        fine_wire_below_m=r.quantity("fine_wire_below", "length", allow_zero=True),
+        fine_wire_factor=num("fine_wire_factor", 1.0),
+        heavy_wire_above_m=r.quantity("heavy_wire_above", "length"),
+        heavy_wire_factor=num("heavy_wire_factor", 1.0),
+        litz_factor=num("litz_factor", 1.0),
+        per_winding_s=secs("per_winding"),
+        per_layer_tape_s=secs("per_layer_tape"),
+        per_termination_s=secs("per_termination"),
+        core_assembly_s=secs("core_assembly"),
+        per_lamination_s=secs("per_lamination"),
+        impregnation_s=secs("impregnation"),
+        test_s=secs("test"),
+    )
+    r.done()
+    for key, value in (("bobbin_turns_per_minute", model.bobbin_turns_per_minute),
+                       ("toroid_turns_per_minute", model.toroid_turns_per_minute)):
+        if value <= 0:
+            raise r.error("must be greater than zero", key)
+    return model
+
+
+# ------------------------------------------------------------------------------------------------ materials
+
+@dataclass(frozen=True)
+class CostLine:
+    """One material line per unit: quantity x rate = amount (unrounded)."""
+
+    kind: str
+    id: str
+    description: str
+    quantity: Decimal
+    unit: str                 # what quantity counts: kg, m, m2, l, pcs, sets
+    rate: Decimal             # price per `unit` (wire: per kg including the scrap allowance)
+    amount: Decimal
+    copper: bool = False      # a copper wire line (moves with the copper price)
+    note: str = ""
+
+
+def _entry(cat, table: str, item_id: str, what: str):
+    obj = getattr(cat, table).get(item_id)
+    if obj is None:
+        raise SpecError(f"the catalogue has no {what} '{item_id}' to price", path=f"{table}.{item_id}")
+    return obj
+
+
+def material_lines(design, cat, copper_factor: Decimal = Decimal(1)) -> list[CostLine]:
+    """Price every ``Design.materials`` line per unit (see the module docstring for each rule)."""
+    shop = cat.shop
+    scrap = Decimal(1) + shop.scrap_wire
+    out: list[CostLine] = []
+    for m in design.materials:
+        kind = m.kind
+        qty = dec(m.quantity)
+        if kind == "wire":
+            w = _entry(cat, "wires", m.id, "wire")
+            if m.mass_kg is None:
+                raise SpecError(f"the design gives no mass for wire '{m.id}'", path="materials")
+            copper = w.conductor == "copper"
+            price = w.price_per_kg * (copper_factor if copper else Decimal(1))
+            rate = price * scrap
+            mass = dec(m.mass_kg)
+            out.append(CostLine(kind, m.id, m.description, mass, "kg", rate, mass * rate, copper,
+                                f"{qty.quantize(Decimal('0.01'))} m; {plain(shop.scrap_wire * 100)} % scrap allowance"))
+        elif kind in ("laminations", "core"):
+            c = _entry(cat, "cores", m.id, "core")
+            if c.price_unit == "kg":
+                if m.mass_kg is None:
+                    raise SpecError(f"core '{m.id}' is priced per kg but the design gives no mass",
+                                    path="materials")
+                mass = dec(m.mass_kg)
+                out.append(CostLine(kind, m.id, m.description, mass, "kg", c.price, mass * c.price,
+                                    note=f"{m.quantity:g} {m.unit}" if kind == "laminations" else ""))
+            else:
+                sets = Decimal(design.core.count) if kind == "laminations" else qty
+                out.append(CostLine(kind, m.id, m.description, sets, "sets", c.price, sets * c.price))
+        elif kind == "bobbin":
+            b = _entry(cat, "bobbins", m.id, "bobbin")
+            out.append(CostLine(kind, m.id, m.description, qty, "pcs", b.price, qty * b.price))
+        elif kind == "tape":
+            t = _entry(cat, "tapes", m.id, "tape")
+            area = qty * dec(t.width_m)
+            out.append(CostLine(kind, m.id, m.description, area, "m2", t.price_per_m2, area * t.price_per_m2,
+                                note=f"{qty.quantize(Decimal('0.01'))} m x {t.width_m * 1e3:g} mm"))
+        elif kind == "sleeving":
+            s = _entry(cat, "sleevings", m.id, "sleeving")
+            out.append(CostLine(kind, m.id, m.description, qty, "m", s.price_per_m, qty * s.price_per_m))
+        elif kind == "varnish":
+            v = _entry(cat, "varnishes", m.id, "varnish")
+            out.append(CostLine(kind, m.id, m.description, qty, "l", v.price_per_litre, qty * v.price_per_litre))
+        else:   # clips and any hardware the catalogue has no price for: shown, not invented
+            out.append(CostLine(kind, m.id, m.description, qty, m.unit, Decimal(0), Decimal(0),
+                                note="no catalogue price: not charged"))
+    return out
+
+
+def material_total(lines: Iterable[CostLine]) -> Decimal:
+    return sum((line.amount for line in lines), Decimal(0))
+
+
+def copper_total(lines: Iterable[CostLine]) -> Decimal:
+    return sum((line.amount for line in lines if line.copper), Decimal(0))
+
+
+# ------------------------------------------------------------------------------------------------ labor
+
+@dataclass(frozen=True)
+class TimeLine:
+    """One labor operation per unit, in seconds (Decimal)."""
+
+    operation: str            # winding | per winding | taping | terminations | assembly | impregnation | test
+    item: str                 # winding name, core id, or ''
+    detail: str
+    seconds: Decimal
+
+
+def wire_factor(wire_kind: str, overall_diameter_m: float, model: TimeModel) -> tuple[Decimal, list[str]]:
+    """Slow-down factor of one wire on the winder and the reasons (fine, heavy, Litz)."""
+    factor = Decimal(1)
+    why = []
+    if wire_kind in ("foil", "strip") or overall_diameter_m > model.heavy_wire_above_m:
+        factor *= model.heavy_wire_factor
+        why.append("heavy")
+    elif overall_diameter_m < model.fine_wire_below_m:
+        factor *= model.fine_wire_factor
+        why.append("fine")
+    if wire_kind == "litz":
+        factor *= model.litz_factor
+        why.append("Litz")
+    return factor, why
+
+
+def labor_lines(design, model: TimeModel, layer_tape_wraps: int = 0) -> list[TimeLine]:
+    """Run time per unit (no setup), one line per operation; see the module docstring."""
+    toroid = design.core.shape == "toroid"
+    tpm = model.toroid_turns_per_minute if toroid else model.bobbin_turns_per_minute
+    machine = "toroid winder" if toroid else "bobbin winder"
+    out: list[TimeLine] = []
+    for w in design.windings:
+        factor, why = wire_factor(w.wire_kind, w.overall_diameter_m, model)
+        turns = sum(s.turns for s in w.sections)
+        seconds = Decimal(turns) * _SIXTY / tpm * factor
+        detail = f"{turns} turns at {plain(tpm)}/min ({machine})"
+        if why:
+            detail += f" x {plain(factor)} ({', '.join(why)})"
+        out.append(TimeLine("winding", w.name, detail, seconds))
+    passes = sum(len(w.sections) for w in design.windings)
+    out.append(TimeLine("per winding", "", f"{passes} winding pass(es) x {plain(model.per_winding_s)} s",
+                        passes * model.per_winding_s))
+    wraps = 0
+    for w in design.windings:
+        for s in w.sections:
+            wraps += max(len(s.layers) - 1, 0) * layer_tape_wraps + (s.tape_after_layers if s.tape_after else 0)
+    out.append(TimeLine("taping", "", f"{wraps} tape wrap(s) x {plain(model.per_layer_tape_s)} s",
+                        wraps * model.per_layer_tape_s))
+    terms = sum(len(w.sections) + 1 for w in design.windings)
+    out.append(TimeLine("terminations", "", f"{terms} termination(s) x {plain(model.per_termination_s)} s",
+                        terms * model.per_termination_s))
+    sets = design.core.count
+    pieces = 2 * (design.core.laminations or 0)
+    assembly = sets * model.core_assembly_s + pieces * model.per_lamination_s
+    detail = f"{sets} core set(s) x {plain(model.core_assembly_s)} s"
+    if pieces:
+        detail += f" + {pieces} lamination pieces x {plain(model.per_lamination_s)} s"
+    out.append(TimeLine("assembly", design.core.id, detail, assembly))
+    if any(m.kind == "varnish" for m in design.materials):
+        out.append(TimeLine("impregnation", "", "dip and bake", model.impregnation_s))
+    out.append(TimeLine("test", "", "final test", model.test_s))
+    return out
+
+
+def run_seconds(lines: Iterable[TimeLine]) -> Decimal:
+    return sum((line.seconds for line in lines), Decimal(0))
+
+
+# ------------------------------------------------------------------------------------------------ price
+
+@dataclass(frozen=True)
+class PriceBreak:
+    quantity: int
+    material: Decimal          # per unit, unrounded
+    labor: Decimal             # per unit incl. the setup share, unrounded
+    setup: Decimal             # the setup share within labor
+    overhead: Decimal
+    cost: Decimal
+    unit_price: Decimal        # rounded to the cent
+    extended: Decimal          # unit_price x quantity
+    unit_price_copper_low: Decimal     # copper price x 0.8
+    unit_price_copper_high: Decimal    # copper price x 1.2
+
+
+def _check_margin(shop) -> None:
+    if shop.margin >= 1:
+        raise SpecError(f"a margin of {plain(shop.margin * 100)} % leaves no price (cost / (1 - margin)); "
+                        f"it must be below 100 %", file=shop.labor.get("file"), path="shop.margin")
+
+
+def unit_price(material: Decimal, run_s: Decimal, setup_s: Decimal, quantity: int, shop) -> dict:
+    """Per-unit build-up at one lot size; the price rounded to the cent (half up)."""
+    _check_margin(shop)
+    setup_share_s = setup_s / Decimal(quantity)
+    labor = (run_s + setup_share_s) / _HOUR * shop.labor_rate
+    setup = setup_share_s / _HOUR * shop.labor_rate
+    overhead = labor * shop.overhead
+    cost = material + labor + overhead
+    price = cents(cost / (Decimal(1) - shop.margin))
+    return {"material": material, "labor": labor, "setup": setup, "overhead": overhead, "cost": cost,
+            "unit_price": price}
+
+
+def price_breaks(design, cat, quantities: Iterable[int], layer_tape_wraps: int = 0,
+                 model: TimeModel | None = None) -> list[PriceBreak]:
+    model = model or time_model(cat.shop)
+    shop = cat.shop
+    run_s = run_seconds(labor_lines(design, model, layer_tape_wraps))
+    setup_s = dec(shop.setup_time_s)
+    mat = material_total(material_lines(design, cat))
+    mat_low = material_total(material_lines(design, cat, COPPER_LOW))
+    mat_high = material_total(material_lines(design, cat, COPPER_HIGH))
+    out = []
+    for q in quantities:
+        base = unit_price(mat, run_s, setup_s, q, shop)
+        out.append(PriceBreak(
+            quantity=q, material=base["material"], labor=base["labor"], setup=base["setup"],
+            overhead=base["overhead"], cost=base["cost"], unit_price=base["unit_price"],
+            extended=base["unit_price"] * q,
+            unit_price_copper_low=unit_price(mat_low, run_s, setup_s, q, shop)["unit_price"],
+            unit_price_copper_high=unit_price(mat_high, run_s, setup_s, q, shop)["unit_price"]))
+    return out
+
+
+# ------------------------------------------------------------------------------------------------ inputs
+
+def parse_quantities(text: str | None) -> tuple[int, ...]:
+    """'100,500,2500' -> (100, 500, 2500), ascending; anything else is a one-line SpecError."""
+    raw = "" if text is None else str(text).strip()
+    if not raw:
+        raise SpecError("give the quantity breaks, e.g. --qty 100,500,2500", path="--qty")
+    out = []
+    for part in raw.split(","):
+        item = part.strip().replace("_", "")
+        if not item:
+            raise SpecError(f"an empty quantity in '{raw}'; write e.g. 100,500,2500", path="--qty")
+        if item.startswith("-") and item[1:].isdigit():
+            raise SpecError(f"a quantity must be at least 1, got {item}", path="--qty")
+        if not item.isdigit():
+            raise SpecError(f"'{part.strip()}' is not a whole number of units; write e.g. 100,500,2500",
+                            path="--qty")
+        q = int(item)
+        if q < 1:
+            raise SpecError(f"a quantity must be at least 1, got {part.strip()}", path="--qty")
+        if q > MAX_QUANTITY:
+            raise SpecError(f"{q:,} units is beyond what one quote covers (at most {MAX_QUANTITY:,})",
+                            path="--qty")
+        if q in out:
+            raise SpecError(f"quantity {q} is given twice", path="--qty")
+        out.append(q)
+    if len(out) > MAX_BREAKS:
+        raise SpecError(f"{len(out)} quantity breaks; at most {MAX_BREAKS}", path="--qty")
+    return tuple(sorted(out))
+
+
+def parse_amount(text: str | None, option: str = "--nre") -> Decimal | None:
+    """A money amount from the command line ('1500', '1500.00'); None when not given."""
+    if text is None:
+        return None
+    raw = str(text).strip().replace(",", "")
+    try:
+        value = Decimal(raw)
+    except InvalidOperation:
+        raise SpecError(f"expected an amount like 1500.00, got '{text}'", path=option) from None
+    if not value.is_finite() or value < 0:
+        raise SpecError(f"expected an amount of zero or more, got '{text}'", path=option)
+    if value > Decimal("1e9"):
+        raise SpecError(f"{text} is beyond any tooling charge this tool prints", path=option)
+    return cents(value)
+
+
+def parse_days(text: str | int | None, option: str = "--valid-days") -> int:
+    raw = "30" if text is None else str(text).strip()
+    if not raw.isdigit() or not 1 <= int(raw) <= 366:
+        raise SpecError(f"expected a number of days from 1 to 366, got '{text}'", path=option)
+    return int(raw)
+
+
+# ------------------------------------------------------------------------------------------------ the quote
+
+@dataclass(frozen=True)
+class Quote:
+    reference: str
+    part: str
+    title: str
+    revision: str
+    status: str
+    customer: str
+    fingerprint: str
+    shop_name: str
+    currency: str
+    issued: _dt.date
+    valid_until: _dt.date
+    budgetary: str | None          # why the quote is budgetary, in the customer's words (None: firm)
+    budgetary_detail: str | None   # the same for sales: what exactly differs from the release
+    materials: tuple               # CostLines per unit
+    labor: tuple                   # TimeLines per unit
+    run_time_s: Decimal
+    setup_time_s: Decimal
+    breaks: tuple                  # PriceBreaks
+    nre: Decimal | None
+    copper_per_unit: Decimal       # the copper wire share of the material per unit
+    labor_rate: Decimal
+    overhead: Decimal
+    margin: Decimal
+    scrap_wire: Decimal
+    notes: tuple = ()
+    design_summary: dict = field(default_factory=dict)
+
+    @property
+    def fingerprint_short(self) -> str:
+        return self.fingerprint[:12]
+
+    @property
+    def material_per_unit(self) -> Decimal:
+        return material_total(self.materials)
+
+    @property
+    def filename_stem(self) -> str:
+        return f"{self.part}-rev{self.revision}-quote"
+
+    def to_dict(self) -> dict[str, Any]:
+        """JSON-ready: every amount a decimal string, never a JSON number (no float on the way).
+
+        Prices (unit, extended, copper variants, NRE) are the quoted cents; the internal build-up
+        (material lines, labor, overhead, cost per unit) is shown to 0.0001 for reading, while the
+        price was computed from the unrounded sums. Times are seconds to 0.1 s.
+        """
+        q4 = Decimal("0.0001")
+
+        def s(x: Decimal | None, places: Decimal = CENT) -> str | None:
+            return None if x is None else str(x.quantize(places, rounding=ROUND_HALF_UP))
+
+        return {
+            "reference": self.reference, "part": self.part, "title": self.title, "revision": self.revision,
+            "status": self.status, "customer": self.customer, "fingerprint": self.fingerprint,
+            "fingerprint_short": self.fingerprint_short, "shop": self.shop_name, "currency": self.currency,
+            "issued": self.issued.isoformat(), "valid_until": self.valid_until.isoformat(),
+            "budgetary": self.budgetary, "budgetary_detail": self.budgetary_detail,
+            "rules": {
+                "labor_rate_per_hour": str(self.labor_rate), "overhead_on_labor": str(self.overhead),
+                "margin_on_price": str(self.margin), "price": "cost / (1 - margin)",
+                "scrap_wire": str(self.scrap_wire), "rounding": "unit price to the cent, half up",
+                "copper_sensitivity": [str(COPPER_LOW), str(COPPER_HIGH)],
+            },
+            "materials": [{
+                "kind": m.kind, "id": m.id, "description": m.description, "quantity": s(m.quantity, Decimal("0.000001")),
+                "unit": m.unit, "rate": str(m.rate), "amount": s(m.amount, q4), "copper": m.copper, "note": m.note,
+            } for m in self.materials],
+            "material_per_unit": s(self.material_per_unit, q4),
+            "copper_per_unit": s(self.copper_per_unit, q4),
+            "labor": [{"operation": t.operation, "item": t.item, "detail": t.detail,
+                       "seconds": s(t.seconds, Decimal("0.1"))} for t in self.labor],
+            "run_time_s": s(self.run_time_s, Decimal("0.1")),
+            "setup_time_s": s(self.setup_time_s, Decimal("0.1")),
+            "breaks": [{
+                "quantity": b.quantity, "material": s(b.material, q4), "labor": s(b.labor, q4),
+                "setup": s(b.setup, q4), "overhead": s(b.overhead, q4), "cost": s(b.cost, q4),
+                "unit_price": s(b.unit_price), "extended": s(b.extended),
+                "unit_price_copper_minus_20": s(b.unit_price_copper_low),
+                "unit_price_copper_plus_20": s(b.unit_price_copper_high),
+            } for b in self.breaks],
+            "nre": s(self.nre),
+            "notes": list(self.notes),
+        }
+
+
+def _summary(design) -> dict:
+    """What the customer sees of the construction: read from the Design only."""
+    c = design.core
+    windings = [{"name": w.name, "turns": w.turns, "wire": w.wire_label,
+                 "strands": w.strands} for w in design.windings]
+    hipot = [{"between": h.between, "volts": h.routine_voltage_v, "seconds": h.routine_duration_s}
+             for h in design.tests.hipot]
+    t = design.tests
+    tests = [name for name, present in (("DC resistance", t.dcr), ("turns ratio", t.ratio),
+                                         ("open-circuit voltage", t.open_circuit), ("inductance", t.inductance),
+                                         ("polarity", t.polarity)) if present]
+    if t.insulation_resistance_v:
+        tests.append(f"insulation resistance at {t.insulation_resistance_v:,.0f} V d.c.")
+    return {"core": f"{c.id}, {c.material_name}", "insulation_class_c": design.insulation_class_c,
+            "windings": windings, "hipot": hipot, "tests": tests,
+            "varnish": any(m.kind == "varnish" for m in design.materials)}
+
+
+def build_quote(spec, design, cat, quantities: Iterable[int], *, nre: Decimal | None = None,
+                valid_days: int = 30, issued: _dt.date | None = None, allow_failed: bool = False) -> Quote:
+    """The whole quote for one part: refuses failed designs and obsolete revisions (module docstring)."""
+    from .api import catalog_entries
+    from .revision import check_release
+
+    if design.failed and not allow_failed:
+        raise DesignFailed(f"{design.part} rev {design.revision} has failed design checks: not quoted "
+                           f"(fix the design first; a quote must not promise a part the shop will refuse)",
+                           design.failed)
+    if design.status == "obsolete":
+        raise SpecError(f"revision {design.revision} is obsolete; quote the current revision",
+                        file=spec.file, path="status")
+    quantities = tuple(quantities)
+    if not quantities:
+        raise SpecError("no quantity breaks", path="--qty")
+    shop = cat.shop
+    _check_margin(shop)
+    model = time_model(shop)
+    wraps = spec.layer_tape.layers if spec.layer_tape else 0
+    materials = material_lines(design, cat)
+    labor = labor_lines(design, model, wraps)
+    breaks = price_breaks(design, cat, quantities, wraps, model)
+    issued = issued or _dt.date.today()
+    budgetary = budgetary_detail = None
+    if design.status != "released":
+        budgetary = budgetary_detail = f"revision {design.revision} is a {design.status}, not yet released"
+    else:
+        rc = check_release(spec.data, catalog_entries(design.catalog_ids, cat))
+        if not rc.ok:
+            budgetary = f"the design has changed since revision {design.revision} was released"
+            budgetary_detail = "; ".join(rc.problems)
+    notes = []
+    for m in materials:
+        if m.note.startswith("no catalogue price"):
+            notes.append(f"{m.description}: no catalogue price, not charged")
+    return Quote(
+        reference=f"Q-{design.part}-{design.revision}-{issued:%Y%m%d}", part=design.part, title=design.title,
+        revision=design.revision, status=design.status, customer=design.customer,
+        fingerprint=design.fingerprint, shop_name=shop.name, currency=shop.currency, issued=issued,
+        valid_until=issued + _dt.timedelta(days=int(valid_days)), budgetary=budgetary,
+        budgetary_detail=budgetary_detail,
+        materials=tuple(materials), labor=tuple(labor), run_time_s=run_seconds(labor),
+        setup_time_s=dec(shop.setup_time_s), breaks=tuple(breaks), nre=None if nre is None else cents(nre),
+        copper_per_unit=copper_total(materials), labor_rate=shop.labor_rate, overhead=shop.overhead,
+        margin=shop.margin, scrap_wire=shop.scrap_wire, notes=tuple(notes), design_summary=_summary(design))
+
+
+# ------------------------------------------------------------------------------------------------ text
+
+def money(amount: Decimal | None, currency: str = "") -> str:
+    """'1,234.56' (or 'USD 1,234.56'): grouping for people; the value is exact."""
+    if amount is None:
+        return "-"
+    text = f"{cents(amount):,.2f}"
+    return f"{currency} {text}" if currency else text
+
+
+def quote_table(q: Quote) -> str:
+    """The terminal view: cost build-up per unit (internal) and the price per quantity break."""
+    lines = [f"{q.part} rev {q.revision}  {q.title}",
+             f"customer {q.customer}   fingerprint {q.fingerprint_short}   quote {q.reference}",
+             f"issued {q.issued.isoformat()}, valid until {q.valid_until.isoformat()}   currency {q.currency}"]
+    if q.budgetary:
+        lines.append(f"BUDGETARY: {q.budgetary_detail}")
+    lines.append("")
+    lines.append("material per unit")
+    for m in q.materials:
+        lines.append(f"  {m.kind:<11} {m.id:<22} {m.quantity:>10.4f} {m.unit:<4} x {m.rate:>8.4f}"
+                     f" = {m.amount:>9.4f}{'  copper' if m.copper else ''}")
+    lines.append(f"  {'total':<11} {'':<22} {'':>10} {'':<4}   {'':>8}   {q.material_per_unit:>9.4f}"
+                 f"  (copper wire {q.copper_per_unit:.4f})")
+    lines.append("")
+    lines.append(f"labor per unit at {money(q.labor_rate)}/h, overhead {plain(q.overhead * 100)} % on labor, "
+                 f"margin {plain(q.margin * 100)} % of price")
+    for t in q.labor:
+        lines.append(f"  {t.operation:<13} {t.seconds:>8.1f} s  {t.item + ': ' if t.item else ''}{t.detail}")
+    lines.append(f"  {'run time':<13} {q.run_time_s:>8.1f} s  per unit; setup "
+                 f"{plain(q.setup_time_s / 60)} min per lot")
+    lines.append("")
+    head = (f"  {'qty':>7}  {'material':>9}  {'labor':>9}  {'overhead':>9}  {'cost':>9}  {'unit price':>10}"
+            f"  {'extended':>12}  {'Cu -20 %':>9}  {'Cu +20 %':>9}")
+    lines.append(head)
+    for b in q.breaks:
+        lines.append(f"  {b.quantity:>7,}  {money(b.material):>9}  {money(b.labor):>9}  {money(b.overhead):>9}"
+                     f"  {money(b.cost):>9}  {money(b.unit_price):>10}  {money(b.extended):>12}"
+                     f"  {money(b.unit_price_copper_low):>9}  {money(b.unit_price_copper_high):>9}")
+    if q.nre is not None:
+        lines.append(f"  tooling / NRE, one time: {money(q.nre, q.currency)}")
+    for n in q.notes:
+        lines.append(f"  note: {n}")
+    return "\n".join(lines)
+
+
+CSV_FIELDS = ("part", "revision", "fingerprint", "currency", "quantity", "material", "labor", "overhead",
+              "cost", "unit_price", "extended", "unit_price_copper_minus_20", "unit_price_copper_plus_20",
+              "nre", "valid_until")
+
+
+def quote_csv_rows(q: Quote) -> list[dict]:
+    d = q.to_dict()
+    return [{"part": q.part, "revision": q.revision, "fingerprint": q.fingerprint_short,
+             "currency": q.currency, "quantity": b["quantity"], "material": b["material"], "labor": b["labor"],
+             "overhead": b["overhead"], "cost": b["cost"], "unit_price": b["unit_price"],
+             "extended": b["extended"], "unit_price_copper_minus_20": b["unit_price_copper_minus_20"],
+             "unit_price_copper_plus_20": b["unit_price_copper_plus_20"], "nre": d["nre"] or "",
+             "valid_until": d["valid_until"]} for b in d["breaks"]]

@@ -1,0 +1,464 @@
+"""Tests for the quote: cost model (specgen.quote), the quote document and ``specgen quote``.
+
+Sources named beside each check:
+- the hand-computed build-up re-does the arithmetic of the rules stated in specgen/quote.py's
+  docstring with Python's decimal module, from the Design's lengths/masses/turns and the catalogue
+  prices written out below (invented demo figures, catalog/*.yaml); it calls none of the cost code.
+- overhead on direct labor and margin as a fraction of the selling price, price = cost / (1 - margin):
+  common practice in custom-magnetics quoting (the convention specgen.quote chooses and states).
+- rounding to the cent, half up: the commercial rounding rule, checked against decimal.ROUND_HALF_UP
+  and against banker's rounding on a tie where the two differ.
+- the PDF's text is read back with pypdf, an independent PDF reader.
+All parts, prices and customers are the invented demo scenario (Brindle Hollow Coil Works).
+"""
+
+from __future__ import annotations
+
+import csv
+import dataclasses
+import datetime as dt
+import io
+import json
+import re
+import subprocess
+import sys
+from decimal import ROUND_HALF_EVEN, ROUND_HALF_UP, Decimal
+from pathlib import Path
+
+import pypdf
+import pytest
+from typer.testing import CliRunner
+
+from specgen import quote as qm
+from specgen.api import demo_specs, run_design
+from specgen.catalog.loader import load_catalog
+from specgen.design.result import Check
+from specgen.design.spec import load_spec
+from specgen.errors import DesignFailed, SpecError
+
+DEMO = Path(__file__).resolve().parent.parent / "specgen" / "demo"
+ISSUED = dt.date(2026, 11, 2)
+
+
+def D(x) -> Decimal:
+    """A float from the Design as the decimal it prints as (the test's own conversion)."""
+    return Decimal(repr(x)) if isinstance(x, float) else Decimal(x)
+
+
+@pytest.fixture(scope="module")
+def cat():
+    return load_catalog(None)
+
+
+@pytest.fixture(scope="module")
+def designs(cat):
+    out = {}
+    for path in demo_specs():
+        spec = load_spec(path)
+        out[spec.part] = (path, spec, run_design(spec, cat))
+    return out
+
+
+# ------------------------------------------------------------------------------------------------ by hand
+
+# Shop figures (demo scenario, catalog/shop.yaml): written out here, checked against the catalogue.
+LABOR_RATE = Decimal("38.00")        # per hour
+OVERHEAD = Decimal("0.45")           # on direct labor
+MARGIN = Decimal("0.22")             # of the selling price
+SETUP_S = Decimal("2700")            # 0.75 h per lot
+SCRAP = Decimal("0.03")              # on wire
+# labor time model (catalog/shop.yaml labor:, invented demo figures)
+BOBBIN_TPM = Decimal("600")
+FINE_BELOW_M, FINE_FACTOR = 0.15e-3, Decimal("1.6")
+HEAVY_ABOVE_M, HEAVY_FACTOR = 1.2e-3, Decimal("2.0")
+PER_WINDING, PER_WRAP, PER_TERM = Decimal("90"), Decimal("20"), Decimal("30")
+CORE_ASSEMBLY, PER_LAMINATION = Decimal("120"), Decimal("0.8")
+IMPREGNATION, TEST = Decimal("60"), Decimal("150")
+
+# BH-1042's catalogue prices (catalog/cores.yaml, wires.yaml, bobbins.yaml, insulation.yaml)
+LAMINATION_PER_KG = Decimal("3.00")                       # EI-125, price_unit kg
+BOBBIN = Decimal("1.12")                                  # BOB-EI125-32
+WIRE_PER_KG = {"AWG27-G2": Decimal("15.83"), "CU-1.12-G2": Decimal("15.08")}
+TAPE = {"TAPE-PET25-30MM": (Decimal("0.030"), Decimal("1.80")),     # (width m, price per m2)
+        "TAPE-PET50-25MM": (Decimal("0.025"), Decimal("2.40")),
+        "TAPE-MARGIN-2MM": (Decimal("0.002"), Decimal("3.20"))}
+SLEEVING_PER_M = {"SLV-GLSIL-1.0": Decimal("0.35")}
+VARNISH_PER_L = {"VAR-PEI-F": Decimal("9.50")}
+
+
+def test_written_out_prices_are_the_catalogue_s(cat):
+    # guards the hand computation below: if the demo catalogue changes, this says where
+    shop = cat.shop
+    assert (shop.labor_rate, shop.overhead, shop.margin, shop.scrap_wire) == (LABOR_RATE, OVERHEAD, MARGIN, SCRAP)
+    assert D(shop.setup_time_s) == SETUP_S
+    assert cat.cores["EI-125"].price == LAMINATION_PER_KG and cat.cores["EI-125"].price_unit == "kg"
+    assert cat.bobbins["BOB-EI125-32"].price == BOBBIN
+    for wid, price in WIRE_PER_KG.items():
+        assert cat.wires[wid].price_per_kg == price
+    for tid, (width, price) in TAPE.items():
+        assert D(cat.tapes[tid].width_m) == width and cat.tapes[tid].price_per_m2 == price
+    assert cat.sleevings["SLV-GLSIL-1.0"].price_per_m == SLEEVING_PER_M["SLV-GLSIL-1.0"]
+    assert cat.varnishes["VAR-PEI-F"].price_per_litre == VARNISH_PER_L["VAR-PEI-F"]
+    model = qm.time_model(shop)
+    assert model.bobbin_turns_per_minute == BOBBIN_TPM and model.per_lamination_s == PER_LAMINATION
+    assert model.fine_wire_below_m == pytest.approx(FINE_BELOW_M) and model.heavy_wire_above_m == pytest.approx(HEAVY_ABOVE_M)
+
+
+def _hand_material(d) -> tuple[Decimal, Decimal]:
+    """BH-1042's material per unit and its copper share, line by line."""
+    total = Decimal(0)
+    copper = Decimal(0)
+    for m in d.materials:
+        if m.kind == "laminations":            # priced per kg: mass x price
+            total += D(m.mass_kg) * LAMINATION_PER_KG
+        elif m.kind == "bobbin":               # one piece
+            total += D(m.quantity) * BOBBIN
+        elif m.kind == "wire":                 # mass x price per kg x (1 + scrap)
+            line = D(m.mass_kg) * WIRE_PER_KG[m.id] * (1 + SCRAP)
+            total += line
+            copper += line
+        elif m.kind == "tape":                 # length x width x price per m2
+            width, per_m2 = TAPE[m.id]
+            total += D(m.quantity) * width * per_m2
+        elif m.kind == "sleeving":             # metres x price per metre
+            total += D(m.quantity) * SLEEVING_PER_M[m.id]
+        elif m.kind == "varnish":              # litres x price per litre
+            total += D(m.quantity) * VARNISH_PER_L[m.id]
+        else:
+            raise AssertionError(f"BH-1042 has no {m.kind} line in the hand computation")
+    return total, copper
+
+
+def _hand_run_seconds(d, layer_tape_wraps: int) -> Decimal:
+    """BH-1042's run time per unit (a bobbin part), operation by operation."""
+    seconds = Decimal(0)
+    for w in d.windings:
+        factor = Decimal(1)
+        if w.overall_diameter_m > HEAVY_ABOVE_M:
+            factor = HEAVY_FACTOR
+        elif w.overall_diameter_m < FINE_BELOW_M:
+            factor = FINE_FACTOR
+        seconds += Decimal(w.turns) * 60 / BOBBIN_TPM * factor          # winding
+        for s in w.sections:
+            seconds += PER_WINDING                                       # one pass per section
+            seconds += (len(s.layers) - 1) * layer_tape_wraps * PER_WRAP  # tape between layers
+            seconds += s.tape_after_layers * PER_WRAP                    # wraps after the section
+        seconds += (len(w.sections) + 1) * PER_TERM                      # start, finish, tie pins
+    seconds += d.core.count * CORE_ASSEMBLY + 2 * d.core.laminations * PER_LAMINATION   # E and I pieces
+    seconds += IMPREGNATION + TEST                                       # varnished part, tested
+    return seconds
+
+
+def test_bh1042_build_up_reproduced_to_the_cent(cat, designs):
+    _path, spec, d = designs["BH-1042"]
+    assert d.core.shape == "EI" and spec.varnish and not any(w.wire_kind == "litz" for w in d.windings)
+    material, copper = _hand_material(d)
+    run_s = _hand_run_seconds(d, spec.layer_tape.layers)
+    q = qm.build_quote(spec, d, cat, (100, 500, 2500), issued=ISSUED)
+    assert q.material_per_unit == material
+    assert q.copper_per_unit == copper
+    assert q.run_time_s == run_s
+    for b in q.breaks:
+        labor = (run_s + SETUP_S / b.quantity) / 3600 * LABOR_RATE     # setup amortised over the lot
+        overhead = labor * OVERHEAD                                    # overhead on labor only
+        cost = material + labor + overhead
+        price = (cost / (1 - MARGIN)).quantize(Decimal("0.01"), rounding=ROUND_HALF_UP)
+        assert b.cost == cost
+        assert b.unit_price == price, b.quantity
+        assert b.extended == price * b.quantity
+        # copper sensitivity: only the copper wire lines move, by 20 % of themselves
+        high = ((cost + copper * Decimal("0.2")) / (1 - MARGIN)).quantize(Decimal("0.01"), rounding=ROUND_HALF_UP)
+        low = ((cost - copper * Decimal("0.2")) / (1 - MARGIN)).quantize(Decimal("0.01"), rounding=ROUND_HALF_UP)
+        assert (b.unit_price_copper_low, b.unit_price_copper_high) == (low, high)
+
+
+def test_margin_is_on_price_and_overhead_on_labor_only(cat, designs):
+    # common practice (the convention chosen): margin / price == 22 %; material carries no overhead
+    _path, spec, d = designs["BH-5018"]
+    q = qm.build_quote(spec, d, cat, (1000,), issued=ISSUED)
+    b = q.breaks[0]
+    exact_price = b.cost / (1 - MARGIN)
+    assert abs((exact_price - b.cost) / exact_price - MARGIN) < Decimal("1e-20")   # 28-digit context
+    assert b.overhead == b.labor * OVERHEAD
+    assert b.cost == b.material + b.labor + b.overhead
+
+
+# ------------------------------------------------------------------------------------------------ behaviour
+
+@pytest.mark.parametrize("part", ["BH-1042", "BH-2210", "BH-3305", "BH-4120", "BH-5018"])
+def test_unit_price_falls_as_quantity_rises(cat, designs, part):
+    # setup per lot amortised over the quantity (the issue's rule); prices never rise with quantity
+    _path, spec, d = designs[part]
+    q = qm.build_quote(spec, d, cat, (1, 10, 100, 1000, 10000), issued=ISSUED)
+    prices = [b.unit_price for b in q.breaks]
+    assert prices == sorted(prices, reverse=True) and len(set(prices)) == len(prices)
+    setups = [b.setup for b in q.breaks]
+    assert all(a == 10 * b for a, b in zip(setups, setups[1:]))   # 1/N exactly
+
+
+@pytest.mark.parametrize("part", ["BH-1042", "BH-2210", "BH-3305", "BH-4120", "BH-5018"])
+def test_copper_plus_and_minus_20_percent_move_only_the_copper_share(cat, designs, part):
+    _path, _spec, d = designs[part]
+    base = qm.material_lines(d, cat)
+    for factor in (Decimal("0.8"), Decimal("1.2")):
+        moved = qm.material_lines(d, cat, factor)
+        for a, b in zip(base, moved):
+            if a.copper:
+                assert b.amount == a.amount * factor           # exactly, in Decimal
+            else:
+                assert b.amount == a.amount
+        delta = qm.material_total(moved) - qm.material_total(base)
+        assert delta == (factor - 1) * qm.copper_total(base)
+    assert qm.copper_total(base) > 0   # every demo part has copper wire
+
+
+def test_cent_rounding_is_half_up_not_bankers():
+    # 2.665 is a tie: half up gives 2.67, half even 2.66
+    tie = Decimal("2.665")
+    assert qm.cents(tie) == Decimal("2.67") == tie.quantize(Decimal("0.01"), rounding=ROUND_HALF_UP)
+    assert tie.quantize(Decimal("0.01"), rounding=ROUND_HALF_EVEN) != qm.cents(tie)
+    assert qm.cents(Decimal("2.66499999")) == Decimal("2.66")
+
+
+def _floats_in(obj, where="quote"):
+    """Every float inside a value (dataclasses, tuples, dicts), with its path."""
+    if isinstance(obj, float):
+        yield where
+    elif dataclasses.is_dataclass(obj) and not isinstance(obj, type):
+        for f in dataclasses.fields(obj):
+            yield from _floats_in(getattr(obj, f.name), f"{where}.{f.name}")
+    elif isinstance(obj, dict):
+        for k, v in obj.items():
+            yield from _floats_in(v, f"{where}[{k!r}]")
+    elif isinstance(obj, (list, tuple)):
+        for i, v in enumerate(obj):
+            yield from _floats_in(v, f"{where}[{i}]")
+
+
+def test_money_is_decimal_everywhere(cat, designs):
+    _path, spec, d = designs["BH-2210"]
+    q = qm.build_quote(spec, d, cat, (100, 500), nre=Decimal("1250"), issued=ISSUED)
+    money_view = dataclasses.replace(q, design_summary={})    # the summary holds test volts, not money
+    assert list(_floats_in(money_view)) == []
+    for b in q.breaks:
+        for f in dataclasses.fields(b):
+            value = getattr(b, f.name)
+            assert isinstance(value, int if f.name == "quantity" else Decimal), f.name
+        assert b.unit_price.as_tuple().exponent == -2
+    assert isinstance(q.nre, Decimal) and q.nre == Decimal("1250.00")
+    # the JSON carries amounts as exact decimal strings, never JSON numbers
+    data = json.loads(json.dumps(q.to_dict()))
+    for b in data["breaks"]:
+        for key, value in b.items():
+            if key != "quantity":
+                assert isinstance(value, str) and Decimal(value).is_finite()
+
+
+def test_clips_have_no_catalogue_price_and_are_not_charged(cat, designs):
+    _path, spec, d = designs["BH-2210"]
+    q = qm.build_quote(spec, d, cat, (100,), issued=ISSUED)
+    clips = [m for m in q.materials if m.kind == "clip"]
+    assert clips and all(m.amount == 0 for m in clips)
+    assert any("clips" in n for n in q.notes)
+
+
+def test_validity_nre_and_identity(cat, designs):
+    _path, spec, d = designs["BH-3305"]
+    q = qm.build_quote(spec, d, cat, (250,), nre=Decimal("499.995"), valid_days=45, issued=ISSUED)
+    assert q.valid_until == ISSUED + dt.timedelta(days=45)
+    assert q.nre == Decimal("500.00")                              # half up
+    assert (q.part, q.revision, q.customer) == (d.part, d.revision, d.customer)
+    assert q.fingerprint_short == d.fingerprint[:12] and len(q.fingerprint_short) == 12
+
+
+def test_failed_design_is_refused(cat, designs):
+    _path, spec, d = designs["BH-5018"]
+    bad = dataclasses.replace(d, checks=d.checks + (Check("fail", "saturation", "core saturates"),))
+    with pytest.raises(DesignFailed):
+        qm.build_quote(spec, bad, cat, (100,), issued=ISSUED)
+
+
+def test_obsolete_revision_is_a_user_error(cat, designs):
+    _path, spec, d = designs["BH-5018"]
+    with pytest.raises(SpecError, match="obsolete"):
+        qm.build_quote(spec, dataclasses.replace(d, status="obsolete"), cat, (100,), issued=ISSUED)
+
+
+def test_draft_is_budgetary_and_a_consistent_release_is_firm(cat, designs, tmp_path):
+    path, spec, d = designs["BH-5018"]
+    text = Path(path).read_text(encoding="utf-8")
+    assert 'fingerprint: ""' in text
+    released = tmp_path / "BH-5018.yaml"
+    released.write_text(text.replace('fingerprint: ""', f'fingerprint: "{d.fingerprint}"'), encoding="utf-8")
+    s2 = load_spec(released)
+    q = qm.build_quote(s2, run_design(s2, cat), cat, (100,), issued=ISSUED)
+    assert q.budgetary is None
+    draft = tmp_path / "draft.yaml"
+    draft.write_text(text.replace("status: released", "status: draft"), encoding="utf-8")
+    s3 = load_spec(draft)
+    q3 = qm.build_quote(s3, run_design(s3, cat), cat, (100,), issued=ISSUED)
+    assert q3.budgetary and "draft" in q3.budgetary
+
+
+def test_time_model_errors_are_located(cat):
+    labor = dict(cat.shop.labor["data"])
+    labor["per_winding"] = "90 kg"
+    shop = dataclasses.replace(cat.shop, labor={"data": labor, "file": "shop.yaml", "path": "shop.labor"})
+    with pytest.raises(SpecError) as err:
+        qm.time_model(shop)
+    assert err.value.file == "shop.yaml" and err.value.path == "shop.labor.per_winding"
+    labor = dict(cat.shop.labor["data"])
+    labor["per_windnig"] = "90 s"
+    shop = dataclasses.replace(cat.shop, labor={"data": labor, "file": "shop.yaml", "path": "shop.labor"})
+    with pytest.raises(SpecError, match="unknown key 'per_windnig'"):
+        qm.time_model(shop)
+
+
+def test_margin_of_100_percent_is_refused(cat):
+    shop = dataclasses.replace(cat.shop, margin=Decimal(1))
+    with pytest.raises(SpecError, match="margin"):
+        qm.unit_price(Decimal(1), Decimal(1), Decimal(1), 10, shop)
+
+
+@pytest.mark.parametrize("text", ["0", "abc", "-5", "", "  ", "100,,500", "1.5", "100,100", "1e3"])
+def test_bad_quantities_are_one_line_errors(text):
+    with pytest.raises(SpecError) as err:
+        qm.parse_quantities(text)
+    assert err.value.path == "--qty" and "\n" not in str(err.value)
+
+
+def test_quantities_are_sorted_whole_numbers():
+    assert qm.parse_quantities(" 2500, 100 ,500") == (100, 500, 2500)
+
+
+# ------------------------------------------------------------------------------------------------ CLI + PDF
+
+runner = CliRunner()
+
+
+def _app():
+    from specgen.cli import app
+
+    return app
+
+
+def _pdf_text(path: Path) -> tuple[int, str]:
+    reader = pypdf.PdfReader(str(path))
+    return len(reader.pages), "\n".join(p.extract_text() for p in reader.pages)
+
+
+def test_pdf_holds_every_break_and_its_json_unit_price(tmp_path):
+    # one run: --json to stdout, the PDF into --out; pypdf reads the PDF back
+    spec = DEMO / "BH-1042.yaml"
+    result = runner.invoke(_app(), ["quote", str(spec), "--qty", "100,500,2500", "--json", "--out", str(tmp_path),
+                                    "--nre", "1500"])
+    assert result.exit_code == 0, result.output
+    data = json.loads(result.stdout)
+    pdf = tmp_path / f"{data['part']}-rev{data['revision']}-quote.pdf"
+    assert pdf.is_file() and pdf.with_suffix(".html").is_file()
+    pages, text = _pdf_text(pdf)
+    assert pages == 1
+    assert [b["quantity"] for b in data["breaks"]] == [100, 500, 2500]
+    for b in data["breaks"]:
+        qty = f"{b['quantity']:,}"
+        extended = f"{Decimal(b['extended']):,.2f}"
+        # one table row: quantity, unit price, extended price, then the copper -20 % / +20 % unit prices
+        cells = [qty, b["unit_price"], extended, b["unit_price_copper_minus_20"], b["unit_price_copper_plus_20"]]
+        row = re.compile("^" + r"\s+".join(re.escape(c) for c in cells) + r"\s*$", re.M)
+        assert row.search(text), (b, text)
+    for item in (data["part"], data["fingerprint_short"], data["customer"], data["valid_until"], "1,500.00"):
+        assert item in text
+    assert "revision " + data["revision"] in text
+
+
+def test_twelve_breaks_still_fit_one_page(cat, designs, tmp_path):
+    from specgen.documents.quote_doc import write_quote
+
+    _path, spec, d = designs["BH-4120"]
+    qtys = (1, 5, 10, 25, 50, 100, 250, 500, 1000, 2500, 5000, 10000)
+    assert len(qtys) == qm.MAX_BREAKS
+    q = qm.build_quote(spec, d, cat, qtys, nre=Decimal("2400"), issued=ISSUED)
+    pdf = [p for p in write_quote(q, tmp_path) if p.suffix == ".pdf"][0]
+    pages, text = _pdf_text(pdf)
+    assert pages == 1
+    assert all(str(b.unit_price) in text for b in q.breaks)
+
+
+def test_pdf_fetches_nothing_outside_templates(cat, designs, tmp_path):
+    from specgen.documents.quote_doc import write_quote
+
+    _path, spec, d = designs["BH-4120"]
+    blocked: list = []
+    write_quote(qm.build_quote(spec, d, cat, (100,), issued=ISSUED), tmp_path, blocked)
+    # only the shared stylesheet may be absent (written by the work-order work); nothing else refused
+    assert all(url.endswith("/specgen.css") for url in blocked), blocked
+
+
+def test_csv_rows_match_json(tmp_path):
+    spec = str(DEMO / "BH-3305.yaml")
+    j = json.loads(runner.invoke(_app(), ["quote", spec, "--qty", "10,1000", "--json"]).stdout)
+    r = runner.invoke(_app(), ["quote", spec, "--qty", "10,1000", "--csv"])
+    assert r.exit_code == 0
+    rows = list(csv.DictReader(io.StringIO(r.stdout)))
+    assert [int(x["quantity"]) for x in rows] == [10, 1000]
+    assert [x["unit_price"] for x in rows] == [b["unit_price"] for b in j["breaks"]]
+    assert list(tmp_path.iterdir()) == []          # no --out: nothing written
+
+
+def test_table_mode_writes_pdf_into_out(tmp_path):
+    r = runner.invoke(_app(), ["quote", str(DEMO / "BH-5018.yaml"), "--out", str(tmp_path / "q")])
+    assert r.exit_code == 0, r.output
+    assert (tmp_path / "q" / "BH-5018-revA-quote.pdf").is_file()
+    assert "unit price" in r.stdout and "wrote" in r.stdout
+
+
+@pytest.mark.parametrize("qty", ["0", "abc", "-5", ""])
+def test_bad_qty_exits_2_with_one_line(qty):
+    r = runner.invoke(_app(), ["quote", str(DEMO / "BH-5018.yaml"), f"--qty={qty}"])
+    assert r.exit_code == 2
+    lines = r.stderr.strip().splitlines()
+    assert len(lines) == 1 and lines[0].startswith("--qty:"), r.stderr
+    assert "Traceback" not in r.output
+
+
+@pytest.mark.parametrize("args", [["--nre", "abc"], ["--valid-days", "0"], ["--json", "--csv"]])
+def test_other_bad_options_exit_2(args):
+    r = runner.invoke(_app(), ["quote", str(DEMO / "BH-5018.yaml"), *args])
+    assert r.exit_code == 2 and len(r.stderr.strip().splitlines()) == 1
+
+
+def test_failed_design_exits_1(monkeypatch, tmp_path):
+    import specgen.api as api
+
+    real = api.run_design
+
+    def failing(spec, cat):
+        d = real(spec, cat)
+        return dataclasses.replace(d, checks=d.checks + (Check("fail", "fit", "the build does not fit"),))
+
+    monkeypatch.setattr(api, "run_design", failing)
+    r = runner.invoke(_app(), ["quote", str(DEMO / "BH-5018.yaml"), "--out", str(tmp_path)])
+    assert r.exit_code == 1
+    assert "FAIL fit" in r.stderr
+    assert list(tmp_path.iterdir()) == []          # refused: no half-made quote
+
+
+def test_json_quote_does_not_import_weasyprint():
+    code = ("import sys; from specgen.cli import app\n"
+            "try:\n    app(['quote', sys.argv[1], '--json'])\nexcept SystemExit as e:\n    assert not e.code, e.code\n"
+            "assert 'weasyprint' not in sys.modules")
+    proc = subprocess.run([sys.executable, "-c", code, str(DEMO / "BH-5018.yaml")], capture_output=True, text=True)
+    assert proc.returncode == 0, proc.stderr
+
+
+def test_demo_quotes_writes_one_pdf_per_part(cat, designs, tmp_path):
+    from specgen.documents.quote_doc import demo_quotes
+
+    said: list = []
+    quotes = demo_quotes(designs, cat, tmp_path, echo=said.append)
+    assert set(quotes) == {p for p, (_x, _s, d) in designs.items() if not d.failed}
+    for part, q in quotes.items():
+        assert [b.quantity for b in q.breaks] == [100, 500, 2500]
+        pages, text = _pdf_text(tmp_path / f"{part}-rev{q.revision}-quote.pdf")
+        assert pages == 1 and str(q.breaks[-1].unit_price) in text
+    assert len(said) == len(designs) + 1
