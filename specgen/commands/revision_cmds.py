@@ -1,5 +1,123 @@
-"""Commands: filled in by the revision_cmds work."""
+"""Commands for revisions: release, verify, diff, new. Thin wrappers over ``specgen.diff``,
+``specgen.revision``, ``specgen.starter`` and ``specgen.documents.change_doc``.
+
+Exit codes: 0 success; 1 a design check fails (release) or a release record does not match
+(verify); 2 bad input (one line on stderr).
+"""
+
+from __future__ import annotations
+
+from pathlib import Path
+from typing import List, Optional
+
+import typer
+
+from ._common import guarded, print_json
+from ..errors import SpecError
+
+_CatalogOpt = typer.Option(None, "--catalog", envvar="SPECGEN_CATALOG", metavar="DIR",
+                           help="Catalogue folder (default: the one shipped with specgen).")
+_JsonOpt = typer.Option(False, "--json", help="Print the result as JSON.")
 
 
 def register(app) -> None:
-    """Add this module's commands to the root Typer app."""
+    """Add ``release``, ``verify``, ``diff`` and ``new`` to the root Typer app."""
+
+    @app.command("release")
+    @guarded
+    def release_cmd(
+        spec: Path = typer.Argument(..., metavar="SPEC.yaml"),
+        by: str = typer.Option(..., "--by", metavar="NAME", help="Who releases it."),
+        note: str = typer.Option(..., "--note", metavar="TEXT", help="What changed in this revision."),
+        date: Optional[str] = typer.Option(None, "--date", metavar="YYYY-MM-DD",
+                                           help="Release date (default: today)."),
+        commit: bool = typer.Option(False, "--commit",
+                                    help="Commit just this file and tag it PART-rev-X (never pushes)."),
+        catalog: Optional[Path] = _CatalogOpt,
+    ):
+        """Release a spec: refuse if a design check fails, set the next revision letter, record
+        the fingerprint in its history (comments and formatting kept)."""
+        from ..catalog.loader import load_catalog
+        from ..diff import release_spec
+
+        cat = load_catalog(catalog)
+        result = release_spec(spec, by=by, note=note, cat=cat, date=date, commit=commit)
+        typer.echo(result.message())
+
+    @app.command("verify")
+    @guarded
+    def verify_cmd(
+        paths: List[Path] = typer.Argument(..., metavar="PATH...",
+                                           help="Spec files, or folders searched for specs."),
+        catalog: Optional[Path] = _CatalogOpt,
+        as_json: bool = _JsonOpt,
+    ):
+        """Check every released spec against the fingerprint recorded at its release (for CI):
+        exit 1 on a mismatch, 2 on a spec that cannot be read or designed."""
+        from ..catalog.loader import load_catalog
+        from ..diff import spec_files, verify_file
+
+        files = spec_files(paths)
+        cat = load_catalog(catalog)
+        results = [verify_file(f, cat) for f in files]
+        if as_json:
+            print_json([r.to_dict() for r in results])
+        else:
+            for r in results:
+                typer.echo(r.line(), err=r.outcome == "error")
+            counts = {}
+            for r in results:
+                counts[r.outcome] = counts.get(r.outcome, 0) + 1
+            typer.echo(f"{len(results)} spec(s): " + ", ".join(f"{n} {k}" for k, n in sorted(counts.items())))
+        if any(r.outcome == "error" for r in results):
+            raise typer.Exit(2)
+        if any(r.failed for r in results):
+            raise typer.Exit(1)
+
+    @app.command("diff")
+    @guarded
+    def diff_cmd(
+        old: str = typer.Argument(..., metavar="OLD", help="A spec file or FILE@GITREV."),
+        new: str = typer.Argument(..., metavar="NEW", help="A spec file or FILE@GITREV."),
+        as_json: bool = _JsonOpt,
+        pdf: Optional[Path] = typer.Option(None, "--pdf", metavar="FILE",
+                                           help="Also write a one-page change summary PDF."),
+        qty: int = typer.Option(100, "--qty", metavar="N", min=1, max=1_000_000,
+                                help="Lot size for the unit price compared (default 100)."),
+        catalog: Optional[Path] = _CatalogOpt,
+    ):
+        """Compare two revisions of a spec: the changed inputs and the changed shop-floor results
+        (turns, wire, layers, lengths, DCR limits, hipot, materials, cost), each old -> new."""
+        from ..catalog.loader import load_catalog
+        from ..diff import compare_refs, summary_text
+
+        cat = load_catalog(catalog)
+        summary = compare_refs(old, new, cat, lot=qty)
+        if pdf is not None:
+            from ..documents.change_doc import write_change_pdf   # WeasyPrint only when asked
+
+            write_change_pdf(summary, pdf)
+        if as_json:
+            print_json(summary.to_dict())
+        else:
+            typer.echo(summary_text(summary))
+            if pdf is not None:
+                typer.echo(f"\nchange summary written to {pdf}")
+
+    @app.command("new")
+    @guarded
+    def new_cmd(
+        part: str = typer.Argument(..., metavar="PART", help="The part number, e.g. BH-6001."),
+        kind: str = typer.Option(..., "--kind", metavar="transformer|inductor"),
+        out: Optional[Path] = typer.Option(None, "--out", metavar="FILE",
+                                           help="Where to write it (default: PART.yaml here)."),
+    ):
+        """Write a commented starter spec (revision A, draft) that designs as it is."""
+        from ..starter import KINDS, write_starter
+
+        k = kind.strip().lower()
+        if k not in KINDS:
+            raise SpecError(f"--kind must be one of {', '.join(KINDS)}, got '{kind}'", path="--kind")
+        path = write_starter(part, k, out)
+        typer.echo(f"wrote {path}: {k} {part.strip()}, revision A, draft. "
+                   f"Edit it, then: specgen design {path}")

@@ -1,0 +1,821 @@
+"""Revisions meet the design engine: release, verify and compare specs by what they build.
+
+``specgen.revision`` works on raw YAML and files and knows nothing of the spec model or the
+engine. This module is the layer above it that needs both: it loads a spec (from a file or a git
+revision), runs the design, and then
+
+- ``release_spec``: refuses a spec whose design fails a check, picks the letter, writes the
+  release with its fingerprint (and the per-component ``parts`` so ``verify`` can say what
+  changed), optionally commits and tags;
+- ``verify_file`` / ``spec_files``: recomputes a released spec's fingerprint and compares it with
+  its history entry (what ``specgen verify`` runs in a spec repository's CI);
+- ``released_fingerprint_problem``: the one-line reason a work order or a quote must refuse a
+  released spec, or None;
+- ``compare``: the changed inputs (spec keys, flattened) and the changed shop-floor results
+  (turns, wire, layers, lengths, DCR limits, hipot, materials per unit, ...) of two revisions,
+  each old -> new, as a ``ChangeSummary``.
+
+Nothing here computes physics: every result is read from the two ``Design`` objects, so the
+change summary shows the same numbers as the work order of each revision. Two results count as
+changed when they differ at the precision shown (four significant figures for most quantities),
+so float noise in the last digit is not reported as a change.
+"""
+
+from __future__ import annotations
+
+import dataclasses
+import datetime as _dt
+import os
+import re
+from dataclasses import dataclass
+from decimal import ROUND_HALF_UP, Decimal
+from pathlib import Path
+from typing import Any, Callable, Iterable, Mapping
+
+from . import revision
+from .errors import DesignFailed, SpecError
+
+# ----------------------------------------------------------------------------------------------
+# Loading a spec with its design
+
+
+def _without_parts(data: Any) -> Any:
+    """``data`` with the ``parts`` key dropped from each history entry (line marks kept).
+
+    A release records ``parts`` (``revision.component_fingerprints``) in its history entry; the
+    spec schema reads history entries strictly. Dropping the key before the schema reads the
+    spec keeps a released file loadable whatever the schema allows; ``Spec.data`` stays the
+    original, so fingerprints and ``check_release`` see the file as it is.
+    """
+    from .loading import LList, LMap
+
+    history = data.get("history") if isinstance(data, Mapping) else None
+    if not isinstance(history, list) or not any(isinstance(h, Mapping) and "parts" in h
+                                                for h in history):
+        return data
+    entries = LList()
+    entries.line = getattr(history, "line", 0)
+    entries.item_lines = list(getattr(history, "item_lines", []))
+    for h in history:
+        if isinstance(h, Mapping) and "parts" in h:
+            e = LMap((k, v) for k, v in h.items() if k != "parts")
+            e.line = getattr(h, "line", 0)
+            e.key_lines = {k: v for k, v in (getattr(h, "key_lines", None) or {}).items()
+                           if k != "parts"}
+            entries.append(e)
+        else:
+            entries.append(h)
+    out = LMap(data)
+    out.line = getattr(data, "line", 0)
+    out.key_lines = dict(getattr(data, "key_lines", None) or {})
+    out["history"] = entries
+    return out
+
+
+def spec_from_text(text: str, name: str):
+    """Parse a spec's text into a ``Spec`` (every mistake a located SpecError)."""
+    from .design.spec import parse_spec
+    from .loading import parse_yaml
+
+    data = parse_yaml(text, name)
+    if data is None:
+        raise SpecError("is empty; a spec needs at least part, kind, core, operating and windings",
+                        file=name)
+    spec = parse_spec(_without_parts(data), name)
+    return dataclasses.replace(spec, data=data)
+
+
+def spec_from_path(path: str | os.PathLike):
+    from .loading import read_text
+
+    return spec_from_text(read_text(path, "spec file"), str(path))
+
+
+@dataclass(frozen=True)
+class Loaded:
+    """One revision of a spec with its design: what ``diff`` compares and ``verify`` checks."""
+
+    name: str                         # the path, or PATH@GITREV
+    spec: Any                         # specgen.design.spec.Spec
+    design: Any                       # specgen.design.result.Design
+    catalog_entries: dict             # what the design read (for fingerprints)
+    release: revision.ReleaseCheck
+    cat: Any = None                   # the catalogue it was designed with (prices for the cost)
+
+    @property
+    def data(self) -> Mapping:
+        return self.spec.data
+
+
+def load_design(spec, cat, name: str | None = None) -> Loaded:
+    from .api import catalog_entries, run_design
+
+    d = run_design(spec, cat)
+    entries = catalog_entries(d.catalog_ids, cat)
+    return Loaded(name=name or spec.file, spec=spec, design=d, catalog_entries=entries,
+                  release=revision.check_release(spec.data, entries), cat=cat)
+
+
+def load_ref(ref: str, cat) -> Loaded:
+    """A spec given as a path or as ``PATH@GITREV`` (read with git), designed with ``cat``."""
+    name, text = revision.read_rev(str(ref))
+    return load_design(spec_from_text(text, name), cat, name)
+
+
+def released_fingerprint_problem(spec, design, cat) -> str | None:
+    """Why a work order or quote must refuse this spec, or None when its release record holds.
+
+    A released spec must carry a history entry for its revision whose fingerprint equals the
+    fingerprint of the spec and the catalogue entries ``design`` used now; otherwise it was
+    edited after release (without a new revision) or a catalogue entry under it changed.
+    Drafts and obsolete specs give None: whether a document may be made from them is the
+    caller's rule, not a fingerprint question.
+    """
+    from .api import catalog_entries
+
+    if (spec.data.get("status") or "draft") != "released":
+        return None
+    check = revision.check_release(spec.data, catalog_entries(design.catalog_ids, cat))
+    return None if check.ok else "; ".join(check.problems)
+
+
+# ----------------------------------------------------------------------------------------------
+# Release
+
+
+@dataclass(frozen=True)
+class ReleaseResult:
+    file: str
+    part: str
+    revision: str
+    fingerprint: str
+    date: str
+    commit: str | None = None
+    tag: str | None = None
+
+    def message(self) -> str:
+        out = f"released {self.part} rev {self.revision}, fingerprint {revision.short(self.fingerprint)}"
+        if self.commit:
+            out += f"; committed {self.commit[:12]} and tagged {self.tag}"
+        return out
+
+
+def _git_precheck(path: Path, tag: str) -> None:
+    """Refuse ``--commit`` before the file is touched: not in a work tree, or the tag exists."""
+    what = str(path)
+    # the same checks git_commit_and_tag makes, run before the release edit so that a refused
+    # commit never leaves a released but uncommitted file behind
+    top, _ = revision._repo_path(path, what)
+    if revision._git(["rev-parse", "--verify", "--quiet", f"refs/tags/{tag}"], top,
+                     what).returncode == 0:
+        raise SpecError(f"git tag '{tag}' already exists; a released revision is tagged once",
+                        file=what)
+    if revision._git(["var", "GIT_COMMITTER_IDENT"], top, what).returncode != 0:
+        raise SpecError("git does not know who you are: set user.name and user.email", file=what)
+
+
+def release_spec(path: str | os.PathLike, *, by: str, note: str, cat,
+                 date: Any = None, commit: bool = False) -> ReleaseResult:
+    """Release a spec file: design it, refuse on a failed check, write the release, maybe commit.
+
+    - every design check must pass (``DesignFailed`` otherwise; the file is not touched);
+    - the letter comes from ``revision.release_revision`` (a draft keeps its letter, an edited
+      released spec gets the next one);
+    - the history entry carries the fingerprint and the per-component ``parts``;
+    - ``commit``: commit just this file and tag it ``<part>-rev-<letter>`` (never pushes);
+      refused before writing when the file is not in a git work tree or the tag exists.
+    """
+    p = Path(path)
+    spec = spec_from_path(p)
+    data = spec.data
+    # the letter first: an obsolete spec or a letter out of sequence is refused as such
+    letter = revision.release_revision(data.get("status"), data.get("revision"),
+                                       data.get("history"))
+    loaded = load_design(spec, cat, str(p))
+    d = loaded.design
+    if d.failed:
+        raise DesignFailed(f"{p}: {spec.part} is not released: {len(d.failed)} design check(s) "
+                           "fail", d.failed)
+    tag = revision.release_tag(spec.part, letter)
+    if commit:
+        _git_precheck(p, tag)
+    day = date if date is not None else _dt.date.today()
+    parts = revision.component_fingerprints(data, loaded.catalog_entries)
+    revision.release_file(p, by=by, note=note, fingerprint=d.fingerprint, date=day,
+                          new_revision=letter, parts=parts)
+    # read it back: what is on disk now must verify (catches a concurrent edit of the file)
+    after = load_design(spec_from_path(p), cat, str(p))
+    if not after.release.ok:
+        raise SpecError("changed while it was being released; check it and release again: "
+                        + "; ".join(after.release.problems), file=str(p))
+    sha = None
+    if commit:
+        sha = revision.git_commit_and_tag(p, f"{spec.part} rev {letter}: {note.strip()}", tag)
+    day_text = day.isoformat() if isinstance(day, _dt.date) else str(day)
+    return ReleaseResult(file=str(p), part=spec.part, revision=letter, fingerprint=d.fingerprint,
+                         date=day_text, commit=sha, tag=tag if sha else None)
+
+
+# ----------------------------------------------------------------------------------------------
+# Verify
+
+_SPEC_MARKS = tuple(re.compile(rf"^{key}[ \t]*:", re.M) for key in ("part", "kind", "core"))
+_NOT_SPEC_MARKS = (re.compile(r"^requirement[ \t]*:", re.M),)
+
+
+def looks_like_spec(path: Path) -> bool:
+    """A YAML file with the top-level keys every spec has (``part:``, ``kind:``, ``core:``) and
+    not a search requirement (``requirement:``); read as text, not parsed, so a broken spec is
+    still found and reported."""
+    try:
+        with open(path, "rb") as fh:
+            head = fh.read(1024 * 1024).decode("utf-8", "replace")
+    except OSError:
+        return False
+    return all(m.search(head) for m in _SPEC_MARKS) and \
+        not any(m.search(head) for m in _NOT_SPEC_MARKS)
+
+
+def spec_files(paths: Iterable[str | os.PathLike]) -> list[Path]:
+    """The spec files named by ``paths``: files as given, folders searched recursively.
+
+    In a folder, ``*.yaml``/``*.yml`` files that look like specs (``looks_like_spec``) are taken;
+    hidden folders (``.git``, ``.venv``) are skipped. A missing path, or a folder holding no
+    spec, is a SpecError.
+    """
+    out: list[Path] = []
+    for raw in paths:
+        p = Path(raw)
+        if p.is_file():
+            out.append(p)
+        elif p.is_dir():
+            found = []
+            for dirpath, dirnames, filenames in os.walk(p):
+                dirnames[:] = sorted(d for d in dirnames if not d.startswith("."))
+                for fn in sorted(filenames):
+                    if fn.endswith((".yaml", ".yml")) and looks_like_spec(Path(dirpath, fn)):
+                        found.append(Path(dirpath, fn))
+            if not found:
+                raise SpecError("holds no spec files (YAML with part: and kind:)", file=str(p))
+            out.extend(found)
+        else:
+            raise SpecError("no such file or folder", file=str(p))
+    seen, unique = set(), []
+    for p in out:
+        key = os.path.realpath(p)
+        if key not in seen:
+            seen.add(key)
+            unique.append(p)
+    return unique
+
+
+@dataclass(frozen=True)
+class VerifyResult:
+    file: str
+    part: str | None
+    revision: str | None
+    status: str | None
+    outcome: str                      # ok | mismatch | fails-check | draft | obsolete | error
+    problems: tuple = ()
+    current: str | None = None        # fingerprint now
+    recorded: str | None = None       # fingerprint in the history entry
+
+    @property
+    def failed(self) -> bool:
+        return self.outcome in ("mismatch", "fails-check")
+
+    def line(self) -> str:
+        who = f"{self.part or '?'} rev {self.revision or '-'}"
+        if self.outcome == "ok":
+            what = f"ok (fingerprint {revision.short(self.current or '')})"
+        elif self.outcome == "mismatch":
+            what = "MISMATCH: " + "; ".join(self.problems)
+        elif self.outcome == "fails-check":
+            what = "FAILS CHECK: " + "; ".join(self.problems)
+        elif self.outcome in ("draft", "obsolete"):
+            what = f"{self.outcome} (not checked)"
+        else:
+            return f"ERROR: {'; '.join(self.problems)}"
+        return f"{self.file}: {who}: {what}"
+
+    def to_dict(self) -> dict:
+        return dataclasses.asdict(self) | {"problems": list(self.problems)}
+
+
+def verify_file(path: str | os.PathLike, cat) -> VerifyResult:
+    """Check one spec file's release record (see ``VerifyResult.outcome``); never raises SpecError.
+
+    A released spec whose fingerprint matches but whose design now fails a check (the engine
+    changed under it: program code is not in the fingerprint) is ``fails-check``.
+    """
+    name = str(path)
+    try:
+        spec = spec_from_path(path)
+        loaded = load_design(spec, cat, name)
+    except SpecError as err:
+        return VerifyResult(file=name, part=None, revision=None, status=None, outcome="error",
+                            problems=(str(err) if err.file else f"{name}: {err}",))
+    status = spec.data.get("status") or "draft"
+    rev = spec.data.get("revision")
+    base = dict(file=name, part=spec.part, revision=rev, status=status,
+                current=loaded.release.current, recorded=loaded.release.recorded)
+    if status in ("draft", "obsolete"):
+        return VerifyResult(outcome=status, **base)
+    if not loaded.release.ok:
+        return VerifyResult(outcome="mismatch", problems=loaded.release.problems, **base)
+    if loaded.design.failed:
+        return VerifyResult(outcome="fails-check", problems=tuple(
+            f"{c.code}: {c.message}" for c in loaded.design.failed), **base)
+    return VerifyResult(outcome="ok", **base)
+
+
+# ----------------------------------------------------------------------------------------------
+# Compare two revisions
+
+
+#: How a spec key that is absent on one side is shown (the design then uses its default or
+#: calculates the value, e.g. a turn count).
+NOT_SET = "(not set)"
+
+
+@dataclass(frozen=True)
+class InputChange:
+    """One spec key (flattened path such as ``windings[P].turns``), old -> new; None = absent."""
+
+    key: str
+    old: Any
+    new: Any
+
+    @property
+    def old_text(self) -> str:
+        return NOT_SET if self.old is None else _value_text(self.old)
+
+    @property
+    def new_text(self) -> str:
+        return NOT_SET if self.new is None else _value_text(self.new)
+
+
+@dataclass(frozen=True)
+class ResultChange:
+    """One shop-floor result, old -> new. Values in SI (``unit``); None = absent on that side."""
+
+    group: str                        # 'winding P', 'test station', 'materials', 'core', ...
+    quantity: str                     # 'turns', 'DCR 20 °C high limit', 'LITZ-60X0.10 (wire)'
+    old: Any
+    new: Any
+    unit: str
+    old_text: str
+    new_text: str
+
+
+@dataclass(frozen=True)
+class Side:
+    name: str
+    part: str
+    title: str
+    revision: str
+    status: str
+    fingerprint: str
+    release_ok: bool | None           # None for drafts/obsolete (nothing recorded to check)
+    release_problems: tuple = ()
+    recorded: str | None = None       # the fingerprint its history entry recorded
+
+    @classmethod
+    def of(cls, loaded: Loaded) -> "Side":
+        d = loaded.design
+        status = loaded.release.status
+        ok = loaded.release.ok if status == "released" else None
+        return cls(name=loaded.name, part=d.part, title=d.title, revision=d.revision or "-", status=status,
+                   fingerprint=d.fingerprint, release_ok=ok,
+                   release_problems=tuple(loaded.release.problems),
+                   recorded=loaded.release.recorded)
+
+    @property
+    def release_text(self) -> str:
+        if self.release_ok is None:
+            return f"{self.status}, not released"
+        if self.release_ok:
+            return "release record matches"
+        if not self.recorded:
+            return "released without a recorded fingerprint"
+        return "does NOT match its release record"
+
+
+@dataclass(frozen=True)
+class ChangeSummary:
+    old: Side
+    new: Side
+    inputs: tuple                     # of InputChange
+    results: tuple                    # of ResultChange
+    cost_note: str = ""               # why unit cost is not compared (empty when it is)
+    catalog: str = ""                 # the catalogue folder both sides were designed with
+
+    @property
+    def part(self) -> str:
+        return self.new.part if self.new.part == self.old.part else f"{self.old.part} / {self.new.part}"
+
+    @property
+    def unchanged(self) -> bool:
+        return not self.inputs and not self.results
+
+    def groups(self) -> list[tuple[str, list]]:
+        """Result changes grouped in the order they first appear."""
+        out: dict[str, list] = {}
+        for r in self.results:
+            out.setdefault(r.group, []).append(r)
+        return list(out.items())
+
+    def to_dict(self) -> dict:
+        def side(s: Side) -> dict:
+            return {"name": s.name, "part": s.part, "title": s.title, "revision": s.revision, "status": s.status,
+                    "fingerprint": s.fingerprint, "recorded_fingerprint": s.recorded,
+                    "release_ok": s.release_ok, "release_problems": list(s.release_problems)}
+
+        return {
+            "part": self.part, "old": side(self.old), "new": side(self.new),
+            "catalog": self.catalog,
+            "inputs": [{"key": c.key, "old": c.old, "new": c.new} for c in self.inputs],
+            "results": [{"group": r.group, "quantity": r.quantity, "old": _jsonable(r.old),
+                         "new": _jsonable(r.new), "unit": r.unit, "old_text": r.old_text,
+                         "new_text": r.new_text} for r in self.results],
+            "cost_note": self.cost_note,
+        }
+
+
+def _jsonable(v: Any) -> Any:
+    return str(v) if isinstance(v, Decimal) else v
+
+
+# -- inputs --
+
+def _value_text(v: Any) -> str:
+    import json
+
+    if v is None:
+        return "-"
+    if isinstance(v, bool):
+        return "true" if v else "false"
+    if isinstance(v, str):
+        return v
+    if isinstance(v, (int, float)):
+        return f"{v:g}" if isinstance(v, float) else str(v)
+    if isinstance(v, list) and all(not isinstance(x, (dict, list)) for x in v):
+        return "[" + ", ".join(_value_text(x) for x in v) + "]"
+    return json.dumps(v, ensure_ascii=False, sort_keys=True)
+
+
+def flatten_inputs(data: Mapping) -> dict[str, Any]:
+    """The spec's content as ``{key path: normalised leaf value}``.
+
+    Mappings become ``a.b``; a list of mappings that all carry distinct ``name`` keys (the
+    windings) is indexed by name, ``windings[P].turns``, so inserting a winding does not shift
+    every other one; other lists of mappings by position, ``insulation.barriers[0].rating``; a
+    list of plain values (``build_order``, ``between``) is one leaf. ``history``, ``revision``
+    and ``status`` are left out (the summary's header shows the revisions). Values go through
+    ``revision.normalise``, so a change the fingerprint ignores (``"230  V"`` -> ``"230 V"``)
+    is not listed either.
+    """
+    out: dict[str, Any] = {}
+
+    def walk(prefix: str, value: Any) -> None:
+        if isinstance(value, Mapping) and value:
+            for k, v in value.items():
+                walk(f"{prefix}.{k}" if prefix else str(k), v)
+        elif isinstance(value, list) and value and all(isinstance(i, Mapping) for i in value):
+            names = [i.get("name") for i in value]
+            by_name = all(isinstance(n, str) and n for n in names) and len(set(names)) == len(names)
+            for i, item in enumerate(value):
+                walk(f"{prefix}[{names[i] if by_name else i}]", item)
+        else:
+            out[prefix] = value
+
+    for key, value in revision.normalise(revision.spec_content(data)).items():
+        walk(str(key), value)
+    return out
+
+
+def merged_order(old_keys: Iterable, new_keys: Iterable) -> list:
+    """The old keys in order, each key only the new side has placed after its predecessor on
+    the new side (so an added winding's rows sit with the other windings, not at the end)."""
+    out = list(old_keys)
+    where = {k: i for i, k in enumerate(out)}
+    anchor = -1
+    for k in new_keys:
+        if k in where:
+            anchor = where[k]
+            continue
+        anchor += 1
+        out.insert(anchor, k)
+        where = {key: i for i, key in enumerate(out)}
+    return out
+
+
+def input_changes(old_data: Mapping, new_data: Mapping) -> list[InputChange]:
+    old, new = flatten_inputs(old_data), flatten_inputs(new_data)
+    keys = merged_order(old, new)
+    return [InputChange(k, old.get(k), new.get(k)) for k in keys if old.get(k) != new.get(k)]
+
+
+# -- shop-floor results --
+
+def _sig(v: float, digits: int = 4) -> str:
+    text = f"{v:.{digits}g}"
+    if "e" in text:                   # 1.2e+04 is not how a shop writes 12000
+        text = f"{v:.{max(0, digits - 1 - int(f'{abs(v):e}'.split('e')[1]))}f}"
+    return text
+
+
+def fmt(v: Any, unit: str) -> str:
+    """A result in shop units: ohm -> mΩ/Ω, H -> µH/mH, m (build) -> mm, l -> ml, ...
+
+    ``unit`` is the SI unit of ``v`` or one of: 'count', 'text', 'mm' (v in m, shown in mm),
+    'pct' (v in %), 'frac' (a 0..1 fraction shown in %), 'degC', 's'.
+    """
+    if v is None:
+        return "-"
+    if unit in ("text", "count") or isinstance(v, str):
+        return str(v)
+    if unit == "ohm":
+        return f"{_sig(v * 1e3)} mΩ" if abs(v) < 1 else f"{_sig(v)} Ω"
+    if unit == "H":
+        if abs(v) < 1e-3:
+            return f"{_sig(v * 1e6)} µH"
+        return f"{_sig(v * 1e3)} mH" if abs(v) < 1 else f"{_sig(v)} H"
+    if unit == "mm":
+        return f"{v * 1e3:.3f} mm"
+    if unit == "m":
+        return f"{_sig(v)} m"
+    if unit == "V":
+        return f"{_sig(v)} V"
+    if unit == "A":
+        return f"{_sig(v * 1e3)} mA" if abs(v) < 1 else f"{_sig(v)} A"
+    if unit == "T":
+        return f"{v:.3f} T"
+    if unit == "W":
+        return f"{_sig(v)} W"
+    if unit == "degC":
+        return f"{v:.1f} °C"
+    if unit == "K":
+        return f"{v:.1f} K"
+    if unit == "s":
+        return f"{_sig(float(v))} s"
+    if unit == "pct":
+        return f"{v:.2f} %"
+    if unit == "frac":
+        return f"{v * 100:.2f} %"
+    if unit == "kg":
+        return f"{_sig(v * 1e3)} g" if abs(v) < 1 else f"{_sig(v)} kg"
+    if unit == "l":
+        return f"{_sig(v * 1e3, 3)} ml" if abs(v) < 1 else f"{_sig(v, 3)} l"
+    if unit == "m2":
+        return f"{_sig(v * 1e4, 3)} cm²"
+    if unit == "nH":
+        return f"{_sig(v)} nH"
+    if unit == "H/turn2":
+        return f"{_sig(v * 1e9)} nH"
+    if unit.startswith("money"):
+        cur = unit[len("money"):].strip()
+        return f"{cur} {Decimal(v).quantize(Decimal('0.01'), ROUND_HALF_UP):,}".strip()
+    if unit in ("pcs", "sets"):
+        return f"{v:g} {unit}"
+    if unit == ":1":
+        return f"{_sig(v)} : 1"
+    return f"{_sig(v)} {unit}"
+
+
+def _limit_rows(prefix: str, lim) -> list:
+    unit = lim.unit
+    if unit == "H" and str(lim.name).startswith("AL"):
+        unit = "H/turn2"                       # an inductance factor: shown in nH per turn²
+    return [(f"{prefix} nominal", lim.nominal, unit),
+            (f"{prefix} low limit", lim.low, unit),
+            (f"{prefix} high limit", lim.high, unit)]
+
+
+def shop_results(d, costs: Mapping[str, tuple] | None = None) -> dict[tuple[str, str], tuple[Any, str]]:
+    """``{(group, quantity): (value, unit)}`` of everything a change summary compares."""
+    out: dict[tuple[str, str], tuple[Any, str]] = {}
+
+    def put(group: str, quantity: str, value: Any, unit: str) -> None:
+        out[(group, quantity)] = (value, unit)
+
+    dcr = {lim.item: lim for lim in d.tests.dcr}
+    for w in d.windings:
+        g = f"winding {w.name}"
+        put(g, "turns", w.turns, "count")
+        put(g, "wire", w.wire, "text")
+        put(g, "strands in hand", w.strands, "count")
+        put(g, "layers", w.layers, "count")
+        put(g, "turns per layer", w.turns_per_layer, "count")
+        if len(w.sections) > 1:
+            for s in w.sections:
+                put(g, f"section {w.name}.{s.index} turns / layers",
+                    f"{s.turns} / {len(s.layers)}", "text")
+        put(g, "wire length (with leads)", w.length_m, "m")
+        put(g, "pins start-finish", f"{w.start}-{w.finish}", "text")
+        put(g, "direction", w.direction, "text")
+        put(g, "margin each side", w.margin_m, "mm")
+        if w.name in dcr:
+            for q, v, u in _limit_rows("DCR 20 °C", dcr[w.name]):
+                put(g, q, v, u)
+    t = d.tests
+    g = "test station"
+    for lim in t.ratio:
+        for q, v, u in _limit_rows(f"ratio {lim.item}", lim):
+            put(g, q, v, u)
+    for lim in t.open_circuit:
+        for q, v, u in _limit_rows(f"open-circuit {lim.item}", lim):
+            put(g, q, v, u)
+    for lim in t.inductance:
+        for q, v, u in _limit_rows(f"{lim.name} {lim.item}", lim):
+            put(g, q, v, u)
+    for h in t.hipot:
+        put(g, f"hipot {h.between} ({h.rating}) type test, a.c.",
+            f"{h.type_voltage_v:.0f} V / {h.type_duration_s:g} s", "text")
+        put(g, f"hipot {h.between} routine test, a.c.",
+            f"{h.routine_voltage_v:.0f} V / {h.routine_duration_s:g} s", "text")
+    put(g, "insulation resistance", f"min {fmt(t.insulation_resistance_min_ohm, 'ohm')} at "
+        f"{t.insulation_resistance_v:.0f} V d.c.", "text")
+    for m in d.materials:
+        put("materials per unit", f"{m.id} ({m.kind})", m.quantity, m.unit)
+    c = d.core
+    put("core", "core", c.id, "text")
+    put("core", "bobbin", c.bobbin or "none", "text")
+    put("core", "stack", c.stack_m, "mm")
+    put("core", "cores per unit", c.count, "count")
+    put("core", "lamination pairs", c.laminations, "count")
+    g = "magnetics and heat"
+    put(g, "B_pk nominal", d.b_peak_t, "T")
+    put(g, "B_pk at top of range", d.b_peak_max_t, "T")
+    put(g, "magnetizing current", d.magnetizing_current_a, "A")
+    put(g, "copper loss", d.losses.copper_w, "W")
+    put(g, "core loss", d.losses.core_w, "W")
+    put(g, "total loss", d.losses.total_w, "W")
+    put(g, "hot spot", d.hot_spot_c, "degC")
+    put(g, "temperature rise", d.temperature_rise_k, "K")
+    put(g, "efficiency", d.efficiency, "frac")
+    put(g, "regulation", d.regulation_pct, "pct")
+    put(g, "build fill", d.build.fill_fraction, "frac")
+    if d.inductor is not None:
+        i = d.inductor
+        g = "inductance and gap"
+        put(g, "inductance as built", i.inductance_h, "H")
+        put(g, "inductance at zero bias", i.inductance_zero_bias_h, "H")
+        put(g, "gap", i.gap_m, "mm")
+        put(g, "gap arrangement", i.gap_arrangement, "text")
+        put(g, "spacer", i.spacer_m, "mm")
+        put(g, "centre-leg grind", i.grind_m, "mm")
+        put(g, "AL", i.al_nh, "nH")
+        put(g, "permeability roll-off at full current", i.rolloff_pct, "pct")
+        put(g, "B_dc", i.b_dc_t, "T")
+    for ch in d.checks:
+        put("checks", ch.code, ch.level, "text")
+    for quantity, (value, unit) in (costs or {}).items():
+        put("cost", quantity, value, unit)
+    return out
+
+
+def result_changes(old_d, new_d, old_cost: Any = None, new_cost: Any = None) -> list[ResultChange]:
+    old, new = shop_results(old_d, old_cost), shop_results(new_d, new_cost)
+    # merge the groups first (an added winding sits with the windings), then each group's rows
+    groups = merged_order(dict.fromkeys(k[0] for k in old), dict.fromkeys(k[0] for k in new))
+    keys = [k for g in groups
+            for k in merged_order([k for k in old if k[0] == g], [k for k in new if k[0] == g])]
+    out = []
+    for key in keys:
+        ov, ou = old.get(key, (None, None))
+        nv, nu = new.get(key, (None, None))
+        unit = nu or ou
+        ot, nt = fmt(ov, ou or unit), fmt(nv, nu or unit)
+        if ot != nt:
+            out.append(ResultChange(group=key[0], quantity=key[1], old=ov, new=nv, unit=unit,
+                                    old_text=ot, new_text=nt))
+    return out
+
+
+#: Cost figures of one revision: ``(loaded) -> {quantity: (value, unit)}``, priced with the
+#: catalogue that revision was designed with (``loaded.cat``).
+CostFunction = Callable[[Any], Mapping[str, tuple]]
+
+#: The lot size the change summary prices a unit at (``specgen diff --qty``).
+DEFAULT_LOT = 100
+
+
+def quote_costs(lot: int = DEFAULT_LOT) -> CostFunction:
+    """Cost figures from the quote module (``specgen.quote.build_quote``), read not recomputed:
+    material per unit, labor time per unit (without the lot's setup) and the unit price at a
+    lot of ``lot``. Raises ImportError/AttributeError when the quote module is not there."""
+    from . import quote as q   # ImportError when this version has no quote module
+
+    build = q.build_quote
+
+    def costs(loaded) -> dict:
+        qt = build(loaded.spec, loaded.design, loaded.cat, (int(lot),), allow_failed=True)
+        total = sum((m.amount for m in qt.materials), Decimal(0))
+        price = qt.breaks[0].unit_price
+        cur = qt.currency
+        return {"material per unit": (total, f"money {cur}"),
+                "labor time per unit (without setup)": (qt.run_time_s, "s"),
+                f"unit price at a lot of {int(lot)}": (price, f"money {cur}")}
+
+    return costs
+
+
+def compare(old: Loaded, new: Loaded, costs: CostFunction | None | str = "default",
+            lot: int = DEFAULT_LOT) -> ChangeSummary:
+    """The change summary of two loaded revisions (inputs and shop-floor results, old -> new).
+
+    ``costs``: a ``CostFunction``, None to leave cost out, or "default" for ``quote_costs(lot)``
+    when the quote module is present. Cost that cannot be worked out (no quote module, a price
+    missing from the catalogue, an obsolete revision) is left out with a note saying why; it
+    never stops the summary and no figure is made up in its place.
+    """
+    note = ""
+    if costs == "default":
+        try:
+            costs = quote_costs(lot)
+        except (ImportError, AttributeError):
+            costs, note = None, "unit cost not compared: this version has no quote module"
+    old_cost = new_cost = None
+    if costs is not None:
+        try:
+            old_cost, new_cost = costs(old), costs(new)
+        except (SpecError, DesignFailed) as err:
+            old_cost = new_cost = None
+            note = f"unit cost not compared: {err}"
+        except (TypeError, AttributeError) as err:     # the quote module's interface moved on
+            old_cost = new_cost = None
+            note = f"unit cost not compared: the quote module did not answer as expected ({err})"
+    return ChangeSummary(
+        old=Side.of(old), new=Side.of(new),
+        inputs=tuple(input_changes(old.data, new.data)),
+        results=tuple(result_changes(old.design, new.design, old_cost, new_cost)),
+        cost_note=note, catalog=_catalog_text(old, new))
+
+
+def _catalog_text(old: Loaded, new: Loaded) -> str:
+    roots = [str(getattr(x.cat, "root", "") or "") for x in (old, new)]
+    return roots[1] if roots[0] == roots[1] else f"{roots[0]} (old), {roots[1]} (new)"
+
+
+def compare_refs(old_ref: str, new_ref: str, cat, costs: CostFunction | None | str = "default",
+                 lot: int = DEFAULT_LOT) -> ChangeSummary:
+    """``compare`` of two specs given as paths or ``PATH@GITREV``, both designed with ``cat``."""
+    return compare(load_ref(old_ref, cat), load_ref(new_ref, cat), costs, lot)
+
+
+# -- text --
+
+def _table(headers: list[str], rows: list[list[str]]) -> list[str]:
+    widths = [max(len(str(r[i])) for r in [headers] + rows) for i in range(len(headers))]
+    lines = ["  " + "  ".join(str(h).ljust(w) for h, w in zip(headers, widths)).rstrip(),
+             "  " + "  ".join("-" * w for w in widths)]
+    for r in rows:
+        lines.append("  " + "  ".join(str(c).ljust(w) for c, w in zip(r, widths)).rstrip())
+    return lines
+
+
+def _cut(text: str, width: int = 48) -> str:
+    return text if len(text) <= width else text[:width - 1].rstrip() + "\u2026"
+
+
+def summary_text(s: ChangeSummary) -> str:
+    """The change summary as plain text tables (what ``specgen diff`` prints)."""
+    out = [f"{s.part}: rev {s.old.revision} ({s.old.status}) -> rev {s.new.revision} ({s.new.status})"]
+    for label, side in (("old", s.old), ("new", s.new)):
+        out.append(f"  {label}  {side.name}  fingerprint {revision.short(side.fingerprint)}  "
+                   f"({side.release_text})")
+    if s.unchanged:
+        out.append("")
+        out.append("no changes in the spec or in the shop-floor results")
+        return "\n".join(out)
+    out.append("")
+    out.append(f"Changed inputs ({len(s.inputs)})")
+    if s.inputs:
+        out += _table(["spec key", "old", "new"], [[c.key, _cut(c.old_text), _cut(c.new_text)] for c in s.inputs])
+    else:
+        out.append("  none (the results changed through the catalogue)")
+    out.append("")
+    out.append(f"Changed shop-floor results ({len(s.results)})")
+    if s.results:
+        rows = []
+        for group, changes in s.groups():
+            for i, r in enumerate(changes):
+                rows.append([group if i == 0 else "", r.quantity, r.old_text, "->", r.new_text])
+        out += _table(["", "quantity", "old", "", "new"], rows)
+    else:
+        out.append("  none")
+    if s.cost_note:
+        out.append("")
+        out.append(f"({s.cost_note})")
+    return "\n".join(out)
+
+
+__all__ = [
+    "spec_from_text", "spec_from_path", "Loaded", "load_design", "load_ref",
+    "released_fingerprint_problem", "ReleaseResult", "release_spec",
+    "looks_like_spec", "spec_files", "VerifyResult", "verify_file",
+    "InputChange", "ResultChange", "Side", "ChangeSummary", "flatten_inputs", "input_changes",
+    "shop_results", "result_changes", "fmt", "quote_costs", "compare", "compare_refs",
+    "summary_text",
+]

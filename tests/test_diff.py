@@ -1,0 +1,312 @@
+"""`specgen diff` and the change summary (specgen.diff, specgen.documents.change_doc).
+
+Sources named beside each check:
+- DCR of a winding R = rho20 * L / A with annealed copper rho20 = 1/58 ohm mm^2/m (IEC 60028),
+  L the winding's wire length and A the copper cross-section pi/4 * d^2 per strand; the DCR
+  limits are a fixed shop tolerance around the nominal (catalog/shop.yaml: dcr 10 %), so a
+  changed turn count must move the limits by the same factor as the nominal;
+- unit conversions of the displayed values checked with pint (an independent units library);
+- the PDF's text is read back with pypdf (independent of WeasyPrint which wrote it);
+- git: repositories made with the git command itself.
+Spec texts are the shipped demo parts (invented data: Brindle Hollow Coil Works).
+"""
+
+from __future__ import annotations
+
+import json
+import math
+import os
+import re
+import shutil
+import subprocess
+from decimal import Decimal
+from pathlib import Path
+
+import pytest
+from typer.testing import CliRunner
+
+from specgen import api, diff
+from specgen.catalog.loader import load_catalog, resolve_catalog_dir
+from specgen.cli import app
+
+DEMO = Path(api.__file__).resolve().parent / "demo"
+runner = CliRunner()
+git_only = pytest.mark.skipif(shutil.which("git") is None, reason="git not installed")
+RHO20_OHM_MM2_PER_M = 1 / 58          # IEC 60028 annealed copper at 20 degC
+
+
+def cli(*args):
+    return runner.invoke(app, [str(a) for a in args])
+
+
+def _add_turns(text: str, winding: str, turns: int) -> str:
+    m = re.search(rf"^(\s*)- name: {winding}\s*\n", text, flags=re.M)
+    assert m, winding
+    return text[:m.end()] + f"{m.group(1)}  turns: {turns}\n" + text[m.end():]
+
+
+@pytest.fixture(scope="module")
+def cat():
+    return load_catalog(None)
+
+
+@pytest.fixture
+def git_env(tmp_path, monkeypatch):
+    monkeypatch.setenv("GIT_CONFIG_GLOBAL", os.devnull)
+    monkeypatch.setenv("GIT_CONFIG_NOSYSTEM", "1")
+    monkeypatch.setenv("GIT_CEILING_DIRECTORIES", str(tmp_path))
+    for var in ("GIT_AUTHOR", "GIT_COMMITTER"):
+        monkeypatch.setenv(f"{var}_NAME", "Brindle Hollow Test")
+        monkeypatch.setenv(f"{var}_EMAIL", "eng@brindle-hollow.invalid")
+    monkeypatch.delenv("GIT_DIR", raising=False)
+    monkeypatch.delenv("GIT_WORK_TREE", raising=False)
+    return tmp_path
+
+
+def _git(cwd, *args):
+    return subprocess.run(["git", *args], cwd=cwd, check=True, capture_output=True,
+                          text=True).stdout.strip()
+
+
+@pytest.fixture
+def two_revisions(git_env, cat):
+    """BH-2210 committed as shipped (rev B), then a commit with one more primary turn."""
+    repo = git_env / "specs"
+    repo.mkdir()
+    _git(repo, "init", "-q", "-b", "main")
+    spec = repo / "BH-2210.yaml"
+    shutil.copyfile(DEMO / "BH-2210.yaml", spec)
+    _git(repo, "add", ".")
+    _git(repo, "commit", "-q", "-m", "rev B")
+    old_turns = api.design_file(spec, cat=cat).winding("P").turns
+    spec.write_text(_add_turns(spec.read_text(), "P", old_turns + 1))
+    _git(repo, "commit", "-q", "-a", "-m", "one more primary turn")
+    return spec, old_turns
+
+
+def _copper_area_mm2(cat, wire_id: str, in_hand: int) -> float:
+    """pi/4 d^2 per strand from the catalogue's own dimensions (not from the design)."""
+    raw = cat.find(wire_id)[1].raw
+
+    def mm(text):
+        value, unit = str(text).split()
+        assert unit == "mm"
+        return float(value)
+
+    if "strand_diameter" in raw:
+        area = int(raw["strands"]) * math.pi / 4 * mm(raw["strand_diameter"]) ** 2
+    else:
+        area = math.pi / 4 * mm(raw["bare_diameter"]) ** 2
+    return area * max(1, in_hand)
+
+
+@git_only
+def test_diff_of_two_git_revisions_lists_turns_and_the_dcr_limit(two_revisions, cat):
+    spec, old_turns = two_revisions
+    r = cli("diff", f"{spec}@HEAD~1", f"{spec}@HEAD", "--json")
+    assert r.exit_code == 0, r.stderr
+    out = json.loads(r.stdout)
+    assert out["old"]["name"].endswith("@HEAD~1") and out["new"]["name"].endswith("@HEAD")
+    assert out["old"]["fingerprint"] != out["new"]["fingerprint"]
+    assert {"key": "windings[P].turns", "old": None, "new": old_turns + 1} in out["inputs"]
+    res = {(x["group"], x["quantity"]): x for x in out["results"]}
+    turns = res[("winding P", "turns")]
+    assert (turns["old"], turns["new"]) == (old_turns, old_turns + 1)
+    nominal = res[("winding P", "DCR 20 °C nominal")]
+    high = res[("winding P", "DCR 20 °C high limit")]
+    low = res[("winding P", "DCR 20 °C low limit")]
+    assert high["new"] > high["old"] and nominal["new"] > nominal["old"]
+    # the limits are a fixed tolerance around the nominal (shop.yaml dcr 10 %): same factor
+    assert high["new"] / nominal["new"] == pytest.approx(high["old"] / nominal["old"], rel=1e-9)
+    assert low["new"] / nominal["new"] == pytest.approx(low["old"] / nominal["old"], rel=1e-9)
+    # IEC 60028: R20 = rho20 L / A, with L the reported wire length and A from the catalogue
+    designs = {}
+    for side in ("old", "new"):
+        designs[side] = diff.load_ref(out[side]["name"], cat).design
+        w = designs[side].winding("P")
+        length = w.length_m
+        area = _copper_area_mm2(cat, w.wire, w.strands)
+        expect = RHO20_OHM_MM2_PER_M * length / area
+        assert nominal[side] == pytest.approx(expect, rel=5e-3)
+    # the text output shows the same rows, old -> new
+    t = cli("diff", f"{spec}@HEAD~1", f"{spec}@HEAD")
+    assert t.exit_code == 0
+    row = next(l for l in t.stdout.splitlines() if "DCR 20 °C high limit" in l)
+    assert "->" in row and high["old_text"] in row and high["new_text"] in row
+    assert re.search(rf"windings\[P\]\.turns\s+\(not set\)\s+{old_turns + 1}\b", t.stdout)
+
+
+@git_only
+def test_diff_pdf_is_one_page_with_both_revisions(two_revisions, tmp_path, cat):
+    from pypdf import PdfReader
+
+    spec, _ = two_revisions
+    pdf = tmp_path / "change.pdf"
+    r = cli("diff", f"{spec}@HEAD~1", spec, "--pdf", pdf)
+    assert r.exit_code == 0, r.stderr
+    reader = PdfReader(str(pdf))
+    assert len(reader.pages) == 1
+    text = " ".join(p.extract_text() for p in reader.pages)
+    assert "BH-2210" in text and "rev B" in text
+    summary = diff.compare_refs(f"{spec}@HEAD~1", str(spec), cat)
+    for side in (summary.old, summary.new):
+        assert side.fingerprint[:24] in text.replace("\n", "").replace(" ", "")
+    assert "windings[P].turns" in text
+
+
+def test_change_pdf_of_a_released_revision_pair_and_a_long_summary(tmp_path, cat):
+    """Rev B -> rev C made with the release command: the PDF holds both letters; a summary of
+    two different parts (over a hundred changed rows) still fits one page, with a note."""
+    from pypdf import PdfReader
+    from specgen.documents.change_doc import write_change_pdf
+    from specgen.revision import start_next_draft_file
+
+    old = tmp_path / "BH-2210-B.yaml"
+    new = tmp_path / "BH-2210.yaml"
+    shutil.copyfile(DEMO / "BH-2210.yaml", old)
+    shutil.copyfile(DEMO / "BH-2210.yaml", new)
+    start_next_draft_file(new)
+    turns = api.design_file(old, cat=cat).winding("P").turns
+    new.write_text(_add_turns(new.read_text(), "P", turns + 1))
+    assert cli("release", new, "--by", "T. Vance", "--note", "one more turn").exit_code == 0
+    s = diff.compare_refs(str(old), str(new), cat)
+    assert (s.old.revision, s.new.revision) == ("B", "C")
+    assert s.new.release_ok is True and s.old.release_ok is False   # B shipped unrecorded
+    pdf = tmp_path / "bc.pdf"
+    write_change_pdf(s, pdf)
+    text = PdfReader(str(pdf)).pages[0].extract_text()
+    assert "rev B" in text and "rev C" in text
+
+    big = diff.compare_refs(str(DEMO / "BH-2210.yaml"), str(DEMO / "BH-1042.yaml"), cat)
+    assert len(big.results) > 90
+    pdf2 = tmp_path / "big.pdf"
+    write_change_pdf(big, pdf2)
+    reader = PdfReader(str(pdf2))
+    assert len(reader.pages) == 1
+    assert "more changed result(s) not shown" in reader.pages[0].extract_text()
+
+
+def test_no_change_for_reordered_keys_comments_or_spacing(tmp_path, cat):
+    """The diff follows the fingerprint's normalisation: mapping order, comments and repeated
+    spaces are not changes (a reader would not call them one)."""
+    src = (DEMO / "BH-3305.yaml").read_text()
+    edited = (src.replace("  ambient: 50 degC\n  cooling: natural\n",
+                          "  cooling: natural      # moved\n  ambient: 50  degC\n")
+              .replace("# BH-3305: output choke", "# BH-3305 (edited comment): output choke"))
+    assert edited != src
+    a, b = tmp_path / "a.yaml", tmp_path / "b.yaml"
+    a.write_text(src)
+    b.write_text(edited)
+    s = diff.compare_refs(str(a), str(b), cat)
+    assert s.unchanged and s.old.fingerprint == s.new.fingerprint
+    assert "no changes" in diff.summary_text(s)
+
+
+def test_catalogue_change_shows_results_but_no_inputs(tmp_path):
+    cat_dir = tmp_path / "catalog"
+    shutil.copytree(resolve_catalog_dir(None), cat_dir)
+    spec = DEMO / "BH-5018.yaml"
+    base = load_catalog(cat_dir)
+    old = diff.load_ref(str(spec), base)
+    core = old.design.core.id
+    cores = cat_dir / "cores.yaml"
+    text = cores.read_text()
+    block = re.search(rf"^  - id: {re.escape(core)}\n(?:    .*\n)+", text, flags=re.M)
+    assert block
+    edited = re.sub(r'price: "([0-9.]+)"', lambda m: f'price: "{Decimal(m.group(1)) * 2}"',
+                    block.group(0))
+    assert edited != block.group(0)
+    cores.write_text(text[:block.start()] + edited + text[block.end():])
+    changed = load_catalog(cat_dir)
+    s = diff.compare(old, diff.load_ref(str(spec), changed))
+    assert s.inputs == ()
+    assert s.old.fingerprint != s.new.fingerprint            # the catalogue entry is hashed
+    # a price is not a shop-floor result: only the cost rows change (when quotes are available)
+    assert all(r.group == "cost" for r in s.results)
+    if s.results:
+        mat = next(r for r in s.results if r.quantity == "material per unit")
+        assert isinstance(mat.old, Decimal) and mat.new > mat.old
+
+
+def test_flatten_inputs_names_windings_and_keeps_list_order(cat):
+    spec = diff.spec_from_path(DEMO / "BH-2210.yaml")
+    flat = diff.flatten_inputs(spec.data)
+    assert flat["windings[P].voltage"] == "200 V"
+    assert flat["build_order"] == ["P.1", "S", "P.2"]
+    assert flat["insulation.barriers[0].rating"] == "reinforced"
+    assert not any(k.startswith(("history", "revision", "status")) for k in flat)
+
+
+@pytest.mark.parametrize("value, unit, pint_unit, shown_unit", [
+    (0.07018, "ohm", "ohm", "milliohm"),
+    (12.5, "ohm", "ohm", "ohm"),
+    (4.7e-5, "H", "henry", "microhenry"),
+    (0.0036, "H", "henry", "millihenry"),
+    (0.00073, "mm", "meter", "millimeter"),
+    (0.000572, "l", "liter", "milliliter"),
+])
+def test_displayed_units_agree_with_pint(value, unit, pint_unit, shown_unit):
+    import pint
+
+    ureg = pint.UnitRegistry()
+    text = diff.fmt(value, unit)
+    number = float(text.split()[0])
+    expect = ureg.Quantity(value, pint_unit).to(shown_unit).magnitude
+    assert number == pytest.approx(expect, rel=1e-3), text
+
+
+def test_diff_bad_input_is_one_line(tmp_path):
+    r = cli("diff", tmp_path / "nope.yaml", DEMO / "BH-2210.yaml")
+    assert r.exit_code == 2 and len(r.stderr.splitlines()) == 1 and "Traceback" not in r.stderr
+
+
+@git_only
+def test_diff_unknown_git_revision(two_revisions):
+    spec, _ = two_revisions
+    r = cli("diff", f"{spec}@no-such-rev", spec)
+    assert r.exit_code == 2 and "unknown git revision" in r.stderr
+
+
+@git_only
+def test_demo_change_summary(tmp_path, git_env, cat, monkeypatch):
+    import tempfile
+    from pypdf import PdfReader
+    from specgen.documents.change_doc import demo_change_summary
+
+    scratch = tmp_path / "scratch"
+    scratch.mkdir()
+    monkeypatch.setattr(tempfile, "tempdir", str(scratch))
+    said = []
+    pdf = demo_change_summary(tmp_path / "out", cat, said.append)
+    assert pdf is not None and pdf.is_file() and said
+    text = PdfReader(str(pdf)).pages[0].extract_text()
+    assert "rev B" in text and "rev C" in text and "BH-2210.yaml@HEAD~1" in text
+    assert "windings[P].turns" in text
+    assert list(scratch.iterdir()) == []                  # the throwaway repository is gone
+
+
+def test_demo_change_summary_without_git(tmp_path, monkeypatch, cat):
+    from specgen.documents import change_doc
+
+    monkeypatch.setattr(change_doc.shutil, "which", lambda name: None)
+    said = []
+    assert change_doc.demo_change_summary(tmp_path, cat, said.append) is None
+    assert "git is not installed" in said[0]
+    assert list(tmp_path.iterdir()) == []
+
+
+def test_diff_text_and_json_do_not_load_weasyprint():
+    """design.md: commands that print numbers must not import WeasyPrint (about 1 s)."""
+    import sys
+
+    code = ("import sys\n"
+            "from typer.testing import CliRunner\n"
+            "from specgen.cli import app\n"
+            f"spec = {str(DEMO / 'BH-3305.yaml')!r}\n"
+            "for extra in ([], ['--json']):\n"
+            "    r = CliRunner().invoke(app, ['diff', spec, spec, *extra])\n"
+            "    assert r.exit_code == 0, r.output\n"
+            "r = CliRunner().invoke(app, ['verify', spec])\n"
+            "assert 'weasyprint' not in sys.modules\n")
+    proc = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, timeout=300)
+    assert proc.returncode == 0, proc.stderr
