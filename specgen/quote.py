@@ -53,8 +53,9 @@ Price (common practice in custom-magnetics quoting; the conventions chosen here)
 Release
     a design with a failed check is not quoted (``DesignFailed``, exit 1), like a work order:
     sales must not promise a part the shop floor will refuse to build. An obsolete revision is a
-    user's mistake (``SpecError``). A draft, or a released spec whose content changed since its
-    release, is quoted as *budgetary* with the reason on the quote: a price to plan with, firm
+    user's mistake (``SpecError``), and so is a released revision whose content no longer matches
+    its recorded fingerprint (release a new revision first). A draft, or a release that recorded no
+    fingerprint, is quoted as *budgetary* with the reason on the quote: a price to plan with, firm
     only once the revision is released.
 """
 
@@ -555,8 +556,15 @@ def build_quote(spec, design, cat, quantities: Iterable[int], *, nre: Decimal | 
         budgetary = budgetary_detail = f"revision {design.revision} is a {design.status}, not yet released"
     else:
         rc = check_release(spec.data, catalog_entries(design.catalog_ids, cat))
+        if not rc.ok and rc.recorded and not allow_failed:
+            # issue 7: a released revision whose content no longer matches its release is refused, as the
+            # work order refuses it; the engineer releases a new revision first
+            raise SpecError(f"revision {design.revision} no longer matches its release "
+                            f"({'; '.join(rc.problems)}): release a new revision with `specgen release` "
+                            f"before quoting", file=spec.file, path="history")
         if not rc.ok:
-            budgetary = f"the design has changed since revision {design.revision} was released"
+            budgetary = f"the design has changed since revision {design.revision} was released" if rc.recorded \
+                else f"revision {design.revision} was released without a recorded fingerprint"
             budgetary_detail = "; ".join(rc.problems)
     notes = []
     for m in materials:

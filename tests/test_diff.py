@@ -171,7 +171,7 @@ def test_change_pdf_of_a_released_revision_pair_and_a_long_summary(tmp_path, cat
     assert cli("release", new, "--by", "T. Vance", "--note", "one more turn").exit_code == 0
     s = diff.compare_refs(str(old), str(new), cat)
     assert (s.old.revision, s.new.revision) == ("B", "C")
-    assert s.new.release_ok is True and s.old.release_ok is False   # B shipped unrecorded
+    assert s.new.release_ok is True and s.old.release_ok is True    # B ships with its fingerprint recorded
     pdf = tmp_path / "bc.pdf"
     write_change_pdf(s, pdf)
     text = PdfReader(str(pdf)).pages[0].extract_text()

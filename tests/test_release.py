@@ -19,6 +19,7 @@ import subprocess
 from pathlib import Path
 
 import pytest
+from conftest import blank_recorded_fingerprint
 from typer.testing import CliRunner
 
 from specgen import api
@@ -50,7 +51,7 @@ def ruamel_load(path: Path):
 def demo_copy(tmp_path):
     def copy(name: str) -> Path:
         dst = tmp_path / name
-        shutil.copyfile(DEMO / name, dst)
+        dst.write_text(blank_recorded_fingerprint((DEMO / name).read_text(encoding="utf-8")), encoding="utf-8")
         return dst
     return copy
 
@@ -196,7 +197,7 @@ def test_verify_folders_drafts_and_json(tmp_path):
     root = tmp_path / "specs"
     (root / "sub").mkdir(parents=True)
     (root / ".hidden").mkdir()
-    shutil.copyfile(DEMO / "BH-5018.yaml", root / "sub" / "BH-5018.yaml")
+    (root / "sub" / "BH-5018.yaml").write_text(blank_recorded_fingerprint((DEMO / "BH-5018.yaml").read_text()))
     assert cli("release", root / "sub" / "BH-5018.yaml", "--by", "x", "--note", "y").exit_code == 0
     assert cli("new", "BH-6001", "--kind", "transformer", "--out", root / "BH-6001.yaml").exit_code == 0
     (root / "notes.yaml").write_text("wires: []\n")                  # not a spec: skipped
@@ -287,7 +288,7 @@ def test_release_commit_and_tag(git_env):
     repo.mkdir()
     _git(repo, "init", "-q", "-b", "main")
     spec = repo / "BH-4120.yaml"
-    shutil.copyfile(DEMO / "BH-4120.yaml", spec)
+    spec.write_text(blank_recorded_fingerprint((DEMO / "BH-4120.yaml").read_text()))
     _git(repo, "add", ".")
     _git(repo, "commit", "-q", "-m", "BH-4120 as shipped")
     r = cli("release", spec, "--by", "T. Vance", "--note", "new core supplier lot", "--commit")

@@ -1,7 +1,11 @@
 """The shipped demo shop (Brindle Hollow Coil Works): its part specs and the demo run.
 
-``run_demo`` runs the whole job on them: every design (text + JSON), and the documents that the
-later stages of the job produce (work orders, quotes, a change summary), into one folder.
+``run_demo`` runs the whole job on them, into one folder:
+  designs/     every part's calculation as the terminal shows it, and as JSON
+  workorders/  a work order per part (PDF + HTML), numbered by a register in that folder
+  quotes/      a quote per part at 100 / 500 / 2500 pieces
+  changes/     a change summary between two revisions of BH-2210 held in a scratch git repository
+  search/      the design search on the demo requirements (ranked candidates)
 """
 
 from __future__ import annotations
@@ -21,16 +25,43 @@ def run_demo(out: Path, catalog=None, echo=print) -> dict:
     cat = load_catalog(catalog)
     from ..report import design_report
 
+    echo("== designs")
+    (out / "designs").mkdir(exist_ok=True)
     designs = {}
     for path in demo_specs():
         spec = load_spec(path)
         d = run_design(spec, cat)
         designs[spec.part] = (path, spec, d)
-        write_atomic(out / f"{spec.part}.design.txt", design_report(d) + "\n")
-        write_atomic(out / f"{spec.part}.design.json", json.dumps(d.to_dict(), indent=2, ensure_ascii=False) + "\n")
-        fails = len(d.failed)
-        warns = len(d.warnings)
-        echo(f"{spec.part:8} {d.title[:52]:52}  {'FAIL' if fails else 'ok':4}  "
-             f"{warns} warning(s)  hot spot {d.hot_spot_c:.0f} °C")
-    echo(f"designs written to {out}/")
+        write_atomic(out / "designs" / f"{spec.part}.txt", design_report(d) + "\n")
+        write_atomic(out / "designs" / f"{spec.part}.json", json.dumps(d.to_dict(), indent=2, ensure_ascii=False) + "\n")
+        echo(f"{spec.part:8} {d.title[:56]:56} {'FAIL' if d.failed else 'ok':4} {len(d.warnings)} warning(s), "
+             f"hot spot {d.hot_spot_c:.0f} °C")
+
+    echo("== work orders")
+    from ..documents.workorder import demo_workorders
+
+    (out / "workorders").mkdir(exist_ok=True)
+    demo_workorders(designs, out / "workorders", out / "workorders" / "specgen-register.sqlite", echo, cat=cat)
+
+    echo("== quotes")
+    from ..documents.quote_doc import demo_quotes
+
+    (out / "quotes").mkdir(exist_ok=True)
+    demo_quotes(designs, cat, out / "quotes", echo)
+
+    echo("== change summary")
+    from ..documents.change_doc import demo_change_summary
+
+    (out / "changes").mkdir(exist_ok=True)
+    demo_change_summary(out / "changes", cat, echo)
+
+    try:
+        from ..search import demo_search
+    except ImportError:
+        demo_search = None
+    if demo_search is not None:
+        echo("== design search")
+        (out / "search").mkdir(exist_ok=True)
+        demo_search(out / "search", cat, echo)
+    echo(f"all of it in {out}/")
     return designs

@@ -78,7 +78,7 @@ def test_plan(spec, cat, windings, lm, inductor, voltages, open_circuit) -> Test
                                      low=v * (1 - tol["open_circuit_voltage"]),
                                      high=v * (1 + tol["open_circuit_voltage"]), unit="V",
                                      condition=f"{prim.name} at {voltages[prim.name]:.4g} V, "
-                                               f"{spec.frequency_hz:g} Hz, no load"))
+                                               f"{_f(spec.frequency_hz)}, no load"))
         for w in windings:
             if w is prim or not w.finish:
                 continue

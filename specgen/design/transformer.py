@@ -191,6 +191,19 @@ def design_transformer(spec: Spec, cat: Catalog, parts: _Parts) -> Design:
             if cand.total_w < best.total_w - 1e-9:
                 best = cand
 
+    # -- `auto` wire for the turns actually chosen (the scan sized it at its first candidate, where the
+    #    magnetizing current is largest); keep the new choice only if the build still fits
+    if any(w.wire.startswith("auto") for w in spec.windings) and best.np != n0:
+        kept = dict(wires)
+        wires.clear()
+        again = evaluate(best.np, temp, eta)
+        iterations += 1
+        if again.built.ok and again.built.height_m * cat.shop.bulge_factor <= parts.former.height_m:
+            best = again
+        else:
+            wires.clear()
+            wires.update(kept)
+
     # -- thermal loop: resistance with temperature, losses, rise, until the hot spot settles
     ev = best
     for _ in range(60):
