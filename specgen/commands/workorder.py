@@ -3,6 +3,8 @@
 A thin wrapper over :func:`specgen.documents.workorder.issue_work_order`; WeasyPrint is imported only
 inside the command, when a PDF is rendered.
 
+With ``--batch ORDERS.csv`` every row is issued (see specgen.documents.batch): exit 1 if any row failed.
+
 Exit codes: 0 issued; 1 a design check failed (the failed checks are listed, no number is taken);
 2 a user's mistake, including a spec that is not released (without ``--draft``) or a released spec
 that no longer matches its release record.
@@ -24,8 +26,14 @@ def register(app) -> None:
     @app.command("workorder")
     @guarded
     def workorder_cmd(
-        spec: Path = typer.Argument(..., metavar="SPEC.yaml", help="The part's spec file."),
-        qty: str = typer.Option(..., "--qty", metavar="N", help="Pieces in the lot (1..1,000,000)."),
+        spec: Optional[Path] = typer.Argument(None, metavar="SPEC.yaml", help="The part's spec file."),
+        qty: Optional[str] = typer.Option(None, "--qty", metavar="N", help="Pieces in the lot (1..1,000,000)."),
+        batch: Optional[Path] = typer.Option(None, "--batch", metavar="ORDERS.csv",
+                                             help="Issue every row of a CSV (spec,qty,due,lot) in parallel."),
+        workers: Optional[int] = typer.Option(None, "--workers", metavar="N",
+                                              help="With --batch: worker processes (default: one per CPU)."),
+        progress: Optional[bool] = typer.Option(None, "--progress/--no-progress",
+                                                help="With --batch: show a progress bar (default: on a terminal)."),
         due: Optional[str] = typer.Option(None, "--due", metavar="YYYY-MM-DD", help="Due date."),
         lot: Optional[str] = typer.Option(None, "--lot", metavar="TEXT", help="Lot or batch reference."),
         out: Path = typer.Option(Path("."), "--out", metavar="DIR", help="Folder for the PDF and HTML."),
@@ -42,6 +50,25 @@ def register(app) -> None:
                                                help="Catalogue folder (default: the one shipped with specgen)."),
     ):
         """Issue a work order: winding instructions, drawings and test sheet for the floor."""
+        from ..errors import SpecError
+
+        if batch is not None:
+            if spec is not None or qty is not None or number is not None or draft or due or lot:
+                raise SpecError("--batch takes its parts, quantities, due dates and lots from the CSV; "
+                                "give no SPEC, --qty, --due, --lot, --number or --draft with it", path="--batch")
+            if workers is not None and not 1 <= workers <= 32:
+                raise SpecError(f"expected 1 to 32 workers, got {workers}", path="--workers")
+            from ..documents.batch import issue_batch
+
+            result = issue_batch(batch, out_dir=out, register_path=register_path, workers=workers,
+                                 catalog_dir=catalog, by=by, progress=progress, echo=typer.echo)
+            if result.failed:
+                raise typer.Exit(1)
+            return
+        if spec is None:
+            raise SpecError("give the SPEC.yaml to issue (or --batch ORDERS.csv)", path="SPEC.yaml")
+        if qty is None:
+            raise SpecError("give the lot size with --qty N", path="--qty")
         from ..documents.workorder import issue_work_order
 
         issued = issue_work_order(spec, qty=qty, due=due, lot=lot, out_dir=out, draft=draft,

@@ -30,6 +30,7 @@ STATUSES = ("draft", "released", "obsolete")
 COOLING = ("natural", "forced", "potted")
 RATINGS = ("functional", "basic", "supplementary", "double", "reinforced")
 MAX_TURNS = 20000
+_PART_RE = __import__("re").compile(r"^[A-Za-z0-9][A-Za-z0-9._-]{0,59}$")
 
 
 @dataclass(frozen=True)
@@ -266,8 +267,12 @@ def parse_spec(data, name: str) -> Spec:
         raise r.error("only an inductor has an 'inductor' section", "inductor")
 
     stack = core.quantity("stack", "length", None)
+    part = r.text("part", max_len=60).strip()
+    if not _PART_RE.match(part):
+        raise r.error(f"part number '{part}' may hold letters, digits, '.', '_' and '-' only (it names "
+                      f"the files written for it)", "part")
     spec = Spec(
-        file=name, part=r.text("part", max_len=60), title=r.text("title", "", max_len=200),
+        file=name, part=part, title=r.text("title", "", max_len=200),
         revision=r.text("revision", "", max_len=4).strip().upper(),
         status=r.choice("status", STATUSES, "draft"), customer=r.text("customer", "", max_len=200),
         kind=kind, core_id=core.text("id"), stack_m=stack,

@@ -552,18 +552,15 @@ def _release_problems(spec, design, cat) -> tuple[list, list]:
     return problems, warnings
 
 
-def issue_from_design(spec_path, spec, design, cat, *, qty, due=None, lot=None, out_dir=".", draft=False,
-                      register_path=None, number=None, by=None, warn=None) -> Issued:
-    """Issue one work order for an already computed design (the CLI and the demo come through here)."""
-    from ..register import Register, default_register_path
-    from .render import write_pdf_and_html
+def preflight(spec_path, spec, design, cat, *, qty, due=None, lot=None, draft=False) -> tuple:
+    """Everything that must hold before a number is taken: the options, the checks, the release.
 
-    t0 = time.perf_counter()
-    warn = warn or (lambda msg: print(f"warning: {msg}", file=sys.stderr))
+    Returns (qty, due, lot, warnings); raises DesignFailed (failed checks) or SpecError.
+    Shared by the single issue and the batch issue so both refuse exactly the same things.
+    """
     qty = check_qty(qty)
     due = check_due(due)
     lot = check_lot(lot)
-    number = check_number(number)
     if design.failed:
         raise DesignFailed(f"{design.part} rev {design.revision}: {len(design.failed)} design check(s) failed; "
                            "no work order issued", design.failed)
@@ -584,6 +581,19 @@ def issue_from_design(spec_path, spec, design, cat, *, qty, due=None, lot=None, 
                                 "release it again with `specgen release` (or print a --draft)",
                                 file=str(spec_path))
             warnings.append(message)
+    return qty, due, lot, warnings
+
+
+def issue_from_design(spec_path, spec, design, cat, *, qty, due=None, lot=None, out_dir=".", draft=False,
+                      register_path=None, number=None, by=None, warn=None) -> Issued:
+    """Issue one work order for an already computed design (the CLI and the demo come through here)."""
+    from ..register import Register, default_register_path
+    from .render import write_pdf_and_html
+
+    t0 = time.perf_counter()
+    warn = warn or (lambda msg: print(f"warning: {msg}", file=sys.stderr))
+    qty, due, lot, warnings = preflight(spec_path, spec, design, cat, qty=qty, due=due, lot=lot, draft=draft)
+    number = check_number(number)
     for w in warnings:
         warn(w)
     out = Path(out_dir)
