@@ -60,56 +60,43 @@ def wind_section(former: Former, turns: int, pitch_m: float, layer_height_m: flo
     layer_tape_m: insulation between successive layers (already multiplied by tape layers).
     one_turn_per_layer: foil, where each turn is a full-width layer.
     """
+    if former.kind == "toroid":
+        # the wire's centre line runs on this layer's inner face: the hole shrinks layer by layer
+        def capacity_at(h: float) -> tuple[int, float]:
+            circumference = geometry.toroid_inner_circumference_m(former.id_m, h + layer_height_m / 2.0)
+            return int(math.floor(circumference / pitch_m + 1e-9)), circumference
+    else:
+        usable = former.breadth_m - 2.0 * margin_m
+        if one_turn_per_layer:
+            fixed = 1 if pitch_m <= usable + 1e-12 else 0
+        else:
+            fixed = int(math.floor(usable / pitch_m + 1e-9)) if usable > 0 else 0
+
+        def capacity_at(h: float) -> tuple[int, float]:
+            return fixed, usable
+
     layers = []
     h = start_build_m
     left = turns
-    index = 0
     length = 0.0
-    if former.kind == "toroid":
-        usable = 0.0
-        first_capacity = None
-        while left > 0:
-            # wire centre line on the inner face of this layer
-            circumference = geometry.toroid_inner_circumference_m(former.id_m, h + layer_height_m / 2.0)
-            capacity = int(math.floor(circumference / pitch_m + 1e-9))
-            if capacity < 1:
-                return None
-            if first_capacity is None:
-                first_capacity = capacity
-                usable = circumference
-            n = min(capacity, left)
-            index += 1
-            centre = h + layer_height_m / 2.0
-            mlt = former.mlt_m(centre)
-            layers.append(Layer(index=index, turns=n, build_to_centre_m=centre, mlt_m=mlt, length_m=n * mlt,
-                                turns_capacity=capacity))
-            length += n * mlt
-            left -= n
-            h += layer_height_m
-            if left > 0:
-                h += 2.0 * layer_tape_m
-        return SectionBuild(first_capacity, tuple(layers), h, length, pitch_m, layer_height_m, usable)
-
-    usable = former.breadth_m - 2.0 * margin_m
-    if one_turn_per_layer:
-        capacity = 1 if pitch_m <= usable + 1e-12 else 0
-    else:
-        capacity = int(math.floor(usable / pitch_m + 1e-9)) if usable > 0 else 0
-    if capacity < 1:
-        return None
+    first = None
     while left > 0:
+        capacity, room = capacity_at(h)
+        if capacity < 1:
+            return None
+        if first is None:
+            first = (capacity, room)
         n = min(capacity, left)
-        index += 1
         centre = h + layer_height_m / 2.0
         mlt = former.mlt_m(centre)
-        layers.append(Layer(index=index, turns=n, build_to_centre_m=centre, mlt_m=mlt, length_m=n * mlt,
+        layers.append(Layer(index=len(layers) + 1, turns=n, build_to_centre_m=centre, mlt_m=mlt, length_m=n * mlt,
                             turns_capacity=capacity))
         length += n * mlt
         left -= n
         h += layer_height_m
         if left > 0:
-            h += layer_tape_m
-    return SectionBuild(capacity, tuple(layers), h, length, pitch_m, layer_height_m, usable)
+            h += layer_tape_m     # already x2 on a toroid for the half-lap (the caller's tape_factor)
+    return SectionBuild(first[0], tuple(layers), h, length, pitch_m, layer_height_m, first[1])
 
 
 def tape_factor(former: Former) -> float:

@@ -176,7 +176,9 @@ def run_checks(*, spec, cat, parts, windings, build, built, temp, b_peak, b_peak
     tape_layers = spec.winding_tape.layers if spec.winding_tape else 0
     for b in spec.barriers:
         if b.rating in ("reinforced", "double") and b.b != "core":
-            tiw = any(states[n].wire.kind == "tiw" for n in (b.a, b.b) if n in states)
+            # "S1+S2": windings tied for the test; triple-insulated wire on every winding of one side counts
+            sides = [[n for n in side.split("+") if n in states] for side in (b.a, b.b)]
+            tiw = any(side and all(states[n].wire.kind == "tiw" for n in side) for side in sides)
             if not tiw and tape_layers < REINFORCED_TAPE_LAYERS:
                 out.append(Check("fail", "insulation",
                                  f"{b.rating} insulation between {b.a} and {b.b} needs triple-insulated wire or "
