@@ -11,6 +11,7 @@
 from __future__ import annotations
 
 import json
+from decimal import ROUND_HALF_UP, Decimal
 from pathlib import Path
 
 from ..api import demo_specs, run_design
@@ -55,13 +56,23 @@ def run_demo(out: Path, catalog=None, echo=print) -> dict:
     (out / "changes").mkdir(exist_ok=True)
     demo_change_summary(out / "changes", cat, echo)
 
-    try:
-        from ..search import demo_search
-    except ImportError:
-        demo_search = None
-    if demo_search is not None:
-        echo("== design search")
-        (out / "search").mkdir(exist_ok=True)
-        demo_search(out / "search", cat, echo)
+    echo("== design search")
+    from .. import search as lib
+
+    (out / "search").mkdir(exist_ok=True)
+    for req_path in sorted(Path(__file__).resolve().parent.glob("REQ-*.yaml")):
+        req = lib.load_requirement(req_path)
+        result = lib.search(req, cat, top=5, sort="cost", per_core=2, part=req.part)
+        write_atomic(out / "search" / f"{req_path.stem}.txt", lib.result_text(result, cat.shop.currency) + "\n")
+        write_atomic(out / "search" / f"{req_path.stem}.json",
+                     json.dumps(lib.result_json(result, cat.shop.currency), indent=2, ensure_ascii=False,
+                                default=str) + "\n")
+        if result.top:
+            best = result.top[0].design
+            echo(f"{req_path.stem:8} best of {len(result.top)}: {best.core.id}, {best.losses.total_w:.2f} W, "
+                 f"hot spot {best.hot_spot_c:.0f} °C, material {cat.shop.currency} "
+                 f"{result.top[0].cost.quantize(Decimal('0.01'), ROUND_HALF_UP)}")
+        else:
+            echo(f"{req_path.stem:8} nothing in the catalogue fits (reasons in search/{req_path.stem}.txt)")
     echo(f"all of it in {out}/")
     return designs
