@@ -16,6 +16,7 @@ from specgen.cli import main
 
 CORPUS = Path(__file__).parent / "bad_inputs"
 SPEC_CASES = sorted(CORPUS.glob("spec-*.yaml"))
+REQ_CASES = sorted(CORPUS.glob("req-*.yaml"))
 CATALOG_CASES = sorted(p for p in CORPUS.iterdir() if p.is_dir() and p.name.startswith("catalog-"))
 DEMO = Path(__file__).parent.parent / "specgen" / "demo"
 
@@ -39,7 +40,18 @@ def run(argv, capsys) -> tuple[int, list]:
 
 
 def test_corpus_is_large_enough():
-    assert len(SPEC_CASES) + len(CATALOG_CASES) >= 40
+    assert len(SPEC_CASES) + len(CATALOG_CASES) + len(REQ_CASES) >= 40
+
+
+@pytest.mark.parametrize("case", REQ_CASES, ids=lambda p: p.stem)
+def test_bad_requirement_is_one_located_line(case, tmp_path, capsys):
+    req = tmp_path / case.name
+    shutil.copyfile(case, req)
+    before = snapshot(tmp_path)
+    code, lines = run(["search", str(req)], capsys)
+    assert code == 2 and len(lines) == 1, lines
+    assert lines[0].startswith(f"{req}:") and expected(case) in lines[0], lines[0]
+    assert snapshot(tmp_path) == before
 
 
 @pytest.mark.parametrize("case", SPEC_CASES, ids=lambda p: p.stem)
