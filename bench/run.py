@@ -12,7 +12,6 @@ import os
 import statistics
 import subprocess
 import sys
-import tempfile
 import time
 from pathlib import Path
 
@@ -41,7 +40,7 @@ def report(name: str, ratio: float, target: float | None, detail: str = "", high
     if target is None:
         verdict = ""
     elif higher_is_better:
-        verdict = "ok" if ratio >= target else "ABOVE TARGET" if False else "BELOW TARGET"
+        verdict = "ok" if ratio >= target else "BELOW TARGET"
     else:
         verdict = "ok" if ratio <= target else "ABOVE TARGET"
     tgt = "" if target is None else (f"(target >= {target:g})" if higher_is_better else f"(target <= {target:g})")

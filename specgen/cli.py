@@ -7,7 +7,6 @@ A user's mistake is one line on stderr, never a traceback.
 from __future__ import annotations
 
 import importlib
-import json
 import sys
 from pathlib import Path
 from typing import Optional

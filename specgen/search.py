@@ -810,7 +810,6 @@ class _Ctx:
         self.req, self.cat, self.choices = req, cat, choices
         self.groups = groups                  # per winding (build order): its option group index
         self.options = options                # per group: list of WireOption
-        heavy = _heavy_wire_m(cat)
         self.opt_tables = [_option_table(o, cat) for o in options]
         shop = cat.shop
         self.t0 = _Thermal(req.ambient_c + 40.0, req.ambient_c + 40.0 + shop.hotspot_margin_k, 40.0)
@@ -2175,7 +2174,7 @@ def _describe_row(req, ctx, res, r: int, fl: int, cand=None) -> str:
     if fl & F_GAP:
         bits.append("the powder rolls off faster than turns add")
     if fl & F_PINS:
-        bits.append(f"its bobbin has too few pins")
+        bits.append("its bobbin has too few pins")
     if fl & F_L:
         bits.append("inductance short")
     if cand is not None and cand.failed:

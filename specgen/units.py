@@ -233,38 +233,3 @@ def _describe(value) -> str:
 
 def _example(dimension: str) -> str:
     return _EXAMPLES.get(dimension, "'1 m'")
-
-
-# ---- formatting back to shop units (no pint: plain arithmetic, so the quick paths stay quick) ----
-
-def fmt(value: float | None, unit: str, digits: int = 3) -> str:
-    """Format an SI float in a shop unit: fmt(0.00051, 'mm') -> '0.510 mm'."""
-    if value is None:
-        return "-"
-    scale = _SCALE[unit]
-    v = value / scale
-    return f"{_sig(v, digits)} {unit}"
-
-
-def _sig(v: float, digits: int) -> str:
-    if v == 0:
-        return "0"
-    a = abs(v)
-    if a >= 10 ** digits:
-        return f"{v:,.0f}"
-    import math
-
-    decimals = max(0, digits - 1 - int(math.floor(math.log10(a))))
-    return f"{v:.{decimals}f}"
-
-
-_SCALE = {
-    "m": 1.0, "mm": 1e-3, "um": 1e-6, "cm": 1e-2, "km": 1e3,
-    "mm²": 1e-6, "mm^2": 1e-6, "cm²": 1e-4, "m²": 1.0, "mm³": 1e-9, "cm³": 1e-6,
-    "V": 1.0, "kV": 1e3, "mV": 1e-3, "A": 1.0, "mA": 1e-3, "uA": 1e-6,
-    "Hz": 1.0, "kHz": 1e3, "T": 1.0, "mT": 1e-3, "A/m": 1.0, "A/mm²": 1e6,
-    "W": 1.0, "mW": 1e-3, "VA": 1.0, "H": 1.0, "mH": 1e-3, "uH": 1e-6, "µH": 1e-6, "nH": 1e-9,
-    "Ω": 1.0, "mΩ": 1e-3, "kΩ": 1e3, "MΩ": 1e6, "g": 1e-3, "kg": 1.0,
-    "s": 1.0, "ms": 1e-3, "us": 1e-6, "µs": 1e-6, "J": 1.0, "mJ": 1e-3, "%": 0.01,
-    "°C": 1.0, "K": 1.0,
-}

@@ -45,8 +45,3 @@ def test_temperatures_stay_in_celsius():
     assert units.parse("313.15 K", "temperature") == pytest.approx(40.0)
     assert units.parse("104 degF", "temperature") == pytest.approx(40.0)   # pint path
     assert units.parse("10 K", "temperature_difference") == 10.0
-
-
-def test_fmt_shop_units():
-    assert units.fmt(0.00051, "mm") == "0.510 mm"
-    assert units.fmt(None, "mm") == "-"

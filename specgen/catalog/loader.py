@@ -13,7 +13,7 @@ from decimal import Decimal
 from pathlib import Path
 
 from ..errors import SpecError
-from ..loading import LMap, Reader, load_yaml
+from ..loading import Reader, load_yaml
 from .models import (CORE_SHAPES, MATERIAL_FAMILIES, WIRE_KINDS, Bobbin, Catalog, Core, Material,
                      Shop, Sleeving, Tape, Varnish, Wire)
 

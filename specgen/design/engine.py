@@ -28,11 +28,10 @@ import numpy as np
 
 from ..catalog.models import Catalog, Core, Material, Wire
 from ..errors import SpecError
-from ..physics import coreloss, dowell, faraday, gap as gapmod, geometry, permeability, thermal, wire as wiremod
+from ..physics import coreloss, dowell, geometry, thermal, wire as wiremod
 from ..physics.layers import layer_fr
 from .build import Former, SectionBuild, tape_factor, wind_section
-from .result import (Build, Check, CoreResult, Design, HipotTest, InductorResult, Limit, Losses,
-                     MaterialLine, Section, TestPlan, WindingResult)
+from .result import Build, CoreResult, Design, InductorResult, Losses, Section, WindingResult
 from .spec import Spec, Winding
 
 MU0 = 4e-7 * math.pi

@@ -15,7 +15,7 @@ import math
 from ..catalog.models import Catalog
 from ..physics import gap as gapmod, permeability
 from .engine import (_Parts, _Thermal, _WState, _core_loss_w_m3, _flux_limit, _lay_out, _section_frs,
-                     _spec_error, b_sat_at_t, choose_wire, finish, thermal_state, too_many_turns)
+                     _spec_error, choose_wire, finish, thermal_state, too_many_turns)
 from .result import Check, Design, InductorResult
 from .spec import MAX_TURNS, Spec
 

@@ -5,7 +5,7 @@ All values SI floats (temperatures degC). ``Design.to_dict()`` is the stable JSO
 
 from __future__ import annotations
 
-from dataclasses import asdict, dataclass, field
+from dataclasses import asdict, dataclass
 from typing import Any
 
 
@@ -237,7 +237,6 @@ class Design:
     notes: str = ""
     history: tuple = ()
     fingerprint: str = ""
-    extra: dict = field(default_factory=dict)
 
     @property
     def failed(self) -> list:

@@ -22,7 +22,7 @@ from __future__ import annotations
 from dataclasses import dataclass, field
 
 from ..errors import SpecError
-from ..loading import Reader, load_yaml, parse_yaml, read_text
+from ..loading import Reader, load_yaml, parse_yaml
 
 ROLES = ("primary", "secondary", "auxiliary", "shield", "main")
 WAVEFORMS = ("sine", "square", "unipolar")

@@ -155,7 +155,7 @@ def design_transformer(spec: Spec, cat: Catalog, parts: _Parts) -> Design:
                     changed = True
             if not changed:
                 break
-        frs = _section_frs(built, f, temp.hot_c, wf, _signs(spec, states, vp)) if built.ok else {}
+        frs = _section_frs(built, f, temp.hot_c, wf, _signs(spec)) if built.ok else {}
         lengths = _lengths(built, cat.shop.lead_length_m)
         copper = 0.0
         for st in states.values():
@@ -245,6 +245,6 @@ def design_transformer(spec: Spec, cat: Catalog, parts: _Parts) -> Design:
                   inductor=None, extra_checks=extra, iterations=iterations)
 
 
-def _signs(spec: Spec, states: dict, vp: float) -> dict:
+def _signs(spec: Spec) -> dict:
     """MMF direction of each winding's current: primary +1; loads -1 (ampere-turn balance)."""
     return {w.name: (1.0 if w.role == "primary" else -1.0) for w in spec.windings}

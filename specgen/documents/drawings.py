@@ -347,7 +347,7 @@ def window_section(breadth_m: float, available_m: float, bulged_m: float, sectio
         d = sec.wire_diameter_m
         circles_ok = sec.round_wire and d * 1e3 * s >= 0.45 and sum(l.turns for l in sec.layers) * sec.strands <= 4000
         for i, layer in enumerate(sec.layers):
-            y0, y1 = layer.centre_m - lh / 2, layer.centre_m + lh / 2
+            y1 = layer.centre_m + lh / 2
             frac = min(1.0, layer.turns / layer.capacity) if layer.capacity else 1.0
             width = usable * frac
             # layers run back and forth: odd layers from the left, even layers from the right
