@@ -19,7 +19,7 @@ import subprocess
 from pathlib import Path
 
 import pytest
-from conftest import blank_recorded_fingerprint
+from conftest import blank_recorded_fingerprint, git as _git
 from typer.testing import CliRunner
 
 from specgen import api
@@ -264,22 +264,6 @@ def test_released_fingerprint_problem(demo_copy):
 git_only = pytest.mark.skipif(shutil.which("git") is None, reason="git not installed")
 
 
-@pytest.fixture
-def git_env(tmp_path, monkeypatch):
-    monkeypatch.setenv("GIT_CONFIG_GLOBAL", os.devnull)
-    monkeypatch.setenv("GIT_CONFIG_NOSYSTEM", "1")
-    monkeypatch.setenv("GIT_CEILING_DIRECTORIES", str(tmp_path))
-    for var in ("GIT_AUTHOR", "GIT_COMMITTER"):
-        monkeypatch.setenv(f"{var}_NAME", "Brindle Hollow Test")
-        monkeypatch.setenv(f"{var}_EMAIL", "eng@brindle-hollow.invalid")
-    monkeypatch.delenv("GIT_DIR", raising=False)
-    monkeypatch.delenv("GIT_WORK_TREE", raising=False)
-    return tmp_path
-
-
-def _git(cwd, *args):
-    return subprocess.run(["git", *args], cwd=cwd, check=True, capture_output=True,
-                          text=True).stdout.strip()
 
 
 @git_only

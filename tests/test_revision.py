@@ -25,6 +25,7 @@ import subprocess
 from decimal import Decimal
 
 import pytest
+from conftest import git as _git
 import yaml
 
 from specgen import revision as rv
@@ -538,23 +539,6 @@ def test_release_file_is_atomic_keeps_mode_and_bom(tmp_path):
 pytestmark_git = pytest.mark.skipif(shutil.which("git") is None, reason="git not installed")
 
 
-@pytest.fixture
-def git_env(tmp_path, monkeypatch):
-    """Isolate git from the user's configuration and from any repository above tmp_path."""
-    monkeypatch.setenv("GIT_CONFIG_GLOBAL", os.devnull)
-    monkeypatch.setenv("GIT_CONFIG_NOSYSTEM", "1")
-    monkeypatch.setenv("GIT_CEILING_DIRECTORIES", str(tmp_path))
-    for var in ("GIT_AUTHOR", "GIT_COMMITTER"):
-        monkeypatch.setenv(f"{var}_NAME", "Brindle Hollow Test")
-        monkeypatch.setenv(f"{var}_EMAIL", "eng@brindle-hollow.invalid")
-    monkeypatch.delenv("GIT_DIR", raising=False)
-    monkeypatch.delenv("GIT_WORK_TREE", raising=False)
-    return tmp_path
-
-
-def _git(cwd, *args):
-    return subprocess.run(["git", *args], cwd=cwd, check=True, capture_output=True,
-                          text=True).stdout.strip()
 
 
 @pytest.fixture
