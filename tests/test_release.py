@@ -12,10 +12,8 @@ Spec texts are the shipped demo parts (invented data: Brindle Hollow Coil Works)
 from __future__ import annotations
 
 import json
-import os
 import re
 import shutil
-import subprocess
 from pathlib import Path
 
 import pytest

@@ -21,7 +21,6 @@ import os
 import shutil
 import stat
 import string
-import subprocess
 from decimal import Decimal
 
 import pytest
