@@ -344,3 +344,16 @@ def test_theraja_example_32_2_turns_from_faraday(textbook_catalog):
     assert _primary(d).turns == 400
     # turns per volt = 1 / (4.44 f B A_e), the classic 50 Hz rule
     assert _primary(d).turns / 520.0 == pytest.approx(1 / (4.44 * 50 * 0.976 * 60e-4), rel=2e-3)
+
+
+def test_toroid_warns_of_inrush_from_residual_flux(designs):
+    """Switch-on at a voltage zero drives the flux to B_r + 2 B_pk (the doubling effect, common practice;
+    any transformer text, e.g. the inrush discussion in Fitzgerald & Kingsley, from memory). BH-4120's
+    tape-wound toroid: B_r + 2 B_pk exceeds B_sat, so the check warns with those figures."""
+    d = designs["BH-4120"]
+    [inrush] = [c for c in d.checks if c.code == "inrush"]
+    worst = d.core.b_r_t + 2 * d.b_peak_max_t
+    assert worst > d.b_sat_hot_t and inrush.level == "warn"
+    assert f"{worst:.2f} T" in inrush.message and "soft-start" in inrush.message
+    # a bobbin-wound lamination stack has no such check (its joints lower the residual flux)
+    assert not [c for c in designs["BH-1042"].checks if c.code == "inrush"]

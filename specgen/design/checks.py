@@ -69,6 +69,18 @@ def run_checks(*, spec, cat, parts, windings, build, built, temp, b_peak, b_peak
                              f"B_pk {_fmt_t(b_peak_max)} at the peak current {ind.current_peak_a:.3g} A, limit "
                              f"{_fmt_t(limit)}; B_sat at {temp.hot_c:.0f} °C is {_fmt_t(bsat)}"))
 
+    # -- inrush: switched on at a voltage zero, the flux swings 2 B_pk from wherever the residual flux left it
+    #    (the doubling effect, common practice); a gapless tape-wound toroid keeps a high B_r, so it goes far
+    #    into saturation and draws many times its rated current for a few cycles
+    if spec.kind == "transformer" and spec.waveform == "sine" and parts.former.kind == "toroid":
+        worst = mat.b_r_t + 2.0 * b_peak_max
+        if worst > bsat:
+            out.append(Check("warn", "inrush",
+                             f"switched on at a voltage zero with residual flux, the core can reach B_r + 2 B_pk = "
+                             f"{_fmt_t(worst)} against B_sat {_fmt_t(bsat)}: expect an inrush of many times the "
+                             f"rated current; specify a soft-start or a slow-blow fuse on the label and test the "
+                             f"first article"))
+
     # -- Steinmetz range
     f = spec.frequency_hz
     if mat.steinmetz_f_min_hz and not (mat.steinmetz_f_min_hz * 0.999 <= f <= mat.steinmetz_f_max_hz * 1.001):
