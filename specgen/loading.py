@@ -43,28 +43,48 @@ class _Loader(_Base):
     pass
 
 
+def _key_path(parts: list) -> str:
+    out = ""
+    for p in parts:
+        out += f"[{p}]" if isinstance(p, int) else (f".{p}" if out else str(p))
+    return out
+
+
 def _construct_mapping(loader: _Loader, node: yaml.MappingNode, deep: bool = False) -> LMap:
     loader.flatten_mapping(node)
     out = LMap()
     out.line = node.start_mark.line + 1
     out.key_lines = {}
+    path = loader.__dict__.setdefault("key_path", [])   # where construction is, for duplicate-key messages
     for key_node, value_node in node.value:
         key = loader.construct_object(key_node, deep=True)
         try:
             hash(key)
         except TypeError:
             raise SpecError("a key must be plain text", file=loader.name,
-                            line=key_node.start_mark.line + 1) from None
+                            line=key_node.start_mark.line + 1, path=_key_path(path) or None) from None
         if key in out:
             raise SpecError(f"duplicate key '{key}' (first on line {out.key_lines[key]})",
-                            file=loader.name, line=key_node.start_mark.line + 1)
-        out[key] = loader.construct_object(value_node, deep=True)
+                            file=loader.name, line=key_node.start_mark.line + 1, path=_key_path(path + [key]))
+        path.append(key)
+        try:
+            out[key] = loader.construct_object(value_node, deep=True)
+        finally:
+            path.pop()
         out.key_lines[key] = key_node.start_mark.line + 1
     return out
 
 
 def _construct_sequence(loader: _Loader, node: yaml.SequenceNode, deep: bool = False) -> LList:
-    out = LList(loader.construct_object(child, deep=True) for child in node.value)
+    path = loader.__dict__.setdefault("key_path", [])
+    items = []
+    for i, child in enumerate(node.value):
+        path.append(i)
+        try:
+            items.append(loader.construct_object(child, deep=True))
+        finally:
+            path.pop()
+    out = LList(items)
     out.line = node.start_mark.line + 1
     out.item_lines = [child.start_mark.line + 1 for child in node.value]
     return out

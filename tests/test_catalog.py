@@ -60,7 +60,7 @@ def test_check_finds_planted_errors_with_file_and_line(tmp_path):
     line_unit = _plant(d / "insulation.yaml", "thickness: 0.055 mm", "thickness: 0.055")
     line_neg = _plant(d / "bobbins.yaml", "    breadth: ", "    breadth: -")
     problems = [str(p) for p in check_catalog(d)]
-    assert any(f"cores.yaml:{line_dup}: duplicate key 'shape'" in p for p in problems), problems
+    assert any(f"cores.yaml:{line_dup}: cores[0].shape: duplicate key 'shape'" in p for p in problems), problems
     assert any(f"insulation.yaml:{line_unit}:" in p and "bare number" in p for p in problems), problems
     assert any(f"bobbins.yaml:{line_neg}:" in p and "greater than zero" in p for p in problems), problems
 

@@ -15,7 +15,7 @@ def err(text, name="x.yaml"):
 def test_duplicate_key_is_refused_at_the_second_key():
     # PyYAML alone keeps the last value silently; a spec could carry two turn counts
     msg = err("windings:\n  - name: P\n    turns: 40\n    turns: 42\n")
-    assert msg == "x.yaml:4: duplicate key 'turns' (first on line 3)"
+    assert msg == "x.yaml:4: windings[0].turns: duplicate key 'turns' (first on line 3)"
 
 
 def test_tab_indentation_is_named():

@@ -63,11 +63,8 @@ CASES = [
      "unknown key 'voltge'; did you mean 'voltage'?"),
     ("unknown-top-level-key", _edit("operating:", "operatng: {}\noperating:"), "operatng", "operatng",
      "did you mean 'operating'?"),
-    pytest.param("duplicate-key", _edit("    voltage: 18 V\n", "    voltage: 18 V\n    voltage: 19 V\n"),
-                 "voltage: 19 V", "windings[0].voltage", "duplicate key 'voltage'", id="duplicate-key",
-                 marks=pytest.mark.xfail(strict=True, reason=(
-                     "bug: loading.py reports a duplicate key with file and line but no key path "
-                     "(the constructor does not know where it is in the document)"))),
+    ("duplicate-key", _edit("    voltage: 18 V\n", "    voltage: 18 V\n    voltage: 19 V\n"),
+     "voltage: 19 V", "windings[0].voltage", "duplicate key 'voltage'"),
 ]
 
 
