@@ -26,7 +26,7 @@ Labor per unit (seconds, from ``shop.labor``, located errors through ``loading.R
                   heavy_wire_factor (overall diameter above heavy_wire_above; foil and strip always)
                   and litz_factor (Litz). Strands in hand are laid together: the same turns time.
     per winding   per_winding for each section (each section is a separate pass: lead in, lead out).
-    taping        per_layer_tape per wrap: (layers - 1) x the spec's layer-tape wraps inside each
+    taping        per_layer_tape per wrap: (layers - 1) x the section's layer-tape wraps (from the Design) inside each
                   section, plus the section's tape_after_layers (winding insulation or outer wrap).
     terminations  per_termination x (sections + 1) per winding: start, finish and each tie pin;
                   strands in hand on one pin count once.
@@ -267,7 +267,7 @@ def wire_factor(wire_kind: str, overall_diameter_m: float, model: TimeModel) -> 
     return factor, why
 
 
-def labor_lines(design, model: TimeModel, layer_tape_wraps: int = 0) -> list[TimeLine]:
+def labor_lines(design, model: TimeModel) -> list[TimeLine]:
     """Run time per unit (no setup), one line per operation; see the module docstring."""
     toroid = design.core.shape == "toroid"
     tpm = model.toroid_turns_per_minute if toroid else model.bobbin_turns_per_minute
@@ -287,7 +287,7 @@ def labor_lines(design, model: TimeModel, layer_tape_wraps: int = 0) -> list[Tim
     wraps = 0
     for w in design.windings:
         for s in w.sections:
-            wraps += max(len(s.layers) - 1, 0) * layer_tape_wraps + (s.tape_after_layers if s.tape_after else 0)
+            wraps += max(len(s.layers) - 1, 0) * s.layer_tape_layers + (s.tape_after_layers if s.tape_after else 0)
     out.append(TimeLine("taping", "", f"{wraps} tape wrap(s) x {plain(model.per_layer_tape_s)} s",
                         wraps * model.per_layer_tape_s))
     terms = sum(len(w.sections) + 1 for w in design.windings)
@@ -345,11 +345,11 @@ def unit_price(material: Decimal, run_s: Decimal, setup_s: Decimal, quantity: in
             "unit_price": price}
 
 
-def price_breaks(design, cat, quantities: Iterable[int], layer_tape_wraps: int = 0,
+def price_breaks(design, cat, quantities: Iterable[int],
                  model: TimeModel | None = None) -> list[PriceBreak]:
     model = model or time_model(cat.shop)
     shop = cat.shop
-    run_s = run_seconds(labor_lines(design, model, layer_tape_wraps))
+    run_s = run_seconds(labor_lines(design, model))
     setup_s = dec(shop.setup_time_s)
     mat = material_total(material_lines(design, cat))
     mat_low = material_total(material_lines(design, cat, COPPER_LOW))
@@ -546,10 +546,9 @@ def build_quote(spec, design, cat, quantities: Iterable[int], *, nre: Decimal | 
     shop = cat.shop
     _check_margin(shop)
     model = time_model(shop)
-    wraps = spec.layer_tape.layers if spec.layer_tape else 0
     materials = material_lines(design, cat)
-    labor = labor_lines(design, model, wraps)
-    breaks = price_breaks(design, cat, quantities, wraps, model)
+    labor = labor_lines(design, model)
+    breaks = price_breaks(design, cat, quantities, model)
     issued = issued or _dt.date.today()
     budgetary = budgetary_detail = None
     if design.status != "released":

@@ -34,7 +34,7 @@ def built():
     for path in api.demo_specs():
         spec = load_spec(path)
         d = api.run_design(spec, cat)
-        out[spec.part] = (d, wo._drawings(d, spec, cat), cat)
+        out[spec.part] = (d, wo._drawings(d, cat), cat)
     return out
 
 

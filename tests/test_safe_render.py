@@ -54,7 +54,7 @@ def test_work_order_and_quote_escape_every_text_field(cat, field, kind):
 
     spec = _spec_with(field, PAYLOADS[kind])
     d = run_design(spec, cat)
-    html = render_work_order_html(d, spec, cat, number="WO-T-1", qty=5, due=None, lot=PAYLOADS[kind],
+    html = render_work_order_html(d, cat, number="WO-T-1", qty=5, due=None, lot=PAYLOADS[kind],
                                   issued="2026-12-01", issued_by=PAYLOADS["file"], draft=True)
     q_html = quote_html(build_quote(spec, d, cat, (10,), allow_failed=True))
     assert PAYLOADS[kind] not in html and "&lt;" in html    # never raw; the escaped text is there instead

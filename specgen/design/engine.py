@@ -543,7 +543,11 @@ def finish(spec: Spec, cat: Catalog, parts: _Parts, states: dict, built: _Built,
                                     layers=sb.layers, margin_m=margin, usable_breadth_m=sb.usable_breadth_m,
                                     start_build_m=sb.layers[0].build_to_centre_m - sb.layer_height_m / 2,
                                     end_build_m=sb.end_build_m, tape_after=tape_id, tape_after_layers=tape_layers,
-                                    start_pin=sp, finish_pin=fp, fr=fr))
+                                    start_pin=sp, finish_pin=fp, fr=fr,
+                                    layer_tape=spec.layer_tape.tape if spec.layer_tape and len(sb.layers) > 1 else None,
+                                    layer_tape_layers=spec.layer_tape.layers if spec.layer_tape and len(sb.layers) > 1
+                                    else 0,
+                                    margin_tape=spec.margin_tape if margin > 0 else None))
         copper_len = sum(s[3].copper_length_m for s in secs)
         fr_w = fr_len / copper_len if copper_len > 0 else 1.0
         if ripple_rms is not None:

@@ -43,6 +43,9 @@ class Section:
     start_pin: str
     finish_pin: str
     fr: float                  # AC resistance factor of this section (Dowell, at its MMF position)
+    layer_tape: str | None = None    # tape between the layers of this section
+    layer_tape_layers: int = 0
+    margin_tape: str | None = None   # built up in the margins each side
 
 
 @dataclass(frozen=True)

@@ -171,7 +171,9 @@ def materials_per_unit(spec, cat, parts, built, windings, core) -> list:
             add_tape(spec.margin_tape, 2 * sum(l.mlt_m * wraps for l in sb.layers))
     for tid, length in tape_len.items():
         t = cat.tapes[tid]
-        out.append(MaterialLine("tape", tid, f"{t.name}, {t.width_m * 1e3:g} mm wide", length, "m", None))
+        width = f"{t.width_m * 1e3:g} mm"
+        name = t.name if width in t.name else f"{t.name}, {width} wide"     # most catalogue names carry it
+        out.append(MaterialLine("tape", tid, name, length, "m", None))
     sleeve: dict = {}
     for w, ws in zip(windings, spec.windings):
         sid = w.lead_sleeving

@@ -191,7 +191,7 @@ def issue_batch(csv_path, *, out_dir=".", register_path=None, workers: int | Non
                     row, spec_path, spec, design, qty, due, lot = queue.pop(0)
                     order = reg.get(row.number)
                     try:
-                        html = render_work_order_html(design, spec, cat, number=row.number, qty=qty, due=due,
+                        html = render_work_order_html(design, cat, number=row.number, qty=qty, due=due,
                                                       lot=lot, issued=order.issued_at[:10],
                                                       issued_by=order.issued_by, draft=False)
                     except Exception as exc:   # a template fault: this row only

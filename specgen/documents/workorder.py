@@ -177,18 +177,10 @@ def _pins_of(condition: str) -> str:
     return m.group(1).rstrip(",") if m else ""
 
 
-def _tidy(description: str) -> str:
-    """Drop a trailing ', 30 mm wide' when the same width is already named ('..., 30 mm, 30 mm wide')."""
-    m = re.search(r",\s*([\d.]+\s*mm) wide$", description)
-    if m and m.group(1) in description[:m.start()]:
-        return description[:m.start()]
-    return description
-
-
 def _materials(design, qty: int, scrap: float) -> list:
     rows = []
     for m in design.materials:
-        row = {"kind": m.kind, "id": m.id, "description": _tidy(m.description), "note": m.note,
+        row = {"kind": m.kind, "id": m.id, "description": m.description, "note": m.note,
                "per_unit": "", "lot": "", "mass_unit": "", "mass_lot": ""}
         if m.unit == "m":
             factor = 1.0 + scrap if m.kind == "wire" else 1.0
@@ -230,7 +222,7 @@ def _tape_thickness(cat, tape_id: str | None) -> float:
     return cat.tapes[tape_id].thickness_m
 
 
-def _drawings(design, spec, cat) -> dict:
+def _drawings(design, cat) -> dict:
     from . import drawings as dr
 
     toroid = design.core.shape == "toroid"
@@ -251,11 +243,10 @@ def _drawings(design, spec, cat) -> dict:
         pin_svg = dr.pin_diagram(list(b.pins), b.pin_rows, coils, dots)
 
     tf = 2.0 if toroid else 1.0          # tape on a toroid is half-lapped (the build's own rule)
-    layer_tape = spec.layer_tape if spec is not None else None
-    lt = _tape_thickness(cat, layer_tape.tape) * layer_tape.layers * tf if layer_tape else 0.0
     secs = []
     for w, s in _sections_in_order(design):
         lh = _layer_height_m(s)
+        lt = _tape_thickness(cat, s.layer_tape) * s.layer_tape_layers * tf if s.layer_tape else 0.0
         secs.append(dr.SectionDraw(
             order=s.order, label=section_label(w, s), winding=w.name, turns=s.turns, start_m=s.start_build_m,
             end_m=s.end_build_m, layer_height_m=lh,
@@ -279,7 +270,7 @@ def _drawings(design, spec, cat) -> dict:
             "dot_legend": dr.DOT_LEGEND}
 
 
-def build_context(design, spec, cat, *, number: str, qty: int, due: str | None = None, lot: str | None = None,
+def build_context(design, cat, *, number: str, qty: int, due: str | None = None, lot: str | None = None,
                   issued: str | None = None, issued_by: str | None = None, draft: bool = False) -> dict:
     """Everything the work-order template shows, as plain dicts and strings (SVG as Markup)."""
     from .. import revision
@@ -310,8 +301,6 @@ def build_context(design, spec, cat, *, number: str, qty: int, due: str | None =
     # ---- floor steps: gap, windings in build order, core assembly, varnish
     steps = []
     n = 0
-    layer_tape = spec.layer_tape if spec is not None else None
-    margin_tape = spec.margin_tape if spec is not None else None
     ind = d.inductor
     al_limit = next((l for l in d.tests.inductance if l.name.startswith("AL")), None)
     if ind is not None and ind.gap_m:
@@ -365,11 +354,11 @@ def build_context(design, spec, cat, *, number: str, qty: int, due: str | None =
             ("Layers", layers_text, ""),
         ]
         if not toroid:
-            rows.append(("Margins", (f"{fmt_mm(s.margin_m)} each side: {margin_tape} built up to the "
-                                     f"height of each layer" if margin_tape else f"{fmt_mm(s.margin_m)} each side")
+            rows.append(("Margins", (f"{fmt_mm(s.margin_m)} each side: {s.margin_tape} built up to the "
+                                     f"height of each layer" if s.margin_tape else f"{fmt_mm(s.margin_m)} each side")
                          if s.margin_m > 0 else "none", ""))
-        if len(s.layers) > 1 and layer_tape:
-            rows.append(("Between layers", f"{layer_tape.tape} × {layer_tape.layers}"
+        if s.layer_tape:
+            rows.append(("Between layers", f"{s.layer_tape} × {s.layer_tape_layers}"
                          + (", half-lapped" if toroid else ""), ""))
         else:
             rows.append(("Between layers", "— (one layer)" if len(s.layers) <= 1 else "no tape", ""))
@@ -467,14 +456,14 @@ def build_context(design, spec, cat, *, number: str, qty: int, due: str | None =
         "history": history, "warnings": [c.message for c in d.warnings], "toroid": toroid,
         "pin_word": pin_word,
     }
-    ctx.update(_drawings(d, spec, cat))
+    ctx.update(_drawings(d, cat))
     return ctx
 
 
-def render_work_order_html(design, spec, cat, **kwargs) -> str:
+def render_work_order_html(design, cat, **kwargs) -> str:
     from .render import render_html
 
-    return render_html("workorder.html", **build_context(design, spec, cat, **kwargs))
+    return render_html("workorder.html", **build_context(design, cat, **kwargs))
 
 
 # ------------------------------------------------------------------------------------------------ issuing
@@ -609,7 +598,7 @@ def issue_from_design(spec_path, spec, design, cat, *, qty, due=None, lot=None, 
                          issued_by=by, fmt=fmt, number=number) as num:
             check_number(num)
             order = reg.get(num)
-            html = render_work_order_html(design, spec, cat, number=num, qty=qty, due=due, lot=lot,
+            html = render_work_order_html(design, cat, number=num, qty=qty, due=due, lot=lot,
                                           issued=order.issued_at[:10], issued_by=order.issued_by, draft=draft)
             pdf_path, html_path = out / f"{num}.pdf", out / f"{num}.html"
             blocked: list = []
