@@ -155,7 +155,7 @@ def ei_effective(tongue_m, stack_m, stacking_factor, window_width_m, window_heig
 
 def e_core_effective(width_m, height_m, depth_m, window_width_m, window_height_m,
                      centre_leg_width_m=None, centre_leg_depth_m=None,
-                     centre_leg_diameter_m=None) -> EffectiveParams:
+                     centre_leg_diameter_m=None, outer_legs_area_m2=None) -> EffectiveParams:
     """Effective parameters of a mated pair of E-type halves (E, EFD, ETD, PQ).
 
     Parameters
@@ -168,6 +168,8 @@ def e_core_effective(width_m, height_m, depth_m, window_width_m, window_height_m
     centre_leg_width_m : rectangular centre leg width F [m] (E, EFD)
     centre_leg_depth_m : rectangular centre leg depth [m]; default ``depth_m`` (EFD: smaller)
     centre_leg_diameter_m : round centre leg diameter [m] (ETD, PQ); replaces the width
+    outer_legs_area_m2 : cross-section of both outer legs together [m^2], when their shape is not the flat
+        block (A - E)/2 x C (PQ: see core_effective)
 
     Outer leg width p = (A - E)/2, yoke thickness h = (2B - 2D)/2. Segments: centre leg (2D), the two
     outer legs in parallel (2D, area 2 p C), yokes over (E - F)/2 per side at top and bottom (area
@@ -200,7 +202,8 @@ def e_core_effective(width_m, height_m, depth_m, window_width_m, window_height_m
     span = (e - f) / 2.0
     _positive(depth_m=c, window_height_m=d2, outer_leg_width=p, yoke_thickness=h,
               window_build=span)
-    return _e_loop(centre_area, f / 2.0, 2.0 * p * c, p, 2.0 * h * c, h, span, d2)
+    outer = 2.0 * p * c if outer_legs_area_m2 is None else float(outer_legs_area_m2)
+    return _e_loop(centre_area, f / 2.0, outer, p, 2.0 * h * c, h, span, d2)
 
 
 _GAUSS_X, _GAUSS_W = np.polynomial.legendre.leggauss(64)
@@ -340,7 +343,14 @@ def core_effective(shape: str, dims: dict, stack_m=None, stacking_factor=1.0) ->
     if s in ("E", "EFD", "ETD", "PQ"):
         common = [_need(s, dims, key) for key in
                   ("width", "height", "depth", "window_width", "window_height")]
-        if s in ("ETD", "PQ"):
+        if s == "PQ":
+            # a PQ core's outer legs are shaped (thick at the corners, a round inner face) so that together
+            # they carry the centre post's cross-section (the shape's design rule, common practice, from
+            # memory); the flat block (A - E)/2 x C of an E core would make them a bottleneck they are not
+            d = _need(s, dims, "centre_leg_diameter")
+            ep = e_core_effective(*common, centre_leg_diameter_m=d,
+                                  outer_legs_area_m2=max(np.pi * d * d / 4.0, (common[0] - common[3]) * common[2]))
+        elif s == "ETD":
             ep = e_core_effective(*common, centre_leg_diameter_m=_need(s, dims, "centre_leg_diameter"))
         else:
             cdepth = dims.get("centre_leg_depth")
