@@ -1,5 +1,6 @@
 #!/bin/sh
-# Checks for the system libraries WeasyPrint loads at run time (Pango, HarfBuzz, fontconfig) and the
+# Checks for the system libraries WeasyPrint loads at run time (Pango, HarfBuzz and its font subsetter,
+# fontconfig) and the
 # poppler/qpdf tools the tests use to read PDFs independently. Installs them when we are root and
 # apt-get exists; otherwise stops with the exact command to run.
 need=""
@@ -7,6 +8,7 @@ have_lib() { ldconfig -p 2>/dev/null | grep -q "$1"; }
 have_lib libpango-1.0.so    || need="$need libpango-1.0-0"
 have_lib libpangoft2-1.0.so || need="$need libpangoft2-1.0-0"
 have_lib libharfbuzz.so     || need="$need libharfbuzz0b"
+have_lib libharfbuzz-subset.so || need="$need libharfbuzz-subset0"   # font subsetting: smaller PDFs
 have_lib libfontconfig.so   || need="$need libfontconfig1"
 command -v pdftoppm >/dev/null 2>&1 || need="$need poppler-utils"
 command -v qpdf     >/dev/null 2>&1 || need="$need qpdf"
