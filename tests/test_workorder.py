@@ -17,6 +17,7 @@ from __future__ import annotations
 
 import re
 import subprocess
+import sys
 from pathlib import Path
 
 import pint
@@ -366,3 +367,25 @@ def test_engineering_format_reads_back_with_pint(value, unit, text):
     assert wo.fmt_eng(value, unit) == text
     q = pint.UnitRegistry().Quantity(text.replace("Ω", "ohm"))
     assert q.to_base_units().magnitude == pytest.approx(value, rel=5e-4)
+
+
+
+def test_the_shop_file_can_fix_the_register(tmp_path):
+    """shop.yaml `register:` places one register for the whole shop (issue 6: --register > $SPECGEN_REGISTER >
+    the shop file's setting > beside the spec)."""
+    import os
+    import shutil
+
+    from specgen.catalog.loader import shipped_catalog_dir
+
+    cat = tmp_path / "catalog"
+    shutil.copytree(shipped_catalog_dir(), cat)
+    shop = cat / "shop.yaml"
+    shop.write_text(shop.read_text().replace('  work_order_format:', f'  register: {tmp_path / "shop-reg.sqlite"}\n'
+                                                                     '  work_order_format:', 1))
+    spec = _copy(tmp_path, "BH-5018")
+    env = {k: v for k, v in os.environ.items() if k != "SPECGEN_REGISTER"}
+    r = subprocess.run([sys.executable, "-m", "specgen.cli", "workorder", str(spec), "--qty", "3", "--out",
+                        str(tmp_path / "o"), "--catalog", str(cat)], capture_output=True, text=True, env=env)
+    assert r.returncode == 0, r.stderr
+    assert (tmp_path / "shop-reg.sqlite").exists() and not (tmp_path / "specgen-register.sqlite").exists()

@@ -342,7 +342,7 @@ def _shop(r: Reader) -> Shop:
         hotspot_margin_k=r.quantity("hotspot_margin", "temperature_difference", 10.0, allow_zero=True),
         work_order_format=fmt, hipot=hipot, insulation_resistance=insulation_resistance,
         tolerances=tolerances, labor={"data": labor.data, "file": labor.file, "path": labor.path},
-        source=r.text("source"), raw=_plain(r.data),
+        source=r.text("source"), register_path=r.text("register", None), raw=_plain(r.data),
     )
     labor._seen.update(labor.data.keys())   # the quote module reads and checks these
     r.done()

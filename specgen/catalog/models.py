@@ -202,6 +202,7 @@ class Shop:
     tolerances: dict               # dcr, ratio, inductance (fractions)
     labor: dict                    # the quote's time model (seconds), read by the quote module
     source: str
+    register_path: str | None = None   # the work-order register, if the shop keeps one fixed place
     raw: dict = field(default_factory=dict, compare=False, repr=False)
 
 

@@ -171,8 +171,7 @@ def issue_batch(csv_path, *, out_dir=".", register_path=None, workers: int | Non
             continue
         ready.append((row, spec_path, spec, design, qty, due, lot))
 
-    shop_register = cat.shop.raw.get("register") if isinstance(cat.shop.raw, dict) else None
-    reg_path = default_register_path(csv_path, register_path, shop_setting=shop_register)
+    reg_path = default_register_path(csv_path, register_path, shop_setting=cat.shop.register_path)
     bar = _Progress(len(ready), sys.stderr.isatty() if progress is None else progress)
     result = BatchResult(rows=rows, seconds=0.0, workers=workers)
     with Register.open(reg_path) as reg:

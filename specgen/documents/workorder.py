@@ -590,8 +590,7 @@ def issue_from_design(spec_path, spec, design, cat, *, qty, due=None, lot=None, 
         out.mkdir(parents=True, exist_ok=True)
     except OSError as err:
         raise SpecError(f"cannot create the output folder: {err.strerror or err}", file=str(out)) from None
-    shop_register = cat.shop.raw.get("register") if isinstance(cat.shop.raw, dict) else None
-    reg_path = default_register_path(spec_path, register_path, shop_setting=shop_register)
+    reg_path = default_register_path(spec_path, register_path, shop_setting=cat.shop.register_path)
     fmt = cat.shop.work_order_format.replace("{part}", design.part)
     with Register.open(reg_path) as reg:
         with reg.issuing(design.part, design.revision, design.fingerprint or "-", qty, lot, due,
