@@ -69,6 +69,10 @@ def design_report(d: Design) -> str:
     if d.magnetizing_current_a is not None:
         core_rows.append(["magnetizing", f"{d.magnetizing_current_a * 1e3:.4g} mA rms, "
                                          f"L_m {d.magnetizing_inductance_h:.4g} H"])
+    if d.leakage_inductance_h:
+        lk = d.leakage_inductance_h
+        core_rows.append(["leakage", (f"{lk * 1e6:.4g} µH" if lk < 1e-3 else f"{lk * 1e3:.4g} mH")
+                          + " referred to the primary, secondaries shorted"])
     if d.inductor is not None:
         i = d.inductor
         core_rows += [

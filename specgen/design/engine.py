@@ -30,7 +30,7 @@ import numpy as np
 from ..catalog.models import Catalog, Core, Material, Wire
 from ..errors import SpecError
 from ..physics import coreloss, dowell, geometry, thermal, wire as wiremod
-from ..physics.layers import layer_fr
+from ..physics.layers import layer_fr, leakage_inductance_h
 from .build import Former, SectionBuild, tape_factor, wind_section
 from .result import Build, CoreResult, Design, InductorResult, Losses, Section, WindingResult
 from .spec import Spec, Winding
@@ -389,6 +389,31 @@ def _section_frs(built: _Built, freq_hz: float, temp_c: float, waveform: str, si
     return out
 
 
+def leakage_h(built: _Built, former: Former, currents: dict, ref: str) -> float:
+    """Leakage inductance referred to winding ``ref``, from the MMF across the build (energy method).
+
+    ``currents`` are the windings' load currents with their MMF sign, balanced in ampere-turns
+    (primary + sum N_s I_s / N_p, loads -I_s), so the MMF returns to zero outside the last winding.
+    """
+    segments = []
+    mmf = 0.0
+    h = 0.0
+    breadths = []
+    for st, k, order, sb, *_ in built.sections:
+        current = currents.get(st.spec.name, 0.0)
+        breadths.append(sb.usable_breadth_m)
+        for layer in sb.layers:
+            start = layer.build_to_centre_m - sb.layer_height_m / 2.0
+            if start > h:        # insulation or tape before this layer: MMF constant across it
+                segments.append((start - h, mmf, mmf, former.mlt_m((start + h) / 2.0)))
+            f2 = mmf + layer.turns * current
+            segments.append((sb.layer_height_m, mmf, f2, layer.mlt_m))
+            mmf = f2
+            h = start + sb.layer_height_m
+    breadth = sum(breadths) / len(breadths) if breadths else 0.0
+    return leakage_inductance_h(segments, breadth, currents.get(ref, 0.0))
+
+
 def _layer_fr_wire(w: Wire, strands: int, turns: int, sb: SectionBuild, delta: float, f1: float, f2: float) -> float:
     if w.kind == "foil":
         d = dowell.foil_delta(w.thickness_m, delta, min(1.0, w.width_m / max(sb.usable_breadth_m, w.width_m)))
@@ -524,7 +549,7 @@ def finish(spec: Spec, cat: Catalog, parts: _Parts, states: dict, built: _Built,
            *, b_peak: float, b_peak_max: float, b_limit: tuple, h_peak: float, lm: float | None,
            imag: float | None, core_w: float, core_w_m3: float, voltages: dict, open_circuit: dict,
            efficiency, regulation, p_out, inductor: InductorResult | None, extra_checks: list,
-           iterations: int, ripple_rms: dict | None = None) -> Design:
+           iterations: int, ripple_rms: dict | None = None, leakage: float | None = None) -> Design:
     """Freeze the iterated state into the Design: windings, build, losses, checks, tests, materials."""
     lead = cat.shop.lead_length_m
     lengths = _lengths(built, lead)
@@ -603,7 +628,7 @@ def finish(spec: Spec, cat: Catalog, parts: _Parts, states: dict, built: _Built,
     checks = run_checks(**partial) + list(extra_checks)
     order = {"fail": 0, "warn": 1, "pass": 2}
     checks.sort(key=lambda c: order[c.level])
-    tests = test_plan(spec, cat, windings, lm, inductor, voltages, open_circuit)
+    tests = test_plan(spec, cat, windings, lm, inductor, voltages, open_circuit, leakage)
     materials = materials_per_unit(spec, cat, parts, built, windings, core)
     ids = _catalog_ids(spec, parts, windings, cat)
     return Design(
@@ -612,7 +637,8 @@ def finish(spec: Spec, cat: Catalog, parts: _Parts, states: dict, built: _Built,
         ambient_c=spec.ambient_c, cooling=spec.cooling, insulation_class_c=spec.insulation_class_c,
         b_peak_t=b_peak, b_peak_max_t=b_peak_max, b_limit_t=b_limit[0], b_limit_basis=b_limit[1],
         b_sat_hot_t=b_sat_at_t(parts.material, temp.hot_c), h_peak_a_m=h_peak,
-        magnetizing_inductance_h=lm, magnetizing_current_a=imag, core=core, windings=tuple(windings),
+        magnetizing_inductance_h=lm, magnetizing_current_a=imag, leakage_inductance_h=leakage,
+        core=core, windings=tuple(windings),
         build=build, losses=losses, winding_temp_c=temp.winding_c, hot_spot_c=temp.hot_c,
         temperature_rise_k=temp.rise_k, efficiency=efficiency, regulation_pct=regulation,
         output_power_w=p_out, checks=tuple(checks), tests=tests, materials=tuple(materials),

@@ -221,6 +221,7 @@ class Design:
     h_peak_a_m: float
     magnetizing_inductance_h: float | None
     magnetizing_current_a: float | None
+    leakage_inductance_h: float | None   # referred to the primary, secondaries shorted (energy method)
     core: CoreResult
     windings: tuple
     build: Build
@@ -267,6 +268,7 @@ class Design:
             "b_limit_basis": self.b_limit_basis, "b_sat_hot_t": self.b_sat_hot_t, "h_peak_a_m": self.h_peak_a_m,
             "magnetizing_inductance_h": self.magnetizing_inductance_h,
             "magnetizing_current_a": self.magnetizing_current_a,
+            "leakage_inductance_h": self.leakage_inductance_h,
             "core": {
                 "id": c.id, "shape": c.shape, "material": c.material, "ae_mm2": c.ae_m2 * 1e6,
                 "le_mm": c.le_m * 1e3, "ve_mm3": c.ve_m3 * 1e9, "wa_mm2": c.wa_m2 * 1e6,

@@ -15,6 +15,8 @@ from .result import HipotTest, Limit, MaterialLine, TestPlan
 TAPE_OVERLAP_M = 0.015          # each wrap of tape overlaps its start by ~15 mm (common practice)
 TOROID_TAPE_OVERLAP = 0.5       # toroid tape laid half-lapped (common practice)
 MAGNETIZING_L_LOW = 0.7         # open-circuit inductance floor: material permeability varies widely (common practice)
+LEAKAGE_BAND = (0.7, 1.3)       # leakage limits: the build's geometry varies less, but a missed interleave or an
+                                # extra tape shows as a large change (common practice, from memory)
 
 
 def hipot_voltage_v(rating: str, working_v: float, hipot: dict) -> tuple[float, str]:
@@ -55,7 +57,7 @@ def _barriers(spec, windings) -> list:
     return out
 
 
-def test_plan(spec, cat, windings, lm, inductor, voltages, open_circuit) -> TestPlan:
+def test_plan(spec, cat, windings, lm, inductor, voltages, open_circuit, leakage=None) -> TestPlan:
     shop = cat.shop
     tol = shop.tolerances
     alpha = wiremod.ALPHA20_CU_PER_K
@@ -88,6 +90,11 @@ def test_plan(spec, cat, windings, lm, inductor, voltages, open_circuit) -> Test
         if lm:
             ind.append(Limit(name="open-circuit inductance", item=prim.name, nominal=lm, low=lm * MAGNETIZING_L_LOW,
                              high=None, unit="H", condition=f"pins {prim.start}-{prim.finish}, others open"))
+        if leakage:
+            lo, hi = LEAKAGE_BAND
+            ind.append(Limit(name="leakage inductance", item=prim.name, nominal=leakage, low=leakage * lo,
+                             high=leakage * hi, unit="H",
+                             condition=f"pins {prim.start}-{prim.finish}, every other winding shorted"))
     if inductor is not None:
         w = windings[0]
         t = tol["inductance"]

@@ -8,7 +8,8 @@ from dataclasses import dataclass
 from ..catalog.models import Catalog
 from ..physics import faraday
 from .engine import (_Built, _Parts, _Thermal, _WState, _core_loss_w_m3, _dcr, _flux_limit, _lay_out,
-                     _lengths, _section_frs, _spec_error, choose_wire, finish, thermal_state, too_many_turns)
+                     _lengths, _section_frs, _spec_error, choose_wire, finish, leakage_h, thermal_state,
+                     too_many_turns)
 from .result import Check, Design
 from .spec import MAX_TURNS, Spec
 
@@ -33,6 +34,7 @@ class _Eval:
     imag_pk: float
     loaded_v: dict
     open_v: dict
+    leakage_h: float
 
     @property
     def total_w(self) -> float:
@@ -137,12 +139,18 @@ def design_transformer(spec: Spec, cat: Catalog, parts: _Parts) -> Design:
             rp = _dcr(states[prim.name], lengths[prim.name], temp.hot_c)
             # the primary carries every load's current referred through its ratio, so its drop is shared
             i_ref = sum(states[w.name].current_a * states[w.name].turns / np_turns for w in loads)
+            # leakage reactance referred to the primary (sine only: a square-wave drive loses volt-seconds
+            # to the leakage instead, which the converter's duty absorbs)
+            x_lk = (2.0 * math.pi * f * leakage_h(built, parts.former, _balanced(spec, states, np_turns),
+                                                  prim.name)) if wf == "sine" else 0.0
             for w in loads:
                 st = states[w.name]
                 rs = _dcr(st, lengths[w.name], temp.hot_c)
                 ratio = st.turns / np_turns
-                # resistive drops (resistive load, in phase; leakage reactance neglected)
-                v_loaded = ratio * (vp - i_ref * rp) - st.current_a * rs
+                # resistive drops in phase with a resistive load, the leakage drop in quadrature
+                e = ratio * (vp - i_ref * rp)
+                x_drop = ratio * i_ref * x_lk * (st.current_a * st.turns) / max(i_ref * np_turns, 1e-12)
+                v_loaded = math.sqrt(max(e * e - x_drop * x_drop, 0.0)) - st.current_a * rs
                 loaded[w.name] = v_loaded
                 if w.turns is None and v_loaded < w.voltage_v - 1e-9 and st.turns <= MAX_TURNS:
                     volts_per_turn = (vp - i_ref * rp) / np_turns
@@ -169,8 +177,9 @@ def design_transformer(spec: Spec, cat: Catalog, parts: _Parts) -> Design:
         b_pk_max = faraday.b_peak_t(vp_max, f, np_turns, parts.ae_m2, wf, spec.duty)
         pv = _core_loss_w_m3(mat, wf, f, b_pk, spec.duty)
         open_v = {w.name: vp * states[w.name].turns / np_turns for w in loads}
+        l_lk = leakage_h(built, parts.former, _balanced(spec, states, np_turns), prim.name) if built.ok else 0.0
         return _Eval(np_turns, states, built, frs, copper, pv * parts.ve_m3, pv, b_pk, b_pk_max, lm, imag,
-                     imag_pk, loaded, open_v)
+                     imag_pk, loaded, open_v, l_lk)
 
     # -- turns: saturation-limited minimum, raised while the total loss falls (above 1 kHz)
     n0 = n_min()
@@ -242,7 +251,16 @@ def design_transformer(spec: Spec, cat: Catalog, parts: _Parts) -> Design:
                                                      + (" less B_r (unipolar)" if wf == "unipolar" else "")),
                   h_peak=h_peak, lm=ev.lm, imag=ev.imag, core_w=ev.core_w, core_w_m3=ev.core_w_m3,
                   voltages=voltages, open_circuit=ev.open_v, efficiency=eff, regulation=regulation, p_out=p_out,
-                  inductor=None, extra_checks=extra, iterations=iterations)
+                  inductor=None, extra_checks=extra, iterations=iterations, leakage=ev.leakage_h)
+
+
+def _balanced(spec: Spec, states: dict, np_turns: int) -> dict:
+    """Load currents with their MMF sign, balanced in ampere-turns: the primary carries sum(N_s I_s)/N_p."""
+    loads = [w for w in spec.windings if w.role in ("secondary", "auxiliary")]
+    out = {w.name: -states[w.name].current_a for w in loads}
+    prim = next(w for w in spec.windings if w.role == "primary")
+    out[prim.name] = sum(states[w.name].current_a * states[w.name].turns for w in loads) / np_turns
+    return out
 
 
 def _signs(spec: Spec) -> dict:
