@@ -751,9 +751,8 @@ def _resistance(opt: dict, length_m, temp_c):
 
 
 def b_sat_vec(b25, b100, temp_c):
-    """The engine's ``b_sat_at_t`` elementwise: linear between the 25 and 100 degC values, extrapolated
-    beyond and held above 5 % of the 25 degC value (tested against the engine element by element)."""
-    return np.maximum(0.05 * b25, b25 + (b100 - b25) / 75.0 * (np.asarray(temp_c) - 25.0))
+    """B_sat at temperature for arrays of materials: the same physics function the engine calls."""
+    return np.asarray(thermal.b_sat_at_temp_t(b25, b100, temp_c))
 
 
 def thermal_state_vec(ctx, total_loss_w, surface_m2):

@@ -438,13 +438,8 @@ def _layer_fr_wire(w: Wire, strands: int, turns: int, sb: SectionBuild, delta: f
 # ------------------------------------------------------------------------------------------------ helpers
 
 def b_sat_at_t(material: Material, temp_c: float) -> float:
-    """B_sat interpolated linearly between its 25 and 100 degC values, extrapolated beyond.
-
-    Extrapolation is held above 5 % of the 25 degC value: far past the Curie point the line would cross
-    zero, and a design that hot fails its temperature check anyway.
-    """
-    slope = (material.b_sat_100c_t - material.b_sat_25c_t) / 75.0
-    return max(0.05 * material.b_sat_25c_t, material.b_sat_25c_t + slope * (temp_c - 25.0))
+    """The material's B_sat at a temperature (physics.thermal.b_sat_at_temp_t on its catalogue points)."""
+    return thermal.b_sat_at_temp_t(material.b_sat_25c_t, material.b_sat_100c_t, temp_c)
 
 
 MAX_HOT_C = 1000.0   # the thermal loop stops here: a design this hot fails its checks, no need to iterate further

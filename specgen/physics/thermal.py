@@ -87,3 +87,27 @@ def class_limit_c(designation) -> int:
                              f"{IEC_60085_CLASSES[limit]}, not {letter.upper()}")
         limit = by_letter
     return limit
+
+
+def b_sat_at_temp_t(b_sat_25c_t, b_sat_100c_t, temp_c):
+    """Saturation flux density at a temperature, from the two catalogue points.
+
+    B_sat(T) = B25 + (B100 - B25) (T - 25) / 75, linear between 25 and 100 degC and extrapolated beyond,
+    held above 5 % of B25 (far past the Curie point the line would cross zero; a design that hot fails its
+    temperature check anyway). Vectorised.
+
+    Parameters
+    ----------
+    b_sat_25c_t, b_sat_100c_t : B_sat at 25 and 100 degC [T]
+    temp_c : temperature [degC]
+
+    References
+    ----------
+    Linear interpolation of the two temperatures a material's data gives (common practice); ferrite and
+    steel B_sat fall roughly linearly with temperature below the Curie point (e.g. Snelling, Soft
+    Ferrites, from memory).
+    """
+    b25 = np.asarray(b_sat_25c_t, dtype=float)
+    b100 = np.asarray(b_sat_100c_t, dtype=float)
+    out = np.maximum(0.05 * b25, b25 + (b100 - b25) / 75.0 * (np.asarray(temp_c, dtype=float) - 25.0))
+    return float(out) if out.ndim == 0 else out
