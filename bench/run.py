@@ -9,7 +9,6 @@ the issues; a ratio above target is printed as such, not hidden.
 from __future__ import annotations
 
 import os
-import statistics
 import subprocess
 import sys
 import time
@@ -20,20 +19,8 @@ PY = sys.executable
 DEMO = ROOT / "specgen" / "demo"
 RESULTS: list = []
 
-
-# a user's machine keeps bytecode caches; measure with them even where this shell disables writing them
-ENV = {k: v for k, v in os.environ.items() if k != "PYTHONDONTWRITEBYTECODE"}
-
-
-def wall(cmd: list, runs: int = 7, env=None) -> float:
-    env = env or ENV
-    subprocess.run(cmd, stdout=subprocess.DEVNULL, stderr=subprocess.DEVNULL, env=env, check=False)  # warm-up
-    times = []
-    for _ in range(runs):
-        t = time.perf_counter()
-        subprocess.run(cmd, stdout=subprocess.DEVNULL, stderr=subprocess.DEVNULL, env=env, check=False)
-        times.append(time.perf_counter() - t)
-    return statistics.median(times)
+sys.path.insert(0, str(ROOT / "bench"))
+from timing import wall  # noqa: E402
 
 
 def report(name: str, ratio: float, target: float | None, detail: str = "", higher_is_better=False) -> None:
@@ -102,7 +89,6 @@ def workorder_vs_weasyprint() -> None:
 
 
 def search() -> None:
-    sys.path.insert(0, str(ROOT / "bench"))
     try:
         import search_bench
     except ImportError:

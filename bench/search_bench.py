@@ -13,26 +13,14 @@ Run alone: ``.venv/bin/python bench/search_bench.py``.
 
 from __future__ import annotations
 
-import os
 import statistics
-import subprocess
 import sys
 import time
 from pathlib import Path
 
 ROOT = Path(__file__).resolve().parent.parent
 PY = sys.executable
-ENV = {k: v for k, v in os.environ.items() if k != "PYTHONDONTWRITEBYTECODE"}
-
-
-def _wall(cmd: list, runs: int = 7) -> float:
-    subprocess.run(cmd, stdout=subprocess.DEVNULL, stderr=subprocess.DEVNULL, env=ENV, check=False)  # warm-up
-    times = []
-    for _ in range(runs):
-        t = time.perf_counter()
-        subprocess.run(cmd, stdout=subprocess.DEVNULL, stderr=subprocess.DEVNULL, env=ENV, check=False)
-        times.append(time.perf_counter() - t)
-    return statistics.median(times)
+from timing import wall as _wall  # noqa: E402
 
 
 def _rate(ctx, repeats: int = 3) -> tuple:

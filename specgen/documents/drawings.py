@@ -379,20 +379,8 @@ def window_section(breadth_m: float, available_m: float, bulged_m: float, sectio
 
     # labels in a column to the right, leader lines to each section's middle
     lx = left + W + flange + 8
-    min_gap = 8.0
-    placed_y = []
-    for sec, colour, y in sorted(labels, key=lambda t: -t[2]):
-        y_label = y
-        if placed_y and placed_y[-1] - y_label < min_gap:
-            y_label = placed_y[-1] - min_gap
-        placed_y.append(y_label)
-        body.append(f'<path d="M{_n(left + W + 0.5)} {_n(y)} L{_n(lx - 1)} {_n(y_label - 1)}" stroke="{colour}" '
-                    f'stroke-width="0.3" fill="none"/>')
-        nl = len(sec.layers)
-        body.append(_t(lx, y_label, f"{sec.order}. {sec.label}: {sec.turns} t, {nl} layer{'s' if nl != 1 else ''}",
-                       3.5, weight="bold", fill=colour, cls="section-label"))
-        if sec.tape_after:
-            body.append(_t(lx, y_label + 4.0, f"then {sec.tape_after}", 3.0, fill="#444"))
+    # the outermost section is drawn highest: stack its label first, the rest below it
+    _section_labels(body, [(sec, colour, left + W, y) for sec, colour, y in labels], lx, upward=True)
     # scale bar: 5 mm
     bar = 5.0 * s if 5.0 * s <= 60 else 1.0 * s
     bar_mm = 5 if 5.0 * s <= 60 else 1
@@ -492,19 +480,7 @@ def toroid_sector(core_id_m: float, core_od_m: float, coating_m: float, availabl
         ep = P(r_face - bulged_m, half)
         body.append(_t(ep[0] + 2, ep[1] + 3.5, f"expected build {bulged_m * 1e3:.2f} mm", 3.0, fill="#444"))
     lx = left + real_w * s + 10
-    placed_y = []
-    for sec, colour, (x, y) in sorted(labels, key=lambda t: t[2][1]):
-        y_label = y
-        if placed_y and y_label - placed_y[-1] < 8.0:
-            y_label = placed_y[-1] + 8.0
-        placed_y.append(y_label)
-        body.append(f'<path d="M{_n(x + 0.5)} {_n(y)} L{_n(lx - 1)} {_n(y_label - 1)}" stroke="{colour}" '
-                    f'stroke-width="0.3" fill="none"/>')
-        nl = len(sec.layers)
-        body.append(_t(lx, y_label, f"{sec.order}. {sec.label}: {sec.turns} t, {nl} layer{'s' if nl != 1 else ''}",
-                       3.5, weight="bold", fill=colour, cls="section-label"))
-        if sec.tape_after:
-            body.append(_t(lx, y_label + 4.0, f"then {sec.tape_after}", 3.0, fill="#444"))
+    _section_labels(body, [(sec, colour, x, y) for sec, colour, (x, y) in labels], lx, upward=False)
     by = top + real_h * s + 10
     bar = 5.0 * s
     body.append(f'<path d="M{_n(left)} {_n(by)} h{_n(bar)} M{_n(left)} {_n(by - 1.2)} v2.4 M{_n(left + bar)} '
@@ -513,3 +489,28 @@ def toroid_sector(core_id_m: float, core_od_m: float, coating_m: float, availabl
     body.append(_t(left, by + 6.0, "The bore centre is below; the build grows inwards from the core.", 3.0,
                    fill="#444"))
     return _svg(width_mm, height, body, "toroid build, sector seen from above", "window-section"), s
+
+
+LABEL_GAP_MM = 8.0   # labels closer than this are pushed apart so their two lines never overlap
+
+
+def _section_labels(body: list, labels: list, lx: float, upward: bool) -> None:
+    """A column of section labels at x = lx, each with a leader line to (x, y) on its section.
+
+    labels: (section, colour, x, y). upward: labels stack from the bottom up (the bobbin window, outermost
+    section highest); else from the top down (the toroid sector).
+    """
+    sign = -1.0 if upward else 1.0
+    placed: list = []
+    for sec, colour, x, y in sorted(labels, key=lambda t: -sign * t[3]):
+        y_label = y
+        if placed and sign * (y_label - placed[-1]) < LABEL_GAP_MM:
+            y_label = placed[-1] + sign * LABEL_GAP_MM
+        placed.append(y_label)
+        body.append(f'<path d="M{_n(x + 0.5)} {_n(y)} L{_n(lx - 1)} {_n(y_label - 1)}" stroke="{colour}" '
+                    f'stroke-width="0.3" fill="none"/>')
+        nl = len(sec.layers)
+        body.append(_t(lx, y_label, f"{sec.order}. {sec.label}: {sec.turns} t, {nl} layer{'s' if nl != 1 else ''}",
+                       3.5, weight="bold", fill=colour, cls="section-label"))
+        if sec.tape_after:
+            body.append(_t(lx, y_label + 4.0, f"then {sec.tape_after}", 3.0, fill="#444"))
