@@ -150,3 +150,28 @@ def test_scale_is_the_largest_that_fits():
             assert w * s <= 112.0 + 1e-9 and h * s <= 95.0 + 1e-9
         assert all(w * x > 112.0 or h * x > 95.0 for x in bigger)
     assert dr.scale_text(2.5) == "2.5:1" and dr.scale_text(0.5) == "1:2"
+
+
+def _label_y(root) -> dict:
+    """y of each section label by its build order (the text starts 'N. ')."""
+    out = {}
+    for t in root.iter(f"{SVG}text"):
+        if t.get("class") == "section-label":
+            out[int("".join(t.itertext()).split(".")[0])] = float(t.get("y"))
+    return out
+
+
+@pytest.mark.parametrize("part", ["BH-2210", "BH-4120"])
+def test_section_labels_follow_the_build(built, part):
+    """Labels stand in the order the sections lie in the drawing: in a bobbin window the first section
+    is at the tube (bottom), so its label is lowest; in a toroid sector the first section lies against
+    the core (top), so its label is highest. Each label is at least one label height from the next."""
+    d, draw, cat = built[part]
+    y = _label_y(_parse(draw["window_svg"]))
+    order = [y[k] for k in sorted(y)]
+    assert len(order) == sum(len(w.sections) for w in d.windings)
+    steps = [b - a for a, b in zip(order, order[1:])]
+    if d.core.shape == "toroid":
+        assert all(s >= 7.99 for s in steps), order         # first section on top, then downwards
+    else:
+        assert all(s <= -7.99 for s in steps), order        # first section at the bottom, then upwards

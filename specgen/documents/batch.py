@@ -17,6 +17,7 @@ Workers are recycled after ``TASKS_PER_WORKER`` renders so a long batch does not
 
 from __future__ import annotations
 
+import contextlib
 import csv
 import io
 import os
@@ -174,8 +175,8 @@ def issue_batch(csv_path, *, out_dir=".", register_path=None, workers: int | Non
     reg_path = default_register_path(csv_path, register_path, shop_setting=cat.shop.register_path)
     bar = _Progress(len(ready), sys.stderr.isatty() if progress is None else progress)
     result = BatchResult(rows=rows, seconds=0.0, workers=workers)
-    with Register.open(reg_path) as reg:
-        # 2. numbers in row order
+    with (Register.open(reg_path) if ready else contextlib.nullcontext()) as reg:
+        # 2. numbers in row order (no row ready: the register is not even opened, so nothing is created)
         for row, spec_path, spec, design, qty, due, lot in ready:
             fmt = cat.shop.work_order_format.replace("{part}", design.part)
             row.number = reg.allocate(design.part, design.revision, design.fingerprint or "-", qty, lot, due,

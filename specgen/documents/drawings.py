@@ -502,7 +502,7 @@ def _section_labels(body: list, labels: list, lx: float, upward: bool) -> None:
     """
     sign = -1.0 if upward else 1.0
     placed: list = []
-    for sec, colour, x, y in sorted(labels, key=lambda t: -sign * t[3]):
+    for sec, colour, x, y in sorted(labels, key=lambda t: sign * t[3]):
         y_label = y
         if placed and sign * (y_label - placed[-1]) < LABEL_GAP_MM:
             y_label = placed[-1] + sign * LABEL_GAP_MM
