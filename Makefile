@@ -4,7 +4,7 @@ VENV   := .venv
 PY     := $(VENV)/bin/python
 STAMP  := $(VENV)/.installed
 
-.PHONY: demo test bench sysdeps install clean
+.PHONY: demo test lint bench sysdeps install clean
 
 # System libraries WeasyPrint needs (Pango, HarfBuzz, fontconfig) and the PDF tools the tests use.
 sysdeps:
@@ -24,6 +24,10 @@ demo: $(STAMP)
 
 test: $(STAMP)
 	$(PY) -m pytest
+
+# ruff (rules in pyproject.toml) over the package, tests, tools and benchmarks
+lint: $(STAMP)
+	$(VENV)/bin/ruff check specgen tests tools bench
 
 bench: $(STAMP)
 	$(PY) bench/run.py

@@ -37,10 +37,10 @@ def report(name: str, ratio: float, target: float | None, detail: str = "", high
 
 
 def imports_weasyprint(args: list) -> bool:
-    code = ("import sys, runpy; sys.argv=['specgen'] + %r\n"
+    code = (f"import sys, runpy; sys.argv=['specgen'] + {args!r}\n"
             "try:\n    runpy.run_module('specgen.cli', run_name='__main__')\n"
             "except SystemExit:\n    pass\n"
-            "print('WEASY' if 'weasyprint' in sys.modules else 'CLEAN', file=sys.stderr)" % (args,))
+            "print('WEASY' if 'weasyprint' in sys.modules else 'CLEAN', file=sys.stderr)")
     out = subprocess.run([PY, "-c", code], capture_output=True, text=True)
     return "WEASY" in out.stderr
 

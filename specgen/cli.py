@@ -9,7 +9,6 @@ from __future__ import annotations
 import importlib
 import sys
 from pathlib import Path
-from typing import Optional
 
 import typer
 
@@ -53,7 +52,7 @@ KINDS = {"wires": "wires", "wire": "wires", "cores": "cores", "core": "cores", "
 @catalog_app.command("list")
 @guarded
 def catalog_list(kind: str = typer.Argument(..., help="wires, cores, bobbins, materials, tapes, sleevings, varnishes"),
-                 catalog: Optional[Path] = CatalogOpt, as_json: bool = JsonOpt):
+                 catalog: Path | None = CatalogOpt, as_json: bool = JsonOpt):
     """List one kind of catalogue item."""
     from .catalog import views
     from .catalog.loader import load_catalog
@@ -71,7 +70,7 @@ def catalog_list(kind: str = typer.Argument(..., help="wires, cores, bobbins, ma
 
 @catalog_app.command("show")
 @guarded
-def catalog_show(item_id: str = typer.Argument(..., metavar="ID"), catalog: Optional[Path] = CatalogOpt,
+def catalog_show(item_id: str = typer.Argument(..., metavar="ID"), catalog: Path | None = CatalogOpt,
                  as_json: bool = JsonOpt):
     """Show one catalogue item with its computed properties and source."""
     from .catalog import views
@@ -87,8 +86,8 @@ def catalog_show(item_id: str = typer.Argument(..., metavar="ID"), catalog: Opti
 
 @catalog_app.command("check")
 @guarded
-def catalog_check(folder: Optional[Path] = typer.Argument(None, metavar="[DIR]"),
-                  catalog: Optional[Path] = CatalogOpt):
+def catalog_check(folder: Path | None = typer.Argument(None, metavar="[DIR]"),
+                  catalog: Path | None = CatalogOpt):
     """Validate a catalogue folder; every problem with its file and line (exit 2 if any)."""
     from .catalog.loader import check_catalog, resolve_catalog_dir
 
@@ -108,7 +107,7 @@ def catalog_check(folder: Optional[Path] = typer.Argument(None, metavar="[DIR]")
 
 @app.command("design")
 @guarded
-def design_cmd(spec: Path = typer.Argument(..., metavar="SPEC.yaml"), catalog: Optional[Path] = CatalogOpt,
+def design_cmd(spec: Path = typer.Argument(..., metavar="SPEC.yaml"), catalog: Path | None = CatalogOpt,
                as_json: bool = JsonOpt):
     """Run the whole calculation for one part and print it (exit 1 if a check fails)."""
     from .api import design_file
@@ -127,7 +126,7 @@ def design_cmd(spec: Path = typer.Argument(..., metavar="SPEC.yaml"), catalog: O
 @guarded
 def demo_cmd(out: Path = typer.Option(Path("specgen-demo"), "--out", metavar="DIR",
                                       help="Where to write the demo's documents."),
-             catalog: Optional[Path] = CatalogOpt):
+             catalog: Path | None = CatalogOpt):
     """Run the main job on the shipped demo shop: designs, work orders, quotes, a change summary."""
     from .demo import run_demo
 

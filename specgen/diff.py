@@ -27,10 +27,11 @@ import dataclasses
 import datetime as _dt
 import os
 import re
+from collections.abc import Callable, Iterable, Mapping
 from dataclasses import dataclass
 from decimal import ROUND_HALF_UP, Decimal
 from pathlib import Path
-from typing import Any, Callable, Iterable, Mapping
+from typing import Any
 
 from . import revision
 from .errors import DesignFailed, SpecError
@@ -381,7 +382,7 @@ class Side:
     recorded: str | None = None       # the fingerprint its history entry recorded
 
     @classmethod
-    def of(cls, loaded: Loaded) -> "Side":
+    def of(cls, loaded: Loaded) -> Side:
         d = loaded.design
         status = loaded.release.status
         ok = loaded.release.ok if status == "released" else None
@@ -705,7 +706,7 @@ def quote_costs(lot: int = DEFAULT_LOT) -> CostFunction:
     """Cost figures from the quote module (``specgen.quote.build_quote``), read not recomputed:
     material per unit, labor time per unit (without the lot's setup) and the unit price at a
     lot of ``lot``. Raises ImportError/AttributeError when the quote module is not there."""
-    from . import quote as q   # ImportError when this version has no quote module
+    from . import quote as q  # ImportError when this version has no quote module
 
     build = q.build_quote
 

@@ -10,13 +10,14 @@ asked for (a typo such as ``voltge``) is reported instead of ignored.
 from __future__ import annotations
 
 import os
+from collections.abc import Iterable
 from pathlib import Path
-from typing import Any, Iterable
+from typing import Any
 
 import yaml
 
-from .errors import SpecError
 from . import units as _units
+from .errors import SpecError
 
 MAX_FILE_BYTES = 4 * 1024 * 1024
 
@@ -300,7 +301,7 @@ class Reader:
             raise self.error(f"expected an amount of zero or more, got '{value}'", key)
         return out
 
-    def mapping(self, key: str, default: Any = _MISSING) -> "Reader | None":
+    def mapping(self, key: str, default: Any = _MISSING) -> Reader | None:
         value = self.raw(key, default)
         if value is default and default is not _MISSING:
             return value

@@ -62,9 +62,10 @@ Release
 from __future__ import annotations
 
 import datetime as _dt
+from collections.abc import Iterable
 from dataclasses import dataclass, field
 from decimal import ROUND_HALF_UP, Decimal, InvalidOperation
-from typing import Any, Iterable
+from typing import Any
 
 from .errors import DesignFailed, SpecError
 

@@ -73,11 +73,12 @@ import re
 import subprocess
 import sys
 import unicodedata
+from collections.abc import Mapping, Sequence
+from collections.abc import Set as AbstractSet
 from dataclasses import dataclass
 from decimal import Decimal
 from pathlib import Path
-from collections.abc import Set as AbstractSet
-from typing import Any, Mapping, Sequence
+from typing import Any
 
 from . import revision_letters as _letters
 from .atomic import write_atomic
@@ -427,8 +428,9 @@ class _Doc:
     """A spec's text with the node positions of its top-level keys."""
 
     def __init__(self, text: str, name: str):
-        from .loading import parse_yaml
         import yaml
+
+        from .loading import parse_yaml
 
         self.name = name
         self.bom = text.startswith(_BOM)
@@ -489,8 +491,9 @@ class _Doc:
 
     def style(self) -> tuple[int, int, int]:
         """(mapping indent, dash offset under its key, dash-to-key distance) the file uses."""
-        import yaml
         from collections import Counter
+
+        import yaml
 
         maps, offsets, dashes = Counter(), Counter(), Counter()
         stack, seen = [self.root], set()
@@ -865,7 +868,7 @@ def read_rev(spec_ref: str) -> tuple[str, str]:
     file's repository); the file need not exist in the work tree any more. Not a repository,
     an unknown revision or a file missing from it are SpecErrors of one line.
     """
-    from .loading import decode_text, read_text, MAX_FILE_BYTES
+    from .loading import MAX_FILE_BYTES, decode_text, read_text
 
     path_str, rev = split_ref(str(spec_ref))
     if rev is None:

@@ -63,7 +63,9 @@ import numpy as np
 from .catalog.models import Catalog
 from .errors import SpecError
 from .loading import Reader, load_yaml
-from .physics import coreloss, dowell, faraday, gap as gapmod, geometry, permeability, sizing, thermal, wire as wiremod
+from .physics import coreloss, dowell, faraday, geometry, permeability, sizing, thermal
+from .physics import gap as gapmod
+from .physics import wire as wiremod
 from .physics.layers import layer_fr
 
 KINDS = ("transformer", "inductor")
@@ -1252,7 +1254,7 @@ def _eval_transformer_rows(ctx: _Ctx, ci, oi: list, np_, t_start) -> dict:
 
     def copper(hot):
         total = np.zeros(rows)
-        for j, (w, opt, length, fr) in enumerate(zip(windings, opts, lengths, frs)):
+        for _j, (w, opt, length, fr) in enumerate(zip(windings, opts, lengths, frs)):
             i = state["ip"] if w.role == "primary" else w.load_current_a
             total += i * i * _resistance(opt, length, hot) * fr
         return total
@@ -2267,7 +2269,8 @@ def result_text(sr: SearchResult, currency: str = "") -> str:
         lines.append("Families with no feasible member")
         for f in sr.families:
             why = ", ".join(f"{k} ({v:,})" for k, v in sorted(f.reasons.items(), key=lambda kv: -kv[1]))
-            lines.append(f"  {f.family} ({f.cores} core{'s' if f.cores != 1 else ''}; core choices by reason of their closest candidate): {why}")
+            cores = f"{f.cores} core{'s' if f.cores != 1 else ''}"
+            lines.append(f"  {f.family} ({cores}; core choices by reason of their closest candidate): {why}")
             if f.detail:
                 lines.append(f"      {f.detail}")
     return "\n".join(lines).rstrip()

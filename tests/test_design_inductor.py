@@ -14,7 +14,8 @@ from scipy import constants, optimize
 
 from specgen.api import demo_specs, design_file, design_text
 from specgen.catalog.loader import load_catalog
-from specgen.physics import faraday, gap as gapmod, permeability
+from specgen.physics import faraday, permeability
+from specgen.physics import gap as gapmod
 
 U = pint.UnitRegistry()
 MU0 = constants.mu_0 * U.H / U.m          # scipy's CODATA mu0 (differs from 4e-7 pi by 5.5e-10)
@@ -94,7 +95,7 @@ def test_gapped_choke_turns_are_the_fewest_that_stay_below_b_max(choke, cat):
     limit = choke.b_limit_t
 
     def built_l(n):
-        fn = lambda lg: _mclyman_l(n, ae, le, mu_r, lg, g) - 47e-6   # noqa: E731
+        fn = lambda lg: _mclyman_l(n, ae, le, mu_r, lg, g) - 47e-6
         if fn(1e-7) < 0:
             return None                   # even (nearly) no gap is short of L
         lg = optimize.brentq(fn, 1e-7, 2 * g, xtol=1e-13)

@@ -142,6 +142,7 @@ def test_change_pdf_of_a_released_revision_pair_and_a_long_summary(tmp_path, cat
     """Rev B -> rev C made with the release command: the PDF holds both letters; a summary of
     two different parts (over a hundred changed rows) still fits one page, with a note."""
     from pypdf import PdfReader
+
     from specgen.documents.change_doc import write_change_pdf
     from specgen.revision import start_next_draft_file
 
@@ -254,7 +255,9 @@ def test_diff_unknown_git_revision(two_revisions):
 @git_only
 def test_demo_change_summary(tmp_path, git_env, cat, monkeypatch):
     import tempfile
+
     from pypdf import PdfReader
+
     from specgen.documents.change_doc import demo_change_summary
 
     scratch = tmp_path / "scratch"

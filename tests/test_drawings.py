@@ -97,7 +97,7 @@ def test_bobbin_cross_section_is_to_scale(built, part):
     avail = root.find(f".//{SVG}line[@class='available']")
     assert base - float(avail.get("y1")) == pytest.approx(d.build.available_m * 1e3 * scale, abs=0.02)
     # one drawn layer per layer of every section; circles: turns x strands, diameter to scale
-    groups = root.findall(f".//*[@class='layer']")
+    groups = root.findall(".//*[@class='layer']")
     expected_layers = sum(len(s.layers) for w in d.windings for s in w.sections)
     assert len(groups) == expected_layers
     by_label = {}
@@ -129,7 +129,7 @@ def test_toroid_sector_marks_the_smallest_hole_to_scale(built, part):
     avail = root.find(f".//{SVG}path[@class='available']")
     radius = float(re.search(r"A([\d.]+) ", avail.get("d")).group(1))
     assert radius == pytest.approx((r_face - d.build.available_m) * 1e3 * scale, abs=0.02)
-    layers = root.findall(f".//*[@class='layer']")
+    layers = root.findall(".//*[@class='layer']")
     assert len(layers) == sum(len(s.layers) for w in d.windings for s in w.sections)
 
 

@@ -9,7 +9,8 @@ import copy
 import math
 
 import yaml
-from hypothesis import HealthCheck, given, settings, strategies as st
+from hypothesis import HealthCheck, given, settings
+from hypothesis import strategies as st
 
 from specgen.api import demo_specs, design_text
 from specgen.catalog.loader import load_catalog

@@ -10,7 +10,6 @@ import json
 import math
 
 import pytest
-
 from golden_parts import GOLDEN_DIR, golden_designs
 
 REL = 1e-9

@@ -17,7 +17,8 @@ import shutil
 from pathlib import Path
 
 import pytest
-from conftest import blank_recorded_fingerprint, git as _git
+from conftest import blank_recorded_fingerprint
+from conftest import git as _git
 from typer.testing import CliRunner
 
 from specgen import api

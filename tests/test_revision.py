@@ -24,8 +24,8 @@ import string
 from decimal import Decimal
 
 import pytest
-from conftest import git as _git
 import yaml
+from conftest import git as _git
 
 from specgen import revision as rv
 from specgen.errors import SpecError
@@ -226,6 +226,7 @@ def test_fingerprint_changes_with_turns_catalog_entry_and_winding_order():
 
 def test_fingerprint_same_from_pyyaml_ruamel_and_project_loader():
     from ruamel.yaml import YAML
+
     from specgen.loading import parse_yaml
 
     text = DEMO_INDENTED

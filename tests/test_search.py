@@ -29,14 +29,16 @@ from types import SimpleNamespace
 
 import numpy as np
 import pytest
-from hypothesis import given, settings, strategies as st
+from hypothesis import given, settings
+from hypothesis import strategies as st
 
 from specgen import search as S
 from specgen.catalog.loader import load_catalog
 from specgen.design import engine
 from specgen.design.build import Former, wind_section
 from specgen.design.spec import load_spec_text
-from specgen.physics import dowell, geometry, thermal, wire as wiremod
+from specgen.physics import dowell
+from specgen.physics import wire as wiremod
 from specgen.physics.layers import layer_fr
 
 DEMO = Path(S.__file__).resolve().parent / "demo"

@@ -8,7 +8,6 @@ not hard-coded) and the key path, and there is no "Traceback".
 
 from __future__ import annotations
 
-import re
 import subprocess
 import sys
 from pathlib import Path

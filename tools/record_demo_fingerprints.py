@@ -13,8 +13,8 @@ from pathlib import Path
 
 sys.path.insert(0, str(Path(__file__).resolve().parent.parent))
 
-from specgen.api import demo_specs, design_file  # noqa: E402
-from specgen.atomic import write_atomic  # noqa: E402
+from specgen.api import demo_specs, design_file
+from specgen.atomic import write_atomic
 
 
 def main() -> None:

@@ -14,8 +14,20 @@ from pathlib import Path
 
 from ..errors import SpecError
 from ..loading import Reader, load_yaml
-from .models import (CORE_SHAPES, MATERIAL_FAMILIES, WIRE_KINDS, Bobbin, Catalog, Core, Material,
-                     Shop, Sleeving, Tape, Varnish, Wire)
+from .models import (
+    CORE_SHAPES,
+    MATERIAL_FAMILIES,
+    WIRE_KINDS,
+    Bobbin,
+    Catalog,
+    Core,
+    Material,
+    Shop,
+    Sleeving,
+    Tape,
+    Varnish,
+    Wire,
+)
 
 TOP_KEYS = ("wires", "cores", "bobbins", "materials", "tapes", "sleevings", "varnishes", "shop")
 

@@ -19,17 +19,17 @@ def guarded(fn):
             return fn(*args, **kwargs)
         except SpecError as err:
             typer.echo(str(err), err=True)
-            raise typer.Exit(2)
+            raise typer.Exit(2) from None
         except DesignFailed as err:
             typer.echo(f"refused: {err}", err=True)
             for ch in err.failed:
                 typer.echo(f"  FAIL {ch.code}: {ch.message}", err=True)
-            raise typer.Exit(1)
+            raise typer.Exit(1) from None
         except KeyboardInterrupt:
             typer.echo("interrupted", err=True)
-            raise typer.Exit(130)
+            raise typer.Exit(130) from None
         except BrokenPipeError:
-            raise typer.Exit(0)
+            raise typer.Exit(0) from None
 
     return wrapper
 

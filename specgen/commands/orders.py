@@ -9,7 +9,6 @@ from __future__ import annotations
 import json
 from collections.abc import Callable
 from pathlib import Path
-from typing import Optional
 
 import typer
 
@@ -26,7 +25,7 @@ _REGISTER_HELP = ("Register file (default: $SPECGEN_REGISTER, else specgen-regis
                   "in the current folder).")
 
 
-def _open(register: Optional[Path]) -> Register:
+def _open(register: Path | None) -> Register:
     # reading commands never create a register: a mistyped path must not look like an empty one
     return Register.open(default_register_path(explicit=register), create=False)
 
@@ -57,13 +56,13 @@ def _table(orders: list[Order]) -> str:
 
 @app.command("list")
 def list_orders(
-    part: Optional[str] = typer.Option(None, "--part", help="Only this part."),
-    revision: Optional[str] = typer.Option(None, "--revision", help="Only this revision."),
-    state: Optional[str] = typer.Option(None, "--state", help=f"Only this state: {', '.join(STATES)}."),
-    since: Optional[str] = typer.Option(None, "--since", help="Issued on or after this date (YYYY-MM-DD)."),
+    part: str | None = typer.Option(None, "--part", help="Only this part."),
+    revision: str | None = typer.Option(None, "--revision", help="Only this revision."),
+    state: str | None = typer.Option(None, "--state", help=f"Only this state: {', '.join(STATES)}."),
+    since: str | None = typer.Option(None, "--since", help="Issued on or after this date (YYYY-MM-DD)."),
     as_json: bool = typer.Option(False, "--json", help="Print JSON."),
     as_csv: bool = typer.Option(False, "--csv", help="Print CSV."),
-    register: Optional[Path] = typer.Option(None, "--register", help=_REGISTER_HELP),
+    register: Path | None = typer.Option(None, "--register", help=_REGISTER_HELP),
 ) -> None:
     """List work orders, oldest first."""
     def action() -> None:
@@ -86,7 +85,7 @@ def list_orders(
 def show(
     number: str = typer.Argument(..., help="Work-order number."),
     as_json: bool = typer.Option(False, "--json", help="Print JSON."),
-    register: Optional[Path] = typer.Option(None, "--register", help=_REGISTER_HELP),
+    register: Path | None = typer.Option(None, "--register", help=_REGISTER_HELP),
 ) -> None:
     """Show one work order with its files and state history."""
     def action() -> None:
@@ -121,8 +120,8 @@ def show(
 def set_state(
     number: str = typer.Argument(..., help="Work-order number."),
     state: str = typer.Argument(..., help=f"New state: {', '.join(STATES)}."),
-    why: Optional[str] = typer.Option(None, "--why", help="Reason (required for void)."),
-    register: Optional[Path] = typer.Option(None, "--register", help=_REGISTER_HELP),
+    why: str | None = typer.Option(None, "--why", help="Reason (required for void)."),
+    register: Path | None = typer.Option(None, "--register", help=_REGISTER_HELP),
 ) -> None:
     """Move a work order to another state (issued -> floor -> complete, or void with --why)."""
     def action() -> None:
@@ -136,9 +135,9 @@ def set_state(
 @app.command("where-used")
 def where_used(
     part: str = typer.Argument(..., help="Part number."),
-    revision: Optional[str] = typer.Option(None, "--revision", help="Only this revision."),
+    revision: str | None = typer.Option(None, "--revision", help="Only this revision."),
     as_json: bool = typer.Option(False, "--json", help="Print JSON."),
-    register: Optional[Path] = typer.Option(None, "--register", help=_REGISTER_HELP),
+    register: Path | None = typer.Option(None, "--register", help=_REGISTER_HELP),
 ) -> None:
     """Traceability: the work orders and lots built from a part or one revision (voids left out)."""
     def action() -> None:
@@ -167,7 +166,7 @@ def where_used(
 @app.command("export")
 def export(
     csv_file: Path = typer.Option(..., "--csv", help="CSV file to write (replaced atomically)."),
-    register: Optional[Path] = typer.Option(None, "--register", help=_REGISTER_HELP),
+    register: Path | None = typer.Option(None, "--register", help=_REGISTER_HELP),
 ) -> None:
     """Export every work order to a CSV file."""
     def action() -> None:

@@ -14,7 +14,6 @@ from __future__ import annotations
 import csv
 import io
 from pathlib import Path
-from typing import Optional
 
 import typer
 
@@ -32,11 +31,11 @@ def register(app) -> None:
                                 help="Quantity breaks, comma-separated whole numbers."),
         as_json: bool = typer.Option(False, "--json", help="Print the quote as JSON (no PDF unless --out)."),
         as_csv: bool = typer.Option(False, "--csv", help="Print one CSV row per quantity break (no PDF unless --out)."),
-        out: Optional[Path] = typer.Option(None, "--out", metavar="DIR",
+        out: Path | None = typer.Option(None, "--out", metavar="DIR",
                                            help="Folder for the PDF and HTML (default: current folder)."),
-        nre: Optional[str] = typer.Option(None, "--nre", metavar="AMOUNT", help="One-time tooling / NRE charge."),
+        nre: str | None = typer.Option(None, "--nre", metavar="AMOUNT", help="One-time tooling / NRE charge."),
         valid_days: str = typer.Option("30", "--valid-days", metavar="N", help="Days the quote is valid."),
-        catalog: Optional[Path] = typer.Option(None, "--catalog", envvar="SPECGEN_CATALOG", metavar="DIR",
+        catalog: Path | None = typer.Option(None, "--catalog", envvar="SPECGEN_CATALOG", metavar="DIR",
                                                help="Catalogue folder (default: the one shipped with specgen)."),
     ):
         """Quote a part: unit and extended price per quantity break, copper sensitivity, a PDF."""
@@ -44,8 +43,15 @@ def register(app) -> None:
         from ..catalog.loader import load_catalog
         from ..design.spec import load_spec
         from ..errors import SpecError
-        from ..quote import (CSV_FIELDS, build_quote, parse_amount, parse_days, parse_quantities,
-                             quote_csv_rows, quote_table)
+        from ..quote import (
+            CSV_FIELDS,
+            build_quote,
+            parse_amount,
+            parse_days,
+            parse_quantities,
+            quote_csv_rows,
+            quote_table,
+        )
 
         if as_json and as_csv:
             raise SpecError("choose one of --json or --csv", path="--json")
@@ -78,7 +84,7 @@ def register(app) -> None:
                 typer.echo(f"wrote {path}", err=bool(as_json or as_csv))
 
 
-def _out_dir(out: Optional[Path]) -> Path:
+def _out_dir(out: Path | None) -> Path:
     from ..errors import SpecError
 
     folder = Path(out) if out is not None else Path.cwd()

@@ -8,12 +8,11 @@ Exit codes: 0 success; 1 a design check fails (release) or a release record does
 from __future__ import annotations
 
 from pathlib import Path
-from typing import List, Optional
 
 import typer
 
-from ._common import guarded, print_json
 from ..errors import SpecError
+from ._common import guarded, print_json
 
 _CatalogOpt = typer.Option(None, "--catalog", envvar="SPECGEN_CATALOG", metavar="DIR",
                            help="Catalogue folder (default: the one shipped with specgen).")
@@ -29,11 +28,11 @@ def register(app) -> None:
         spec: Path = typer.Argument(..., metavar="SPEC.yaml"),
         by: str = typer.Option(..., "--by", metavar="NAME", help="Who releases it."),
         note: str = typer.Option(..., "--note", metavar="TEXT", help="What changed in this revision."),
-        date: Optional[str] = typer.Option(None, "--date", metavar="YYYY-MM-DD",
+        date: str | None = typer.Option(None, "--date", metavar="YYYY-MM-DD",
                                            help="Release date (default: today)."),
         commit: bool = typer.Option(False, "--commit",
                                     help="Commit just this file and tag it PART-rev-X (never pushes)."),
-        catalog: Optional[Path] = _CatalogOpt,
+        catalog: Path | None = _CatalogOpt,
     ):
         """Release a spec: refuse if a design check fails, set the next revision letter, record
         the fingerprint in its history (comments and formatting kept)."""
@@ -47,9 +46,9 @@ def register(app) -> None:
     @app.command("verify")
     @guarded
     def verify_cmd(
-        paths: List[Path] = typer.Argument(..., metavar="PATH...",
+        paths: list[Path] = typer.Argument(..., metavar="PATH...",
                                            help="Spec files, or folders searched for specs."),
-        catalog: Optional[Path] = _CatalogOpt,
+        catalog: Path | None = _CatalogOpt,
         as_json: bool = _JsonOpt,
     ):
         """Check every released spec against the fingerprint recorded at its release (for CI):
@@ -80,11 +79,11 @@ def register(app) -> None:
         old: str = typer.Argument(..., metavar="OLD", help="A spec file or FILE@GITREV."),
         new: str = typer.Argument(..., metavar="NEW", help="A spec file or FILE@GITREV."),
         as_json: bool = _JsonOpt,
-        pdf: Optional[Path] = typer.Option(None, "--pdf", metavar="FILE",
+        pdf: Path | None = typer.Option(None, "--pdf", metavar="FILE",
                                            help="Also write a one-page change summary PDF."),
         qty: int = typer.Option(100, "--qty", metavar="N", min=1, max=1_000_000,
                                 help="Lot size for the unit price compared (default 100)."),
-        catalog: Optional[Path] = _CatalogOpt,
+        catalog: Path | None = _CatalogOpt,
     ):
         """Compare two revisions of a spec: the changed inputs and the changed shop-floor results
         (turns, wire, layers, lengths, DCR limits, hipot, materials, cost), each old -> new."""
@@ -94,7 +93,7 @@ def register(app) -> None:
         cat = load_catalog(catalog)
         summary = compare_refs(old, new, cat, lot=qty)
         if pdf is not None:
-            from ..documents.change_doc import write_change_pdf   # WeasyPrint only when asked
+            from ..documents.change_doc import write_change_pdf  # WeasyPrint only when asked
 
             write_change_pdf(summary, pdf)
         if as_json:
@@ -109,7 +108,7 @@ def register(app) -> None:
     def new_cmd(
         part: str = typer.Argument(..., metavar="PART", help="The part number, e.g. BH-6001."),
         kind: str = typer.Option(..., "--kind", metavar="transformer|inductor"),
-        out: Optional[Path] = typer.Option(None, "--out", metavar="FILE",
+        out: Path | None = typer.Option(None, "--out", metavar="FILE",
                                            help="Where to write it (default: PART.yaml here)."),
     ):
         """Write a commented starter spec (revision A, draft) that designs as it is."""

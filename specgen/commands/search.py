@@ -9,7 +9,6 @@ from __future__ import annotations
 
 import sys
 from pathlib import Path
-from typing import Optional
 
 import typer
 
@@ -26,22 +25,22 @@ def register(app) -> None:
         top: int = typer.Option(5, "--top", metavar="N", help="How many candidates to list."),
         sort: str = typer.Option("cost", "--sort", metavar="KEY", help="cost, loss, size or rise."),
         as_json: bool = typer.Option(False, "--json", help="Print the result as JSON."),
-        write: Optional[Path] = typer.Option(None, "--write", metavar="PART.yaml",
+        write: Path | None = typer.Option(None, "--write", metavar="PART.yaml",
                                              help="Write the chosen candidate as a draft spec (never overwrites)."),
         pick: int = typer.Option(1, "--pick", metavar="N", help="Which listed candidate --write takes (1 = best)."),
-        part: Optional[str] = typer.Option(None, "--part", help="Part number of the written spec (default: the "
+        part: str | None = typer.Option(None, "--part", help="Part number of the written spec (default: the "
                                                                "requirement's part:, else the file name)."),
         per_core: int = typer.Option(2, "--per-core", metavar="N",
                                      help="At most this many listed candidates per core/stack/bobbin."),
         progress: bool = typer.Option(False, "--progress", help="Show the progress bar even when stderr is not a "
                                                                "terminal."),
-        catalog: Optional[Path] = typer.Option(None, "--catalog", envvar="SPECGEN_CATALOG", metavar="DIR",
+        catalog: Path | None = typer.Option(None, "--catalog", envvar="SPECGEN_CATALOG", metavar="DIR",
                                                help="Catalogue folder (default: the one shipped with specgen)."),
     ):
         """Search every core x stack x wire choice in the catalogue for a requirement (exit 1 if none fits)."""
+        from .. import search as lib
         from ..catalog.loader import load_catalog
         from ..errors import SpecError
-        from .. import search as lib
 
         if sort not in lib.SORTS:
             raise SpecError(f"unknown sort '{sort}'; one of {', '.join(lib.SORTS)}", path="--sort")

@@ -13,7 +13,6 @@ that no longer matches its release record.
 from __future__ import annotations
 
 from pathlib import Path
-from typing import Optional
 
 import typer
 
@@ -26,27 +25,27 @@ def register(app) -> None:
     @app.command("workorder")
     @guarded
     def workorder_cmd(
-        spec: Optional[Path] = typer.Argument(None, metavar="SPEC.yaml", help="The part's spec file."),
-        qty: Optional[str] = typer.Option(None, "--qty", metavar="N", help="Pieces in the lot (1..1,000,000)."),
-        batch: Optional[Path] = typer.Option(None, "--batch", metavar="ORDERS.csv",
+        spec: Path | None = typer.Argument(None, metavar="SPEC.yaml", help="The part's spec file."),
+        qty: str | None = typer.Option(None, "--qty", metavar="N", help="Pieces in the lot (1..1,000,000)."),
+        batch: Path | None = typer.Option(None, "--batch", metavar="ORDERS.csv",
                                              help="Issue every row of a CSV (spec,qty,due,lot) in parallel."),
-        workers: Optional[int] = typer.Option(None, "--workers", metavar="N",
+        workers: int | None = typer.Option(None, "--workers", metavar="N",
                                               help="With --batch: worker processes (default: one per CPU)."),
-        progress: Optional[bool] = typer.Option(None, "--progress/--no-progress",
+        progress: bool | None = typer.Option(None, "--progress/--no-progress",
                                                 help="With --batch: show a progress bar (default: on a terminal)."),
-        due: Optional[str] = typer.Option(None, "--due", metavar="YYYY-MM-DD", help="Due date."),
-        lot: Optional[str] = typer.Option(None, "--lot", metavar="TEXT", help="Lot or batch reference."),
+        due: str | None = typer.Option(None, "--due", metavar="YYYY-MM-DD", help="Due date."),
+        lot: str | None = typer.Option(None, "--lot", metavar="TEXT", help="Lot or batch reference."),
         out: Path = typer.Option(Path("."), "--out", metavar="DIR", help="Folder for the PDF and HTML."),
         draft: bool = typer.Option(False, "--draft",
                                    help="Allow a spec that is not released: every page is marked "
                                         "'DRAFT - NOT FOR PRODUCTION' and the number is recorded void."),
-        register_path: Optional[Path] = typer.Option(
+        register_path: Path | None = typer.Option(
             None, "--register", metavar="PATH",
             help="Work-order register (default: $SPECGEN_REGISTER, else specgen-register.sqlite beside the spec)."),
-        number: Optional[str] = typer.Option(None, "--number", metavar="NUM",
+        number: str | None = typer.Option(None, "--number", metavar="NUM",
                                              help="Use this number (from the ERP) instead of the next one."),
-        by: Optional[str] = typer.Option(None, "--by", metavar="NAME", help="Who issues it (default: login name)."),
-        catalog: Optional[Path] = typer.Option(None, "--catalog", envvar="SPECGEN_CATALOG", metavar="DIR",
+        by: str | None = typer.Option(None, "--by", metavar="NAME", help="Who issues it (default: login name)."),
+        catalog: Path | None = typer.Option(None, "--catalog", envvar="SPECGEN_CATALOG", metavar="DIR",
                                                help="Catalogue folder (default: the one shipped with specgen)."),
     ):
         """Issue a work order: winding instructions, drawings and test sheet for the floor."""

@@ -29,7 +29,8 @@ import numpy as np
 
 from ..catalog.models import Catalog, Core, Material, Wire
 from ..errors import SpecError
-from ..physics import coreloss, dowell, geometry, thermal, wire as wiremod
+from ..physics import coreloss, dowell, geometry, thermal
+from ..physics import wire as wiremod
 from ..physics.layers import layer_fr, leakage_inductance_h
 from .build import Former, SectionBuild, tape_factor, wind_section
 from .result import Build, CoreResult, Design, InductorResult, Losses, Section, WindingResult
@@ -187,7 +188,7 @@ def _check_pins(spec: Spec, parts: _Parts) -> None:
             if pin is not None and pin not in pins:
                 raise _spec_error(spec, f"pin '{pin}' is not on bobbin {parts.bobbin.id} "
                                         f"(pins {_pin_range(parts.bobbin.pins)})", "windings", i, key)
-        for j, pin in enumerate(w.section_pins):
+        for _j, pin in enumerate(w.section_pins):
             if pin not in pins:
                 raise _spec_error(spec, f"tie pin '{pin}' is not on bobbin {parts.bobbin.id} "
                                         f"(pins {_pin_range(parts.bobbin.pins)})", "windings", i, "section_pins")
@@ -371,7 +372,7 @@ def _section_frs(built: _Built, freq_hz: float, temp_c: float, waveform: str, si
     deltas = delta_cu / np.sqrt(harmonics)
     mmf = 0.0
     out = {}
-    for st, k, order, sb, margin, _t, _l in built.sections:
+    for st, k, _order, sb, _margin, _t, _l in built.sections:
         current = st.current_a * signs.get(st.spec.name, 1.0)
         w = st.wire
         sec_loss = 0.0
@@ -399,7 +400,7 @@ def leakage_h(built: _Built, former: Former, currents: dict, ref: str) -> float:
     mmf = 0.0
     h = 0.0
     breadths = []
-    for st, k, order, sb, *_ in built.sections:
+    for st, _k, _order, sb, *_ in built.sections:
         current = currents.get(st.spec.name, 0.0)
         breadths.append(sb.usable_breadth_m)
         for layer in sb.layers:
@@ -479,7 +480,7 @@ def _dcr(st: _WState, length_m: float, temp_c: float) -> float:
 
 def _lengths(built: _Built, lead_m: float) -> dict:
     out: dict = {}
-    for st, k, order, sb, *_ in built.sections:
+    for st, _k, _order, sb, *_ in built.sections:
         out[st.spec.name] = out.get(st.spec.name, 0.0) + sb.copper_length_m
     for name in out:
         out[name] += 2 * lead_m

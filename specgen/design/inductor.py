@@ -13,9 +13,22 @@ from __future__ import annotations
 import math
 
 from ..catalog.models import Catalog
-from ..physics import gap as gapmod, permeability
-from .engine import (_Parts, _Thermal, _WState, _core_loss_w_m3, _flux_limit, _lay_out, _section_frs,
-                     _spec_error, choose_wire, finish, thermal_state, too_many_turns)
+from ..physics import gap as gapmod
+from ..physics import permeability
+from .engine import (
+    _core_loss_w_m3,
+    _flux_limit,
+    _lay_out,
+    _Parts,
+    _section_frs,
+    _spec_error,
+    _Thermal,
+    _WState,
+    choose_wire,
+    finish,
+    thermal_state,
+    too_many_turns,
+)
 from .result import Check, Design, InductorResult
 from .spec import MAX_TURNS, Spec
 

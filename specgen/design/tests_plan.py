@@ -165,7 +165,7 @@ def materials_per_unit(spec, cat, parts, built, windings, core) -> list:
             return wraps * mean_c / (width * TOROID_TAPE_OVERLAP) * mlt
         return wraps * (mlt + TAPE_OVERLAP_M)
 
-    for st, k, order, sb, margin, tape_id, tape_layers in built.sections:
+    for _st, _k, _order, sb, margin, tape_id, tape_layers in built.sections:
         if spec.layer_tape and len(sb.layers) > 1:
             for layer in sb.layers[:-1]:
                 add_tape(spec.layer_tape.tape, wrap_length(spec.layer_tape.tape, layer.mlt_m, spec.layer_tape.layers))
@@ -193,7 +193,7 @@ def materials_per_unit(spec, cat, parts, built, windings, core) -> list:
     if spec.varnish:
         v = cat.varnishes[spec.varnish]
         volume = 0.0
-        for st, k, order, sb, *_ in built.sections:
+        for _st, _k, _order, sb, *_ in built.sections:
             for layer in sb.layers:
                 volume += layer.turns_capacity * sb.pitch_m * sb.layer_height_m * layer.mlt_m
         out.append(MaterialLine("varnish", v.id, v.name, volume * v.usage_m3_per_m3 * 1e3, "l", None,

@@ -7,9 +7,24 @@ from dataclasses import dataclass
 
 from ..catalog.models import Catalog
 from ..physics import faraday
-from .engine import (_Built, _Parts, _Thermal, _WState, _core_loss_w_m3, _dcr, _flux_limit, _lay_out,
-                     _lengths, _section_frs, _spec_error, choose_wire, finish, leakage_h, thermal_state,
-                     too_many_turns)
+from .engine import (
+    _Built,
+    _core_loss_w_m3,
+    _dcr,
+    _flux_limit,
+    _lay_out,
+    _lengths,
+    _Parts,
+    _section_frs,
+    _spec_error,
+    _Thermal,
+    _WState,
+    choose_wire,
+    finish,
+    leakage_h,
+    thermal_state,
+    too_many_turns,
+)
 from .result import Check, Design
 from .spec import MAX_TURNS, Spec
 
@@ -81,14 +96,14 @@ def design_transformer(spec: Spec, cat: Catalog, parts: _Parts) -> Design:
             return prim.turns
         n = faraday.turns_for_voltage(vp_max, f, swing_limit(b_limit[0]), parts.ae_m2, wf, spec.duty)
         if not n < MAX_TURNS:
-            raise too_many_turns(spec, n, f"the primary at {vp_max:g} V, {f:g} Hz", "windings", 
+            raise too_many_turns(spec, n, f"the primary at {vp_max:g} V, {f:g} Hz", "windings",
                                  spec.windings.index(prim), "voltage")
         return max(1, math.ceil(n - 1e-9))
 
     wires: dict = {}
 
     def pick_wires(ip: float) -> None:
-        for i, w in enumerate(spec.windings):
+        for _i, w in enumerate(spec.windings):
             current = ip if w.role == "primary" else load_current.get(w.name, 0.0)
             if not w.wire.startswith("auto"):
                 wire = cat.wires[w.wire]

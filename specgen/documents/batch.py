@@ -177,7 +177,7 @@ def issue_batch(csv_path, *, out_dir=".", register_path=None, workers: int | Non
     result = BatchResult(rows=rows, seconds=0.0, workers=workers)
     with (Register.open(reg_path) if ready else contextlib.nullcontext()) as reg:
         # 2. numbers in row order (no row ready: the register is not even opened, so nothing is created)
-        for row, spec_path, spec, design, qty, due, lot in ready:
+        for row, _spec_path, _spec, design, qty, due, lot in ready:
             fmt = cat.shop.work_order_format.replace("{part}", design.part)
             row.number = reg.allocate(design.part, design.revision, design.fingerprint or "-", qty, lot, due,
                                       issued_by=by, fmt=fmt)

@@ -153,8 +153,8 @@ def demo_change_summary(out_dir, cat, echo=print):
     or None (with a message) when git is not installed.
     """
     from ..api import demo_specs
-    from ..diff import compare_refs, load_ref, release_spec, summary_text
     from ..atomic import write_atomic
+    from ..diff import compare_refs, load_ref, release_spec, summary_text
     from ..revision import start_next_draft_file
 
     if shutil.which("git") is None:

@@ -21,8 +21,8 @@ from pathlib import Path
 
 sys.path.insert(0, str(Path(__file__).resolve().parents[2]))
 
-from specgen import atomic, register  # noqa: E402
-from specgen.register import Register  # noqa: E402
+from specgen import atomic, register
+from specgen.register import Register
 
 
 def stop(message: str) -> None:
