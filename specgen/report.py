@@ -3,7 +3,7 @@
 from __future__ import annotations
 
 from .design.result import Design
-from .physics_classes import IEC_60085
+from .standards.thermal_classes import class_label
 
 
 def _table(headers: list, rows: list, align: str | None = None) -> str:
@@ -119,7 +119,7 @@ def design_report(d: Design) -> str:
     rows = [["copper", f"{l.copper_w:.3f} W"], ["core", f"{l.core_w:.3f} W ({l.core_loss_density_w_m3 / 1e3:.1f} kW/m³)"],
             ["total", f"{l.total_w:.3f} W"],
             ["rise / hot spot", f"{d.temperature_rise_k:.1f} K / {d.hot_spot_c:.1f} °C "
-                                f"(class {d.insulation_class_c} ({IEC_60085.get(d.insulation_class_c, '?')}))"]]
+                                f"(class {class_label(d.insulation_class_c)})"]]
     if d.efficiency is not None:
         rows.append(["efficiency", f"{d.efficiency * 100:.2f} %"])
     if d.regulation_pct is not None:

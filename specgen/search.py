@@ -193,7 +193,7 @@ def _text(r: Reader, key: str):
 def parse_requirement(data, name: str) -> Requirement:
     """The requirement file's mapping -> Requirement; every mistake a located SpecError."""
     from .design.spec import COOLING, WAVEFORMS, _insulation_class
-    from .physics_classes import IEC_60085
+    from .standards.thermal_classes import LETTER_BY_LIMIT as IEC_60085
 
     r = Reader(data, name)
     r.done(TOP_KEYS)             # a typo is named as such before a key it hides is reported missing

@@ -11,9 +11,7 @@ an EI lamination, and a 100 uH, 5 A output choke on a gapped ferrite ETD core.
 
 from __future__ import annotations
 
-import json
 import os
-import re
 from pathlib import Path
 
 from .errors import SpecError
@@ -154,16 +152,11 @@ history: []                  # release records; `specgen release` appends to it,
 _TITLES = {"transformer": "Control transformer 230 V 50 Hz to 24 V, 24 VA (example, edit it)",
            "inductor": "Output choke 100 uH at 5 A DC, 100 kHz ripple (example, edit it)"}
 
-_PLAIN_PART = re.compile(r"[A-Za-z0-9][A-Za-z0-9._+-]*")
-
-
 def _check_part(part: str) -> str:
-    text = str(part).strip()
-    if not text:
-        raise SpecError("the part number is empty", path="PART")
-    if len(text) > 60 or any(c in text for c in "\r\n\t\0"):
-        raise SpecError("a part number is one line of at most 60 characters", path="PART")
-    return text
+    """The one part-number rule (``specgen.part_numbers``): what ``new`` writes, ``design`` accepts."""
+    from .part_numbers import check_part_number
+
+    return check_part_number(part, path="PART")
 
 
 def starter_text(part: str, kind: str, file_name: str | None = None) -> str:
@@ -172,18 +165,14 @@ def starter_text(part: str, kind: str, file_name: str | None = None) -> str:
     if kind not in KINDS:
         raise SpecError(f"kind must be one of {', '.join(KINDS)}, got '{kind}'", path="--kind")
     file_name = file_name or f"{part}.yaml"
-    part_yaml = part if _PLAIN_PART.fullmatch(part) else json.dumps(part, ensure_ascii=False)
     head = _HEAD.format(part=part, kind=kind, file=file_name, title=_TITLES[kind],
-                        part_line=f"part: {part_yaml} ".ljust(29),
+                        part_line=f"part: {part} ".ljust(29),
                         kind_line=f"kind: {kind} ".ljust(29))
     return head + (_TRANSFORMER if kind == "transformer" else _INDUCTOR)
 
 
 def default_path(part: str) -> Path:
-    part = _check_part(part)
-    if not _PLAIN_PART.fullmatch(part):
-        raise SpecError(f"'{part}' does not make a plain file name; give one with --out", path="PART")
-    return Path(f"{part}.yaml")
+    return Path(f"{_check_part(part)}.yaml")
 
 
 def write_starter(part: str, kind: str, out: str | os.PathLike | None = None) -> Path:

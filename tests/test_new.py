@@ -10,6 +10,7 @@ Part numbers are invented demo data (Brindle Hollow Coil Works).
 
 from __future__ import annotations
 
+import json
 import re
 
 import pytest
@@ -103,16 +104,22 @@ def test_new_default_path_and_bad_input(tmp_path, monkeypatch):
     r = cli("new", "BH-7201", "--kind", "reactor")
     assert r.exit_code == 2 and "--kind" in r.stderr
     r = cli("new", "BH 72/02", "--kind", "inductor")
-    assert r.exit_code == 2 and "--out" in r.stderr
+    assert r.exit_code == 2 and "letters, digits" in r.stderr
     r = cli("new", "BH-7203", "--kind", "inductor", "--out", tmp_path / "no" / "such" / "x.yaml")
     assert r.exit_code == 2 and "no such folder" in r.stderr
 
 
-def test_odd_part_number_is_quoted(tmp_path):
-    from ruamel.yaml import YAML
+@pytest.mark.parametrize("part", ["BH 6001", "BH+6001", "BH/6001", "-BH6001", "x" * 61, "two\nlines"])
+def test_new_refuses_what_design_refuses(tmp_path, part):
+    """One part-number rule: `new` refuses with the very message `design` gives for the same part."""
+    from specgen.design.spec import load_spec_text
 
-    out = tmp_path / "odd.yaml"
-    write_starter("BH 72/02: rev?", "transformer", out)
-    assert YAML(typ="safe", pure=True).load(out.read_text())["part"] == "BH 72/02: rev?"
-    with pytest.raises(SpecError):
-        write_starter("two\nlines", "transformer", tmp_path / "x.yaml")
+    with pytest.raises(SpecError) as new_err:
+        write_starter(part, "transformer", tmp_path / "x.yaml")
+    good = write_starter("BH-6001", "transformer", tmp_path / "ok.yaml").read_text()
+    text = good.replace("part: BH-6001", "part: " + json.dumps(part), 1)
+    with pytest.raises(SpecError) as design_err:
+        load_spec_text(text, "x.yaml")
+    assert design_err.value.path == "part" and new_err.value.path == "PART"
+    assert new_err.value.message == design_err.value.message
+    assert not (tmp_path / "x.yaml").exists()

@@ -86,12 +86,13 @@ def _pct(r: Reader, key: str, default=None) -> Decimal:
 
 
 def _thermal_class(r: Reader, key: str = "thermal_class") -> int:
-    from ..physics_classes import IEC_60085
+    from ..standards.thermal_classes import parse_thermal_class
 
-    value = r.integer(key)
-    if value not in IEC_60085:
-        raise r.error(f"{value} is not an IEC 60085 thermal class ({', '.join(str(c) for c in IEC_60085)})", key)
-    return value
+    value = r.raw(key)
+    try:
+        return parse_thermal_class(value)
+    except ValueError as err:
+        raise r.error(str(err), key) from None
 
 
 def _plain(data):

@@ -8,7 +8,7 @@ from __future__ import annotations
 import math
 
 from ..physics import wire as wiremod
-from ..physics_classes import IEC_60085
+from ..standards.thermal_classes import LETTER_BY_LIMIT as IEC_60085
 from .result import Check
 
 KU_WARN_BOBBIN = 0.40        # window utilisation a bobbin winder reaches without trouble (common practice)

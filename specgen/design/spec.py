@@ -30,7 +30,6 @@ STATUSES = ("draft", "released", "obsolete")
 COOLING = ("natural", "forced", "potted")
 RATINGS = ("functional", "basic", "supplementary", "double", "reinforced")
 MAX_TURNS = 20000
-_PART_RE = __import__("re").compile(r"^[A-Za-z0-9][A-Za-z0-9._-]{0,59}$")
 
 
 @dataclass(frozen=True)
@@ -189,10 +188,8 @@ def parse_spec(data, name: str) -> Spec:
     core = r.mapping("core")
     op = r.mapping("operating")
     waveform = op.choice("waveform", WAVEFORMS, "sine")
-    from ..physics_classes import IEC_60085
-
     ins_class = op.raw("insulation_class", 130)
-    cls = _insulation_class(op, ins_class, IEC_60085)
+    cls = _insulation_class(op, ins_class)
     freq = op.quantity("frequency", "frequency")
     if freq > 50e6:
         raise op.error("frequency above 50 MHz is outside what this tool models", "frequency")
@@ -267,10 +264,11 @@ def parse_spec(data, name: str) -> Spec:
         raise r.error("only an inductor has an 'inductor' section", "inductor")
 
     stack = core.quantity("stack", "length", None)
-    part = r.text("part", max_len=60).strip()
-    if not _PART_RE.match(part):
-        raise r.error(f"part number '{part}' may hold letters, digits, '.', '_' and '-' only (it names "
-                      f"the files written for it)", "part")
+    from ..part_numbers import part_number_problem
+
+    part = r.text("part").strip()
+    if (problem := part_number_problem(part)) is not None:
+        raise r.error(problem, "part")
     spec = Spec(
         file=name, part=part, title=r.text("title", "", max_len=200),
         revision=r.text("revision", "", max_len=4).strip().upper(),
@@ -290,14 +288,15 @@ def parse_spec(data, name: str) -> Spec:
     return spec
 
 
-def _insulation_class(r: Reader, value, table) -> int:
-    text = str(value).strip().upper()
-    for num, letter in table.items():
-        if text in (str(num), letter, f"{num} ({letter})", f"{num}({letter})", f"CLASS {letter}", f"CLASS {num}"):
-            return num
-    r.raw("insulation_class", None)
-    raise r.error(f"'{value}' is not an IEC 60085 thermal class "
-                  f"({', '.join(f'{n} ({l})' for n, l in table.items())})", "insulation_class")
+def _insulation_class(r: Reader, value, table=None) -> int:
+    """The IEC 60085 class limit [degC] of ``value`` (``table`` is ignored; kept for old callers)."""
+    from ..standards.thermal_classes import parse_thermal_class
+
+    try:
+        return parse_thermal_class(value)
+    except ValueError as err:
+        r.raw("insulation_class", None)
+        raise r.error(str(err), "insulation_class") from None
 
 
 def _build_order(r: Reader, windings) -> tuple:

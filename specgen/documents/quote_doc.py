@@ -30,12 +30,9 @@ def _pct_change(factor: Decimal) -> str:
 
 def _thermal_class(class_c) -> str:
     """'130 (B)': the IEC 60085 class with its letter."""
-    from ..physics_classes import IEC_60085
+    from ..standards.thermal_classes import class_label
 
-    if class_c is None:
-        return "-"
-    letter = IEC_60085.get(int(class_c))
-    return f"{class_c} ({letter})" if letter else f"{class_c} °C"
+    return class_label(class_c)
 
 
 def quote_context(q: Quote) -> dict:

@@ -2,13 +2,13 @@
 
 from __future__ import annotations
 
-import re
-
 import numpy as np
 
-# IEC 60085 thermal classes: limit [degC] -> letter
-IEC_60085_CLASSES = {90: "Y", 105: "A", 120: "E", 130: "B", 155: "F", 180: "H", 200: "N", 220: "R"}
-_BY_LETTER = {letter: limit for limit, letter in IEC_60085_CLASSES.items()}
+# IEC 60085 thermal classes live in specgen.standards.thermal_classes (one table, one parser);
+# the names below stay for callers of this module.
+from ..standards.thermal_classes import LETTER_BY_LIMIT as IEC_60085_CLASSES  # noqa: F401
+from ..standards.thermal_classes import class_letter  # noqa: F401
+from ..standards.thermal_classes import parse_thermal_class as class_limit_c  # noqa: F401
 
 
 def temperature_rise_k(power_w, surface_area_m2):
@@ -32,61 +32,6 @@ def temperature_rise_k(power_w, surface_area_m2):
     x = 450.0 * psi_w_cm2 ** 0.826
     x = np.asarray(x, dtype=float)
     return float(x) if x.ndim == 0 else x
-
-
-def class_letter(limit_c) -> str:
-    """IEC 60085 letter of a thermal class limit (130 -> "B"); ValueError if not a listed class.
-
-    References
-    ----------
-    IEC 60085, Electrical insulation - Thermal evaluation and designation.
-    """
-    try:
-        key = float(limit_c)
-    except (TypeError, ValueError):
-        raise ValueError(f"not a thermal class temperature: {limit_c!r}") from None
-    if key.is_integer() and int(key) in IEC_60085_CLASSES:
-        return IEC_60085_CLASSES[int(key)]
-    raise ValueError(f"{limit_c!r} is not an IEC 60085 thermal class "
-                     f"({', '.join(str(c) for c in IEC_60085_CLASSES)})")
-
-
-_DESIGNATION = re.compile(r"^\s*(?:class\s*)?(?:(\d+(?:\.0+)?)\s*)?(?:\(?\s*([A-Za-z])\s*\)?)?\s*$",
-                          re.IGNORECASE)
-
-
-def class_limit_c(designation) -> int:
-    """Temperature limit [degC] of an IEC 60085 thermal class from 130, "130", "B" or "130 (B)".
-
-    A leading word "class" is allowed, letters are case-insensitive, and when both number and letter
-    are given they must agree. Raises ValueError otherwise.
-
-    References
-    ----------
-    IEC 60085, Electrical insulation - Thermal evaluation and designation.
-    """
-    if isinstance(designation, bool):
-        raise ValueError(f"not a thermal class: {designation!r}")
-    if isinstance(designation, (int, float, np.integer, np.floating)):
-        class_letter(designation)
-        return int(designation)
-    m = _DESIGNATION.match(str(designation))
-    if not m or not (m.group(1) or m.group(2)):
-        raise ValueError(f"not a thermal class: {designation!r}")
-    number, letter = m.group(1), m.group(2)
-    limit = None
-    if number:
-        class_letter(number)
-        limit = int(float(number))
-    if letter:
-        by_letter = _BY_LETTER.get(letter.upper())
-        if by_letter is None:
-            raise ValueError(f"unknown IEC 60085 class letter {letter!r}")
-        if limit is not None and limit != by_letter:
-            raise ValueError(f"thermal class {designation!r}: {limit} is class "
-                             f"{IEC_60085_CLASSES[limit]}, not {letter.upper()}")
-        limit = by_letter
-    return limit
 
 
 def b_sat_at_temp_t(b_sat_25c_t, b_sat_100c_t, temp_c):
