@@ -1,19 +1,8 @@
-"""Revisions meet the design engine: release, verify and compare specs by what they build.
+"""Compare two revisions of a spec by what they build: the change summary's data.
 
-``specgen.revision`` works on raw YAML and files and knows nothing of the spec model or the
-engine. This module is the layer above it that needs both: it loads a spec (from a file or a git
-revision), runs the design, and then
-
-- ``release_spec``: refuses a spec whose design fails a check, picks the letter, writes the
-  release with its fingerprint (and the per-component ``parts`` so ``verify`` can say what
-  changed), optionally commits and tags;
-- ``verify_file`` / ``spec_files``: recomputes a released spec's fingerprint and compares it with
-  its history entry (what ``specgen verify`` runs in a spec repository's CI);
-- ``released_fingerprint_problem``: the one-line reason a work order or a quote must refuse a
-  released spec, or None;
-- ``compare``: the changed inputs (spec keys, flattened) and the changed shop-floor results
-  (turns, wire, layers, lengths, DCR limits, hipot, materials per unit, ...) of two revisions,
-  each old -> new, as a ``ChangeSummary``.
+``compare`` gives the changed inputs (spec keys, flattened) and the changed shop-floor results
+(turns, wire, layers, lengths, DCR limits, hipot, materials per unit, ...) of two revisions, each
+old -> new, as a ``ChangeSummary``. Release and verify live in ``specgen.lifecycle``.
 
 Nothing here computes physics: every result is read from the two ``Design`` objects, so the
 change summary shows the same numbers as the work order of each revision. Two results count as
@@ -23,311 +12,25 @@ so float noise in the last digit is not reported as a change.
 
 from __future__ import annotations
 
-import dataclasses
-import datetime as _dt
-import os
-import re
 from collections.abc import Callable, Iterable, Mapping
 from dataclasses import dataclass
 from decimal import ROUND_HALF_UP, Decimal
-from pathlib import Path
 from typing import Any
 
 from . import revision
 from .errors import DesignFailed, SpecError
+from .lifecycle import Loaded, load_design
 
 # ----------------------------------------------------------------------------------------------
-# Loading a spec with its design
-
-
-def _without_parts(data: Any) -> Any:
-    """``data`` with the ``parts`` key dropped from each history entry (line marks kept).
-
-    A release records ``parts`` (``revision.component_fingerprints``) in its history entry; the
-    spec schema reads history entries strictly. Dropping the key before the schema reads the
-    spec keeps a released file loadable whatever the schema allows; ``Spec.data`` stays the
-    original, so fingerprints and ``check_release`` see the file as it is.
-    """
-    from .loading import LList, LMap
-
-    history = data.get("history") if isinstance(data, Mapping) else None
-    if not isinstance(history, list) or not any(isinstance(h, Mapping) and "parts" in h
-                                                for h in history):
-        return data
-    entries = LList()
-    entries.line = getattr(history, "line", 0)
-    entries.item_lines = list(getattr(history, "item_lines", []))
-    for h in history:
-        if isinstance(h, Mapping) and "parts" in h:
-            e = LMap((k, v) for k, v in h.items() if k != "parts")
-            e.line = getattr(h, "line", 0)
-            e.key_lines = {k: v for k, v in (getattr(h, "key_lines", None) or {}).items()
-                           if k != "parts"}
-            entries.append(e)
-        else:
-            entries.append(h)
-    out = LMap(data)
-    out.line = getattr(data, "line", 0)
-    out.key_lines = dict(getattr(data, "key_lines", None) or {})
-    out["history"] = entries
-    return out
-
-
-def spec_from_text(text: str, name: str):
-    """Parse a spec's text into a ``Spec`` (every mistake a located SpecError)."""
-    from .design.spec import parse_spec
-    from .loading import parse_yaml
-
-    data = parse_yaml(text, name)
-    if data is None:
-        raise SpecError("is empty; a spec needs at least part, kind, core, operating and windings",
-                        file=name)
-    spec = parse_spec(_without_parts(data), name)
-    return dataclasses.replace(spec, data=data)
-
-
-def spec_from_path(path: str | os.PathLike):
-    from .loading import read_text
-
-    return spec_from_text(read_text(path, "spec file"), str(path))
-
-
-@dataclass(frozen=True)
-class Loaded:
-    """One revision of a spec with its design: what ``diff`` compares and ``verify`` checks."""
-
-    name: str                         # the path, or PATH@GITREV
-    spec: Any                         # specgen.design.spec.Spec
-    design: Any                       # specgen.design.result.Design
-    catalog_entries: dict             # what the design read (for fingerprints)
-    release: revision.ReleaseCheck
-    cat: Any = None                   # the catalogue it was designed with (prices for the cost)
-
-    @property
-    def data(self) -> Mapping:
-        return self.spec.data
-
-
-def load_design(spec, cat, name: str | None = None) -> Loaded:
-    from .api import catalog_entries, run_design
-
-    d = run_design(spec, cat)
-    entries = catalog_entries(d.catalog_ids, cat)
-    return Loaded(name=name or spec.file, spec=spec, design=d, catalog_entries=entries,
-                  release=revision.check_release(spec.data, entries), cat=cat)
+# Loading a revision
 
 
 def load_ref(ref: str, cat) -> Loaded:
     """A spec given as a path or as ``PATH@GITREV`` (read with git), designed with ``cat``."""
+    from .design.spec import load_spec_text
+
     name, text = revision.read_rev(str(ref))
-    return load_design(spec_from_text(text, name), cat, name)
-
-
-def released_fingerprint_problem(spec, design, cat) -> str | None:
-    """Why a work order or quote must refuse this spec, or None when its release record holds.
-
-    A released spec must carry a history entry for its revision whose fingerprint equals the
-    fingerprint of the spec and the catalogue entries ``design`` used now; otherwise it was
-    edited after release (without a new revision) or a catalogue entry under it changed.
-    Drafts and obsolete specs give None: whether a document may be made from them is the
-    caller's rule, not a fingerprint question.
-    """
-    from .api import catalog_entries
-
-    if (spec.data.get("status") or "draft") != "released":
-        return None
-    check = revision.check_release(spec.data, catalog_entries(design.catalog_ids, cat))
-    return None if check.ok else "; ".join(check.problems)
-
-
-# ----------------------------------------------------------------------------------------------
-# Release
-
-
-@dataclass(frozen=True)
-class ReleaseResult:
-    file: str
-    part: str
-    revision: str
-    fingerprint: str
-    date: str
-    commit: str | None = None
-    tag: str | None = None
-
-    def message(self) -> str:
-        out = f"released {self.part} rev {self.revision}, fingerprint {revision.short(self.fingerprint)}"
-        if self.commit:
-            out += f"; committed {self.commit[:12]} and tagged {self.tag}"
-        return out
-
-
-def _git_precheck(path: Path, tag: str) -> None:
-    """Refuse ``--commit`` before the file is touched: not in a work tree, or the tag exists."""
-    what = str(path)
-    # the same checks git_commit_and_tag makes, run before the release edit so that a refused
-    # commit never leaves a released but uncommitted file behind
-    top, _ = revision._repo_path(path, what)
-    if revision._git(["rev-parse", "--verify", "--quiet", f"refs/tags/{tag}"], top,
-                     what).returncode == 0:
-        raise SpecError(f"git tag '{tag}' already exists; a released revision is tagged once",
-                        file=what)
-    if revision._git(["var", "GIT_COMMITTER_IDENT"], top, what).returncode != 0:
-        raise SpecError("git does not know who you are: set user.name and user.email", file=what)
-
-
-def release_spec(path: str | os.PathLike, *, by: str, note: str, cat,
-                 date: Any = None, commit: bool = False) -> ReleaseResult:
-    """Release a spec file: design it, refuse on a failed check, write the release, maybe commit.
-
-    - every design check must pass (``DesignFailed`` otherwise; the file is not touched);
-    - the letter comes from ``revision.release_revision`` (a draft keeps its letter, an edited
-      released spec gets the next one);
-    - the history entry carries the fingerprint and the per-component ``parts``;
-    - ``commit``: commit just this file and tag it ``<part>-rev-<letter>`` (never pushes);
-      refused before writing when the file is not in a git work tree or the tag exists.
-    """
-    p = Path(path)
-    spec = spec_from_path(p)
-    data = spec.data
-    # the letter first: an obsolete spec or a letter out of sequence is refused as such
-    letter = revision.release_revision(data.get("status"), data.get("revision"),
-                                       data.get("history"))
-    loaded = load_design(spec, cat, str(p))
-    d = loaded.design
-    if d.failed:
-        raise DesignFailed(f"{p}: {spec.part} is not released: {len(d.failed)} design check(s) "
-                           "fail", d.failed)
-    tag = revision.release_tag(spec.part, letter)
-    if commit:
-        _git_precheck(p, tag)
-    day = date if date is not None else _dt.date.today()
-    parts = revision.component_fingerprints(data, loaded.catalog_entries)
-    revision.release_file(p, by=by, note=note, fingerprint=d.fingerprint, date=day,
-                          new_revision=letter, parts=parts)
-    # read it back: what is on disk now must verify (catches a concurrent edit of the file)
-    after = load_design(spec_from_path(p), cat, str(p))
-    if not after.release.ok:
-        raise SpecError("changed while it was being released; check it and release again: "
-                        + "; ".join(after.release.problems), file=str(p))
-    sha = None
-    if commit:
-        sha = revision.git_commit_and_tag(p, f"{spec.part} rev {letter}: {note.strip()}", tag)
-    day_text = day.isoformat() if isinstance(day, _dt.date) else str(day)
-    return ReleaseResult(file=str(p), part=spec.part, revision=letter, fingerprint=d.fingerprint,
-                         date=day_text, commit=sha, tag=tag if sha else None)
-
-
-# ----------------------------------------------------------------------------------------------
-# Verify
-
-_SPEC_MARKS = tuple(re.compile(rf"^{key}[ \t]*:", re.M) for key in ("part", "kind", "core"))
-_NOT_SPEC_MARKS = (re.compile(r"^requirement[ \t]*:", re.M),)
-
-
-def looks_like_spec(path: Path) -> bool:
-    """A YAML file with the top-level keys every spec has (``part:``, ``kind:``, ``core:``) and
-    not a search requirement (``requirement:``); read as text, not parsed, so a broken spec is
-    still found and reported."""
-    try:
-        with open(path, "rb") as fh:
-            head = fh.read(1024 * 1024).decode("utf-8", "replace")
-    except OSError:
-        return False
-    return all(m.search(head) for m in _SPEC_MARKS) and \
-        not any(m.search(head) for m in _NOT_SPEC_MARKS)
-
-
-def spec_files(paths: Iterable[str | os.PathLike]) -> list[Path]:
-    """The spec files named by ``paths``: files as given, folders searched recursively.
-
-    In a folder, ``*.yaml``/``*.yml`` files that look like specs (``looks_like_spec``) are taken;
-    hidden folders (``.git``, ``.venv``) are skipped. A missing path, or a folder holding no
-    spec, is a SpecError.
-    """
-    out: list[Path] = []
-    for raw in paths:
-        p = Path(raw)
-        if p.is_file():
-            out.append(p)
-        elif p.is_dir():
-            found = []
-            for dirpath, dirnames, filenames in os.walk(p):
-                dirnames[:] = sorted(d for d in dirnames if not d.startswith("."))
-                for fn in sorted(filenames):
-                    if fn.endswith((".yaml", ".yml")) and looks_like_spec(Path(dirpath, fn)):
-                        found.append(Path(dirpath, fn))
-            if not found:
-                raise SpecError("holds no spec files (YAML with part: and kind:)", file=str(p))
-            out.extend(found)
-        else:
-            raise SpecError("no such file or folder", file=str(p))
-    seen, unique = set(), []
-    for p in out:
-        key = os.path.realpath(p)
-        if key not in seen:
-            seen.add(key)
-            unique.append(p)
-    return unique
-
-
-@dataclass(frozen=True)
-class VerifyResult:
-    file: str
-    part: str | None
-    revision: str | None
-    status: str | None
-    outcome: str                      # ok | mismatch | fails-check | draft | obsolete | error
-    problems: tuple = ()
-    current: str | None = None        # fingerprint now
-    recorded: str | None = None       # fingerprint in the history entry
-
-    @property
-    def failed(self) -> bool:
-        return self.outcome in ("mismatch", "fails-check")
-
-    def line(self) -> str:
-        who = f"{self.part or '?'} rev {self.revision or '-'}"
-        if self.outcome == "ok":
-            what = f"ok (fingerprint {revision.short(self.current or '')})"
-        elif self.outcome == "mismatch":
-            what = "MISMATCH: " + "; ".join(self.problems)
-        elif self.outcome == "fails-check":
-            what = "FAILS CHECK: " + "; ".join(self.problems)
-        elif self.outcome in ("draft", "obsolete"):
-            what = f"{self.outcome} (not checked)"
-        else:
-            return f"ERROR: {'; '.join(self.problems)}"
-        return f"{self.file}: {who}: {what}"
-
-    def to_dict(self) -> dict:
-        return dataclasses.asdict(self) | {"problems": list(self.problems)}
-
-
-def verify_file(path: str | os.PathLike, cat) -> VerifyResult:
-    """Check one spec file's release record (see ``VerifyResult.outcome``); never raises SpecError.
-
-    A released spec whose fingerprint matches but whose design now fails a check (the engine
-    changed under it: program code is not in the fingerprint) is ``fails-check``.
-    """
-    name = str(path)
-    try:
-        spec = spec_from_path(path)
-        loaded = load_design(spec, cat, name)
-    except SpecError as err:
-        return VerifyResult(file=name, part=None, revision=None, status=None, outcome="error",
-                            problems=(str(err) if err.file else f"{name}: {err}",))
-    status = spec.data.get("status") or "draft"
-    rev = spec.data.get("revision")
-    base = dict(file=name, part=spec.part, revision=rev, status=status,
-                current=loaded.release.current, recorded=loaded.release.recorded)
-    if status in ("draft", "obsolete"):
-        return VerifyResult(outcome=status, **base)
-    if not loaded.release.ok:
-        return VerifyResult(outcome="mismatch", problems=loaded.release.problems, **base)
-    if loaded.design.failed:
-        return VerifyResult(outcome="fails-check", problems=tuple(
-            f"{c.code}: {c.message}" for c in loaded.design.failed), **base)
-    return VerifyResult(outcome="ok", **base)
+    return load_design(load_spec_text(text, name), cat, name)
 
 
 # ----------------------------------------------------------------------------------------------
@@ -813,9 +516,7 @@ def summary_text(s: ChangeSummary) -> str:
 
 
 __all__ = [
-    "spec_from_text", "spec_from_path", "Loaded", "load_design", "load_ref",
-    "released_fingerprint_problem", "ReleaseResult", "release_spec",
-    "looks_like_spec", "spec_files", "VerifyResult", "verify_file",
+    "load_ref",
     "InputChange", "ResultChange", "Side", "ChangeSummary", "flatten_inputs", "input_changes",
     "shop_results", "result_changes", "fmt", "quote_costs", "compare", "compare_refs",
     "summary_text",

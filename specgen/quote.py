@@ -53,10 +53,10 @@ Price (common practice in custom-magnetics quoting; the conventions chosen here)
 Release
     a design with a failed check is not quoted (``DesignFailed``, exit 1), like a work order:
     sales must not promise a part the shop floor will refuse to build. An obsolete revision is a
-    user's mistake (``SpecError``), and so is a released revision whose content no longer matches
-    its recorded fingerprint (release a new revision first). A draft, or a release that recorded no
-    fingerprint, is quoted as *budgetary* with the reason on the quote: a price to plan with, firm
-    only once the revision is released.
+    user's mistake (``SpecError``), and so is a revision marked released that the release gate
+    (``specgen.lifecycle.release_gate``) refuses: edited after release, a catalogue entry changed
+    under it, or no recorded fingerprint (release a new revision first). A draft is quoted as
+    *budgetary* with the reason on the quote: a price to plan with, firm only once it is released.
 """
 
 from __future__ import annotations
@@ -531,8 +531,7 @@ def _summary(design) -> dict:
 def build_quote(spec, design, cat, quantities: Iterable[int], *, nre: Decimal | None = None,
                 valid_days: int = 30, issued: _dt.date | None = None, allow_failed: bool = False) -> Quote:
     """The whole quote for one part: refuses failed designs and obsolete revisions (module docstring)."""
-    from .api import catalog_entries
-    from .revision import check_release
+    from .lifecycle import release_gate
 
     if design.failed and not allow_failed:
         raise DesignFailed(f"{design.part} rev {design.revision} has failed design checks: not quoted "
@@ -551,21 +550,16 @@ def build_quote(spec, design, cat, quantities: Iterable[int], *, nre: Decimal | 
     labor = labor_lines(design, model)
     breaks = price_breaks(design, cat, quantities, model)
     issued = issued or _dt.date.today()
+    # the one release gate (specgen.lifecycle): a broken release is refused as the work order refuses
+    # it; a draft is quoted as budgetary; the change summary (allow_failed) prices whatever it is given
+    verdict = release_gate(spec, design, cat)
     budgetary = budgetary_detail = None
-    if design.status != "released":
-        budgetary = budgetary_detail = f"revision {design.revision} is a {design.status}, not yet released"
-    else:
-        rc = check_release(spec.data, catalog_entries(design.catalog_ids, cat))
-        if not rc.ok and rc.recorded and not allow_failed:
-            # issue 7: a released revision whose content no longer matches its release is refused, as the
-            # work order refuses it; the engineer releases a new revision first
-            raise SpecError(f"revision {design.revision} no longer matches its release "
-                            f"({'; '.join(rc.problems)}): release a new revision with `specgen release` "
-                            f"before quoting", file=spec.file, path="history")
-        if not rc.ok:
-            budgetary = f"the design has changed since revision {design.revision} was released" if rc.recorded \
-                else f"revision {design.revision} was released without a recorded fingerprint"
-            budgetary_detail = "; ".join(rc.problems)
+    if verdict.broken and not allow_failed:
+        raise verdict.refusal("before quoting")
+    if not verdict.firm:
+        budgetary = (verdict.reason if not verdict.broken
+                     else f"the design does not match the release record of revision {design.revision}")
+        budgetary_detail = verdict.reason
     notes = []
     for m in materials:
         if m.note.startswith("no catalogue price"):

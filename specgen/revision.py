@@ -380,8 +380,14 @@ def check_release(spec_data: Mapping, catalog_entries: Mapping[str, Mapping]) ->
             if entry is None:
                 problems.append(f"revision {revision} is marked released but has no history entry")
             else:
-                recorded = None if entry.get("fingerprint") is None else str(entry["fingerprint"])
-                if recorded != current:
+                raw = entry.get("fingerprint")
+                recorded = None if raw is None or not str(raw).strip() else str(raw).strip()
+                if recorded is None:
+                    # a release is its recorded fingerprint: without one nothing ties this
+                    # revision letter to a content, so it is refused, never merely warned about
+                    problems.append(f"revision {revision} is marked released but its history entry records "
+                                    "no fingerprint (a release without one is not a release)")
+                elif recorded != current:
                     parts = entry.get("parts")
                     what = (changed_components(parts, component_fingerprints(spec_data,
                                                                               catalog_entries))

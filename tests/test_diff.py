@@ -28,6 +28,7 @@ from typer.testing import CliRunner
 from specgen import api, diff
 from specgen.catalog.loader import load_catalog, resolve_catalog_dir
 from specgen.cli import app
+from specgen.design.spec import load_spec
 
 DEMO = Path(api.__file__).resolve().parent / "demo"
 runner = CliRunner()
@@ -214,7 +215,7 @@ def test_catalogue_change_shows_results_but_no_inputs(tmp_path):
 
 
 def test_flatten_inputs_names_windings_and_keeps_list_order(cat):
-    spec = diff.spec_from_path(DEMO / "BH-2210.yaml")
+    spec = load_spec(DEMO / "BH-2210.yaml")
     flat = diff.flatten_inputs(spec.data)
     assert flat["windings[P].voltage"] == "200 V"
     assert flat["build_order"] == ["P.1", "S", "P.2"]

@@ -69,7 +69,7 @@ def test_every_key_is_explained_somewhere(kind):
 @pytest.mark.parametrize("kind", KINDS)
 def test_commented_out_keys_are_real_keys(tmp_path, kind):
     """Uncommenting any one optional key gives a spec the schema knows (no 'unknown key')."""
-    from specgen.diff import spec_from_text
+    from specgen.design.spec import load_spec_text
 
     text = starter_text("BH-7001", kind)
     lines = text.splitlines(keepends=True)
@@ -81,7 +81,7 @@ def test_commented_out_keys_are_real_keys(tmp_path, kind):
         candidate = "".join(lines[:i]) + m.group(1) + m.group(2) + "\n" + "".join(lines[i + 1:])
         tried += 1
         try:
-            spec_from_text(candidate, "starter.yaml")
+            load_spec_text(candidate, "starter.yaml")
         except SpecError as err:
             assert "unknown key" not in err.message, (line, err)
     assert tried >= 4

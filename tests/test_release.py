@@ -24,7 +24,8 @@ from typer.testing import CliRunner
 from specgen import api
 from specgen.catalog.loader import load_catalog, resolve_catalog_dir
 from specgen.cli import app
-from specgen.diff import released_fingerprint_problem, spec_from_path
+from specgen.design.spec import load_spec
+from specgen.lifecycle import release_gate
 
 DEMO = Path(api.__file__).resolve().parent / "demo"
 runner = CliRunner()      # this typer's runner keeps stdout and stderr apart (no mix_stderr)
@@ -35,9 +36,9 @@ def cli(*args):
 
 
 def design(path, catalog_dir=None):
-    """The design of a spec file, read with specgen.diff's loader (it accepts history 'parts')."""
+    """The design of a spec file, read with the one spec loader (it accepts history 'parts')."""
     cat = load_catalog(catalog_dir)
-    return api.run_design(spec_from_path(path), cat)
+    return api.run_design(load_spec(path), cat)
 
 
 def ruamel_load(path: Path):
@@ -239,22 +240,55 @@ def test_verify_bad_input_exits_2(tmp_path):
     assert f"{broken}:" in r.stderr                        # located: file and line
 
 
-def test_released_fingerprint_problem(demo_copy):
+def test_release_gate(demo_copy):
     cat = load_catalog(None)
     spec_path = demo_copy("BH-3305.yaml")
 
-    def problem():
-        spec = spec_from_path(spec_path)
-        return released_fingerprint_problem(spec, api.run_design(spec, cat), cat)
+    def gate():
+        spec = load_spec(spec_path)
+        return release_gate(spec, api.run_design(spec, cat), cat)
 
-    assert "changed since revision A" in problem()      # shipped with an empty fingerprint
+    # released with its fingerprint blanked: a release without a recorded fingerprint is refused
+    assert gate().broken and "records no fingerprint" in gate().reason
     assert cli("release", spec_path, "--by", "x", "--note", "y").exit_code == 0
-    assert problem() is None
+    assert gate().firm and gate().problems == ()
     spec_path.write_text(spec_path.read_text().replace("ripple: 2.4 A", "ripple: 2.0 A"))
-    assert "inductor changed" in problem()
+    assert gate().broken and "inductor changed" in gate().reason
     from specgen.revision import start_next_draft_file
     start_next_draft_file(spec_path)
-    assert problem() is None                            # a draft is not a fingerprint question
+    v = gate()                                          # a draft is not a fingerprint question
+    assert v.problems == () and not v.firm and not v.broken and v.status == "draft"
+
+
+def test_gate_refuses_a_deleted_fingerprint_everywhere(tmp_path):
+    """The fingerprint line removed from the history entry: work order, quote and verify all refuse."""
+    import re as _re
+
+    spec = tmp_path / "BH-5018.yaml"
+    spec.write_text(_re.sub(r"^\s+fingerprint:.*\n", "", (DEMO / "BH-5018.yaml").read_text(), count=1, flags=_re.M))
+    r = cli("verify", spec)
+    assert r.exit_code == 1 and "records no fingerprint" in r.stdout
+    r = cli("quote", spec, "--qty", "100", "--out", tmp_path / "q")
+    assert r.exit_code == 2 and "records no fingerprint" in r.stderr
+    r = cli("workorder", spec, "--qty", "10", "--out", tmp_path / "wo", "--register", tmp_path / "reg.sqlite")
+    assert r.exit_code == 2 and "records no fingerprint" in r.stderr
+    assert not (tmp_path / "reg.sqlite").exists() or "WO-" not in r.stdout
+
+
+@pytest.mark.parametrize("option, value, word", [
+    ("--by", "x" * 2001, "--by"), ("--by", "R.\x07Okafor", "--by"), ("--by", "   ", "--by"),
+    ("--note", "x" * 2001, "--note"), ("--note", "two\nlines", "--note"), ("--note", "", "--note"),
+    ("--date", "2027-02-30", "--date"),
+])
+def test_release_inputs_checked_before_anything_is_written(demo_copy, option, value, word):
+    spec_path = demo_copy("BH-4120.yaml")
+    before = spec_path.read_bytes()
+    args = {"--by": "R. Okafor", "--note": "thicker secondary", "--date": None}
+    args[option] = value
+    argv = ["release", spec_path] + [a for k, v in args.items() if v is not None for a in (k, v)]
+    r = cli(*argv)
+    assert r.exit_code == 2 and word in r.stderr and len(r.stderr.strip().splitlines()) == 1
+    assert spec_path.read_bytes() == before
 
 
 # ----------------------------------------------------------------------------------------------

@@ -37,7 +37,7 @@ def register(app) -> None:
         """Release a spec: refuse if a design check fails, set the next revision letter, record
         the fingerprint in its history (comments and formatting kept)."""
         from ..catalog.loader import load_catalog
-        from ..diff import release_spec
+        from ..lifecycle import release_spec
 
         cat = load_catalog(catalog)
         result = release_spec(spec, by=by, note=note, cat=cat, date=date, commit=commit)
@@ -54,7 +54,7 @@ def register(app) -> None:
         """Check every released spec against the fingerprint recorded at its release (for CI):
         exit 1 on a mismatch, 2 on a spec that cannot be read or designed."""
         from ..catalog.loader import load_catalog
-        from ..diff import spec_files, verify_file
+        from ..lifecycle import spec_files, verify_file
 
         files = spec_files(paths)
         cat = load_catalog(catalog)

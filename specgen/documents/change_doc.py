@@ -148,13 +148,14 @@ def demo_change_summary(out_dir, cat, echo=print):
     """Write the demo's change summary of BH-2210 rev B -> rev C into ``out_dir``.
 
     A throwaway git repository gets BH-2210 as shipped (rev B), then rev C: the next draft, one
-    more primary turn fixed with ``turns:``, released with ``specgen.diff.release_spec``. The
+    more primary turn fixed with ``turns:``, released with ``specgen.lifecycle.release_spec``. The
     summary compares ``BH-2210.yaml@HEAD~1`` with ``BH-2210.yaml@HEAD``. Returns the PDF path,
     or None (with a message) when git is not installed.
     """
     from ..api import demo_specs
     from ..atomic import write_atomic
-    from ..diff import compare_refs, load_ref, release_spec, summary_text
+    from ..diff import compare_refs, load_ref, summary_text
+    from ..lifecycle import release_spec
     from ..revision import start_next_draft_file
 
     if shutil.which("git") is None:

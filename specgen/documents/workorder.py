@@ -524,23 +524,6 @@ class Issued:
     seconds: float = 0.0
 
 
-def _release_problems(spec, design, cat) -> tuple[list, list]:
-    """(problems that refuse a released spec, warnings) from the release record."""
-    from .. import api, revision
-
-    problems, warnings = [], []
-    check = revision.check_release(spec.data, api.catalog_entries(design.catalog_ids, cat))
-    entry = revision.history_entry(spec.data)
-    unrecorded = entry is not None and not str(entry.get("fingerprint") or "").strip()
-    for p in check.problems:
-        if unrecorded and p.startswith("changed since"):
-            continue
-        problems.append(p)
-    if unrecorded:
-        warnings.append("fingerprint not recorded; release the spec with `specgen release`")
-    return problems, warnings
-
-
 def preflight(spec_path, spec, design, cat, *, qty, due=None, lot=None, draft=False) -> tuple:
     """Everything that must hold before a number is taken: the options, the checks, the release.
 
@@ -553,23 +536,19 @@ def preflight(spec_path, spec, design, cat, *, qty, due=None, lot=None, draft=Fa
     if design.failed:
         raise DesignFailed(f"{design.part} rev {design.revision}: {len(design.failed)} design check(s) failed; "
                            "no work order issued", design.failed)
-    status = spec.status or "draft"
-    warnings = []
-    if status != "released":
+    from ..lifecycle import release_gate
+
+    verdict = release_gate(spec, design, cat)
+    warnings: list[str] = []
+    if verdict.status != "released":
         if not draft:
-            raise SpecError(f"is {status!r}; work orders are issued from released revisions only "
+            raise SpecError(f"is {verdict.status!r}; work orders are issued from released revisions only "
                             "(--draft prints a marked copy that is not for production)",
                             file=str(spec_path), path="status")
-    else:
-        problems, notes = _release_problems(spec, design, cat)
-        warnings += notes
-        if problems:
-            message = "; ".join(problems)
-            if not draft:
-                raise SpecError(f"released revision {spec.revision} does not match its release record: {message}; "
-                                "release it again with `specgen release` (or print a --draft)",
-                                file=str(spec_path))
-            warnings.append(message)
+    elif not verdict.firm:
+        if not draft:
+            raise verdict.refusal("(or print a --draft)")
+        warnings.append(verdict.reason)
     return qty, due, lot, warnings
 
 
