@@ -618,6 +618,8 @@ def coordinate_barrier(*, grade: Grade | str, working_v_rms: float, mains_v: flo
         raise ValueError("give exactly one of material group and CTI")
     group = material_group_from_cti(cti).group if cti is not None else _material(material_group or "")
     u = _finite(working_v_rms, "working voltage")
+    if u < 0.0:
+        raise ValueError(f"working voltage {u:g} V rms: expected a voltage of 0 V or more")
     peak = math.sqrt(2.0) * u if working_v_peak is None else _finite(working_v_peak, "working peak voltage")
     if peak < u * (1.0 - 1e-12):
         raise ValueError(f"working peak voltage {peak:g} V is below the rms value {u:g} V")
