@@ -112,3 +112,16 @@ def test_zero_loss_stays_at_ambient_and_bad_inputs():
         ct.thermal_operating_point(lambda t: 1.0, 0.0, 30.0)
     with pytest.raises(ValueError, match="R_th"):
         ct.quadratic_operating_point(1.0, 1.0, -1.0, 30.0, CT0, CT1, CT2)
+
+
+def test_closed_form_branch_with_minimum_below_zero():
+    # a fit whose minimum lies below 0 degC (ct1 < 0) with strong heating makes q ct1 + 1 <= 0: the closed form's
+    # other root expression; it must still agree with the general search (a numerical check of the algebra)
+    c0, c1, c2 = 1.2, -0.004, 1e-4
+    f_min = c0 - c1 ** 2 / (4 * c2)
+    closed = ct.quadratic_operating_point(0.0, 1.0, 300.0, -600.0, c0, c1, c2)
+    assert 300.0 * 1.0 * c1 / f_min + 1 <= 0
+    general = ct.thermal_operating_point(lambda t: (c0 - c1 * t + c2 * t * t) / f_min, 300.0, -600.0,
+                                         search_limit_c=100.0)
+    assert closed.exists and general.exists
+    assert closed.temp_c == pytest.approx(general.temp_c, abs=1e-8)
