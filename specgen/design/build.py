@@ -1,4 +1,4 @@
-"""Layer-by-layer winding build: turns per layer, layers, the build height and each layer's own MLT.
+"""Layer-by-layer winding build, the AC factor of every section and the leakage inductance of the window.
 
 Bobbin-wound parts: each section fills the usable breadth (breadth minus a margin each side) with turns
 of pitch = the wire's overall size times strands in hand laid side by side; layers stack outwards, with
@@ -9,96 +9,184 @@ round one), not one MLT for the whole coil.
 Toroids: turns are laid on the inner circumference, which shrinks as layers build; each layer holds
 floor(pi (ID - 2 h - d) / pitch) turns, and the turn length grows around the section as the build grows.
 A tape wrap on a toroid is laid with 50 % overlap, so it adds twice its thickness (common practice).
+
+The layer formulas (centre, capacity, MLT) are the kernel's; this module lays them one layer at a time to
+keep a record of every layer for the work order.
 """
 
 from __future__ import annotations
 
-import math
-from dataclasses import dataclass
+from collections.abc import Mapping
 
-from ..physics import geometry
+from ..catalog.models import Catalog
+from ..physics.layers import leakage_inductance_h
+from . import kernel as K
 from .result import Layer
+from .spec import Spec
+from .state import BuiltSection, BuiltWindow, Former, Parts, SectionBuild, WindingState
 
-
-@dataclass(frozen=True)
-class Former:
-    """What the winding is laid on."""
-    kind: str                 # 'rect' | 'round' | 'toroid'
-    tube_width_m: float = 0.0
-    tube_depth_m: float = 0.0
-    breadth_m: float = 0.0
-    height_m: float = 0.0     # available build
-    od_m: float = 0.0         # toroid, over its coating
-    id_m: float = 0.0
-    core_height_m: float = 0.0
-
-    def mlt_m(self, build_to_centre_m: float) -> float:
-        if self.kind == "rect":
-            return geometry.mlt_rect_m(self.tube_width_m, self.tube_depth_m, build_to_centre_m)
-        if self.kind == "round":
-            return geometry.mlt_round_m(self.tube_width_m, build_to_centre_m)
-        return geometry.toroid_turn_length_m(self.od_m, self.id_m, self.core_height_m, build_to_centre_m)
-
-
-@dataclass(frozen=True)
-class SectionBuild:
-    turns_per_layer: int
-    layers: tuple             # of Layer
-    end_build_m: float
-    copper_length_m: float
-    pitch_m: float            # along the layer, per turn (all strands in hand)
-    layer_height_m: float
-    usable_breadth_m: float
+__all__ = ["Former", "SectionBuild", "copper_lengths_m", "lay_out", "leakage_h", "section_frs", "tape_factor",
+           "wind_section"]
 
 
 def wind_section(former: Former, turns: int, pitch_m: float, layer_height_m: float, start_build_m: float,
                  margin_m: float, layer_tape_m: float, one_turn_per_layer: bool = False) -> SectionBuild | None:
-    """Lay ``turns`` turns from ``start_build_m`` outwards. Returns None if not even one turn fits a layer.
+    """Lay ``turns`` turns from ``start_build_m`` outwards. Returns None if a layer would hold no turn.
 
     pitch_m: space one turn takes along the layer (overall diameter x strands in hand side by side).
     layer_height_m: radial height of one layer of this wire.
-    layer_tape_m: insulation between successive layers (already multiplied by tape layers).
+    layer_tape_m: insulation between successive layers (already multiplied by tape layers and tape factor).
     one_turn_per_layer: foil, where each turn is a full-width layer.
     """
-    if former.kind == "toroid":
-        # the wire's centre line runs on this layer's inner face: the hole shrinks layer by layer
-        def capacity_at(h: float) -> tuple[int, float]:
-            circumference = geometry.toroid_inner_circumference_m(former.id_m, h + layer_height_m / 2.0)
-            return int(math.floor(circumference / pitch_m + 1e-9)), circumference
-    else:
-        usable = former.breadth_m - 2.0 * margin_m
-        if one_turn_per_layer:
-            fixed = 1 if pitch_m <= usable + 1e-12 else 0
-        else:
-            fixed = int(math.floor(usable / pitch_m + 1e-9)) if usable > 0 else 0
-
-        def capacity_at(h: float) -> tuple[int, float]:
-            return fixed, usable
-
-    layers = []
-    h = start_build_m
+    usable = former.breadth_m - 2.0 * margin_m
+    layers: list[Layer] = []
     left = turns
     length = 0.0
-    first = None
+    first: tuple[int, float] | None = None
     while left > 0:
-        capacity, room = capacity_at(h)
+        j = len(layers)
+        centre = float(K.layer_centre_m(start_build_m, j, layer_height_m, layer_tape_m))
+        cap_f, room = K.layer_capacity(former.kind, pitch_m, usable, former.id_m, centre, one_turn_per_layer)
+        capacity = int(cap_f)
         if capacity < 1:
             return None
         if first is None:
-            first = (capacity, room)
+            first = (capacity, float(room))
         n = min(capacity, left)
-        centre = h + layer_height_m / 2.0
         mlt = former.mlt_m(centre)
-        layers.append(Layer(index=len(layers) + 1, turns=n, build_to_centre_m=centre, mlt_m=mlt, length_m=n * mlt,
+        layers.append(Layer(index=j + 1, turns=n, build_to_centre_m=centre, mlt_m=mlt, length_m=n * mlt,
                             turns_capacity=capacity))
         length += n * mlt
         left -= n
-        h += layer_height_m
-        if left > 0:
-            h += layer_tape_m     # already x2 on a toroid for the half-lap (the caller's tape_factor)
-    return SectionBuild(first[0], tuple(layers), h, length, pitch_m, layer_height_m, first[1])
+    if first is None:
+        return None
+    count = len(layers)
+    end = start_build_m + count * layer_height_m + (count - 1) * layer_tape_m
+    return SectionBuild(first[0], tuple(layers), end, length, pitch_m, layer_height_m, first[1])
 
 
 def tape_factor(former: Former) -> float:
     """Radial build of one wrap of tape relative to its thickness (50 % overlap on a toroid)."""
     return 2.0 if former.kind == "toroid" else 1.0
+
+
+def lay_out(spec: Spec, parts: Parts, states: Mapping[str, WindingState], cat: Catalog) -> BuiltWindow:
+    """Every section in build order: its layers, the tapes after it, and the height the window reaches."""
+    former = parts.former
+    layer_tape = spec.layer_tape
+    wind_tape = spec.winding_tape
+    lt = cat.tapes[layer_tape.tape].thickness_m * layer_tape.layers if layer_tape else 0.0
+    wt = cat.tapes[wind_tape.tape].thickness_m * wind_tape.layers if wind_tape else 0.0
+    tf = tape_factor(former)
+    h = 0.0
+    out: list[BuiltSection] = []
+    last = len(spec.build_order) - 1
+    for order, (name, k) in enumerate(spec.build_order):
+        st = states[name]
+        w = st.spec
+        n_sec = w.sections
+        turns = st.turns // n_sec + (1 if k <= st.turns % n_sec else 0)
+        if turns <= 0:
+            return BuiltWindow(tuple(out), h, False, f"winding {name} section {k} has no turns")
+        pitch, lh, foil = K.pitch_and_height(st.wire, st.strands)
+        margin = w.margin_m if w.margin_m is not None else spec.margin_m
+        if former.kind == "toroid":
+            margin = 0.0
+        # foil needs its own insulation between turns; the layer tape is mandatory there
+        sb = wind_section(former, turns, pitch, lh, h, margin, lt * tf if (lt or not foil) else 0.0, foil)
+        if sb is None:
+            why = (f"winding {name}: the {st.wire.label} ({pitch * 1e3:.2f} mm per turn) does not fit the "
+                   + (f"{(former.breadth_m - 2 * margin) * 1e3:.2f} mm usable breadth" if former.kind != "toroid"
+                      else "remaining hole"))
+            return BuiltWindow(tuple(out), h, False, why)
+        h = sb.end_build_m
+        tape_layers = wind_tape.layers if wind_tape else 0
+        tape_id = wind_tape.tape if wind_tape else None
+        if order == last:
+            wrap = spec.outer_wrap or wind_tape
+            tape_id = wrap.tape if wrap else None
+            tape_layers = wrap.layers if wrap else 0
+            h += (cat.tapes[wrap.tape].thickness_m * wrap.layers * tf) if wrap else 0.0
+        else:
+            h += wt * tf
+        out.append(BuiltSection(name, k, order + 1, sb, margin, tape_id, tape_layers))
+    return BuiltWindow(tuple(out), h, True, "")
+
+
+def copper_lengths_m(built: BuiltWindow, lead_m: float) -> dict[str, float]:
+    """Each winding's copper length: its sections' layers plus a lead at each end."""
+    out: dict[str, float] = {}
+    for s in built.sections:
+        out[s.winding] = out.get(s.winding, 0.0) + s.build.copper_length_m
+    for name in out:
+        out[name] += 2 * lead_m
+    return out
+
+
+def section_frs(built: BuiltWindow, states: Mapping[str, WindingState], freq_hz: float, temp_c: float,
+                waveform: str, signs: Mapping[str, float]) -> dict[tuple[str, int], float]:
+    """Fr for every section from the MMF profile across the build (Dowell's layer form, per layer).
+
+    MMF starts at zero at the tube; each layer adds turns x current with the winding's sign (primary +,
+    loads -); a square-wave current is weighted over its odd harmonics (``kernel.current_harmonics``).
+    """
+    if freq_hz <= 0:
+        return {}
+    delta_cu = float(K.skin_depth_m(freq_hz, temp_c))
+    harmonics = K.current_harmonics(waveform)
+    mmf = 0.0
+    out: dict[tuple[str, int], float] = {}
+    for s in built.sections:
+        st = states[s.winding]
+        sb = s.build
+        current = st.current_a * signs.get(s.winding, 1.0)
+        geo = K.wire_geometry(st.wire, st.strands)
+        sec_loss = 0.0
+        sec_dc = 0.0
+        for layer in sb.layers:
+            f1 = mmf
+            f2 = mmf + layer.turns * current
+            mmf = f2
+            if abs(current) < 1e-12:
+                continue
+            fr_layer = float(K.layer_ac_factor(geo, layer.turns, sb.usable_breadth_m, delta_cu, f1, f2, harmonics))
+            sec_loss += fr_layer * layer.length_m
+            sec_dc += layer.length_m
+        out[(s.winding, s.index)] = sec_loss / sec_dc if sec_dc > 0 else 1.0
+    return out
+
+
+def leakage_h(built: BuiltWindow, former: Former, currents: Mapping[str, float], ref: str) -> float:
+    """Leakage inductance referred to winding ``ref``, from the MMF across the build (energy method).
+
+    ``currents`` are the windings' load currents with their MMF sign, balanced in ampere-turns
+    (primary + sum N_s I_s / N_p, loads -I_s), so the MMF returns to zero outside the last winding.
+    """
+    segments: list[tuple[float, float, float, float]] = []
+    mmf = 0.0
+    h = 0.0
+    breadths: list[float] = []
+    for s in built.sections:
+        sb = s.build
+        current = currents.get(s.winding, 0.0)
+        breadths.append(sb.usable_breadth_m)
+        for layer in sb.layers:
+            start = layer.build_to_centre_m - sb.layer_height_m / 2.0
+            if start > h:        # insulation or tape before this layer: MMF constant across it
+                segments.append((start - h, mmf, mmf, former.mlt_m((start + h) / 2.0)))
+            f2 = mmf + layer.turns * current
+            segments.append((sb.layer_height_m, mmf, f2, layer.mlt_m))
+            mmf = f2
+            h = start + sb.layer_height_m
+    breadth = sum(breadths) / len(breadths) if breadths else 0.0
+    return leakage_inductance_h(segments, breadth, currents.get(ref, 0.0))
+
+
+def winding_fr(built: BuiltWindow, frs: Mapping[tuple[str, int], float], winding: str) -> float:
+    """A winding's Fr: its sections' factors weighted by their copper length (1 with no copper)."""
+    secs = built.of(winding)
+    clen = sum(s.build.copper_length_m for s in secs)
+    if clen <= 0:
+        return 1.0
+    return sum(frs.get((winding, s.index), 1.0) * s.build.copper_length_m for s in secs) / clen
+

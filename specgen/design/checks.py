@@ -5,11 +5,10 @@ Thresholds marked 'common practice' are rules of thumb of the trade, not standar
 
 from __future__ import annotations
 
-import math
-
-from ..physics import wire as wiremod
 from ..standards.thermal_classes import LETTER_BY_LIMIT as IEC_60085
+from . import kernel as K
 from .result import Check
+from .state import DesignState
 
 KU_WARN_BOBBIN = 0.40        # window utilisation a bobbin winder reaches without trouble (common practice)
 KU_WARN_TOROID = 0.35
@@ -19,67 +18,14 @@ REINFORCED_TAPE_LAYERS = 3   # thin-sheet reinforced insulation: 3 layers, any t
                              # from memory of IEC 61558-1 / IEC 62368-1; the applicable standard decides)
 
 
-def _fmt_t(b: float) -> str:
-    return f"{b:.3f} T" if b < 1.0 else f"{b:.2f} T"
-
-
-def run_checks(*, spec, cat, parts, windings, build, built, temp, b_peak, b_peak_max, b_limit, losses, imag,
-               states, inductor) -> list:
-    out: list = []
+def run_checks(state: DesignState) -> list[Check]:
+    """The checks every kind shares: loss-model range, fit, window fill, temperatures and classes, current
+    density, skin depth, turns per layer, insulation barriers (the kind's flux checks come first)."""
+    spec, cat, parts, windings, build, built, temp, losses, states = (
+        state.spec, state.cat, state.parts, state.windings, state.build, state.built, state.temp, state.losses,
+        state.states)
+    out: list[Check] = []
     mat = parts.material
-    from .engine import b_sat_at_t
-
-    bsat = b_sat_at_t(mat, temp.hot_c)
-    limit = b_limit[0]
-
-    # -- saturation
-    if spec.kind == "transformer":
-        prim = next(w for w in windings if w.role == "primary")
-        what = "ΔB" if spec.waveform == "unipolar" else "B_pk"
-        if b_peak_max > limit * 1.0005:
-            add = math.ceil(prim.turns * b_peak_max / limit) - prim.turns
-            out.append(Check("fail", "saturation",
-                             f"{what} {_fmt_t(b_peak_max)} at the top of the primary range exceeds the "
-                             f"{_fmt_t(limit)} limit ({b_limit[1]}): add {add} primary turns or use a core with "
-                             f"more Ae (the next stack)"))
-        else:
-            out.append(Check("pass", "saturation",
-                             f"{what} {_fmt_t(b_peak_max)} at the top of the primary range, limit {_fmt_t(limit)} "
-                             f"({b_limit[1]}); B_sat at {temp.hot_c:.0f} °C is {_fmt_t(bsat)}"))
-        if spec.waveform == "unipolar" and b_peak_max + mat.b_r_t > bsat:
-            out.append(Check("fail", "remanence",
-                             f"a unipolar pulse starts from the residual flux: B_r {_fmt_t(mat.b_r_t)} + ΔB "
-                             f"{_fmt_t(b_peak_max)} exceeds B_sat {_fmt_t(bsat)}: add turns, gap the core or add a "
-                             f"reset winding"))
-    else:
-        ind = inductor
-        if b_peak_max > bsat:
-            # N = L I_pk / (B_limit Ae), plus one for the gap rounded down to the shop's step
-            need = math.ceil(ind.inductance_h * ind.current_peak_a / (limit * parts.ae_m2) - 1e-9) + 1
-            out.append(Check("fail", "saturation",
-                             f"B_pk {_fmt_t(b_peak_max)} at the peak current {ind.current_peak_a:.3g} A exceeds "
-                             f"B_sat {_fmt_t(bsat)} at {temp.hot_c:.0f} °C: use more turns with a larger gap, about "
-                             f"{need} turns (or let specgen choose them), or a core with more Ae"))
-        elif b_peak_max > limit * 1.0005:
-            out.append(Check("warn", "saturation",
-                             f"B_pk {_fmt_t(b_peak_max)} at the peak current is above the {_fmt_t(limit)} working "
-                             f"limit ({b_limit[1]}) though below B_sat {_fmt_t(bsat)}"))
-        else:
-            out.append(Check("pass", "saturation",
-                             f"B_pk {_fmt_t(b_peak_max)} at the peak current {ind.current_peak_a:.3g} A, limit "
-                             f"{_fmt_t(limit)}; B_sat at {temp.hot_c:.0f} °C is {_fmt_t(bsat)}"))
-
-    # -- inrush: switched on at a voltage zero, the flux swings 2 B_pk from wherever the residual flux left it
-    #    (the doubling effect, common practice); a gapless tape-wound toroid keeps a high B_r, so it goes far
-    #    into saturation and draws many times its rated current for a few cycles
-    if spec.kind == "transformer" and spec.waveform == "sine" and parts.former.kind == "toroid":
-        worst = mat.b_r_t + 2.0 * b_peak_max
-        if worst > bsat:
-            out.append(Check("warn", "inrush",
-                             f"switched on at a voltage zero with residual flux, the core can reach B_r + 2 B_pk = "
-                             f"{_fmt_t(worst)} against B_sat {_fmt_t(bsat)}: expect an inrush of many times the "
-                             f"rated current; specify a soft-start or a slow-blow fuse on the label and test the "
-                             f"first article"))
 
     # -- Steinmetz range
     f = spec.frequency_hz
@@ -134,7 +80,7 @@ def run_checks(*, spec, cat, parts, windings, build, built, temp, b_peak, b_peak
         elif w.thermal_class_c < cls:
             out.append(Check("warn", "wire-class", f"winding {w.name}: wire {w.wire} is class {w.thermal_class_c}, "
                                                    f"below the insulation system class {cls}"))
-    parts_classes = []
+    parts_classes: list[tuple[str, int]] = []
     if parts.bobbin is not None:
         parts_classes.append((f"bobbin {parts.bobbin.id}", parts.bobbin.thermal_class_c))
     for t in (spec.layer_tape, spec.winding_tape, spec.outer_wrap):
@@ -151,8 +97,8 @@ def run_checks(*, spec, cat, parts, windings, build, built, temp, b_peak, b_peak
             out.append(Check("warn", "material-class", f"{name} is class {c}, below the insulation system class {cls}"))
 
     # -- current density and strands vs skin depth
-    shop_j = cat.shop.current_density_a_m2.get(spec.cooling, cat.shop.current_density_a_m2["natural"])
-    delta = wiremod.skin_depth_m(f, wiremod.resistivity_ohm_m(temp.hot_c)) if f > 0 else float("inf")
+    shop_j = K.current_density_a_m2(cat.shop.current_density_a_m2, spec.cooling)
+    delta = float(K.skin_depth_m(f, temp.hot_c)) if f > 0 else float("inf")
     for w in windings:
         if w.role == "shield":
             continue
@@ -163,8 +109,7 @@ def run_checks(*, spec, cat, parts, windings, build, built, temp, b_peak, b_peak
         st = states[w.name]
         d = st.wire.strand_diameter_m if st.wire.is_round else st.wire.thickness_m
         # share of this winding's copper loss that is AC (a DC choke with small ripple barely has any)
-        dc_part = (inductor.current_dc_a if inductor is not None and spec.inductor.voltage_drop_v is None
-                   else 0.0) ** 2 * w.dcr_hot_ohm
+        dc_part = state.summary.dc_current_a ** 2 * w.dcr_hot_ohm
         ac_share = 1.0 - dc_part / w.copper_loss_w if w.copper_loss_w > 0 else 0.0
         if d > 2.0 * delta and w.fr > 1.2 and ac_share > 0.2:
             out.append(Check("warn", "skin-depth",

@@ -23,13 +23,13 @@ from dataclasses import dataclass, field
 
 from ..errors import SpecError
 from ..loading import Reader, load_yaml, parse_yaml
+from .limits import MAX_TURNS
 
 ROLES = ("primary", "secondary", "auxiliary", "shield", "main")
 WAVEFORMS = ("sine", "square", "unipolar")
 STATUSES = ("draft", "released", "obsolete")
 COOLING = ("natural", "forced", "potted")
 RATINGS = ("functional", "basic", "supplementary", "double", "reinforced")
-MAX_TURNS = 20000
 
 
 @dataclass(frozen=True)

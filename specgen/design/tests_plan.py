@@ -8,18 +8,18 @@ drawing, local codes and licensed practice decide.
 from __future__ import annotations
 
 import math
+from collections.abc import Mapping
 
 from ..physics import wire as wiremod
-from .result import HipotTest, Limit, MaterialLine, TestPlan
+from .result import CoreResult, HipotTest, Limit, MaterialLine, TestPlan
+from .spec import Barrier, Spec
+from .state import DesignState, KindTests
 
 TAPE_OVERLAP_M = 0.015          # each wrap of tape overlaps its start by ~15 mm (common practice)
 TOROID_TAPE_OVERLAP = 0.5       # toroid tape laid half-lapped (common practice)
-MAGNETIZING_L_LOW = 0.7         # open-circuit inductance floor: material permeability varies widely (common practice)
-LEAKAGE_BAND = (0.7, 1.3)       # leakage limits: the build's geometry varies less, but a missed interleave or an
-                                # extra tape shows as a large change (common practice, from memory)
 
 
-def hipot_voltage_v(rating: str, working_v: float, hipot: dict) -> tuple[float, str]:
+def hipot_voltage_v(rating: str, working_v: float, hipot: Mapping[str, float]) -> tuple[float, str]:
     """Type-test voltage (a.c. rms, 60 s) for an insulation rating at a working voltage.
 
     The shop's table figures (1500 V basic, 3000 V reinforced up to 250 V working, from memory of IEC 62368-1)
@@ -37,10 +37,8 @@ def hipot_voltage_v(rating: str, working_v: float, hipot: dict) -> tuple[float, 
                f"(common practice, from memory)")
 
 
-def _barriers(spec, windings) -> list:
+def _barriers(spec: Spec) -> list[Barrier]:
     """The spec's barriers, or the default set: primary to the other windings, all windings to the core."""
-    from .spec import Barrier
-
     if spec.barriers:
         return list(spec.barriers)
     wv = 0.0
@@ -57,62 +55,17 @@ def _barriers(spec, windings) -> list:
     return out
 
 
-def test_plan(spec, cat, windings, lm, inductor, voltages, open_circuit, leakage=None) -> TestPlan:
-    shop = cat.shop
+def test_plan(state: DesignState, kind: KindTests) -> TestPlan:
+    """DCR of every winding at 20 degC and the hipot of every barrier (common), with the kind's own limits."""
+    spec, windings, shop = state.spec, state.windings, state.cat.shop
     tol = shop.tolerances
-    alpha = wiremod.ALPHA20_CU_PER_K
     dcr = tuple(Limit(name="DCR", item=w.name, nominal=w.dcr_20c_ohm, low=w.dcr_20c_ohm * (1 - tol["dcr"]),
                       high=w.dcr_20c_ohm * (1 + tol["dcr"]), unit="ohm",
                       condition=f"pins {w.start}-{w.finish}, at 20 °C")
                 for w in windings if w.finish)
-    ratio, ocv, pol, ind = [], [], [], []
-    prim = next((w for w in windings if w.role == "primary"), None)
-    if prim is not None:
-        for w in windings:
-            if w.role in ("secondary", "auxiliary"):
-                r = prim.turns / w.turns
-                ratio.append(Limit(name="turns ratio", item=f"{prim.name}:{w.name}", nominal=r,
-                                   low=r * (1 - tol["ratio"]), high=r * (1 + tol["ratio"]), unit=":1",
-                                   condition=f"{prim.turns} : {w.turns} turns"))
-                v = open_circuit.get(w.name)
-                if v:
-                    ocv.append(Limit(name="open-circuit voltage", item=w.name, nominal=v,
-                                     low=v * (1 - tol["open_circuit_voltage"]),
-                                     high=v * (1 + tol["open_circuit_voltage"]), unit="V",
-                                     condition=f"{prim.name} at {voltages[prim.name]:.4g} V, "
-                                               f"{_f(spec.frequency_hz)}, no load"))
-        for w in windings:
-            if w is prim or not w.finish:
-                continue
-            pol.append(f"Apply a positive step to {prim.name} pin {prim.dot_pin} (dot) with respect to pin "
-                       f"{prim.finish if prim.dot_pin == prim.start else prim.start}: {w.name} pin {w.dot_pin} (dot) "
-                       f"reads positive.")
-        if lm:
-            ind.append(Limit(name="open-circuit inductance", item=prim.name, nominal=lm, low=lm * MAGNETIZING_L_LOW,
-                             high=None, unit="H", condition=f"pins {prim.start}-{prim.finish}, others open"))
-        if leakage:
-            lo, hi = LEAKAGE_BAND
-            ind.append(Limit(name="leakage inductance", item=prim.name, nominal=leakage, low=leakage * lo,
-                             high=leakage * hi, unit="H",
-                             condition=f"pins {prim.start}-{prim.finish}, every other winding shorted"))
-    if inductor is not None:
-        w = windings[0]
-        t = tol["inductance"]
-        ind.append(Limit(name="inductance, no bias", item=w.name, nominal=inductor.inductance_zero_bias_h,
-                         low=inductor.inductance_zero_bias_h * (1 - t), high=inductor.inductance_zero_bias_h * (1 + t),
-                         unit="H", condition=f"pins {w.start}-{w.finish}, small signal, {_f(spec.frequency_hz)}"))
-        if inductor.rolloff_pct > 0.5:
-            ind.append(Limit(name=f"inductance at {inductor.current_dc_a:g} A DC", item=w.name,
-                             nominal=inductor.inductance_at_full_bias_h,
-                             low=inductor.inductance_at_full_bias_h * (1 - t), high=None, unit="H",
-                             condition="with DC bias source, if the station has one"))
-        if inductor.gap_m:
-            ind.append(Limit(name="AL of the gapped set", item=w.name, nominal=inductor.al_nh * 1e-9,
-                             low=inductor.al_nh * 1e-9 * (1 - t), high=inductor.al_nh * 1e-9 * (1 + t),
-                             unit="H", condition="per turn squared; check the set before winding with a 10-turn coil"))
     hp = shop.hipot
     hipot = []
-    for b in _barriers(spec, windings):
+    for b in _barriers(spec):
         v, basis = hipot_voltage_v(b.rating, b.working_voltage_v, hp)
         hipot.append(HipotTest(between=f"{b.a} - {b.b}", a=b.a, b=b.b, rating=b.rating,
                                working_voltage_v=b.working_voltage_v, type_voltage_v=v,
@@ -120,17 +73,14 @@ def test_plan(spec, cat, windings, lm, inductor, voltages, open_circuit, leakage
                                routine_duration_s=hp["routine_duration_s"], trip_current_a=hp["trip_current_a"],
                                basis=basis))
     ir = shop.insulation_resistance
-    return TestPlan(dcr=dcr, ratio=tuple(ratio), open_circuit=tuple(ocv), inductance=tuple(ind),
-                    polarity=tuple(pol), hipot=tuple(hipot), insulation_resistance_v=ir["voltage_v"],
-                    insulation_resistance_min_ohm=ir["minimum_ohm"], alpha_per_k=alpha)
+    return TestPlan(dcr=dcr, ratio=kind.ratio, open_circuit=kind.open_circuit, inductance=kind.inductance,
+                    polarity=kind.polarity, hipot=tuple(hipot), insulation_resistance_v=ir["voltage_v"],
+                    insulation_resistance_min_ohm=ir["minimum_ohm"], alpha_per_k=wiremod.ALPHA20_CU_PER_K)
 
 
-def _f(hz: float) -> str:
-    return f"{hz / 1e3:g} kHz" if hz >= 1e3 else f"{hz:g} Hz"
-
-
-def materials_per_unit(spec, cat, parts, built, windings, core) -> list:
+def materials_per_unit(state: DesignState, core: CoreResult) -> list[MaterialLine]:
     """What one unit pulls from stock: core, bobbin, clips, each wire, tapes, sleeving, varnish."""
+    spec, cat, parts, built, windings = state.spec, state.cat, state.parts, state.built, state.windings
     out = []
     c = parts.core
     m = parts.material
@@ -150,7 +100,7 @@ def materials_per_unit(spec, cat, parts, built, windings, core) -> list:
                                 + (f", {w.strands} in hand" if w.strands > 1 else ""),
                                 w.length_m * w.strands, "m", w.mass_kg, note=f"winding {w.name}"))
     tf_toroid = parts.former.kind == "toroid"
-    tape_len: dict = {}
+    tape_len: dict[str, float] = {}
 
     def add_tape(tape_id: str, length: float) -> None:
         tape_len[tape_id] = tape_len.get(tape_id, 0.0) + length
@@ -165,7 +115,8 @@ def materials_per_unit(spec, cat, parts, built, windings, core) -> list:
             return wraps * mean_c / (width * TOROID_TAPE_OVERLAP) * mlt
         return wraps * (mlt + TAPE_OVERLAP_M)
 
-    for _st, _k, _order, sb, margin, tape_id, tape_layers in built.sections:
+    for sec in built.sections:
+        sb, margin, tape_id, tape_layers = sec.build, sec.margin_m, sec.tape_after, sec.tape_after_layers
         if spec.layer_tape and len(sb.layers) > 1:
             for layer in sb.layers[:-1]:
                 add_tape(spec.layer_tape.tape, wrap_length(spec.layer_tape.tape, layer.mlt_m, spec.layer_tape.layers))
@@ -181,7 +132,7 @@ def materials_per_unit(spec, cat, parts, built, windings, core) -> list:
         width = f"{t.width_m * 1e3:g} mm"
         name = t.name if width in t.name else f"{t.name}, {width} wide"     # most catalogue names carry it
         out.append(MaterialLine("tape", tid, name, length, "m", None))
-    sleeve: dict = {}
+    sleeve: dict[str, float] = {}
     for w, ws in zip(windings, spec.windings):
         sid = w.lead_sleeving
         if sid:
@@ -193,7 +144,8 @@ def materials_per_unit(spec, cat, parts, built, windings, core) -> list:
     if spec.varnish:
         v = cat.varnishes[spec.varnish]
         volume = 0.0
-        for _st, _k, _order, sb, *_ in built.sections:
+        for sec in built.sections:
+            sb = sec.build
             for layer in sb.layers:
                 volume += layer.turns_capacity * sb.pitch_m * sb.layer_height_m * layer.mlt_m
         out.append(MaterialLine("varnish", v.id, v.name, volume * v.usage_m3_per_m3 * 1e3, "l", None,

@@ -1,0 +1,26 @@
+"""The flux-density limit of one design, with its basis in words (the kernel's ``flux_limit_t``)."""
+
+from __future__ import annotations
+
+from ..catalog.models import Catalog, Material
+from . import kernel as K
+from .spec import Spec
+from .state import FluxLimit
+
+
+def b_sat_hot_t(material: Material, temp_c: float) -> float:
+    """The material's B_sat at a temperature (``kernel.b_sat_t`` on its catalogue points)."""
+    return float(K.b_sat_t(material.b_sat_25c_t, material.b_sat_100c_t, temp_c))
+
+
+def flux_limit(spec: Spec, cat: Catalog, material: Material, hot_c: float) -> FluxLimit:
+    """The spec's limit, else the material's design value, else the shop's fraction of B_sat at the hot spot."""
+    m = material
+    frac = cat.shop.flux_limit_fraction
+    value = float(K.flux_limit_t(m.b_sat_25c_t, m.b_sat_100c_t, hot_c, frac, m.b_design_t, spec.flux_limit_t))
+    if spec.flux_limit_t is not None:
+        return FluxLimit(value, "spec")
+    bsat = b_sat_hot_t(m, hot_c)
+    if m.b_design_t is not None and m.b_design_t < frac * bsat:
+        return FluxLimit(value, f"material design value ({m.id})")
+    return FluxLimit(value, f"{frac:.0%} of B_sat {bsat:.2f} T at {hot_c:.0f} °C (shop rule)")

@@ -1,0 +1,266 @@
+"""Inductors and chokes: gapped cores (energy method + fringing), powder cores under DC bias, AC reactors.
+
+Gapped core (McLyman's method): turns from N = L I_pk / (B_max A_e); the gap from
+L = mu0 N^2 A_e F / (l_g + l_e/mu_r) solved with the fringing factor F; the gap rounded down to the shop's
+0.01 mm so the built part meets L; a spacer in all legs is half the gap (the flux crosses it twice).
+Powder core: no discrete gap; the permeability falls with the DC magnetizing force H = N I / l_e along the
+catalogue's roll-off curve, so the turns are iterated until L is met at full DC current.
+AC reactor: L = V_drop / (2 pi f I) at rated current, then as a gapped core at I_pk = sqrt(2) I.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+
+from ...catalog.models import Catalog
+from ...physics import gap as gapmod
+from ...physics import permeability
+from .. import kernel as K
+from ..build import copper_lengths_m, lay_out, section_frs, winding_fr
+from ..flux import b_sat_hot_t, flux_limit
+from ..resolve import spec_error, too_many_turns
+from ..result import Check, InductorResult, Limit
+from ..spec import InductorReq, Spec
+from ..state import (
+    DesignState,
+    ElectricalSummary,
+    Evaluation,
+    KindTests,
+    Magnetics,
+    Parts,
+    ThermalState,
+    WindingState,
+)
+from ..wires import choose_wire
+
+ROLLOFF_WARN_PCT = 50.0    # more than half the permeability gone at full current: a poor use of powder (common practice)
+
+
+@dataclass(frozen=True, slots=True)
+class InductorPass:
+    magnetics: Magnetics
+    delta_b_t: float
+
+
+@dataclass(frozen=True, slots=True)
+class Currents:
+    """The currents an inductor is designed for, and the inductance it must have."""
+    target_h: float
+    i_dc: float           # DC (a choke); 0 for an AC reactor
+    i_ac: float           # rms of the AC part
+    i_rms: float
+    i_pk: float           # over-current peak: must not saturate
+    i_op_pk: float        # operating peak
+    ripple: float         # peak to peak
+    ac: bool              # an AC reactor
+
+
+def currents(req: InductorReq, freq_hz: float) -> Currents:
+    if req.voltage_drop_v is not None:
+        i_rms = req.current_dc_a
+        return Currents(target_h=req.voltage_drop_v / (2.0 * math.pi * freq_hz * i_rms), i_dc=0.0, i_ac=i_rms,
+                        i_rms=i_rms, i_pk=req.current_peak_a or math.sqrt(2.0) * i_rms, i_op_pk=math.sqrt(2.0) * i_rms,
+                        ripple=2.0 * math.sqrt(2.0) * i_rms, ac=True)
+    i_dc, ripple = req.current_dc_a, req.ripple_a
+    i_ac = ripple / math.sqrt(12.0)           # rms of a triangular ripple
+    i_op_pk = i_dc + ripple / 2.0
+    return Currents(target_h=float(req.inductance_h or 0.0), i_dc=i_dc, i_ac=i_ac, i_rms=math.hypot(i_dc, i_ac),
+                    i_pk=max(req.current_peak_a or 0.0, i_op_pk), i_op_pk=i_op_pk, ripple=ripple, ac=False)
+
+
+class InductorRun:
+    def __init__(self, spec: Spec, cat: Catalog, parts: Parts) -> None:
+        assert spec.inductor is not None
+        self.spec, self.cat, self.parts, self.req = spec, cat, parts, spec.inductor
+        self.w = spec.windings[0]
+        self.c = c = currents(self.req, spec.frequency_hz)
+        w = self.w
+        if not w.wire.startswith("auto"):
+            self.wire, self.strands, self.reason = cat.wires[w.wire], (w.strands or 1), "given"
+        else:
+            density = K.current_density_a_m2(cat.shop.current_density_a_m2, spec.cooling)
+            wire_f = spec.frequency_hz if (c.ac or (c.i_dc > 0 and c.i_ac / c.i_dc > K.RIPPLE_SKIN_FRACTION)) else 0.0
+            choice = choose_wire(cat, c.i_rms, density, wire_f, K.WIRE_CHOICE_TEMP_C, w.wire, w.strands)
+            self.wire, self.strands, self.reason = choice.wire, choice.strands, choice.reason
+        if parts.material.is_powder and self.req.gap == "fixed":
+            raise spec_error(spec, f"{parts.core.id} is a powder core: its gap is distributed in the material; "
+                                   f"remove core.gap", "core", "gap")
+
+    def powder(self, temp: ThermalState) -> Magnetics:
+        """Turns from the DC-bias roll-off; L and B at zero and full bias."""
+        spec, parts, c, mat = self.spec, self.parts, self.c, self.parts.material
+        ae, le, mu = parts.ae_m2, parts.le_m, mat.mu_initial
+        a, b, cc = float(mat.rolloff_a or 0.0), float(mat.rolloff_b or 0.0), float(mat.rolloff_c or 0.0)
+        n = self.w.turns or permeability.turns_for_biased_inductance(c.target_h, c.i_dc if not c.ac else c.i_op_pk,
+                                                                     ae, le, mu, a, b, cc)
+        if n is None:
+            raise spec_error(spec, f"{parts.core.id} cannot reach {c.target_h * 1e6:.4g} µH at "
+                                   f"{c.i_dc:g} A: the permeability rolls off faster than turns add; use a "
+                                   f"larger core or a lower-permeability powder", "core", "id")
+        bias = c.i_dc if not c.ac else 0.0
+        l0 = float(permeability.powder_inductance_h(n, ae, le, mu, 0.0, a, b, cc))
+        lfull = float(permeability.powder_inductance_h(n, ae, le, mu, bias, a, b, cc))
+        frac = float(permeability.rolloff_fraction(n * bias / le, a, b, cc))
+        rolloff = (1.0 - frac / float(permeability.rolloff_fraction(0.0, a, b, cc))) * 100.0
+        return Magnetics(turns=int(n), flux_limit=flux_limit(spec, self.cat, mat, temp.hot_c), inductance_h=lfull,
+                         inductance_zero_bias_h=l0, inductance_full_bias_h=lfull,
+                         b_peak_t=float(K.powder_flux_t(n, c.i_op_pk, le, mu, a, b, cc)),
+                         b_peak_max_t=float(K.powder_flux_t(n, c.i_pk, le, mu, a, b, cc)), rolloff_pct=rolloff)
+
+    def gapped(self, temp: ThermalState) -> Magnetics:
+        """Turns and gap: fixed gap or none (turns for L), else the energy method (``kernel.gapped_turns_and_gap``)."""
+        spec, parts, c, req, w = self.spec, self.parts, self.c, self.req, self.w
+        ae, le, mu, G = parts.ae_m2, parts.le_m, parts.material.mu_initial, parts.window_breadth_m
+        limit = flux_limit(spec, self.cat, parts.material, temp.hot_c)
+        what = f"{c.target_h * 1e6:.4g} µH at {c.i_pk:g} A"
+        if req.gap in ("fixed", "none"):
+            lg = float(req.gap_m or 0.0) if req.gap == "fixed" else 0.0
+            n = w.turns or int(K.turns_for_inductance(c.target_h, ae, le, mu, lg, G))
+        else:
+            n_float = float(K.turns_for_peak_flux(c.target_h, c.i_pk, limit.value_t, ae))
+            if not n_float < K.MAX_TURNS:
+                raise too_many_turns(spec, n_float, what, "inductor")
+            nf, lgf = K.gapped_turns_and_gap(c.target_h, c.i_pk, limit.value_t, ae, le, mu, G, fixed_turns=w.turns)
+            n, lg = int(nf), float(lgf)
+        l_built = float(gapmod.inductance_gapped_h(n, ae, le, mu, lg, G if lg > 0 else None))
+        arrangement = req.gap_arrangement if lg > 0 else "none"
+        notes: list[Check] = []
+        if arrangement == "centre" and parts.core.shape == "EI":
+            arrangement = "spacer"
+            notes.append(Check("warn", "gap", "laminations cannot be ground in the centre leg only: the gap "
+                                              "is made with a spacer (butt gap) in every leg"))
+        if lg > 0 and not parts.core.gappable and req.gap == "auto":
+            notes.append(Check("warn", "gap", f"{parts.core.id} is not marked gappable in the catalogue: "
+                                              f"confirm the shop can grind or shim it"))
+        if n > K.MAX_TURNS:
+            raise too_many_turns(spec, n, what, "inductor")
+        return Magnetics(turns=n, flux_limit=limit, inductance_h=l_built, inductance_zero_bias_h=l_built,
+                         inductance_full_bias_h=l_built, gap_m=lg if lg > 0 else 0.0,
+                         arrangement="centre" if arrangement == "centre" else "spacer" if arrangement == "spacer"
+                         else "none",
+                         fringing_factor=float(gapmod.fringing_factor(lg, ae, G)) if lg > 0 else 1.0,
+                         spacer_m=lg / 2.0 if arrangement == "spacer" else None,
+                         grind_m=lg if arrangement == "centre" else None,
+                         b_peak_t=float(gapmod.b_peak_from_inductance_t(l_built, c.i_op_pk, n, ae)),
+                         b_peak_max_t=float(gapmod.b_peak_from_inductance_t(l_built, c.i_pk, n, ae)),
+                         rolloff_pct=0.0, notes=tuple(notes))
+
+    def evaluate(self, temp: ThermalState) -> Evaluation:
+        spec, parts, c, mat = self.spec, self.parts, self.c, self.parts.material
+        mg = self.powder(temp) if mat.is_powder else self.gapped(temp)
+        st = WindingState(self.w, 0, self.wire, self.strands, mg.turns, c.i_rms, self.reason)
+        states = {self.w.name: st}
+        built = lay_out(spec, parts, states, self.cat)
+        f = spec.frequency_hz
+        frs = section_frs(built, states, f, temp.hot_c, "sine", {self.w.name: 1.0}) if built.ok else {}
+        delta_b = mg.inductance_full_bias_h * c.ripple / (mg.turns * parts.ae_m2)
+        k, a, b = mat.steinmetz_k, mat.steinmetz_alpha, mat.steinmetz_beta
+        if c.ac:
+            pv = float(K.core_loss_w_m3("sine", f, mg.b_peak_t, 0.5, k, a, b))
+        else:
+            pv = float(K.core_loss_w_m3("ripple", f, delta_b, self.req.duty, k, a, b))
+        length = copper_lengths_m(built, self.cat.shop.lead_length_m).get(self.w.name, 0.0)
+        r_hot = float(K.dc_resistance_ohm(st.wire.copper_area_m2 * st.strands, length, temp.hot_c, st.wire.conductor))
+        copper = float(K.copper_loss_w(r_hot, winding_fr(built, frs, self.w.name), c.i_ac, c.i_dc))
+        return Evaluation(states, built, frs, copper, pv * parts.ve_m3, pv, InductorPass(mg, delta_b))
+
+    # -- the KindRun protocol
+    def first(self, temp: ThermalState) -> tuple[Evaluation, int]:
+        return self.evaluate(temp), 0
+
+    def again(self, previous: Evaluation, temp: ThermalState) -> Evaluation:
+        return self.evaluate(temp)
+
+    def summary(self, ev: Evaluation, temp: ThermalState) -> ElectricalSummary:
+        assert isinstance(ev.detail, InductorPass)
+        mg, c, le, ae = ev.detail.magnetics, self.c, self.parts.le_m, self.parts.ae_m2
+        n = mg.turns
+        powder = self.parts.material.is_powder
+        ind = InductorResult(
+            inductance_h=mg.inductance_h, inductance_zero_bias_h=mg.inductance_zero_bias_h,
+            inductance_at_full_bias_h=mg.inductance_full_bias_h, target_h=c.target_h,
+            gap_m=None if powder else mg.gap_m, gap_arrangement=mg.arrangement, spacer_m=mg.spacer_m,
+            grind_m=mg.grind_m, fringing_factor=mg.fringing_factor,
+            al_nh=float(gapmod.al_nh(mg.inductance_zero_bias_h, n)),
+            energy_j=float(gapmod.energy_j(mg.inductance_full_bias_h, c.i_op_pk if c.ac else c.i_dc)),
+            h_dc_a_m=n * c.i_dc / le, rolloff_pct=mg.rolloff_pct, current_dc_a=c.i_dc if not c.ac else c.i_rms,
+            current_peak_a=c.i_pk, ripple_a=c.ripple, delta_b_t=ev.detail.delta_b_t,
+            b_dc_t=mg.inductance_full_bias_h * c.i_dc / (n * ae) if c.i_dc else 0.0,
+        )
+        extra = list(mg.notes)          # from the last pass only: each pass finds the magnetics again
+        tol = self.cat.shop.tolerances["inductance"]
+        lfull = mg.inductance_full_bias_h
+        if lfull < c.target_h * (1 - tol):
+            extra.append(Check("fail", "inductance",
+                               f"built inductance {lfull * 1e6:.4g} µH is below the {c.target_h * 1e6:.4g} µH "
+                               f"required: add turns or reduce the gap"))
+        else:
+            extra.append(Check("pass", "inductance", f"L {lfull * 1e6:.4g} µH at "
+                                                     f"{ind.current_dc_a:g} A against {c.target_h * 1e6:.4g} µH required"))
+        if powder and mg.rolloff_pct > ROLLOFF_WARN_PCT:
+            extra.append(Check("warn", "rolloff", f"{mg.rolloff_pct:.0f} % of the permeability is lost at "
+                                                  f"{c.i_dc:g} A (H = {ind.h_dc_a_m:.0f} A/m): a larger core or a lower-"
+                                                  f"permeability mix rolls off less (common practice: under 50 %)"))
+        return ElectricalSummary(b_peak_t=mg.b_peak_t, b_peak_max_t=mg.b_peak_max_t, flux_limit=mg.flux_limit,
+                                 h_peak_a_m=n * c.i_pk / le, inductor=ind, ripple_rms={self.w.name: (c.i_dc, c.i_ac)},
+                                 dc_current_a=ind.current_dc_a if not c.ac else 0.0, checks=tuple(extra))
+
+
+def _fmt_t(b: float) -> str:
+    return f"{b:.3f} T" if b < 1.0 else f"{b:.2f} T"
+
+
+def _freq(hz: float) -> str:
+    return f"{hz / 1e3:g} kHz" if hz >= 1e3 else f"{hz:g} Hz"
+
+
+class InductorKind:
+    name = "inductor"
+
+    def start(self, spec: Spec, cat: Catalog, parts: Parts) -> InductorRun:
+        return InductorRun(spec, cat, parts)
+
+    def flux_checks(self, state: DesignState) -> list[Check]:
+        """Saturation at the over-current peak: fail above B_sat, warn above the working limit."""
+        s, temp, ind = state.summary, state.temp, state.summary.inductor
+        assert ind is not None
+        bsat = b_sat_hot_t(state.parts.material, temp.hot_c)
+        limit = s.flux_limit.value_t
+        b = s.b_peak_max_t
+        if b > bsat:
+            # N = L I_pk / (B_limit Ae), plus one for the gap rounded down to the shop's step
+            need = math.ceil(ind.inductance_h * ind.current_peak_a / (limit * state.parts.ae_m2) - 1e-9) + 1
+            return [Check("fail", "saturation",
+                          f"B_pk {_fmt_t(b)} at the peak current {ind.current_peak_a:.3g} A exceeds "
+                          f"B_sat {_fmt_t(bsat)} at {temp.hot_c:.0f} °C: use more turns with a larger gap, about "
+                          f"{need} turns (or let specgen choose them), or a core with more Ae")]
+        if b > limit * 1.0005:
+            return [Check("warn", "saturation",
+                          f"B_pk {_fmt_t(b)} at the peak current is above the {_fmt_t(limit)} working "
+                          f"limit ({s.flux_limit.basis}) though below B_sat {_fmt_t(bsat)}")]
+        return [Check("pass", "saturation",
+                      f"B_pk {_fmt_t(b)} at the peak current {ind.current_peak_a:.3g} A, limit "
+                      f"{_fmt_t(limit)}; B_sat at {temp.hot_c:.0f} °C is {_fmt_t(bsat)}")]
+
+    def test_limits(self, state: DesignState) -> KindTests:
+        """Inductance without bias, at full bias (powder), and the AL of the gapped set."""
+        inductor = state.summary.inductor
+        assert inductor is not None
+        w = state.windings[0]
+        t = state.cat.shop.tolerances["inductance"]
+        ind: list[Limit] = []
+        l0 = inductor.inductance_zero_bias_h
+        ind.append(Limit(name="inductance, no bias", item=w.name, nominal=l0, low=l0 * (1 - t), high=l0 * (1 + t),
+                         unit="H", condition=f"pins {w.start}-{w.finish}, small signal, {_freq(state.spec.frequency_hz)}"))
+        if inductor.rolloff_pct > 0.5:
+            ind.append(Limit(name=f"inductance at {inductor.current_dc_a:g} A DC", item=w.name,
+                             nominal=inductor.inductance_at_full_bias_h,
+                             low=inductor.inductance_at_full_bias_h * (1 - t), high=None, unit="H",
+                             condition="with DC bias source, if the station has one"))
+        if inductor.gap_m:
+            al = inductor.al_nh * 1e-9
+            ind.append(Limit(name="AL of the gapped set", item=w.name, nominal=al, low=al * (1 - t),
+                             high=al * (1 + t), unit="H",
+                             condition="per turn squared; check the set before winding with a 10-turn coil"))
+        return KindTests(inductance=tuple(ind))

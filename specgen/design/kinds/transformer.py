@@ -1,0 +1,381 @@
+"""Transformers: Faraday turns, load-compensated secondaries, loss-limited primary turns.
+
+Primary turns from Faraday's law at the top of the primary range and the flux limit at the hot spot (a
+unipolar pulse may swing only B_limit - B_r); above 1 kHz (loss-limited) the turns are raised while the total
+loss falls and the winding still fits. Secondary turns are raised until the loaded voltage is met: the
+resistive drops referred through the ratio, and for a sine drive the leakage reactance in quadrature.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass, replace
+
+from ...catalog.models import Catalog
+from ...physics import faraday
+from .. import kernel as K
+from ..build import copper_lengths_m, lay_out, leakage_h, section_frs, winding_fr
+from ..flux import b_sat_hot_t, flux_limit
+from ..resolve import spec_error, too_many_turns
+from ..result import Check, Limit
+from ..spec import Spec, Winding
+from ..state import (
+    BuiltWindow,
+    DesignState,
+    ElectricalSummary,
+    Evaluation,
+    FluxLimit,
+    KindTests,
+    Parts,
+    ThermalState,
+    WindingState,
+    WireChoice,
+)
+from ..wires import choose_wire
+
+MAGNETIZING_WARN = 0.35      # magnetizing current above this share of the primary current (common practice)
+MAX_SCAN = 60                # loss-limited search: at most this many primary-turn candidates
+LOSS_LIMITED_ABOVE_HZ = 1000.0   # above this the core loss, not saturation, sets the turns (common practice)
+MAGNETIZING_L_LOW = 0.7      # open-circuit inductance floor: material permeability varies widely (common practice)
+LEAKAGE_BAND = (0.7, 1.3)    # leakage limits: the build's geometry varies less, but a missed interleave or an
+                             # extra tape shows as a large change (common practice, from memory)
+
+
+@dataclass(frozen=True, slots=True)
+class TransformerPass:
+    """A transformer's own figures at one pass."""
+    primary_turns: int
+    eta: float                       # the efficiency the primary current was sized with
+    lm_h: float
+    imag_a: float
+    imag_pk_a: float
+    b_peak_t: float
+    b_peak_max_t: float
+    loaded_v: dict[str, float]
+    open_v: dict[str, float]
+    leakage_h: float
+
+
+def _balanced(spec: Spec, states: dict[str, WindingState], np_turns: int) -> dict[str, float]:
+    """Load currents with their MMF sign, balanced in ampere-turns: the primary carries sum(N_s I_s)/N_p."""
+    loads = [w for w in spec.windings if w.role in ("secondary", "auxiliary")]
+    out = {w.name: -states[w.name].current_a for w in loads}
+    prim = next(w for w in spec.windings if w.role == "primary")
+    out[prim.name] = sum(states[w.name].current_a * states[w.name].turns for w in loads) / np_turns
+    return out
+
+
+def _signs(spec: Spec) -> dict[str, float]:
+    """MMF direction of each winding's current: primary +1; loads -1 (ampere-turn balance)."""
+    return {w.name: (1.0 if w.role == "primary" else -1.0) for w in spec.windings}
+
+
+def _dcr(st: WindingState, length_m: float, temp_c: float) -> float:
+    return float(K.dc_resistance_ohm(st.wire.copper_area_m2 * st.strands, length_m, temp_c, st.wire.conductor))
+
+
+class TransformerRun:
+    """One transformer in progress: the requirement read once, the wires chosen once."""
+
+    def __init__(self, spec: Spec, cat: Catalog, parts: Parts) -> None:
+        self.spec, self.cat, self.parts = spec, cat, parts
+        self.prim: Winding = next(w for w in spec.windings if w.role == "primary")
+        self.loads = [w for w in spec.windings if w.role in ("secondary", "auxiliary")]
+        self.vp = float(self.prim.voltage_v or 0.0)
+        self.vp_max = self.prim.voltage_max_v or self.vp
+        self.density = K.current_density_a_m2(cat.shop.current_density_a_m2, spec.cooling)
+        self.load_current = {w.name: (w.current_a if w.current_a is not None else (w.va or 0.0) / (w.voltage_v or 1.0))
+                             for w in self.loads}
+        self.p_out = sum((w.voltage_v or 0.0) * self.load_current[w.name] for w in self.loads)
+        if self.p_out <= 0:
+            raise spec_error(spec, "the secondaries draw no power; give their currents", "windings")
+        self.wires: dict[str, WireChoice] = {}
+
+    # -- turns
+    def swing_limit(self, limit: FluxLimit) -> FluxLimit:
+        """A unipolar pulse starts from the residual flux: only B_limit - B_r is usable (no reset winding)."""
+        value = float(K.unipolar_swing_t(limit.value_t, self.parts.material.b_r_t, self.spec.waveform))
+        suffix = " less B_r (unipolar)" if self.spec.waveform == "unipolar" else ""
+        return FluxLimit(value, limit.basis + suffix)
+
+    def min_turns(self, temp: ThermalState) -> int:
+        spec = self.spec
+        if self.prim.turns:
+            return self.prim.turns
+        limit = self.swing_limit(flux_limit(spec, self.cat, self.parts.material, temp.hot_c))
+        n = float(K.turns_for_voltage(self.vp_max, spec.frequency_hz, limit.value_t, self.parts.ae_m2,
+                                      spec.waveform, spec.duty))
+        if not n < K.MAX_TURNS:
+            raise too_many_turns(spec, n, f"the primary at {self.vp_max:g} V, {spec.frequency_hz:g} Hz", "windings",
+                                 spec.windings.index(self.prim), "voltage")
+        return int(K.whole_turns(n))
+
+    def pick_wires(self, ip: float) -> None:
+        spec, cat, f = self.spec, self.cat, self.spec.frequency_hz
+        for w in spec.windings:
+            current = ip if w.role == "primary" else self.load_current.get(w.name, 0.0)
+            if not w.wire.startswith("auto"):
+                self.wires[w.name] = WireChoice(cat.wires[w.wire], w.strands or 1, "given")
+            elif w.role == "shield":
+                self.wires[w.name] = choose_wire(cat, 0.05, self.density, 0.0, K.WIRE_CHOICE_TEMP_C, "auto")
+            else:
+                self.wires[w.name] = choose_wire(cat, current, self.density, f, K.WIRE_CHOICE_TEMP_C, w.wire, w.strands)
+
+    def initial_states(self, np_turns: int, ip: float) -> dict[str, WindingState]:
+        states: dict[str, WindingState] = {}
+        for i, w in enumerate(self.spec.windings):
+            choice = self.wires[w.name]
+            if w.role == "primary":
+                turns, current = np_turns, ip
+            elif w.role == "shield":
+                turns, current = (w.turns or 1), 0.0
+            else:
+                turns = w.turns or max(1, math.ceil(np_turns * (w.voltage_v or 0.0) / self.vp - 1e-9))
+                if turns > K.MAX_TURNS:
+                    raise too_many_turns(self.spec, turns, f"winding {w.name} at {w.voltage_v:g} V", "windings", i,
+                                         "voltage")
+                current = self.load_current[w.name]
+            states[w.name] = WindingState(w, i, choice.wire, choice.strands, turns, current, choice.reason)
+        return states
+
+    def wind(self, states: dict[str, WindingState], np_turns: int,
+             temp: ThermalState) -> tuple[BuiltWindow, dict[str, float]]:
+        """Lay out the window, raising secondary turns until each loaded voltage is met (``states`` updated)."""
+        spec, parts, lead = self.spec, self.parts, self.cat.shop.lead_length_m
+        prim, vp = self.prim, self.vp
+        built: BuiltWindow | None = None
+        loaded: dict[str, float] = {}
+        for _ in range(12):
+            built = lay_out(spec, parts, states, self.cat)
+            if not built.ok:
+                break
+            changed = False
+            for name, st in list(states.items()):       # a shield fills exactly one layer
+                if st.spec.role == "shield" and not st.spec.turns:
+                    cap = built.of(name)[0].build.turns_per_layer
+                    if cap != st.turns:
+                        states[name], changed = replace(st, turns=cap), True
+            lengths = copper_lengths_m(built, lead)
+            rp = _dcr(states[prim.name], lengths[prim.name], temp.hot_c)
+            # the primary carries every load's current referred through its ratio, so its drop is shared
+            i_ref = sum(states[w.name].current_a * states[w.name].turns / np_turns for w in self.loads)
+            # leakage reactance referred to the primary (sine only: a square-wave drive loses volt-seconds
+            # to the leakage instead, which the converter's duty absorbs)
+            x_lk = (2.0 * math.pi * spec.frequency_hz * leakage_h(built, parts.former, _balanced(spec, states, np_turns),
+                                                                  prim.name)) if spec.waveform == "sine" else 0.0
+            for w in self.loads:
+                st = states[w.name]
+                rs = _dcr(st, lengths[w.name], temp.hot_c)
+                ratio = st.turns / np_turns
+                # resistive drops in phase with a resistive load, the leakage drop in quadrature
+                e = ratio * (vp - i_ref * rp)
+                x_drop = ratio * i_ref * x_lk * (st.current_a * st.turns) / max(i_ref * np_turns, 1e-12)
+                v_loaded = math.sqrt(max(e * e - x_drop * x_drop, 0.0)) - st.current_a * rs
+                loaded[w.name] = v_loaded
+                want = w.voltage_v or 0.0
+                if w.turns is None and v_loaded < want - 1e-9 and st.turns <= K.MAX_TURNS:
+                    volts_per_turn = (vp - i_ref * rp) / np_turns
+                    add = max(1, math.ceil((want - v_loaded) / volts_per_turn - 1e-9))
+                    states[w.name], changed = replace(st, turns=st.turns + add), True
+            for w in self.loads:      # matched pairs wind the larger of their two turn counts
+                if w.match and states[w.match].turns != states[w.name].turns:
+                    n = max(states[w.match].turns, states[w.name].turns)
+                    states[w.match] = replace(states[w.match], turns=n)
+                    states[w.name] = replace(states[w.name], turns=n)
+                    changed = True
+            if not changed:
+                break
+        assert built is not None
+        return built, loaded
+
+    def evaluate(self, np_turns: int, temp: ThermalState, eta: float) -> Evaluation:
+        spec, parts, mat = self.spec, self.parts, self.parts.material
+        f, wf = spec.frequency_hz, spec.waveform
+        lm = float(faraday.magnetizing_inductance_h(np_turns, parts.ae_m2, parts.le_m, mat.mu_working))
+        imag, imag_pk = (float(x) for x in K.magnetizing_current_a(self.vp, f, lm, wf, spec.duty))
+        ip = math.hypot(self.p_out / eta / self.vp, imag)
+        if not self.wires:
+            self.pick_wires(ip)
+        states = self.initial_states(np_turns, ip)
+        built, loaded = self.wind(states, np_turns, temp)
+        frs = section_frs(built, states, f, temp.hot_c, wf, _signs(spec)) if built.ok else {}
+        lengths = copper_lengths_m(built, self.cat.shop.lead_length_m)
+        copper = 0.0
+        for name, st in states.items():
+            if name in lengths:
+                copper += float(K.copper_loss_w(_dcr(st, lengths[name], temp.hot_c), winding_fr(built, frs, name),
+                                                st.current_a))
+        b_pk = float(faraday.b_peak_t(self.vp, f, np_turns, parts.ae_m2, wf, spec.duty))
+        b_pk_max = float(faraday.b_peak_t(self.vp_max, f, np_turns, parts.ae_m2, wf, spec.duty))
+        pv = float(K.core_loss_w_m3(wf, f, b_pk, spec.duty, mat.steinmetz_k, mat.steinmetz_alpha, mat.steinmetz_beta))
+        open_v = {w.name: self.vp * states[w.name].turns / np_turns for w in self.loads}
+        l_lk = leakage_h(built, parts.former, _balanced(spec, states, np_turns), self.prim.name) if built.ok else 0.0
+        detail = TransformerPass(np_turns, eta, lm, imag, imag_pk, b_pk, b_pk_max, loaded, open_v, l_lk)
+        return Evaluation(states, built, frs, copper, pv * parts.ve_m3, pv, detail)
+
+    def fits(self, ev: Evaluation) -> bool:
+        return ev.built.ok and ev.built.height_m * self.cat.shop.bulge_factor <= self.parts.former.height_m
+
+    # -- the KindRun protocol
+    def first(self, temp: ThermalState) -> tuple[Evaluation, int]:
+        """Saturation-limited turns; above 1 kHz raised while the total loss falls; wires for the turns kept."""
+        eta = self.spec.efficiency_guess
+        n0 = self.min_turns(temp)
+        best = self.evaluate(n0, temp, eta)
+        passes = 1
+        if not self.prim.turns and self.spec.frequency_hz >= LOSS_LIMITED_ABOVE_HZ and best.built.ok:
+            # integer secondary turns make the loss curve ragged: scan up to 3 x n0 (or until it no longer
+            # fits) and keep the lowest total loss
+            step = max(1, math.ceil(2 * n0 / MAX_SCAN))
+            n = n0
+            while n < 3 * n0:
+                n += step
+                cand = self.evaluate(n, temp, eta)
+                passes += 1
+                if not self.fits(cand):
+                    break
+                if cand.total_w < best.total_w - 1e-9:
+                    best = cand
+        # `auto` wire for the turns actually chosen (the scan sized it at its first candidate, where the
+        # magnetizing current is largest); keep the new choice only if the build still fits
+        if any(w.wire.startswith("auto") for w in self.spec.windings) and _pass(best).primary_turns != n0:
+            kept = dict(self.wires)
+            self.wires.clear()
+            again = self.evaluate(_pass(best).primary_turns, temp, eta)
+            passes += 1
+            if self.fits(again):
+                best = again
+            else:
+                self.wires = kept
+        return best, passes
+
+    def again(self, previous: Evaluation, temp: ThermalState) -> Evaluation:
+        p = _pass(previous)
+        eta = self.p_out / (self.p_out + previous.total_w) if previous.total_w > 0 else p.eta
+        return self.evaluate(p.primary_turns, temp, eta)
+
+    def summary(self, ev: Evaluation, temp: ThermalState) -> ElectricalSummary:
+        p = _pass(ev)
+        eff = self.p_out / (self.p_out + ev.total_w)
+        regulation = None
+        for w in self.loads:
+            if w.name in p.loaded_v and p.loaded_v[w.name] > 0:
+                reg = (p.open_v[w.name] - p.loaded_v[w.name]) / p.loaded_v[w.name] * 100.0
+                regulation = reg if regulation is None else max(regulation, reg)
+        extra = []
+        for w in self.loads:
+            got = p.loaded_v.get(w.name)
+            if w.turns is not None and got is not None and got < (w.voltage_v or 0.0) * 0.995:
+                extra.append(Check("warn", "output-voltage",
+                                   f"winding {w.name} has fixed turns ({w.turns}) and delivers {got:.3f} V at full "
+                                   f"load, below the {w.voltage_v:g} V asked: add turns or remove the fixed count"))
+        primary = ev.windings[self.prim.name]
+        if primary.current_a > 0 and p.imag_a / primary.current_a > MAGNETIZING_WARN:
+            extra.append(Check("warn", "magnetizing",
+                               f"magnetizing current {p.imag_a:.3g} A is {p.imag_a / primary.current_a:.0%} of the "
+                               f"primary current: more primary turns, or a core material of higher permeability"))
+        return ElectricalSummary(
+            b_peak_t=p.b_peak_t, b_peak_max_t=p.b_peak_max_t,
+            flux_limit=self.swing_limit(flux_limit(self.spec, self.cat, self.parts.material, temp.hot_c)),
+            h_peak_a_m=float(faraday.h_field_a_m(p.primary_turns, p.imag_pk_a, self.parts.le_m)),
+            magnetizing_inductance_h=p.lm_h, magnetizing_current_a=p.imag_a, leakage_inductance_h=p.leakage_h,
+            voltages={self.prim.name: self.vp, **p.loaded_v}, open_circuit=dict(p.open_v), efficiency=eff,
+            regulation_pct=regulation, output_power_w=self.p_out, checks=tuple(extra))
+
+
+def _pass(ev: Evaluation) -> TransformerPass:
+    assert isinstance(ev.detail, TransformerPass)
+    return ev.detail
+
+
+def _fmt_t(b: float) -> str:
+    return f"{b:.3f} T" if b < 1.0 else f"{b:.2f} T"
+
+
+def _freq(hz: float) -> str:
+    return f"{hz / 1e3:g} kHz" if hz >= 1e3 else f"{hz:g} Hz"
+
+
+class TransformerKind:
+    name = "transformer"
+
+    def start(self, spec: Spec, cat: Catalog, parts: Parts) -> TransformerRun:
+        return TransformerRun(spec, cat, parts)
+
+    def flux_checks(self, state: DesignState) -> list[Check]:
+        """Saturation at the top of the primary range; remanence of a unipolar drive; inrush of a toroid."""
+        spec, mat, temp, s = state.spec, state.parts.material, state.temp, state.summary
+        bsat = b_sat_hot_t(mat, temp.hot_c)
+        limit = s.flux_limit.value_t
+        out: list[Check] = []
+        prim = next(w for w in state.windings if w.role == "primary")
+        what = "ΔB" if spec.waveform == "unipolar" else "B_pk"
+        if s.b_peak_max_t > limit * 1.0005:
+            add = math.ceil(prim.turns * s.b_peak_max_t / limit) - prim.turns
+            out.append(Check("fail", "saturation",
+                             f"{what} {_fmt_t(s.b_peak_max_t)} at the top of the primary range exceeds the "
+                             f"{_fmt_t(limit)} limit ({s.flux_limit.basis}): add {add} primary turns or use a core "
+                             f"with more Ae (the next stack)"))
+        else:
+            out.append(Check("pass", "saturation",
+                             f"{what} {_fmt_t(s.b_peak_max_t)} at the top of the primary range, limit {_fmt_t(limit)} "
+                             f"({s.flux_limit.basis}); B_sat at {temp.hot_c:.0f} °C is {_fmt_t(bsat)}"))
+        if spec.waveform == "unipolar" and s.b_peak_max_t + mat.b_r_t > bsat:
+            out.append(Check("fail", "remanence",
+                             f"a unipolar pulse starts from the residual flux: B_r {_fmt_t(mat.b_r_t)} + ΔB "
+                             f"{_fmt_t(s.b_peak_max_t)} exceeds B_sat {_fmt_t(bsat)}: add turns, gap the core or add "
+                             f"a reset winding"))
+        # inrush: switched on at a voltage zero, the flux swings 2 B_pk from wherever the residual flux left it
+        # (the doubling effect, common practice); a gapless tape-wound toroid keeps a high B_r, so it goes far
+        # into saturation and draws many times its rated current for a few cycles
+        if spec.waveform == "sine" and state.parts.former.kind == "toroid":
+            worst = mat.b_r_t + 2.0 * s.b_peak_max_t
+            if worst > bsat:
+                out.append(Check("warn", "inrush",
+                                 f"switched on at a voltage zero with residual flux, the core can reach B_r + 2 B_pk = "
+                                 f"{_fmt_t(worst)} against B_sat {_fmt_t(bsat)}: expect an inrush of many times the "
+                                 f"rated current; specify a soft-start or a slow-blow fuse on the label and test the "
+                                 f"first article"))
+        return out
+
+    def test_limits(self, state: DesignState) -> KindTests:
+        """Turns ratio, open-circuit voltage and polarity of every load; open-circuit and leakage inductance."""
+        spec, windings, s = state.spec, state.windings, state.summary
+        tol = state.cat.shop.tolerances
+        ratio: list[Limit] = []
+        ocv: list[Limit] = []
+        pol: list[str] = []
+        ind: list[Limit] = []
+        prim = next((w for w in windings if w.role == "primary"), None)
+        if prim is None:
+            return KindTests()
+        for w in windings:
+            if w.role in ("secondary", "auxiliary"):
+                r = prim.turns / w.turns
+                ratio.append(Limit(name="turns ratio", item=f"{prim.name}:{w.name}", nominal=r,
+                                   low=r * (1 - tol["ratio"]), high=r * (1 + tol["ratio"]), unit=":1",
+                                   condition=f"{prim.turns} : {w.turns} turns"))
+                v = s.open_circuit.get(w.name)
+                if v:
+                    ocv.append(Limit(name="open-circuit voltage", item=w.name, nominal=v,
+                                     low=v * (1 - tol["open_circuit_voltage"]),
+                                     high=v * (1 + tol["open_circuit_voltage"]), unit="V",
+                                     condition=f"{prim.name} at {s.voltages[prim.name]:.4g} V, "
+                                               f"{_freq(spec.frequency_hz)}, no load"))
+        for w in windings:
+            if w is prim or not w.finish:
+                continue
+            pol.append(f"Apply a positive step to {prim.name} pin {prim.dot_pin} (dot) with respect to pin "
+                       f"{prim.finish if prim.dot_pin == prim.start else prim.start}: {w.name} pin {w.dot_pin} (dot) "
+                       f"reads positive.")
+        lm = s.magnetizing_inductance_h
+        if lm:
+            ind.append(Limit(name="open-circuit inductance", item=prim.name, nominal=lm, low=lm * MAGNETIZING_L_LOW,
+                             high=None, unit="H", condition=f"pins {prim.start}-{prim.finish}, others open"))
+        leakage = s.leakage_inductance_h
+        if leakage:
+            lo, hi = LEAKAGE_BAND
+            ind.append(Limit(name="leakage inductance", item=prim.name, nominal=leakage, low=leakage * lo,
+                             high=leakage * hi, unit="H",
+                             condition=f"pins {prim.start}-{prim.finish}, every other winding shorted"))
+        return KindTests(ratio=tuple(ratio), open_circuit=tuple(ocv), inductance=tuple(ind), polarity=tuple(pol))

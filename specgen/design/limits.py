@@ -1,0 +1,47 @@
+"""The design calculation's fixed figures, in one place (no numpy, so the spec parser can read them).
+
+Each is a rule of the shop or of the trade; the comment beside it says which and where it comes from.
+``kernel`` re-exports them; the engine, the kinds and the search read them from there.
+"""
+
+from __future__ import annotations
+
+MAX_TURNS = 20000              # the most turns this tool winds on one winding (beyond: not a sensible part)
+
+# wire choice (``wires.choose_wire``) and the search's wire options
+STRAND_MAX_SKIN_DEPTHS = 2.0   # a strand thicker than two skin depths: the layer's AC factor climbs quickly
+                               # (common practice)
+LITZ_STRAND_MAX_SKIN_DEPTHS = 0.5  # Litz strands at or below half a skin depth: near one skin depth the
+                               # proximity effect between a bundle's strand layers undoes the benefit (Dowell)
+MAX_STRANDS_ROUND = 8          # strands in hand of round wire (shop practice: more winds badly)
+MAX_BUNDLES_LITZ = 6           # Litz bundles in parallel (shop practice)
+MAX_STRANDS_TIW = 4            # triple-insulated wire in hand (shop practice; the search's limit)
+WIRE_CHOICE_TEMP_C = 100.0     # the skin depth for the strand limit at a typical hot copper temperature
+RIPPLE_SKIN_FRACTION = 0.2     # ripple rms below 20 % of DC: the DC current sets the wire, skin depth
+                               # ignored (common practice)
+
+# AC factor
+LITZ_POROSITY_FACTOR = 0.9     # strand porosity inside a bundle layer, x0.9 for the bundle's packing
+                               # (common practice approximation)
+# Odd harmonics of a square-wave current, weighted 1/n^2. An ideal square wave's sum never settles (the
+# proximity factor grows with n); stopping at the 39th stands for edges of about 1 % of the period, a
+# power stage's usual rise time (common practice). Summing to the 199th raises BH-2210's primary Fr
+# from 2.0 to 3.0 but its total loss only ~7 %: the core loss dominates there.
+SQUARE_HARMONICS = tuple(range(1, 40, 2))
+
+# gaps
+GAP_STEP_M = 1e-5              # gaps are ground or shimmed to 0.01 mm (common practice)
+
+# temperature
+FIRST_GUESS_RISE_K = 40.0      # the temperature loop starts from a 40 K rise (a typical class-B design)
+MAX_HOT_C = 1000.0             # the thermal loop stops here: a design this hot fails its checks anyway
+THERMAL_SETTLED_K = 0.02       # the loop ends when the hot spot moves less than this between passes
+THERMAL_MAX_PASSES = 60
+# Temperature rise relative to natural convection (McLyman's fit is for still air). Forced air: roughly
+# halves the rise of natural convection, taken as 0.6 (common practice, from memory); potted: the compound
+# spreads the heat to the can, 0.85 (common practice, from memory).
+COOLING_RISE_FACTOR = {"natural": 1.0, "forced": 0.6, "potted": 0.85}
+
+# toroids
+TOROID_MIN_HOLE_M = 8e-3          # a shuttle needs a hole; the shop's smallest shuttle (common practice)
+TOROID_MIN_HOLE_FRACTION = 0.25   # ... or a quarter of the bore, whichever is larger

@@ -1,0 +1,243 @@
+"""Resolve a spec against the catalogue: core, material, bobbin, pins, tapes, sleevings, varnish, wires.
+
+Every user mistake found here is a located one-line ``SpecError`` (file, line, key path).
+"""
+
+from __future__ import annotations
+
+import difflib
+from collections.abc import Iterable
+from dataclasses import replace
+
+from ..catalog.models import Bobbin, Catalog, Core, Tape
+from ..errors import SpecError
+from ..physics import geometry
+from .limits import MAX_TURNS, TOROID_MIN_HOLE_FRACTION, TOROID_MIN_HOLE_M
+from .result import CoreResult, WindingResult
+from .spec import Spec
+from .state import Former, Parts
+
+
+def spec_error(spec: Spec, message: str, *keys: str | int) -> SpecError:
+    """A SpecError located at a key path in the spec file (the parsed YAML keeps every line)."""
+    node: object = spec.data
+    line = getattr(node, "line", None)
+    path = ""
+    for k in keys:
+        if isinstance(k, int):
+            lines = getattr(node, "item_lines", None)
+            if isinstance(node, list) and k < len(node):
+                if lines:
+                    line = lines[k]
+                node = node[k]
+            path += f"[{k}]"
+        else:
+            kl = getattr(node, "key_lines", None) or {}
+            line = kl.get(k, getattr(node, "line", line))
+            node = node.get(k) if isinstance(node, dict) else None
+            path += ("." if path else "") + str(k)
+    return SpecError(message, file=spec.file, line=line, path=path or None)
+
+
+def too_many_turns(spec: Spec, turns: float, what: str, *keys: str | int) -> SpecError:
+    return spec_error(spec, f"{what} needs {turns:,.0f} turns, more than the {MAX_TURNS:,} this tool winds: "
+                            f"the requirement does not suit core {spec.core_id}", *keys)
+
+
+def nearest(word: str, options: Iterable[str]) -> str:
+    near = difflib.get_close_matches(word, list(options), n=1, cutoff=0.6)
+    return f"; did you mean '{near[0]}'?" if near else ""
+
+
+def _stack(spec: Spec, core: Core) -> float | None:
+    stack = spec.stack_m
+    if core.shape == "EI":
+        if stack is None:
+            if len(core.stacks_m) == 1:
+                stack = core.stacks_m[0]
+            else:
+                raise spec_error(spec, f"core {core.id} needs a stack; stocked: "
+                                       f"{', '.join(f'{s * 1e3:g} mm' for s in core.stacks_m)}", "core")
+        elif not any(abs(stack - s) < 1e-6 for s in core.stacks_m):
+            raise spec_error(spec, f"stack {stack * 1e3:g} mm is not stocked for {core.id} (stocked: "
+                                   f"{', '.join(f'{s * 1e3:g} mm' for s in core.stacks_m)})", "core", "stack")
+    elif stack is not None and core.shape != "toroid":
+        raise spec_error(spec, f"a {core.shape} core has no stack height; stack sets with core.count", "core", "stack")
+    return stack
+
+
+def resolve_core(spec: Spec, cat: Catalog) -> Parts:
+    """The core, its material and bobbin (or the toroid's former), and the core's effective parameters."""
+    core = cat.cores.get(spec.core_id)
+    if core is None:
+        raise spec_error(spec, f"unknown core '{spec.core_id}'{nearest(spec.core_id, cat.cores)} "
+                               f"(`specgen catalog list cores` lists the stock)", "core", "id")
+    material = cat.materials[core.material]
+    stack = _stack(spec, core)
+    dims = dict(core.dims)
+    count = spec.core_count
+    sf = core.stacking_factor if core.stacking_factor != 1.0 else material.stacking_factor
+    if core.shape == "toroid":
+        height = (stack if stack else dims["height"]) * count
+        dims["height"] = height
+        ep = geometry.core_effective("toroid", dims, stacking_factor=sf)
+    else:
+        ep = geometry.core_effective(core.shape, dims, stack_m=stack, stacking_factor=sf)
+    ae, le, ve, amin = ep.ae_m2, ep.le_m, ep.ve_m3, ep.amin_m2
+    source = "IEC 60205 from dimensions"
+    if core.override:
+        ae = core.override.get("ae", ae)
+        le = core.override.get("le", le)
+        ve = core.override.get("ve", ae * le)
+        amin = min(amin, ae)
+        source = "measured (catalogue override)"
+    if core.shape != "toroid" and count > 1:
+        ae, ve, amin = ae * count, ve * count, amin * count
+    wa = geometry.window_area_m2(core.shape, dims)
+    surface = geometry.outer_surface_area_m2(core.shape, dims, stack)
+    if core.shape != "toroid" and count > 1:
+        surface *= (1.0 + 0.6 * (count - 1))   # stacked sets: the added depth adds about 60 % per set
+
+    bobbin: Bobbin | None
+    if core.is_toroid:
+        if spec.bobbin_id:
+            raise spec_error(spec, f"{core.id} is a toroid; toroids are wound without a bobbin", "core", "bobbin")
+        c = core.coating_m
+        former = Former(kind="toroid", od_m=dims["od"] + 2 * c, id_m=dims["id"] - 2 * c,
+                        core_height_m=dims["height"] + 2 * c)
+        hole_min = max(TOROID_MIN_HOLE_M, TOROID_MIN_HOLE_FRACTION * former.id_m)
+        former = replace(former, height_m=max(0.0, (former.id_m - hole_min) / 2.0))
+        bobbin = None
+        breadth = dims["height"]
+    else:
+        bobbin = resolve_bobbin(spec, cat, core, stack)
+        former = Former(kind="rect" if bobbin.shape == "rect" else "round", tube_width_m=bobbin.tube_width_m,
+                        tube_depth_m=bobbin.tube_depth_m,
+                        breadth_m=bobbin.breadth_m / bobbin.sections if bobbin.sections > 1 else bobbin.breadth_m,
+                        height_m=bobbin.height_m)
+        breadth = geometry.window_breadth_m(core.shape, dims)
+    return Parts(core, material, bobbin, stack, former, ae, le, ve, amin, wa, source, breadth, surface)
+
+
+def resolve_bobbin(spec: Spec, cat: Catalog, core: Core, stack: float | None) -> Bobbin:
+    if spec.bobbin_id:
+        b = cat.bobbins.get(spec.bobbin_id)
+        if b is None:
+            raise spec_error(spec, f"unknown bobbin '{spec.bobbin_id}'{nearest(spec.bobbin_id, cat.bobbins)}",
+                             "core", "bobbin")
+        if b.core != core.id:
+            raise spec_error(spec, f"bobbin {b.id} is made for core {b.core}, not {core.id}", "core", "bobbin")
+        return b
+    fits = [b for b in cat.bobbins_for(core.id)
+            if b.stack_m is None or stack is None or abs(b.stack_m - stack) < 1e-6]
+    if not fits:
+        raise spec_error(spec, f"no bobbin in the catalogue fits {core.id}"
+                               + (f" at stack {stack * 1e3:g} mm" if stack else ""), "core", "id")
+    return sorted(fits, key=lambda b: b.id)[0]
+
+
+def _pin_range(pins: tuple[str, ...]) -> str:
+    if all(p.isdigit() for p in pins) and [int(p) for p in pins] == list(range(1, len(pins) + 1)):
+        return f"1..{len(pins)}"
+    return ", ".join(pins)
+
+
+def check_pins(spec: Spec, parts: Parts) -> None:
+    """Every winding has its pins, every pin is on the bobbin, no pin serves two windings."""
+    bobbin = parts.bobbin
+    for i, w in enumerate(spec.windings):
+        if w.start is None:
+            raise spec_error(spec, "needs its start pin", "windings", i, "start")
+        if w.finish is None and w.role != "shield":
+            raise spec_error(spec, "needs its finish pin", "windings", i, "finish")
+        if bobbin is None:
+            continue   # toroid: pins are lead labels
+        pins = set(bobbin.pins)
+        for key, pin in (("start", w.start), ("finish", w.finish)):
+            if pin is not None and pin not in pins:
+                raise spec_error(spec, f"pin '{pin}' is not on bobbin {bobbin.id} "
+                                       f"(pins {_pin_range(bobbin.pins)})", "windings", i, key)
+        for pin in w.section_pins:
+            if pin not in pins:
+                raise spec_error(spec, f"tie pin '{pin}' is not on bobbin {bobbin.id} "
+                                       f"(pins {_pin_range(bobbin.pins)})", "windings", i, "section_pins")
+    if bobbin is not None:
+        used: dict[str, tuple[str, str]] = {}
+        for i, w in enumerate(spec.windings):
+            for key, pin in (("start", w.start), ("finish", w.finish)):
+                if pin is None:
+                    continue
+                if pin in used and used[pin][0] != w.name:
+                    raise spec_error(spec, f"pin '{pin}' is already used by winding {used[pin][0]}",
+                                     "windings", i, key)
+                used[pin] = (w.name, key)
+
+
+def _tape(spec: Spec, cat: Catalog, tape_id: str | None, *keys: str | int) -> Tape | None:
+    if tape_id is None:
+        return None
+    t = cat.tapes.get(tape_id)
+    if t is None:
+        raise spec_error(spec, f"unknown tape '{tape_id}'{nearest(tape_id, cat.tapes)}", *keys)
+    return t
+
+
+def check_references(spec: Spec, cat: Catalog) -> None:
+    """Every tape, sleeving, varnish and wire the spec names is in the catalogue."""
+    for key, tid in (("layer_tape", spec.layer_tape), ("winding_tape", spec.winding_tape),
+                     ("outer_wrap", spec.outer_wrap)):
+        if tid is not None:
+            _tape(spec, cat, tid.tape, "insulation", key, "tape")
+    _tape(spec, cat, spec.margin_tape, "insulation", "margin_tape")
+    if spec.sleeving and spec.sleeving not in cat.sleevings:
+        raise spec_error(spec, f"unknown sleeving '{spec.sleeving}'{nearest(spec.sleeving, cat.sleevings)}",
+                         "insulation", "sleeving")
+    if spec.varnish and spec.varnish not in cat.varnishes:
+        raise spec_error(spec, f"unknown varnish '{spec.varnish}'{nearest(spec.varnish, cat.varnishes)}",
+                         "insulation", "varnish")
+    for i, w in enumerate(spec.windings):
+        if w.lead_sleeving and w.lead_sleeving not in cat.sleevings:
+            raise spec_error(spec, f"unknown sleeving '{w.lead_sleeving}'", "windings", i, "lead_sleeving")
+        if not w.wire.startswith("auto") and w.wire not in cat.wires:
+            raise spec_error(spec, f"unknown wire '{w.wire}'{nearest(w.wire, cat.wires)} "
+                                   f"(`specgen catalog list wires`)", "windings", i, "wire")
+        if w.wire.startswith("auto") and w.wire not in ("auto", "auto-litz", "auto-tiw"):
+            raise spec_error(spec, "expected a wire id, or auto, auto-litz, auto-tiw", "windings", i, "wire")
+
+
+def core_result(spec: Spec, cat: Catalog, parts: Parts, b_sat_hot_t: float) -> CoreResult:
+    """The core as the Design reports it (B_sat at the hot spot given by the caller)."""
+    core, m = parts.core, parts.material
+    mass = core.mass_kg * spec.core_count if core.mass_kg else parts.ve_m3 * m.density_kg_m3
+    lams = None
+    if core.shape == "EI" and m.lamination_thickness_m > 0 and parts.stack_m:
+        lams = int(geometry.lamination_count(parts.stack_m, m.lamination_thickness_m,
+                                             core.stacking_factor if core.stacking_factor != 1.0
+                                             else m.stacking_factor))
+    return CoreResult(
+        id=core.id, shape=core.shape, material=m.id, material_name=m.name, ae_m2=parts.ae_m2, le_m=parts.le_m,
+        ve_m3=parts.ve_m3, wa_m2=parts.wa_m2, amin_m2=parts.amin_m2, mass_kg=mass, stack_m=parts.stack_m,
+        count=spec.core_count, laminations=lams, bobbin=parts.bobbin.id if parts.bobbin else None,
+        b_sat_hot_t=b_sat_hot_t, b_r_t=m.b_r_t, h_c_a_m=m.h_c_a_m, mu_initial=m.mu_initial,
+        effective_from=parts.effective_from, window_breadth_m=parts.window_breadth_m,
+        window_height_m=parts.former.height_m, surface_area_m2=parts.surface_m2,
+    )
+
+
+def catalog_ids(spec: Spec, parts: Parts, windings: Iterable[WindingResult]) -> tuple[str, ...]:
+    """Every catalogue entry the design read, in a stable order, each once."""
+    ws = list(windings)
+    ids = [parts.core.id, parts.material.id]
+    if parts.bobbin is not None:
+        ids.append(parts.bobbin.id)
+    ids += [w.wire for w in ws]
+    for t in (spec.layer_tape, spec.winding_tape, spec.outer_wrap):
+        if t is not None:
+            ids.append(t.tape)
+    ids += [x for x in (spec.margin_tape, spec.sleeving, spec.varnish) if x]
+    ids += [w.lead_sleeving for w in ws if w.lead_sleeving]
+    seen: list[str] = []
+    for i in ids:
+        if i not in seen:
+            seen.append(i)
+    return tuple(seen)
