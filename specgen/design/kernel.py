@@ -209,7 +209,8 @@ def gap_for_inductance_m(target_h: ArrayLike, turns: ArrayLike, ae_m2: ArrayLike
     reaches L. Scalars: ``physics.gap.gap_for_inductance_m`` (scan, then bisection to 1e-13); arrays: a
     vectorised bisection of the same ``inductance_gapped_h``."""
     if _scalar(target_h, turns, ae_m2, le_m, mu_r, window_m):
-        g = gapmod.gap_for_inductance_m(target_h, turns, ae_m2, le_m, mu_r, window_m)
+        ts, ns, aes, les, mus, ws = (float(np.asarray(x)) for x in (target_h, turns, ae_m2, le_m, mu_r, window_m))
+        g = gapmod.gap_for_inductance_m(ts, ns, aes, les, mus, ws)
         return math.nan if g is None else float(g)
     t, n, ae, le, mu, w = np.broadcast_arrays(_f(target_h), _f(turns), _f(ae_m2), _f(le_m), _f(mu_r), _f(window_m))
     return _out(_gap_bisect(t, n, ae, le, mu, w))

@@ -66,7 +66,7 @@ def design(spec: Spec, cat: Catalog) -> Design:
 
 
 def _section_pins(w: Winding, k: int) -> tuple[str, str]:
-    pins = [w.start] + list(w.section_pins) + [w.finish or ""]
+    pins = [w.start or ""] + list(w.section_pins) + [w.finish or ""]
     return pins[k - 1], pins[k]
 
 
@@ -109,13 +109,13 @@ def _winding_result(spec: Spec, st: WindingState, ev: Evaluation, temp: ThermalS
         length_m=length, mass_kg=float(wiremod.mass_per_m_kg(area, wire.conductor)) * length,
         dcr_20c_ohm=float(K.dc_resistance_ohm(area, length, 20.0, wire.conductor)), dcr_hot_ohm=dcr_hot,
         current_density_a_m2=st.current_a / area if area else 0.0,
-        fr=fr_w, copper_loss_w=p_cu, start=w.start, finish=w.finish or "",
+        fr=fr_w, copper_loss_w=p_cu, start=w.start or "", finish=w.finish or "",
         direction=w.direction, sections=sections,
         margin_m=sections[0].margin_m if sections else 0.0, lead_sleeving=w.lead_sleeving or spec.sleeving,
         thermal_class_c=wire.thermal_class_c,
         # dot convention: terminals of the same instantaneous polarity. Wound the same way as the
         # reference winding, the start carries the dot; wound the other way, the finish does.
-        dot_pin=w.start if w.direction == ref.direction or not w.finish else w.finish,
+        dot_pin=(w.start if w.direction == ref.direction or not w.finish else w.finish) or "",
     )
 
 

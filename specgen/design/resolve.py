@@ -121,7 +121,7 @@ def resolve_core(spec: Spec, cat: Catalog) -> Parts:
 
 def resolve_bobbin(spec: Spec, cat: Catalog, core: Core, stack: float | None) -> Bobbin:
     if spec.bobbin_id:
-        b = cat.bobbins.get(spec.bobbin_id)
+        b: Bobbin | None = cat.bobbins.get(spec.bobbin_id)
         if b is None:
             raise spec_error(spec, f"unknown bobbin '{spec.bobbin_id}'{nearest(spec.bobbin_id, cat.bobbins)}",
                              "core", "bobbin")
@@ -133,7 +133,8 @@ def resolve_bobbin(spec: Spec, cat: Catalog, core: Core, stack: float | None) ->
     if not fits:
         raise spec_error(spec, f"no bobbin in the catalogue fits {core.id}"
                                + (f" at stack {stack * 1e3:g} mm" if stack else ""), "core", "id")
-    return sorted(fits, key=lambda b: b.id)[0]
+    first: Bobbin = sorted(fits, key=lambda b: b.id)[0]
+    return first
 
 
 def _pin_range(pins: tuple[str, ...]) -> str:
@@ -176,7 +177,7 @@ def check_pins(spec: Spec, parts: Parts) -> None:
 def _tape(spec: Spec, cat: Catalog, tape_id: str | None, *keys: str | int) -> Tape | None:
     if tape_id is None:
         return None
-    t = cat.tapes.get(tape_id)
+    t: Tape | None = cat.tapes.get(tape_id)
     if t is None:
         raise spec_error(spec, f"unknown tape '{tape_id}'{nearest(tape_id, cat.tapes)}", *keys)
     return t

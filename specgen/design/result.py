@@ -8,10 +8,12 @@ from __future__ import annotations
 from dataclasses import asdict, dataclass
 from typing import Any
 
+from .state import CheckLevel
+
 
 @dataclass(frozen=True)
 class Check:
-    level: str       # pass | warn | fail
+    level: CheckLevel   # pass | warn | fail
     code: str        # stable identifier, e.g. 'saturation', 'fit'
     message: str     # one plain sentence a shop engineer acts on
 
@@ -33,7 +35,7 @@ class Section:
     order: int                 # 1-based place in the build
     turns: int
     turns_per_layer: int       # capacity of the first layer
-    layers: tuple              # of Layer
+    layers: tuple[Layer, ...]
     margin_m: float            # creepage margin each side
     usable_breadth_m: float
     start_build_m: float
@@ -75,7 +77,7 @@ class WindingResult:
     start: str
     finish: str
     direction: str
-    sections: tuple                  # of Section
+    sections: tuple[Section, ...]
     margin_m: float
     lead_sleeving: str | None
     thermal_class_c: int
@@ -155,12 +157,12 @@ class Limit:
 
 @dataclass(frozen=True)
 class TestPlan:
-    dcr: tuple                       # Limits at 20 degC
-    ratio: tuple                     # Limits (Np/Ns)
-    open_circuit: tuple              # Limits (V at nominal primary)
-    inductance: tuple                # Limits
-    polarity: tuple                  # sentences
-    hipot: tuple                     # HipotTests
+    dcr: tuple[Limit, ...]           # at 20 degC
+    ratio: tuple[Limit, ...]         # Np/Ns
+    open_circuit: tuple[Limit, ...]  # V at nominal primary
+    inductance: tuple[Limit, ...]
+    polarity: tuple[str, ...]        # sentences
+    hipot: tuple[HipotTest, ...]
     insulation_resistance_v: float
     insulation_resistance_min_ohm: float
     alpha_per_k: float               # for correcting a DCR reading to 20 degC
@@ -223,7 +225,7 @@ class Design:
     magnetizing_current_a: float | None
     leakage_inductance_h: float | None   # referred to the primary, secondaries shorted (energy method)
     core: CoreResult
-    windings: tuple
+    windings: tuple[WindingResult, ...]
     build: Build
     losses: Losses
     winding_temp_c: float
@@ -232,22 +234,22 @@ class Design:
     efficiency: float | None
     regulation_pct: float | None
     output_power_w: float | None
-    checks: tuple
+    checks: tuple[Check, ...]
     tests: TestPlan
-    materials: tuple
+    materials: tuple[MaterialLine, ...]
     inductor: InductorResult | None
-    catalog_ids: tuple               # every catalogue entry this design read
+    catalog_ids: tuple[str, ...]     # every catalogue entry this design read
     iterations: int
     notes: str = ""
-    history: tuple = ()
+    history: tuple[Any, ...] = ()
     fingerprint: str = ""
 
     @property
-    def failed(self) -> list:
+    def failed(self) -> list[Check]:
         return [c for c in self.checks if c.level == "fail"]
 
     @property
-    def warnings(self) -> list:
+    def warnings(self) -> list[Check]:
         return [c for c in self.checks if c.level == "warn"]
 
     def winding(self, name: str) -> WindingResult:
@@ -326,7 +328,7 @@ class Design:
         return out
 
 
-def _plain(obj):
+def _plain(obj: Any) -> Any:
     if isinstance(obj, dict):
         return {k: _plain(v) for k, v in obj.items()}
     if isinstance(obj, (list, tuple)):

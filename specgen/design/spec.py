@@ -19,7 +19,9 @@ The format (see DEVELOPERS.md and ``specgen new``)::
 
 from __future__ import annotations
 
+import os
 from dataclasses import dataclass, field
+from typing import Any
 
 from ..errors import SpecError
 from ..loading import Reader, load_yaml, parse_yaml
@@ -59,11 +61,11 @@ class Winding:
     va: float | None
     wire: str                        # catalogue id or 'auto'
     strands: int                     # strands in hand (parallel), 0 = decide
-    start: str                       # pin names
-    finish: str
+    start: str | None                # pin names (checked present when the design resolves the pins)
+    finish: str | None               # None only for a shield
     direction: str                   # cw | ccw, seen from the start flange
     sections: int
-    section_pins: tuple              # tie pins between sections
+    section_pins: tuple[str, ...]    # tie pins between sections
     turns: int | None                # a fixed turn count (overrides the calculation)
     margin_m: float | None           # creepage margin each side (None: the insulation default)
     lead_sleeving: str | None
@@ -106,8 +108,8 @@ class Spec:
     insulation_class_c: int
     flux_limit_t: float | None
     efficiency_guess: float
-    windings: tuple
-    build_order: tuple               # (winding name, section index 1..n)
+    windings: tuple[Winding, ...]
+    build_order: tuple[tuple[str, int], ...]   # (winding name, section index 1..n)
     layer_tape: TapeUse | None
     winding_tape: TapeUse | None
     outer_wrap: TapeUse | None
@@ -115,11 +117,11 @@ class Spec:
     margin_tape: str | None
     sleeving: str | None
     varnish: str | None
-    barriers: tuple
+    barriers: tuple[Barrier, ...]
     inductor: InductorReq | None
     notes: str
-    history: tuple
-    data: dict = field(compare=False, repr=False, default_factory=dict)   # the parsed YAML, for fingerprints
+    history: tuple[dict[str, str], ...]
+    data: Any = field(compare=False, repr=False, default_factory=dict)   # the parsed YAML, for fingerprints
 
     def winding(self, name: str) -> Winding:
         for w in self.windings:
@@ -128,7 +130,7 @@ class Spec:
         raise KeyError(name)
 
 
-def _pin(r: Reader, key: str, default=None) -> str | None:
+def _pin(r: Reader, key: str, default: str | None = None) -> str | None:
     value = r.raw(key, default)
     if value is None:
         return None
@@ -141,7 +143,7 @@ def _tape_use(r: Reader, key: str) -> TapeUse | None:
     if not r.has(key):
         r.raw(key, None)
         return None
-    t = r.mapping(key)
+    t = _section(r, key)
     out = TapeUse(tape=t.text("tape"), layers=t.integer("layers", 1, minimum=0, maximum=50))
     t.done()
     return out
@@ -182,11 +184,18 @@ def _winding(r: Reader, kind: str) -> Winding:
     return w
 
 
-def parse_spec(data, name: str) -> Spec:
+def _section(r: Reader, key: str) -> Reader:
+    """A required mapping (``Reader.mapping`` raises a located error when it is missing)."""
+    sub = r.mapping(key)
+    assert sub is not None
+    return sub
+
+
+def parse_spec(data: Any, name: str) -> Spec:
     r = Reader(data, name)
     kind = r.choice("kind", ("transformer", "inductor"))
-    core = r.mapping("core")
-    op = r.mapping("operating")
+    core = _section(r, "core")
+    op = _section(r, "operating")
     waveform = op.choice("waveform", WAVEFORMS, "sine")
     ins_class = op.raw("insulation_class", 130)
     cls = _insulation_class(op, ins_class)
@@ -199,12 +208,9 @@ def parse_spec(data, name: str) -> Spec:
     if not -60.0 <= ambient <= 200.0:
         raise op.error(f"ambient {ambient:g} degC is outside -60..200 degC", "ambient")
     duty = op.number("duty", 0.5, minimum=0.01, maximum=0.99)
-    spec_kw = dict(
-        frequency_hz=freq, waveform=waveform, duty=duty, ambient_c=ambient,
-        cooling=op.choice("cooling", COOLING, "natural"), insulation_class_c=cls,
-        flux_limit_t=op.quantity("flux_limit", "flux_density", None),
-        efficiency_guess=op.number("efficiency", 0.9, minimum=0.3, maximum=0.999),
-    )
+    cooling = op.choice("cooling", COOLING, "natural")
+    flux_limit_t = op.quantity("flux_limit", "flux_density", None)
+    efficiency_guess = op.number("efficiency", 0.9, minimum=0.3, maximum=0.999)
     op.done()
 
     wreaders = r.items("windings", min_items=1)
@@ -245,21 +251,21 @@ def parse_spec(data, name: str) -> Spec:
                 raise wr.error(f"only a winding of the same role and voltage can match {w.match}", "match")
     order = _build_order(r, windings)
     ins = r.mapping("insulation", None)
-    ins_kw = dict(layer_tape=None, winding_tape=None, outer_wrap=None, margin_m=0.0, margin_tape=None,
-                  sleeving=None, varnish=None, barriers=())
+    layer_tape = winding_tape = outer_wrap = None
+    margin_m = 0.0
+    margin_tape = sleeving = varnish = None
+    barriers: tuple[Barrier, ...] = ()
     if ins is not None:
-        ins_kw.update(
-            layer_tape=_tape_use(ins, "layer_tape"), winding_tape=_tape_use(ins, "winding_tape"),
-            outer_wrap=_tape_use(ins, "outer_wrap"),
-            margin_m=ins.quantity("margin", "length", 0.0, allow_zero=True),
-            margin_tape=ins.text("margin_tape", None), sleeving=ins.text("sleeving", None),
-            varnish=ins.text("varnish", None), barriers=_barriers(ins, names),
-        )
+        layer_tape, winding_tape = _tape_use(ins, "layer_tape"), _tape_use(ins, "winding_tape")
+        outer_wrap = _tape_use(ins, "outer_wrap")
+        margin_m = ins.quantity("margin", "length", 0.0, allow_zero=True)
+        margin_tape, sleeving = ins.text("margin_tape", None), ins.text("sleeving", None)
+        varnish, barriers = ins.text("varnish", None), _barriers(ins, names)
         ins.done()
 
     inductor = None
     if kind == "inductor":
-        inductor = _inductor(r.mapping("inductor"), core)
+        inductor = _inductor(_section(r, "inductor"), core)
     elif r.has("inductor"):
         raise r.error("only an inductor has an 'inductor' section", "inductor")
 
@@ -276,7 +282,11 @@ def parse_spec(data, name: str) -> Spec:
         kind=kind, core_id=core.text("id"), stack_m=stack,
         core_count=core.integer("count", 1, minimum=1, maximum=8), bobbin_id=core.text("bobbin", None),
         windings=windings, build_order=order, inductor=inductor,
-        notes=r.text("notes", "", max_len=5000), history=_history(r), data=data, **spec_kw, **ins_kw,
+        notes=r.text("notes", "", max_len=5000), history=_history(r), data=data,
+        frequency_hz=freq, waveform=waveform, duty=duty, ambient_c=ambient, cooling=cooling,
+        insulation_class_c=cls, flux_limit_t=flux_limit_t, efficiency_guess=efficiency_guess,
+        layer_tape=layer_tape, winding_tape=winding_tape, outer_wrap=outer_wrap, margin_m=margin_m,
+        margin_tape=margin_tape, sleeving=sleeving, varnish=varnish, barriers=barriers,
     )
     core.done(("gap", "gap_arrangement"))
     r.done()
@@ -288,7 +298,7 @@ def parse_spec(data, name: str) -> Spec:
     return spec
 
 
-def _insulation_class(r: Reader, value, table=None) -> int:
+def _insulation_class(r: Reader, value: object, table: object = None) -> int:
     """The IEC 60085 class limit [degC] of ``value`` (``table`` is ignored; kept for old callers)."""
     from ..standards.thermal_classes import parse_thermal_class
 
@@ -299,7 +309,7 @@ def _insulation_class(r: Reader, value, table=None) -> int:
         raise r.error(str(err), "insulation_class") from None
 
 
-def _build_order(r: Reader, windings) -> tuple:
+def _build_order(r: Reader, windings: tuple[Winding, ...]) -> tuple[tuple[str, int], ...]:
     by_name = {w.name: w for w in windings}
     if not r.has("build_order"):
         r.raw("build_order", None)
@@ -331,7 +341,7 @@ def _build_order(r: Reader, windings) -> tuple:
     return tuple(order)
 
 
-def _barriers(ins: Reader, names) -> tuple:
+def _barriers(ins: Reader, names: list[str]) -> tuple[Barrier, ...]:
     out = []
     for b in ins.items("barriers", []):
         between = b.list_of("between")
@@ -377,7 +387,7 @@ def _inductor(r: Reader, core: Reader) -> InductorReq:
     return req
 
 
-def _history(r: Reader) -> tuple:
+def _history(r: Reader) -> tuple[dict[str, str], ...]:
     out = []
     for h in r.items("history", []):
         out.append({
@@ -388,7 +398,7 @@ def _history(r: Reader) -> tuple:
     return tuple(out)
 
 
-def load_spec(path) -> Spec:
+def load_spec(path: str | os.PathLike[str]) -> Spec:
     """Read and parse one spec file; every mistake is a located SpecError."""
     name = str(path)
     data = load_yaml(path, "spec file")

@@ -86,7 +86,7 @@ def materials_per_unit(state: DesignState, core: CoreResult) -> list[MaterialLin
     m = parts.material
     if core.laminations:
         out.append(MaterialLine("laminations", c.id, f"{c.id} laminations, {m.name}", core.laminations, "pairs",
-                                core.mass_kg, note=f"stack {core.stack_m * 1e3:g} mm, E and I pieces"))
+                                core.mass_kg, note=f"stack {(core.stack_m or 0.0) * 1e3:g} mm, E and I pieces"))
     else:
         out.append(MaterialLine("core", c.id, f"{c.shape} core {c.id}, {m.name}", spec.core_count, "sets",
                                 core.mass_kg, note=f"{c.pieces} piece(s) per set"))
@@ -110,10 +110,10 @@ def materials_per_unit(state: DesignState, core: CoreResult) -> list[MaterialLin
             return 0.0
         if tf_toroid:
             # half-lapped around the ring: the tape advances width/2 per turn around the mean circumference
-            width = cat.tapes[tape_id].width_m
+            width: float = cat.tapes[tape_id].width_m
             mean_c = math.pi * (parts.former.od_m + parts.former.id_m) / 2.0
-            return wraps * mean_c / (width * TOROID_TAPE_OVERLAP) * mlt
-        return wraps * (mlt + TAPE_OVERLAP_M)
+            return float(wraps * mean_c / (width * TOROID_TAPE_OVERLAP) * mlt)
+        return float(wraps * (mlt + TAPE_OVERLAP_M))
 
     for sec in built.sections:
         sb, margin, tape_id, tape_layers = sec.build, sec.margin_m, sec.tape_after, sec.tape_after_layers

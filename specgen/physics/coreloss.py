@@ -10,16 +10,18 @@ from functools import lru_cache
 
 import numpy as np
 
+from ._types import Arr, ArrayLike, FloatArray
+
 _GRID = np.linspace(0.0, np.pi / 2.0, 200001)
 _STEP = _GRID[1] - _GRID[0]
 
 
-def _out(x):
+def _out(x: ArrayLike) -> Arr:
     x = np.asarray(x, dtype=float)
     return float(x) if x.ndim == 0 else x
 
 
-def steinmetz_w_m3(freq_hz, b_peak_t, k, alpha, beta):
+def steinmetz_w_m3(freq_hz: ArrayLike, b_peak_t: ArrayLike, k: float, alpha: float, beta: float) -> Arr:
     """Steinmetz core loss for sinusoidal flux, P_v = k f^alpha B_pk^beta [W/m^3].
 
     Parameters
@@ -38,7 +40,7 @@ def steinmetz_w_m3(freq_hz, b_peak_t, k, alpha, beta):
     return _out(k * f ** alpha * b ** beta)
 
 
-def igse_ki(k, alpha, beta):
+def igse_ki(k: float, alpha: float, beta: float) -> float:
     """iGSE coefficient ki = k / ((2 pi)^(alpha - 1) * int_0^2pi |cos t|^alpha 2^(beta - alpha) dt).
 
     The integral of |cos t|^alpha over a period is four times the integral over [0, pi/2], evaluated
@@ -60,7 +62,7 @@ def _cos_power_period_integral(alpha: float) -> float:
     return float(4.0 * _STEP * (np.sum(y) - 0.5 * (y[0] + y[-1])))
 
 
-def _check_period(times_s, flux_t):
+def _check_period(times_s: ArrayLike, flux_t: ArrayLike) -> tuple[FloatArray, FloatArray]:
     t = np.asarray(times_s, dtype=float)
     b = np.asarray(flux_t, dtype=float)
     if t.ndim != 1 or t.shape != b.shape or t.size < 2:
@@ -70,7 +72,7 @@ def _check_period(times_s, flux_t):
     return t, b
 
 
-def igse_piecewise_linear_w_m3(times_s, flux_t, k, alpha, beta):
+def igse_piecewise_linear_w_m3(times_s: ArrayLike, flux_t: ArrayLike, k: float, alpha: float, beta: float) -> Arr:
     """iGSE loss of one period of a piecewise-linear flux waveform [W/m^3].
 
     P = (1/T) sum_j ki |dB_pp|^(beta - alpha) |delta B_j / delta t_j|^alpha delta t_j
@@ -97,7 +99,7 @@ def igse_piecewise_linear_w_m3(times_s, flux_t, k, alpha, beta):
     return float(ki * bpp ** (beta - alpha) * np.sum(np.abs(db / dt) ** alpha * dt) / period)
 
 
-def igse_sampled_w_m3(times_s, flux_t, k, alpha, beta):
+def igse_sampled_w_m3(times_s: ArrayLike, flux_t: ArrayLike, k: float, alpha: float, beta: float) -> Arr:
     """iGSE loss of any sampled flux waveform over one period [W/m^3].
 
     dB/dt is taken numerically by central differences on the periodic sample sequence (samples at
@@ -129,7 +131,8 @@ def igse_sampled_w_m3(times_s, flux_t, k, alpha, beta):
     return float(ki * bpp ** (beta - alpha) * np.sum(np.abs(dbdt) ** alpha * cell) / period)
 
 
-def triangular_ripple_loss_w_m3(freq_hz, delta_b_pp_t, duty, k, alpha, beta):
+def triangular_ripple_loss_w_m3(freq_hz: ArrayLike, delta_b_pp_t: ArrayLike, duty: ArrayLike, k: float, alpha: float,
+                                beta: float) -> Arr:
     """iGSE loss for triangular flux: rises by dB_pp for duty*T, falls back for (1 - duty)*T [W/m^3].
 
     P = ki dB_pp^beta f^alpha (duty^(1 - alpha) + (1 - duty)^(1 - alpha)) - the piecewise-linear iGSE
@@ -155,7 +158,7 @@ def triangular_ripple_loss_w_m3(freq_hz, delta_b_pp_t, duty, k, alpha, beta):
     return _out(ki * dbpp ** beta * f ** alpha * (d ** (1.0 - alpha) + (1.0 - d) ** (1.0 - alpha)))
 
 
-def square_wave_loss_w_m3(freq_hz, b_peak_t, k, alpha, beta):
+def square_wave_loss_w_m3(freq_hz: ArrayLike, b_peak_t: ArrayLike, k: float, alpha: float, beta: float) -> Arr:
     """iGSE loss under a bipolar square voltage: triangular flux between -B_pk and +B_pk, duty 0.5.
 
     P = ki (2 B_pk)^beta f^alpha 2^alpha   [W/m^3]
@@ -168,7 +171,8 @@ def square_wave_loss_w_m3(freq_hz, b_peak_t, k, alpha, beta):
                                        k, alpha, beta)
 
 
-def unipolar_pulse_loss_w_m3(freq_hz, delta_b_t, duty, k, alpha, beta, reset_duty=None):
+def unipolar_pulse_loss_w_m3(freq_hz: ArrayLike, delta_b_t: ArrayLike, duty: ArrayLike, k: float, alpha: float, beta: float,
+                             reset_duty: ArrayLike | None = None) -> Arr:
     """iGSE loss of a unipolar pulse drive: flux ramps up by delta_B during t_on = duty*T, then resets.
 
     The reset is linear over reset_duty*T and the flux then rests (dB/dt = 0) for the remainder:

@@ -8,17 +8,19 @@ from __future__ import annotations
 
 import numpy as np
 
+from ._types import Arr, ArrayLike
+
 # Below this Delta the cancellation in cosh 2D - cos 2D costs more digits than the truncated series
 # (next term ~ 2.6e-3 m^2 D^8 relative) loses, for any practical m; use the series there.
 _SERIES_BELOW = 1e-2
 
 
-def _out(x):
+def _out(x: ArrayLike) -> Arr:
     x = np.asarray(x, dtype=float)
     return float(x) if x.ndim == 0 else x
 
 
-def dowell_fr_low_freq(delta, layers):
+def dowell_fr_low_freq(delta: ArrayLike, layers: ArrayLike) -> Arr:
     """Low-frequency expansion of Dowell's factor, Fr = 1 + (5 m^2 - 1) Delta^4 / 45.
 
     Parameters
@@ -36,7 +38,7 @@ def dowell_fr_low_freq(delta, layers):
     return _out(1.0 + (5.0 * m * m - 1.0) * d ** 4 / 45.0)
 
 
-def dowell_fr(delta, layers):
+def dowell_fr(delta: ArrayLike, layers: ArrayLike) -> Arr:
     """Dowell's AC-to-DC resistance ratio of an m-layer winding portion.
 
     Fr = D [ (sinh 2D + sin 2D)/(cosh 2D - cos 2D) + (2 (m^2 - 1)/3) (sinh D - sin D)/(cosh D + cos D) ]
@@ -79,7 +81,7 @@ def dowell_fr(delta, layers):
     return _out(out)
 
 
-def porosity(diameter_m, pitch_m):
+def porosity(diameter_m: ArrayLike, pitch_m: ArrayLike) -> Arr:
     """Layer porosity (copper fraction across the layer) eta = d / pitch, clipped to <= 1.
 
     Parameters
@@ -94,7 +96,7 @@ def porosity(diameter_m, pitch_m):
     return _out(np.minimum(np.asarray(diameter_m, dtype=float) / np.asarray(pitch_m, dtype=float), 1.0))
 
 
-def round_wire_delta(diameter_m, skin_depth_m, porosity):
+def round_wire_delta(diameter_m: ArrayLike, skin_depth_m: ArrayLike, porosity: ArrayLike) -> Arr:
     """Dowell's Delta for a layer of round wire, Delta = (pi/4)^0.75 (d / delta) sqrt(eta).
 
     The round wire is replaced by a square conductor of equal area (side d sqrt(pi)/2), and the layer
@@ -114,7 +116,7 @@ def round_wire_delta(diameter_m, skin_depth_m, porosity):
                 / np.asarray(skin_depth_m, dtype=float) * np.sqrt(np.asarray(porosity, dtype=float)))
 
 
-def foil_delta(thickness_m, skin_depth_m, porosity=1.0):
+def foil_delta(thickness_m: ArrayLike, skin_depth_m: ArrayLike, porosity: ArrayLike = 1.0) -> Arr:
     """Dowell's Delta for a foil layer, Delta = (t / delta) sqrt(eta) (eta: foil width / window).
 
     References
@@ -125,7 +127,8 @@ def foil_delta(thickness_m, skin_depth_m, porosity=1.0):
                 * np.sqrt(np.asarray(porosity, dtype=float)))
 
 
-def litz_fr(strand_diameter_m, skin_depth_m, strands, layers, porosity):
+def litz_fr(strand_diameter_m: ArrayLike, skin_depth_m: ArrayLike, strands: ArrayLike, layers: ArrayLike,
+            porosity: ArrayLike) -> Arr:
     """Approximate AC resistance factor of a Litz winding by Dowell's model at strand level.
 
     Fr = dowell_fr(Delta_s, m_eff), Delta_s = round_wire_delta(strand d, delta, eta),

@@ -9,6 +9,8 @@ import numpy as np
 
 from specgen.physics.wire import MU0_H_M
 
+from ._types import Arr, ArrayLike
+
 # Form factor K_f of V_rms = K_f f N B_pk A_e.  Sine: 2 pi / sqrt(2) = 4.4429 (the textbook "4.44",
 # McLyman and any electrical machines text); bipolar square wave: 4.0.
 FORM_FACTORS = {"sine": 2.0 * np.pi / np.sqrt(2.0), "square": 4.0}
@@ -16,19 +18,19 @@ FORM_FACTORS = {"sine": 2.0 * np.pi / np.sqrt(2.0), "square": 4.0}
 WAVEFORMS = ("sine", "square", "unipolar")
 
 
-def _out(x):
+def _out(x: ArrayLike) -> Arr:
     x = np.asarray(x, dtype=float)
     return float(x) if x.ndim == 0 else x
 
 
-def _check(waveform: str, duty) -> None:
+def _check(waveform: str, duty: ArrayLike) -> None:
     if waveform not in WAVEFORMS:
         raise ValueError(f"unknown waveform {waveform!r}; expected one of {', '.join(WAVEFORMS)}")
     if waveform == "unipolar" and not np.all((np.asarray(duty) > 0.0) & (np.asarray(duty) <= 1.0)):
         raise ValueError("duty must lie in (0, 1]")
 
 
-def volt_seconds(v, freq_hz, waveform: str = "sine", duty=0.5):
+def volt_seconds(v: ArrayLike, freq_hz: ArrayLike, waveform: str = "sine", duty: ArrayLike = 0.5) -> Arr:
     """Volt-seconds that swing the flux from one extreme to the other [V s].
 
     Parameters
@@ -57,7 +59,8 @@ def volt_seconds(v, freq_hz, waveform: str = "sine", duty=0.5):
     return _out(v * np.asarray(duty, dtype=float) / f)
 
 
-def turns_for_voltage(v_rms, freq_hz, b_peak_t, ae_m2, waveform: str = "sine", duty=0.5):
+def turns_for_voltage(v_rms: ArrayLike, freq_hz: ArrayLike, b_peak_t: ArrayLike, ae_m2: ArrayLike, waveform: str = "sine",
+                      duty: ArrayLike = 0.5) -> Arr:
     """Turns needed so a winding supports a voltage at a flux density (not rounded).
 
     Parameters
@@ -87,7 +90,8 @@ def turns_for_voltage(v_rms, freq_hz, b_peak_t, ae_m2, waveform: str = "sine", d
                 / (FORM_FACTORS[waveform] * np.asarray(freq_hz, dtype=float) * b * ae))
 
 
-def b_peak_t(v_rms, freq_hz, turns, ae_m2, waveform: str = "sine", duty=0.5):
+def b_peak_t(v_rms: ArrayLike, freq_hz: ArrayLike, turns: ArrayLike, ae_m2: ArrayLike, waveform: str = "sine",
+             duty: ArrayLike = 0.5) -> Arr:
     """Peak flux density from the applied voltage (inverse of ``turns_for_voltage``) [T].
 
     sine/square: B_pk = V / (K_f f N Ae); unipolar: the swing delta_B = V t_on / (N Ae).
@@ -113,7 +117,7 @@ def b_peak_t(v_rms, freq_hz, turns, ae_m2, waveform: str = "sine", duty=0.5):
                 / (FORM_FACTORS[waveform] * np.asarray(freq_hz, dtype=float) * n * ae))
 
 
-def h_field_a_m(turns, current_a, le_m):
+def h_field_a_m(turns: ArrayLike, current_a: ArrayLike, le_m: ArrayLike) -> Arr:
     """Magnetizing force H = N I / le [A/m] (ampere-turns per metre of magnetic path).
 
     References
@@ -124,7 +128,7 @@ def h_field_a_m(turns, current_a, le_m):
                 / np.asarray(le_m, dtype=float))
 
 
-def magnetizing_inductance_h(turns, ae_m2, le_m, mu_r, gap_m=0.0):
+def magnetizing_inductance_h(turns: ArrayLike, ae_m2: ArrayLike, le_m: ArrayLike, mu_r: ArrayLike, gap_m: ArrayLike = 0.0) -> Arr:
     """Inductance of a winding on a core, L = mu0 N^2 Ae / (gap + le / mu_r) [H].
 
     Parameters
@@ -145,7 +149,7 @@ def magnetizing_inductance_h(turns, ae_m2, le_m, mu_r, gap_m=0.0):
                    + np.asarray(le_m, dtype=float) / np.asarray(mu_r, dtype=float)))
 
 
-def magnetizing_current_a(v_rms, freq_hz, inductance_h):
+def magnetizing_current_a(v_rms: ArrayLike, freq_hz: ArrayLike, inductance_h: ArrayLike) -> Arr:
     """RMS magnetizing current of a sine-driven winding, I = V / (2 pi f L) [A].
 
     References

@@ -9,13 +9,15 @@ import numpy as np
 
 from specgen.physics.wire import MU0_H_M
 
+from ._types import Arr, ArrayLike
 
-def _out(x):
+
+def _out(x: ArrayLike) -> Arr:
     x = np.asarray(x, dtype=float)
     return float(x) if x.ndim == 0 else x
 
 
-def fringing_factor(gap_m, ae_m2, window_height_m):
+def fringing_factor(gap_m: ArrayLike, ae_m2: ArrayLike, window_height_m: ArrayLike) -> Arr:
     """McLyman's fringing-flux factor F = 1 + (lg / sqrt(Ae)) ln(2 G / lg).
 
     Parameters
@@ -43,7 +45,8 @@ def fringing_factor(gap_m, ae_m2, window_height_m):
     return _out(np.where(lg > 0.0, np.maximum(f, 1.0), 1.0))
 
 
-def inductance_gapped_h(turns, ae_m2, le_m, mu_r, gap_m, window_height_m=None):
+def inductance_gapped_h(turns: ArrayLike, ae_m2: ArrayLike, le_m: ArrayLike, mu_r: ArrayLike, gap_m: ArrayLike,
+                        window_height_m: ArrayLike | None = None) -> Arr:
     """Inductance of a gapped core, L = mu0 N^2 Ae F / (lg + le / mu_r) [H].
 
     Parameters
@@ -66,7 +69,8 @@ def inductance_gapped_h(turns, ae_m2, le_m, mu_r, gap_m, window_height_m=None):
                 / (lg + np.asarray(le_m, dtype=float) / np.asarray(mu_r, dtype=float)))
 
 
-def gap_for_inductance_m(inductance_h, turns, ae_m2, le_m, mu_r, window_height_m=None):
+def gap_for_inductance_m(inductance_h: float, turns: float, ae_m2: float, le_m: float, mu_r: float,
+                         window_height_m: float | None = None) -> float | None:
     """Air gap lg that gives an inductance with N turns, fringing included (scalar solver).
 
     Solves mu0 N^2 Ae F(lg) / (lg + le/mu_r) = L for lg. Returns None when even no gap cannot reach
@@ -124,7 +128,7 @@ def gap_for_inductance_m(inductance_h, turns, ae_m2, le_m, mu_r, window_height_m
     return 0.5 * (lo + hi)
 
 
-def turns_for_peak_b(inductance_h, i_peak_a, b_max_t, ae_m2):
+def turns_for_peak_b(inductance_h: ArrayLike, i_peak_a: ArrayLike, b_max_t: ArrayLike, ae_m2: ArrayLike) -> Arr:
     """Turns so the peak current stays at a flux density, N = L I_pk / (B_max Ae) (not rounded).
 
     References
@@ -135,7 +139,7 @@ def turns_for_peak_b(inductance_h, i_peak_a, b_max_t, ae_m2):
                 / (np.asarray(b_max_t, dtype=float) * np.asarray(ae_m2, dtype=float)))
 
 
-def b_peak_from_inductance_t(inductance_h, i_peak_a, turns, ae_m2):
+def b_peak_from_inductance_t(inductance_h: ArrayLike, i_peak_a: ArrayLike, turns: ArrayLike, ae_m2: ArrayLike) -> Arr:
     """Peak flux density of an inductor, B = L I_pk / (N Ae) [T].
 
     References
@@ -146,7 +150,7 @@ def b_peak_from_inductance_t(inductance_h, i_peak_a, turns, ae_m2):
                 / (np.asarray(turns, dtype=float) * np.asarray(ae_m2, dtype=float)))
 
 
-def al_nh(inductance_h, turns):
+def al_nh(inductance_h: ArrayLike, turns: ArrayLike) -> Arr:
     """Inductance factor AL = L / N^2, in nH per turn^2.
 
     References
@@ -157,7 +161,7 @@ def al_nh(inductance_h, turns):
     return _out(np.asarray(inductance_h, dtype=float) / (n * n) * 1e9)
 
 
-def energy_j(inductance_h, current_a):
+def energy_j(inductance_h: ArrayLike, current_a: ArrayLike) -> Arr:
     """Stored energy W = L I^2 / 2 [J].
 
     References

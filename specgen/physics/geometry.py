@@ -18,6 +18,8 @@ from typing import NamedTuple
 
 import numpy as np
 
+from ._types import Arr, ArrayLike, FloatArray
+
 
 class EffectiveParams(NamedTuple):
     """IEC 60205 effective parameters of a magnetic circuit (SI units)."""
@@ -41,7 +43,7 @@ def _positive(**values: float) -> None:
             raise ValueError(f"{name} must be positive, got {value!r}")
 
 
-def effective_from_segments(lengths_m, areas_m2) -> EffectiveParams:
+def effective_from_segments(lengths_m: ArrayLike, areas_m2: ArrayLike) -> EffectiveParams:
     """Effective parameters from series segments of a magnetic circuit (IEC 60205 summation).
 
     Parameters
@@ -67,7 +69,7 @@ def effective_from_segments(lengths_m, areas_m2) -> EffectiveParams:
     return _from_c1_c2(np.sum(l / a), np.sum(l / a ** 2), np.min(a))
 
 
-def toroid_effective(od_m, id_m, height_m, stacking_factor=1.0) -> EffectiveParams:
+def toroid_effective(od_m: float, id_m: float, height_m: float, stacking_factor: float = 1.0) -> EffectiveParams:
     """Effective parameters of a toroid of rectangular cross-section (closed form).
 
     With r1 = id/2, r2 = od/2, h = height, k = stacking factor (1 for ferrite and powder, < 1 for
@@ -93,8 +95,9 @@ def toroid_effective(od_m, id_m, height_m, stacking_factor=1.0) -> EffectivePara
     return _from_c1_c2(le / ae, le / ae ** 2, k * h * (r2 - r1))
 
 
-def _e_loop(centre_area, centre_half_width, outer_area, outer_leg_width, yoke_area, yoke,
-            span, window_height):
+def _e_loop(centre_area: float, centre_half_width: float, outer_area: float, outer_leg_width: float, yoke_area: float,
+            yoke: float,
+            span: float, window_height: float) -> EffectiveParams:
     """Segments of the E-type loop (centre leg, outer legs, yokes, 4 corners) -> EffectiveParams.
 
     Straight parts run face to face: centre and outer legs over the window height, the yokes over
@@ -120,8 +123,9 @@ def _e_loop(centre_area, centre_half_width, outer_area, outer_leg_width, yoke_ar
     return effective_from_segments(lengths, areas)
 
 
-def ei_effective(tongue_m, stack_m, stacking_factor, window_width_m, window_height_m, leg_m,
-                 yoke_m) -> EffectiveParams:
+def ei_effective(tongue_m: float, stack_m: float, stacking_factor: float, window_width_m: float, window_height_m: float,
+                 leg_m: float,
+                 yoke_m: float) -> EffectiveParams:
     """Effective parameters of a stack of EI laminations (segment method).
 
     Parameters
@@ -153,9 +157,9 @@ def ei_effective(tongue_m, stack_m, stacking_factor, window_width_m, window_heig
     return _e_loop(a * s * k, a / 2.0, 2.0 * leg * s * k, leg, 2.0 * yoke * s * k, yoke, ww, wh)
 
 
-def e_core_effective(width_m, height_m, depth_m, window_width_m, window_height_m,
-                     centre_leg_width_m=None, centre_leg_depth_m=None,
-                     centre_leg_diameter_m=None, outer_legs_area_m2=None) -> EffectiveParams:
+def e_core_effective(width_m: float, height_m: float, depth_m: float, window_width_m: float, window_height_m: float,
+                     centre_leg_width_m: float | None = None, centre_leg_depth_m: float | None = None,
+                     centre_leg_diameter_m: float | None = None, outer_legs_area_m2: float | None = None) -> EffectiveParams:
     """Effective parameters of a mated pair of E-type halves (E, EFD, ETD, PQ).
 
     Parameters
@@ -209,8 +213,9 @@ def e_core_effective(width_m, height_m, depth_m, window_width_m, window_height_m
 _GAUSS_X, _GAUSS_W = np.polynomial.legendre.leggauss(64)
 
 
-def pot_effective(outer_diameter_m, inner_diameter_m, post_diameter_m, height_m, window_height_m,
-                  post_hole_m=0.0, ring_fraction=1.0) -> EffectiveParams:
+def pot_effective(outer_diameter_m: float, inner_diameter_m: float, post_diameter_m: float, height_m: float,
+                  window_height_m: float,
+                  post_hole_m: float = 0.0, ring_fraction: float = 1.0) -> EffectiveParams:
     """Effective parameters of a mated pair of pot-core or RM-core halves.
 
     Parameters
@@ -249,7 +254,7 @@ def pot_effective(outer_diameter_m, inner_diameter_m, post_diameter_m, height_m,
     a_post = np.pi * (d3 * d3 - d4 * d4) / 4.0
     a_ring = rf * np.pi * (d1 * d1 - d2 * d2) / 4.0
 
-    def plate_area(r):
+    def plate_area(r: FloatArray) -> FloatArray:
         g = 1.0 - (1.0 - rf) * (r - r3) / (r2 - r3)
         return 2.0 * np.pi * r * t * g
 
@@ -261,7 +266,7 @@ def pot_effective(outer_diameter_m, inner_diameter_m, post_diameter_m, height_m,
 
     wall = (d1 - d2) / 2.0
     post_w = (d3 - d4) / 2.0
-    a_plate_wall, a_plate_post = plate_area(r2), plate_area(r3)
+    a_plate_wall, a_plate_post = float(plate_area(np.asarray(r2))), float(plate_area(np.asarray(r3)))
     lengths = np.array([hw, hw, 2.0 * np.pi * (wall + t) / 8.0, 2.0 * np.pi * (post_w + t) / 8.0])
     areas = np.array([a_post, a_ring, (a_ring + a_plate_wall) / 2.0, (a_post + a_plate_post) / 2.0])
     c1 = np.sum(lengths / areas) + c1_plates
@@ -280,14 +285,14 @@ def _shape(shape: str) -> str:
     return s
 
 
-def _need(shape: str, dims: dict, key: str) -> float:
+def _need(shape: str, dims: dict[str, float], key: str) -> float:
     try:
         return float(dims[key])
     except KeyError:
         raise ValueError(f"{shape} core needs dimension {key!r}") from None
 
 
-def _ei_dims(dims: dict) -> dict:
+def _ei_dims(dims: dict[str, float]) -> dict[str, float]:
     a = _need("EI", dims, "tongue")
     return {
         "tongue": a,
@@ -298,14 +303,15 @@ def _ei_dims(dims: dict) -> dict:
     }
 
 
-def _centre_width(s: str, dims: dict) -> float:
+def _centre_width(s: str, dims: dict[str, float]) -> float:
     """Width (or diameter) of an E-type centre leg in the plane of the window."""
     if s in ("ETD", "PQ"):
         return _need(s, dims, "centre_leg_diameter")
     return _need(s, dims, "centre_leg_width")
 
 
-def core_effective(shape: str, dims: dict, stack_m=None, stacking_factor=1.0) -> EffectiveParams:
+def core_effective(shape: str, dims: dict[str, float], stack_m: float | None = None,
+                   stacking_factor: float = 1.0) -> EffectiveParams:
     """Effective parameters of a core from its shape name and dimensions (dispatcher).
 
     Parameters
@@ -341,20 +347,20 @@ def core_effective(shape: str, dims: dict, stack_m=None, stacking_factor=1.0) ->
         h = _need(s, dims, "height") if stack_m is None else float(stack_m)
         return toroid_effective(_need(s, dims, "od"), _need(s, dims, "id"), h, k)
     if s in ("E", "EFD", "ETD", "PQ"):
-        common = [_need(s, dims, key) for key in
-                  ("width", "height", "depth", "window_width", "window_height")]
+        width, height, depth, ww, wh = (_need(s, dims, key) for key in
+                                        ("width", "height", "depth", "window_width", "window_height"))
         if s == "PQ":
             # a PQ core's outer legs are shaped (thick at the corners, a round inner face) so that together
             # they carry the centre post's cross-section (the shape's design rule, common practice, from
             # memory); the flat block (A - E)/2 x C of an E core would make them a bottleneck they are not
-            d = _need(s, dims, "centre_leg_diameter")
-            ep = e_core_effective(*common, centre_leg_diameter_m=d,
-                                  outer_legs_area_m2=max(np.pi * d * d / 4.0, (common[0] - common[3]) * common[2]))
+            dia = _need(s, dims, "centre_leg_diameter")
+            ep = e_core_effective(width, height, depth, ww, wh, centre_leg_diameter_m=dia,
+                                  outer_legs_area_m2=max(np.pi * dia * dia / 4.0, (width - ww) * depth))
         elif s == "ETD":
-            ep = e_core_effective(*common, centre_leg_diameter_m=_need(s, dims, "centre_leg_diameter"))
+            ep = e_core_effective(width, height, depth, ww, wh, centre_leg_diameter_m=_need(s, dims, "centre_leg_diameter"))
         else:
             cdepth = dims.get("centre_leg_depth")
-            ep = e_core_effective(*common, centre_leg_width_m=_need(s, dims, "centre_leg_width"),
+            ep = e_core_effective(width, height, depth, ww, wh, centre_leg_width_m=_need(s, dims, "centre_leg_width"),
                                   centre_leg_depth_m=None if cdepth is None else float(cdepth))
         return _scale_areas(ep, k)
     # POT / RM
@@ -373,7 +379,7 @@ def _scale_areas(ep: EffectiveParams, k: float) -> EffectiveParams:
     return _from_c1_c2(ep.c1_per_m / k, ep.c2_per_m3 / k ** 2, ep.amin_m2 * k)
 
 
-def window_area_m2(shape: str, dims: dict) -> float:
+def window_area_m2(shape: str, dims: dict[str, float]) -> float:
     """Winding window area Wa of one window [m^2] (the cross-section a winding passes through).
 
     EI: window_width * window_height; E-types: (window_width - centre leg width or diameter)/2 *
@@ -390,7 +396,7 @@ def window_area_m2(shape: str, dims: dict) -> float:
     return float(window_height_m(s, dims) * window_breadth_m(s, dims))
 
 
-def window_height_m(shape: str, dims: dict) -> float:
+def window_height_m(shape: str, dims: dict[str, float]) -> float:
     """Build depth available across the window, from the centre leg outwards [m].
 
     For a bobbin-wound part "height" here is the radial build direction (layers stack up across it):
@@ -411,7 +417,7 @@ def window_height_m(shape: str, dims: dict) -> float:
     return (_need(s, dims, "window_width") - _centre_width(s, dims)) / 2.0
 
 
-def window_breadth_m(shape: str, dims: dict) -> float:
+def window_breadth_m(shape: str, dims: dict[str, float]) -> float:
     """Winding length available along the leg (the traverse of a layer) [m].
 
     E-types, EI and POT/RM: the window height along the leg (dims ``window_height``; for EI default
@@ -434,7 +440,7 @@ def _box_area(w: float, h: float, d: float) -> float:
     return 2.0 * (w * h + w * d + h * d)
 
 
-def outer_surface_area_m2(shape: str, dims: dict, stack_m=None) -> float:
+def outer_surface_area_m2(shape: str, dims: dict[str, float], stack_m: float | None = None) -> float:
     """Outside surface area At of the assembled, wound part [m^2] (for McLyman's temperature rise).
 
     Approximations: EI - the box of the lamination outline (tongue + 2 window_width + 2 leg) x
@@ -474,7 +480,7 @@ def outer_surface_area_m2(shape: str, dims: dict, stack_m=None) -> float:
     return _box_area(_need(s, dims, "width"), _need(s, dims, "height"), depth)
 
 
-def core_mass_kg(ve_m3, density_kg_m3):
+def core_mass_kg(ve_m3: ArrayLike, density_kg_m3: ArrayLike) -> Arr:
     """Core mass m = Ve * density [kg] from effective volume [m^3] and density [kg/m^3].
 
     References
@@ -484,7 +490,7 @@ def core_mass_kg(ve_m3, density_kg_m3):
     return _out(np.asarray(ve_m3, dtype=float) * np.asarray(density_kg_m3, dtype=float))
 
 
-def lamination_count(stack_m, lamination_thickness_m, stacking_factor):
+def lamination_count(stack_m: ArrayLike, lamination_thickness_m: ArrayLike, stacking_factor: ArrayLike) -> Arr:
     """Number of laminations in a stack, n = round(stack * k / t).
 
     Parameters
@@ -502,7 +508,7 @@ def lamination_count(stack_m, lamination_thickness_m, stacking_factor):
     return int(n) if n.ndim == 0 else n.astype(int)
 
 
-def mlt_rect_m(tube_width_m, tube_depth_m, build_to_layer_centre_m):
+def mlt_rect_m(tube_width_m: ArrayLike, tube_depth_m: ArrayLike, build_to_layer_centre_m: ArrayLike) -> Arr:
     """Mean turn length of a layer on a rectangular former, MLT = 2 (w + d) + 2 pi h [m].
 
     Parameters
@@ -522,7 +528,7 @@ def mlt_rect_m(tube_width_m, tube_depth_m, build_to_layer_centre_m):
     return _out(2.0 * (w + d) + 2.0 * np.pi * h)
 
 
-def mlt_round_m(tube_diameter_m, build_to_layer_centre_m):
+def mlt_round_m(tube_diameter_m: ArrayLike, build_to_layer_centre_m: ArrayLike) -> Arr:
     """Mean turn length of a layer on a round former, MLT = pi (D + 2 h) [m].
 
     References
@@ -534,7 +540,7 @@ def mlt_round_m(tube_diameter_m, build_to_layer_centre_m):
     return _out(np.pi * (d + 2.0 * h))
 
 
-def toroid_turn_length_m(od_m, id_m, height_m, build_to_layer_centre_m):
+def toroid_turn_length_m(od_m: ArrayLike, id_m: ArrayLike, height_m: ArrayLike, build_to_layer_centre_m: ArrayLike) -> Arr:
     """Length of one turn of a toroid layer [m].
 
     The turn encloses the core section ((od - id)/2 wide, height high) offset outward by the build h:
@@ -551,7 +557,7 @@ def toroid_turn_length_m(od_m, id_m, height_m, build_to_layer_centre_m):
     return _out(2.0 * (w + hgt) + 2.0 * np.pi * h)
 
 
-def toroid_inner_circumference_m(id_m, build_m):
+def toroid_inner_circumference_m(id_m: ArrayLike, build_m: ArrayLike) -> Arr:
     """Inner circumference left for a layer as the hole fills, pi (id - 2 build) [m].
 
     Parameters
@@ -566,7 +572,7 @@ def toroid_inner_circumference_m(id_m, build_m):
     return _out(np.pi * (np.asarray(id_m, dtype=float) - 2.0 * np.asarray(build_m, dtype=float)))
 
 
-def _out(x):
+def _out(x: ArrayLike) -> Arr:
     """A Python float for a 0-d result, the array otherwise."""
     x = np.asarray(x, dtype=float)
     return float(x) if x.ndim == 0 else x

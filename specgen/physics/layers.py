@@ -21,10 +21,14 @@ IEEE Trans. Power Electronics 9(1), 1994 (the layer-by-layer form with boundary 
 
 from __future__ import annotations
 
+from collections.abc import Iterable
+
 import numpy as np
 
+from ._types import Arr, ArrayLike, BoolArray, FloatArray
 
-def _xi(delta):
+
+def _xi(delta: ArrayLike) -> tuple[FloatArray, FloatArray, BoolArray]:
     d = np.asarray(delta, dtype=float)
     small = d < 0.02
     ds = np.where(small, 0.02, d)
@@ -39,7 +43,7 @@ def _xi(delta):
     return xi1, xi2, small
 
 
-def layer_fr(delta, f_inner, f_outer):
+def layer_fr(delta: ArrayLike, f_inner: ArrayLike, f_outer: ArrayLike) -> Arr:
     """Rac/Rdc of one layer of normalised thickness ``delta`` = h/skin depth between face MMFs.
 
     Parameters
@@ -62,7 +66,7 @@ def layer_fr(delta, f_inner, f_outer):
         return _layer_fr(delta, f_inner, f_outer)
 
 
-def _layer_fr(delta, f_inner, f_outer):
+def _layer_fr(delta: ArrayLike, f_inner: ArrayLike, f_outer: ArrayLike) -> Arr:
     d = np.asarray(delta, dtype=float)
     f1 = np.asarray(f_inner, dtype=float)
     f2 = np.asarray(f_outer, dtype=float)
@@ -77,7 +81,8 @@ def _layer_fr(delta, f_inner, f_outer):
     return float(out) if out.ndim == 0 else out
 
 
-def leakage_inductance_h(segments, breadth_m: float, current_a: float) -> float:
+def leakage_inductance_h(segments: Iterable[tuple[float, float, float, float]], breadth_m: float,
+                         current_a: float) -> float:
     """Leakage inductance referred to one winding, by the MMF-energy method, for concentric windings.
 
     The leakage field between concentric windings runs along the winding breadth b; its energy is

@@ -9,13 +9,15 @@ import numpy as np
 
 from specgen.physics.wire import MU0_H_M
 
+from ._types import Arr, ArrayLike
 
-def _out(x):
+
+def _out(x: ArrayLike) -> Arr:
     x = np.asarray(x, dtype=float)
     return float(x) if x.ndim == 0 else x
 
 
-def rolloff_fraction(h_a_m, a, b, c):
+def rolloff_fraction(h_a_m: ArrayLike, a: float, b: float, c: float) -> Arr:
     """Fraction of the initial permeability left under a DC magnetizing force, f = 1 / (a + b H^c).
 
     Parameters
@@ -37,7 +39,8 @@ def rolloff_fraction(h_a_m, a, b, c):
     return _out(1.0 / (a + b * h ** c))
 
 
-def powder_inductance_h(turns, ae_m2, le_m, mu_initial, current_a, a, b, c):
+def powder_inductance_h(turns: ArrayLike, ae_m2: ArrayLike, le_m: ArrayLike, mu_initial: ArrayLike, current_a: ArrayLike,
+                        a: float, b: float, c: float) -> Arr:
     """Inductance of a powder core under DC bias, L = mu0 mu_i f(N I / le) N^2 Ae / le [H].
 
     Parameters
@@ -60,8 +63,8 @@ def powder_inductance_h(turns, ae_m2, le_m, mu_initial, current_a, a, b, c):
     return _out(MU0_H_M * mu * n * n * np.asarray(ae_m2, dtype=float) / le)
 
 
-def turns_for_biased_inductance(inductance_h, current_a, ae_m2, le_m, mu_initial, a, b, c,
-                                max_turns=2000):
+def turns_for_biased_inductance(inductance_h: float, current_a: float, ae_m2: float, le_m: float, mu_initial: float,
+                                a: float, b: float, c: float, max_turns: int = 2000) -> int | None:
     """Smallest whole number of turns whose biased inductance reaches the target.
 
     L(N, I) = powder_inductance_h(N, ...). Because the bias grows with N, L(N) may peak and fall (when

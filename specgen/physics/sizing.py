@@ -4,8 +4,11 @@ from __future__ import annotations
 
 import numpy as np
 
+from ._types import Arr, ArrayLike
 
-def area_product_m4(power_t_w, form_factor, ku, b_peak_t, freq_hz, current_density_a_m2):
+
+def area_product_m4(power_t_w: ArrayLike, form_factor: ArrayLike, ku: ArrayLike, b_peak_t: ArrayLike, freq_hz: ArrayLike,
+                    current_density_a_m2: ArrayLike) -> Arr:
     """Area product Ap = Wa Ae = Pt / (Kf Ku B f J) [m^4].
 
     Parameters
@@ -39,7 +42,7 @@ _TOPOLOGIES = {
 }
 
 
-def transformer_apparent_power_w(outputs_va, efficiency, topology: str = "full-wave"):
+def transformer_apparent_power_w(outputs_va: ArrayLike, efficiency: float, topology: str = "full-wave") -> float:
     """Apparent power Pt handled by the windings, Pt = Po (1/eta + 1) for a two-winding transformer.
 
     Parameters
@@ -63,4 +66,4 @@ def transformer_apparent_power_w(outputs_va, efficiency, topology: str = "full-w
         raise ValueError("efficiency must lie in (0, 1]")
     po = float(np.sum(np.asarray(outputs_va, dtype=float)))
     primary, secondary = _TOPOLOGIES[topology]
-    return po * (primary / eta + secondary)
+    return float(po * (primary / eta + secondary))

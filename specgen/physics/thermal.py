@@ -9,9 +9,10 @@ import numpy as np
 from ..standards.thermal_classes import LETTER_BY_LIMIT as IEC_60085_CLASSES  # noqa: F401
 from ..standards.thermal_classes import class_letter  # noqa: F401
 from ..standards.thermal_classes import parse_thermal_class as class_limit_c  # noqa: F401
+from ._types import Arr, ArrayLike
 
 
-def temperature_rise_k(power_w, surface_area_m2):
+def temperature_rise_k(power_w: ArrayLike, surface_area_m2: ArrayLike) -> Arr:
     """Temperature rise of a wound part in still air, dT = 450 (P / At)^0.826 with P/At in W/cm^2.
 
     Parameters
@@ -34,7 +35,7 @@ def temperature_rise_k(power_w, surface_area_m2):
     return float(x) if x.ndim == 0 else x
 
 
-def b_sat_at_temp_t(b_sat_25c_t, b_sat_100c_t, temp_c):
+def b_sat_at_temp_t(b_sat_25c_t: ArrayLike, b_sat_100c_t: ArrayLike, temp_c: ArrayLike) -> Arr:
     """Saturation flux density at a temperature, from the two catalogue points.
 
     B_sat(T) = B25 + (B100 - B25) (T - 25) / 75, linear between 25 and 100 degC and extrapolated beyond,

@@ -8,6 +8,8 @@ from __future__ import annotations
 
 import numpy as np
 
+from ._types import Arr, ArrayLike
+
 # Magnetic constant, the pre-2019 defined value 4e-7*pi H/m. The SI-2019 measured mu0 differs from
 # it by about 5.5e-10 relative, far below anything a winding calculation can resolve.
 MU0_H_M = 4e-7 * np.pi
@@ -32,7 +34,7 @@ CONDUCTORS = {
 }
 
 
-def _out(x):
+def _out(x: ArrayLike) -> Arr:
     """A Python float for a 0-d result, the array otherwise."""
     x = np.asarray(x, dtype=float)
     return float(x) if x.ndim == 0 else x
@@ -45,7 +47,7 @@ def _conductor(conductor: str) -> tuple[float, float, float]:
         raise ValueError(f"unknown conductor {conductor!r}; expected one of {sorted(CONDUCTORS)}") from None
 
 
-def awg_diameter_m(gauge):
+def awg_diameter_m(gauge: ArrayLike) -> Arr:
     """Bare diameter of an American Wire Gauge size.
 
     Parameters
@@ -66,7 +68,7 @@ def awg_diameter_m(gauge):
     return _out(0.127e-3 * 92.0 ** ((36.0 - n) / 39.0))
 
 
-def round_area_m2(diameter_m):
+def round_area_m2(diameter_m: ArrayLike) -> Arr:
     """Cross-sectional area of a round conductor, A = pi d^2 / 4 [m^2] from diameter [m].
 
     References
@@ -77,7 +79,7 @@ def round_area_m2(diameter_m):
     return _out(np.pi * d * d / 4.0)
 
 
-def resistivity_ohm_m(temp_c, conductor: str = "copper"):
+def resistivity_ohm_m(temp_c: ArrayLike, conductor: str = "copper") -> Arr:
     """Resistivity at a temperature, linear model rho_T = rho20 (1 + alpha20 (T - 20)).
 
     Parameters
@@ -100,7 +102,7 @@ def resistivity_ohm_m(temp_c, conductor: str = "copper"):
     return _out(rho20 * (1.0 + alpha20 * (t - 20.0)))
 
 
-def resistance_per_m_ohm(area_m2, temp_c, conductor: str = "copper"):
+def resistance_per_m_ohm(area_m2: ArrayLike, temp_c: ArrayLike, conductor: str = "copper") -> Arr:
     """DC resistance per metre of conductor, R' = rho_T / A [ohm/m].
 
     Parameters
@@ -117,7 +119,7 @@ def resistance_per_m_ohm(area_m2, temp_c, conductor: str = "copper"):
     return _out(np.asarray(resistivity_ohm_m(temp_c, conductor)) / a)
 
 
-def resistance_at_temp_ohm(r_ohm, from_temp_c, to_temp_c, conductor: str = "copper"):
+def resistance_at_temp_ohm(r_ohm: ArrayLike, from_temp_c: ArrayLike, to_temp_c: ArrayLike, conductor: str = "copper") -> Arr:
     """Correct a resistance reading from one temperature to another.
 
     R_to = R_from (1 + alpha20 (T_to - 20)) / (1 + alpha20 (T_from - 20)); used to refer a DCR
@@ -140,7 +142,7 @@ def resistance_at_temp_ohm(r_ohm, from_temp_c, to_temp_c, conductor: str = "copp
     return _out(r * (1.0 + alpha20 * (t1 - 20.0)) / (1.0 + alpha20 * (t0 - 20.0)))
 
 
-def mass_per_m_kg(area_m2, conductor: str = "copper"):
+def mass_per_m_kg(area_m2: ArrayLike, conductor: str = "copper") -> Arr:
     """Mass of bare conductor per metre, m' = density * A [kg/m].
 
     References
@@ -151,7 +153,7 @@ def mass_per_m_kg(area_m2, conductor: str = "copper"):
     return _out(density * np.asarray(area_m2, dtype=float))
 
 
-def skin_depth_m(freq_hz, resistivity_ohm_m, mu_r=1.0):
+def skin_depth_m(freq_hz: ArrayLike, resistivity_ohm_m: ArrayLike, mu_r: ArrayLike = 1.0) -> Arr:
     """Skin depth of a good conductor, delta = sqrt(rho / (pi f mu0 mu_r)).
 
     Parameters
