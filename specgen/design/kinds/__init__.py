@@ -16,7 +16,7 @@ from .base import KindRun, PartKind
 from .inductor import InductorKind
 from .transformer import TransformerKind
 
-__all__ = ["KindRun", "KindTests", "PartKind", "kind_for", "kind_names", "register"]
+__all__ = ["KindRun", "KindTests", "PartKind", "kind_for", "kind_names", "register", "unregister"]
 
 _REGISTRY: dict[str, PartKind] = {}
 
@@ -24,6 +24,11 @@ _REGISTRY: dict[str, PartKind] = {}
 def register(kind: PartKind) -> None:
     """Make a kind available to ``design()`` under ``kind.name`` (the spec's ``kind:``)."""
     _REGISTRY[kind.name] = kind
+
+
+def unregister(name: str) -> None:
+    """Withdraw a kind (tests that register a stand-in)."""
+    _REGISTRY.pop(name, None)
 
 
 def kind_for(name: str) -> PartKind:
