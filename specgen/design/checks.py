@@ -19,22 +19,25 @@ REINFORCED_TAPE_LAYERS = 3   # thin-sheet reinforced insulation: 3 layers, any t
 
 
 def run_checks(state: DesignState) -> list[Check]:
-    """The checks every kind shares: loss-model range, fit, window fill, temperatures and classes, current
-    density, skin depth, turns per layer, insulation barriers (the kind's flux checks come first)."""
-    spec, cat, parts, windings, build, built, temp, losses, states = (
-        state.spec, state.cat, state.parts, state.windings, state.build, state.built, state.temp, state.losses,
-        state.states)
-    out: list[Check] = []
-    mat = parts.material
+    """The checks every kind shares, in this order: loss-model range, fit and window fill, temperatures and
+    classes, current density and skin depth, turns per layer, insulation barriers (the kind's flux checks
+    come before them, its own after)."""
+    return (_loss_model(state) + _fit(state) + _temperature(state) + _current(state) + _layers(state)
+            + _insulation(state))
 
-    # -- Steinmetz range
-    f = spec.frequency_hz
+
+def _loss_model(state: DesignState) -> list[Check]:
+    mat, f = state.parts.material, state.spec.frequency_hz
     if mat.steinmetz_f_min_hz and not (mat.steinmetz_f_min_hz * 0.999 <= f <= mat.steinmetz_f_max_hz * 1.001):
-        out.append(Check("warn", "loss-model",
-                         f"{f:g} Hz is outside the {mat.steinmetz_f_min_hz:g}-{mat.steinmetz_f_max_hz:g} Hz range "
-                         f"of the {mat.id} loss coefficients: the core loss is an extrapolation"))
+        return [Check("warn", "loss-model",
+                      f"{f:g} Hz is outside the {mat.steinmetz_f_min_hz:g}-{mat.steinmetz_f_max_hz:g} Hz range "
+                      f"of the {mat.id} loss coefficients: the core loss is an extrapolation")]
+    return []
 
-    # -- fit
+
+def _fit(state: DesignState) -> list[Check]:
+    built, build, parts, cat = state.built, state.build, state.parts, state.cat
+    out: list[Check] = []
     if not built.ok:
         out.append(Check("fail", "fit", f"{built.fail_reason}: use a thinner wire, fewer strands in hand, "
                                         f"smaller margins or the next core"))
@@ -56,8 +59,14 @@ def run_checks(state: DesignState) -> list[Check]:
         out.append(Check("warn", "window-fill",
                          f"window utilisation Ku {build.ku:.2f} is above the {ku_warn:.2f} a winder reaches "
                          f"comfortably (common practice)"))
+    return out
 
-    # -- temperature and classes
+
+def _temperature(state: DesignState) -> list[Check]:
+    """The hot spot against the insulation class (IEC 60085), and every wire and material against both."""
+    spec, cat, parts, windings, temp, losses = (state.spec, state.cat, state.parts, state.windings, state.temp,
+                                                state.losses)
+    out: list[Check] = []
     cls = spec.insulation_class_c
     letter = IEC_60085.get(cls, "?")
     if temp.hot_c > cls:
@@ -95,8 +104,14 @@ def run_checks(state: DesignState) -> list[Check]:
             out.append(Check("fail", "material-class", f"{name} is class {c}, below the {temp.hot_c:.0f} °C hot spot"))
         elif c < cls:
             out.append(Check("warn", "material-class", f"{name} is class {c}, below the insulation system class {cls}"))
+    return out
 
-    # -- current density and strands vs skin depth
+
+def _current(state: DesignState) -> list[Check]:
+    """Current density against the shop's figure for the cooling; strands against the skin depth."""
+    spec, cat, windings, states, temp = state.spec, state.cat, state.windings, state.states, state.temp
+    f = spec.frequency_hz
+    out: list[Check] = []
     shop_j = K.current_density_a_m2(cat.shop.current_density_a_m2, spec.cooling)
     delta = float(K.skin_depth_m(f, temp.hot_c)) if f > 0 else float("inf")
     for w in windings:
@@ -115,8 +130,12 @@ def run_checks(state: DesignState) -> list[Check]:
             out.append(Check("warn", "skin-depth",
                              f"winding {w.name}: strand {d * 1e3:.2f} mm is {d / delta:.1f} skin depths at "
                              f"{f / 1e3:g} kHz (Fr {w.fr:.2f}): use parallel strands or Litz"))
-    # -- turns per layer
-    for w in windings:
+    return out
+
+
+def _layers(state: DesignState) -> list[Check]:
+    out: list[Check] = []
+    for w in state.windings:
         for s in w.sections:
             if len(s.layers) > 1 and s.turns_per_layer < MIN_TURNS_PER_LAYER and w.wire_kind != "foil":
                 out.append(Check("warn", "turns-per-layer",
@@ -129,7 +148,12 @@ def run_checks(state: DesignState) -> list[Check]:
                                  f"winding {w.name}: the last layer holds {last.turns} of {last.turns_capacity} turns; "
                                  f"spread it across the breadth so the next winding lies flat"))
                 break
-    # -- insulation barriers
+    return out
+
+
+def _insulation(state: DesignState) -> list[Check]:
+    spec, states = state.spec, state.states
+    out: list[Check] = []
     tape_layers = spec.winding_tape.layers if spec.winding_tape else 0
     for b in spec.barriers:
         if b.rating in ("reinforced", "double") and b.b != "core":

@@ -216,39 +216,7 @@ def parse_spec(data: Any, name: str) -> Spec:
     wreaders = r.items("windings", min_items=1)
     windings = tuple(_winding(w, kind) for w in wreaders)
     names = [w.name for w in windings]
-    for i, w in enumerate(windings):
-        if names.index(w.name) != i:
-            raise wreaders[i].error(f"a second winding named '{w.name}'", "name")
-        if w.name.lower() == "core":
-            raise wreaders[i].error("'core' is reserved for barriers to the core", "name")
-    if kind == "transformer":
-        prim = [w for w in windings if w.role == "primary"]
-        if len(prim) != 1:
-            raise r.error(f"a transformer needs exactly one primary winding, found {len(prim)}", "windings")
-        p = prim[0]
-        pr = wreaders[windings.index(p)]
-        if p.voltage_v is None and p.turns is None:
-            raise pr.error("the primary needs its voltage", "voltage")
-        for w, wr in zip(windings, wreaders):
-            if w.role in ("secondary", "auxiliary"):
-                if w.voltage_v is None:
-                    raise wr.error(f"a {w.role} winding needs its voltage at full load", "voltage")
-                if w.current_a is None and w.va is None:
-                    raise wr.error(f"a {w.role} winding needs its current (or va)", "current")
-            if w.role == "main":
-                raise wr.error("role 'main' is for inductors; a transformer's windings are primary, "
-                               "secondary, auxiliary or shield", "role")
-    else:
-        if len(windings) != 1:
-            raise r.error("an inductor here has exactly one winding (split it with sections: N)", "windings")
-
-    for w, wr in zip(windings, wreaders):
-        if w.match is not None:
-            other = next((o for o in windings if o.name == w.match), None)
-            if other is None or other is w:
-                raise wr.error(f"'{w.match}' names no other winding", "match")
-            if other.role != w.role or other.voltage_v != w.voltage_v:
-                raise wr.error(f"only a winding of the same role and voltage can match {w.match}", "match")
+    _check_windings(r, kind, windings, wreaders)
     order = _build_order(r, windings)
     ins = r.mapping("insulation", None)
     layer_tape = winding_tape = outer_wrap = None
@@ -296,6 +264,44 @@ def parse_spec(data: Any, name: str) -> Spec:
         raise r.error(f"'{spec.revision}' is not a drawing revision letter (A..Y without I, O, Q, S, X, Z; "
                       f"then AA, AB, ...)", "revision")
     return spec
+
+
+def _check_windings(r: Reader, kind: str, windings: tuple[Winding, ...], wreaders: list[Reader]) -> None:
+    """Names unique, the roles a kind needs, matched pairs that can match."""
+    names = [w.name for w in windings]
+    for i, w in enumerate(windings):
+        if names.index(w.name) != i:
+            raise wreaders[i].error(f"a second winding named '{w.name}'", "name")
+        if w.name.lower() == "core":
+            raise wreaders[i].error("'core' is reserved for barriers to the core", "name")
+    if kind == "transformer":
+        prim = [w for w in windings if w.role == "primary"]
+        if len(prim) != 1:
+            raise r.error(f"a transformer needs exactly one primary winding, found {len(prim)}", "windings")
+        p = prim[0]
+        pr = wreaders[windings.index(p)]
+        if p.voltage_v is None and p.turns is None:
+            raise pr.error("the primary needs its voltage", "voltage")
+        for w, wr in zip(windings, wreaders):
+            if w.role in ("secondary", "auxiliary"):
+                if w.voltage_v is None:
+                    raise wr.error(f"a {w.role} winding needs its voltage at full load", "voltage")
+                if w.current_a is None and w.va is None:
+                    raise wr.error(f"a {w.role} winding needs its current (or va)", "current")
+            if w.role == "main":
+                raise wr.error("role 'main' is for inductors; a transformer's windings are primary, "
+                               "secondary, auxiliary or shield", "role")
+    else:
+        if len(windings) != 1:
+            raise r.error("an inductor here has exactly one winding (split it with sections: N)", "windings")
+
+    for w, wr in zip(windings, wreaders):
+        if w.match is not None:
+            other = next((o for o in windings if o.name == w.match), None)
+            if other is None or other is w:
+                raise wr.error(f"'{w.match}' names no other winding", "match")
+            if other.role != w.role or other.voltage_v != w.voltage_v:
+                raise wr.error(f"only a winding of the same role and voltage can match {w.match}", "match")
 
 
 def _insulation_class(r: Reader, value: object, table: object = None) -> int:
