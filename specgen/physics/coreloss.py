@@ -12,8 +12,7 @@ import numpy as np
 
 from ._types import Arr, ArrayLike, FloatArray
 
-_GRID = np.linspace(0.0, np.pi / 2.0, 200001)
-_STEP = _GRID[1] - _GRID[0]
+_GRID_POINTS = 200001      # the trapezoid grid of ``_cos_power_period_integral``, built on first use
 
 
 def _out(x: ArrayLike) -> Arr:
@@ -58,8 +57,10 @@ def igse_ki(k: float, alpha: float, beta: float) -> float:
 @lru_cache(maxsize=256)
 def _cos_power_period_integral(alpha: float) -> float:
     """int_0^2pi |cos t|^alpha dt = 4 int_0^pi/2 cos^alpha t dt, trapezoid rule on a fine grid."""
-    y = np.cos(_GRID) ** alpha
-    return float(4.0 * _STEP * (np.sum(y) - 0.5 * (y[0] + y[-1])))
+    grid = np.linspace(0.0, np.pi / 2.0, _GRID_POINTS)
+    step = grid[1] - grid[0]
+    y = np.cos(grid) ** alpha
+    return float(4.0 * step * (np.sum(y) - 0.5 * (y[0] + y[-1])))
 
 
 def _check_period(times_s: ArrayLike, flux_t: ArrayLike) -> tuple[FloatArray, FloatArray]:
