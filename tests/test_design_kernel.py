@@ -51,6 +51,9 @@ def test_flux_limit_rules_rowwise():
     # shop rule 0.8 x B_sat(100) = 0.312; design 0.2 below it; 1.5 above 1.2; 0.5 above 0.312
     assert got == pytest.approx([0.8 * 0.39, 0.2, 0.8 * 1.5, 0.8 * 0.39], rel=REL)
     assert K.flux_limit_t(0.49, 0.39, 100.0, 0.8, None, spec_limit_t=0.25) == 0.25
+    assert K.flux_limit_source(b25, b100, 100.0, 0.8, design).tolist() == [
+        K.FLUX_LIMIT_SHOP, K.FLUX_LIMIT_DESIGN, K.FLUX_LIMIT_SHOP, K.FLUX_LIMIT_SHOP]
+    assert K.flux_limit_source(0.49, 0.39, 100.0, 0.8, 0.2, spec_limit_t=0.25) == K.FLUX_LIMIT_SPEC
     for i in range(4):
         assert K.flux_limit_t(b25[i], b100[i], 100.0, 0.8, design[i]) == pytest.approx(got[i], rel=REL)
     # unipolar: only B_limit - B_r is usable, held at 5 % of the limit

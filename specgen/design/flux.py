@@ -17,10 +17,11 @@ def flux_limit(spec: Spec, cat: Catalog, material: Material, hot_c: float) -> Fl
     """The spec's limit, else the material's design value, else the shop's fraction of B_sat at the hot spot."""
     m = material
     frac = cat.shop.flux_limit_fraction
-    value = float(K.flux_limit_t(m.b_sat_25c_t, m.b_sat_100c_t, hot_c, frac, m.b_design_t, spec.flux_limit_t))
-    if spec.flux_limit_t is not None:
+    args = (m.b_sat_25c_t, m.b_sat_100c_t, hot_c, frac, m.b_design_t, spec.flux_limit_t)
+    value = float(K.flux_limit_t(*args))
+    source = K.flux_limit_source(*args)
+    if source == K.FLUX_LIMIT_SPEC:
         return FluxLimit(value, "spec")
-    bsat = b_sat_hot_t(m, hot_c)
-    if m.b_design_t is not None and m.b_design_t < frac * bsat:
+    if source == K.FLUX_LIMIT_DESIGN:
         return FluxLimit(value, f"material design value ({m.id})")
-    return FluxLimit(value, f"{frac:.0%} of B_sat {bsat:.2f} T at {hot_c:.0f} °C (shop rule)")
+    return FluxLimit(value, f"{frac:.0%} of B_sat {b_sat_hot_t(m, hot_c):.2f} T at {hot_c:.0f} °C (shop rule)")

@@ -9,6 +9,7 @@ kernel composes it with the shop's rules (``limits``). Kind codes in arrays: ``F
 Flux and turns
   b_sat_t(b_sat_25c_t, b_sat_100c_t, temp_c)                        B_sat at a temperature
   flux_limit_t(b25, b100, temp_c, fraction, b_design_t, spec_limit_t)  the working limit (value only)
+  flux_limit_source(...same...)                                      which rule set it (FLUX_LIMIT_* codes)
   unipolar_swing_t(limit_t, b_r_t, waveform)                         usable swing (unipolar: less B_r)
   turns_for_voltage(v, freq_hz, b_t, ae_m2, waveform, duty)         Faraday, not rounded
   whole_turns(turns)                                                 ceil (1e-9 slack), at least 1
@@ -84,9 +85,9 @@ __all__ = [
     "LITZ_STRAND_MAX_SKIN_DEPTHS", "MAX_BUNDLES_LITZ", "MAX_HOT_C", "MAX_STRANDS_ROUND", "MAX_STRANDS_TIW",
     "MAX_TURNS", "MU0_H_M", "RIPPLE_SKIN_FRACTION", "SQUARE_HARMONICS", "STRAND_MAX_SKIN_DEPTHS",
     "THERMAL_MAX_PASSES", "THERMAL_SETTLED_K", "WIRE_CHOICE_TEMP_C", "WIRE_CODE",
-    "FormerArrays", "Harmonics", "SectionWinding", "WireGeometry",
+    "FLUX_LIMIT_DESIGN", "FLUX_LIMIT_SHOP", "FLUX_LIMIT_SPEC", "FormerArrays", "Harmonics", "SectionWinding", "WireGeometry",
     "b_sat_t", "copper_loss_w", "core_loss_grouped_w_m3", "core_loss_w_m3", "current_density_a_m2",
-    "current_harmonics", "dc_resistance_ohm", "first_guess_thermal", "flux_limit_t", "gap_for_inductance_m",
+    "current_harmonics", "dc_resistance_ohm", "first_guess_thermal", "flux_limit_source", "flux_limit_t", "gap_for_inductance_m",
     "gapped_turns_and_gap", "hot_spot_c", "layer_ac_factor", "layer_capacity", "layer_centre_m",
     "magnetizing_current_a", "mean_turn_length_m", "pitch_and_height", "powder_flux_t", "round_gap_down_m",
     "section_ac_factor", "skin_depth_m", "stack_wires", "temperature_rise_k", "thermal_state",
@@ -122,22 +123,38 @@ def b_sat_t(b_sat_25c_t: ArrayLike, b_sat_100c_t: ArrayLike, temp_c: ArrayLike) 
     return _out(thermal.b_sat_at_temp_t(b_sat_25c_t, b_sat_100c_t, temp_c))
 
 
+FLUX_LIMIT_SPEC, FLUX_LIMIT_DESIGN, FLUX_LIMIT_SHOP = 0, 1, 2   # which rule set the limit (flux_limit_source)
+
+
+def flux_limit_source(b_sat_25c_t: ArrayLike, b_sat_100c_t: ArrayLike, temp_c: ArrayLike, fraction: float,
+                      b_design_t: ArrayLike | None = None, spec_limit_t: float | None = None) -> Any:
+    """Which rule sets the flux limit, per row: FLUX_LIMIT_SPEC, FLUX_LIMIT_DESIGN (the material's design
+    value, where it is below ``fraction`` x B_sat at ``temp_c``) or FLUX_LIMIT_SHOP (that fraction of B_sat).
+    An int for scalar input, else an int array."""
+    bsat = _f(b_sat_t(b_sat_25c_t, b_sat_100c_t, temp_c))
+    if spec_limit_t is not None:
+        src = np.full(bsat.shape, FLUX_LIMIT_SPEC)
+    elif b_design_t is None:
+        src = np.full(bsat.shape, FLUX_LIMIT_SHOP)
+    else:
+        bd = _f(b_design_t)
+        with np.errstate(invalid="ignore"):
+            use = ~np.isnan(bd) & (bd < fraction * bsat)
+        src = np.where(use, FLUX_LIMIT_DESIGN, FLUX_LIMIT_SHOP)
+    return int(src) if src.ndim == 0 else src
+
+
 def flux_limit_t(b_sat_25c_t: ArrayLike, b_sat_100c_t: ArrayLike, temp_c: ArrayLike, fraction: float,
                  b_design_t: ArrayLike | None = None, spec_limit_t: float | None = None) -> Arr:
     """The working flux-density limit [T]: the spec's, else the material's design value where it is below
-    ``fraction`` x B_sat at ``temp_c``, else that fraction of B_sat (the shop's rule).
-
-    ``b_design_t``: per row, NaN (or None for all) where the material has none."""
+    ``fraction`` x B_sat at ``temp_c``, else that fraction of B_sat (the shop's rule; ``flux_limit_source``
+    says which). ``b_design_t``: per row, NaN (or None for all) where the material has none."""
     bsat = _f(b_sat_t(b_sat_25c_t, b_sat_100c_t, temp_c))
-    if spec_limit_t is not None:
-        return _out(np.full(bsat.shape, float(spec_limit_t)))
+    src = np.asarray(flux_limit_source(b_sat_25c_t, b_sat_100c_t, temp_c, fraction, b_design_t, spec_limit_t))
     share = fraction * bsat
-    if b_design_t is None:
-        return _out(share)
-    bd = _f(b_design_t)
-    with np.errstate(invalid="ignore"):
-        use = ~np.isnan(bd) & (bd < share)
-    return _out(np.where(use, bd, share))
+    spec = float(spec_limit_t) if spec_limit_t is not None else math.nan
+    bd = _f(b_design_t) if b_design_t is not None else np.full(bsat.shape, math.nan)
+    return _out(np.where(src == FLUX_LIMIT_SPEC, spec, np.where(src == FLUX_LIMIT_DESIGN, bd, share)))
 
 
 def unipolar_swing_t(limit_t: ArrayLike, b_r_t: ArrayLike, waveform: str) -> Arr:
