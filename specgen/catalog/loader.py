@@ -17,19 +17,24 @@ from ..loading import Reader, load_yaml
 from .models import (
     CORE_SHAPES,
     MATERIAL_FAMILIES,
+    PAPER_SIZES_M,
     WIRE_KINDS,
     Bobbin,
+    BuyBreak,
     Catalog,
     Core,
     Material,
+    Party,
+    QuoteTerms,
     Shop,
+    ShopDocuments,
     Sleeving,
     Tape,
     Varnish,
     Wire,
 )
 
-TOP_KEYS = ("wires", "cores", "bobbins", "materials", "tapes", "sleevings", "varnishes", "shop")
+TOP_KEYS = ("wires", "cores", "bobbins", "materials", "tapes", "sleevings", "varnishes", "customers", "shop")
 
 CORE_DIMS = {
     "EI": (("tongue",), ("window_width", "window_height", "leg", "yoke")),
@@ -345,6 +350,7 @@ def _shop(r: Reader) -> Shop:
     except (KeyError, IndexError, ValueError):
         raise r.error("work-order format may use only {year}, {seq} and {part}", "work_order_format") from None
     labor = r.mapping("labor")
+    documents = _shop_documents(r)
     shop = Shop(
         name=r.text("name"), currency=r.text("currency", "USD"), labor_rate=r.decimal("labor_rate"),
         overhead=_pct(r, "overhead"), margin=_pct(r, "margin"),
@@ -355,15 +361,90 @@ def _shop(r: Reader) -> Shop:
         hotspot_margin_k=r.quantity("hotspot_margin", "temperature_difference", 10.0, allow_zero=True),
         work_order_format=fmt, hipot=hipot, insulation_resistance=insulation_resistance,
         tolerances=tolerances, labor={"data": labor.data, "file": labor.file, "path": labor.path},
-        source=r.text("source"), register_path=r.text("register", None), raw=_plain(r.data),
+        source=r.text("source"), register_path=r.text("register", None), documents=documents,
+        raw={k: v for k, v in _plain(r.data).items() if k not in DOCUMENT_KEYS},
     )
     labor._seen.update(labor.data.keys())   # the quote module reads and checks these
     r.done()
     return shop
 
 
+# ---------------------------------------------------------------------------------------------- documents
+# shop.paper, shop.address, shop.quote_terms and customers.yaml: what the documents print and the
+# quote's commercial terms. They shape no design, so they are left out of Shop.raw (the part of the
+# shop file a release fingerprint covers): a new address or payment term does not void any release.
+
+DOCUMENT_KEYS = ("paper", "address", "quote_terms")
+
+
+def _party(r: Reader, name: str | None = None) -> Party:
+    """An address block; ``name`` given (the shop's own) means the mapping carries no id or name."""
+    lines = r.list_of("lines", [])
+    for i, line in enumerate(lines):
+        if isinstance(line, (dict, list)) or line is None:
+            raise r.item_error("lines", i, "expected one line of the address as text")
+    party = Party(id=r.text("id") if name is None else "", name=r.text("name") if name is None else name,
+                  lines=tuple(str(x) for x in lines), attention=r.text("attention", ""),
+                  phone=r.text("phone", ""), email=r.text("email", ""), raw=_plain(r.data))
+    r.done()
+    return party
+
+
+def _customer(r: Reader) -> Party:
+    return _party(r)
+
+
+def _buy_breaks(r: Reader, key: str, dimension: str | None) -> tuple:
+    out = []
+    for item in r.items(key, []):
+        threshold = item.quantity("from", dimension) if dimension else item.number("from", minimum=1)
+        discount = _pct(item, "discount")
+        if not Decimal(0) <= discount < Decimal(1):
+            raise item.error("must be from 0 % to below 100 %", "discount")
+        item.done()
+        if out and threshold <= out[-1].threshold:
+            raise item.error("price breaks go from the smallest quantity up", "from")
+        out.append(BuyBreak(threshold=threshold, discount=discount))
+    return tuple(out)
+
+
+def _quote_terms(r: Reader | None) -> QuoteTerms:
+    if r is None:
+        return QuoteTerms()
+    learning = r.mapping("learning", None)
+    first, rate = 1.0, 1.0
+    if learning is not None:
+        first = learning.number("first_unit", minimum=1.0, maximum=4.0)
+        rate = float(_pct(learning, "rate"))
+        if not 0.7 <= rate <= 1.0:
+            raise learning.error("a learning rate from 70 % to 100 % (each doubling of the count)", "rate")
+        learning.done()
+    breaks = r.mapping("price_breaks", None)
+    by_mass = _buy_breaks(breaks, "by_mass", "mass") if breaks is not None else ()
+    by_count = _buy_breaks(breaks, "by_count", None) if breaks is not None else ()
+    if breaks is not None:
+        breaks.done()
+    terms = QuoteTerms(
+        lead_time_s=r.quantity("lead_time", "time", None), repeat_lead_time_s=r.quantity("repeat_lead_time", "time", None),
+        payment=r.text("payment", ""), delivery=r.text("delivery", ""), signatory=r.text("signatory", ""),
+        signatory_title=r.text("signatory_title", ""), learning_first_unit=first, learning_rate=rate,
+        breaks_by_mass=by_mass, breaks_by_count=by_count)
+    r.done()
+    return terms
+
+
+def _shop_documents(r: Reader) -> ShopDocuments:
+    paper = r.text("paper", "A4").strip()
+    match = {k.casefold(): k for k in PAPER_SIZES_M}.get(paper.casefold())
+    if match is None:
+        raise r.error(f"expected one of {' | '.join(PAPER_SIZES_M)}, got '{paper}'", "paper")
+    address = r.mapping("address", None)
+    party = _party(address, name=r.text("name")) if address is not None else None
+    return ShopDocuments(paper=match, address=party, terms=_quote_terms(r.mapping("quote_terms", None)))
+
+
 _BUILDERS = {"wires": _wire, "cores": _core, "bobbins": _bobbin, "materials": _material,
-             "tapes": _tape, "sleevings": _sleeving, "varnishes": _varnish}
+             "tapes": _tape, "sleevings": _sleeving, "varnishes": _varnish, "customers": _customer}
 
 
 def _read_dir(root: Path, problems: list | None):

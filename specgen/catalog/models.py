@@ -204,6 +204,8 @@ class Shop:
     source: str
     register_path: str | None = None   # the work-order register, if the shop keeps one fixed place
     raw: dict = field(default_factory=dict, compare=False, repr=False)
+    # documents and commercial terms (see ShopDocuments): printed, never part of a design or its fingerprint
+    documents: ShopDocuments = field(default_factory=lambda: ShopDocuments())
 
 
 @dataclass(frozen=True)
@@ -220,6 +222,7 @@ class Catalog:
     varnishes: dict
     shop: Shop
     locations: dict = field(default_factory=dict, compare=False, repr=False)   # id -> (file, line)
+    customers: dict = field(default_factory=dict)   # id -> Party (customers.yaml: the quote's address blocks)
 
     KINDS = ("wires", "cores", "bobbins", "materials", "tapes", "sleevings", "varnishes")
 
@@ -234,5 +237,71 @@ class Catalog:
                 return kind, obj
         return None
 
+    def customer(self, name: str) -> Party | None:
+        """The customer a spec names, by id or by name (case and spacing ignored); None if not on file."""
+        key = " ".join(str(name).split()).casefold()
+        for c in self.customers.values():
+            if key in (c.id.casefold(), " ".join(c.name.split()).casefold()):
+                return c
+        return None
+
     def bobbins_for(self, core_id: str) -> list:
         return [b for b in self.bobbins.values() if b.core == core_id]
+
+
+# ------------------------------------------------------------------------------------------------ documents
+# What the shop prints on its documents and the commercial terms of its quotes. None of it shapes a
+# design, so none of it enters a release fingerprint (the loader leaves these keys out of Shop.raw).
+
+#: Paper the documents are laid out for: width and height in metres (ISO 216 A4; US Letter 8.5 x 11 in).
+PAPER_SIZES_M = {"A4": (0.210, 0.297), "Letter": (0.2159, 0.2794)}
+
+
+@dataclass(frozen=True)
+class Party:
+    """A postal address block: the shop's own, or a customer's (catalogue customers.yaml)."""
+
+    id: str
+    name: str
+    lines: tuple = ()              # street, town, postcode, country: as printed
+    attention: str = ""            # customers: the person or desk a quote goes to
+    phone: str = ""
+    email: str = ""
+    raw: dict = field(default_factory=dict, compare=False, repr=False)
+
+
+@dataclass(frozen=True)
+class BuyBreak:
+    """A supplier's price break on what one lot buys of one stock item: from ``threshold`` up, ``discount`` off."""
+
+    threshold: float               # kg (by mass) or pieces/sets (by count)
+    discount: Decimal              # fraction off the catalogue price
+
+
+@dataclass(frozen=True)
+class QuoteTerms:
+    """shop.quote_terms: lead time, payment, delivery, who signs, and what makes a larger lot cheaper."""
+
+    lead_time_s: float | None = None           # order to despatch of a first lot
+    repeat_lead_time_s: float | None = None    # a repeat order of an unchanged revision
+    payment: str = ""
+    delivery: str = ""
+    signatory: str = ""
+    signatory_title: str = ""
+    learning_first_unit: float = 1.0           # the first unit's run time as a multiple of the settled time
+    learning_rate: float = 1.0                 # each doubling of the count multiplies the unit time by this
+    breaks_by_mass: tuple = ()                 # BuyBreaks on kg of one wire (or per-kg core) in the lot
+    breaks_by_count: tuple = ()                # BuyBreaks on pieces/sets of one core or bobbin in the lot
+
+
+@dataclass(frozen=True)
+class ShopDocuments:
+    """shop.paper, shop.address and shop.quote_terms, typed."""
+
+    paper: str = "A4"                          # a key of PAPER_SIZES_M
+    address: Party | None = None
+    terms: QuoteTerms = field(default_factory=QuoteTerms)
+
+    @property
+    def paper_m(self) -> tuple[float, float]:
+        return PAPER_SIZES_M[self.paper]
