@@ -23,7 +23,8 @@ Labor per unit (seconds, from ``shop.labor``, located errors through ``loading.R
     winding       each section: turns x 60 / turns_per_minute x factor, where turns_per_minute is
                   toroid_turns_per_minute on a toroid (shuttle winder) else bobbin_turns_per_minute,
                   and factor multiplies fine_wire_factor (overall diameter below fine_wire_below),
-                  heavy_wire_factor (overall diameter above heavy_wire_above; foil and strip always)
+                  heavy_wire_factor (overall diameter above heavy_wire_above; foil and strip when their
+                  thickness is above it: a 0.05 mm foil screen is one easy turn, not heavy wire)
                   and litz_factor (Litz). Strands in hand are laid together: the same turns time.
     per winding   per_winding for each section (each section is a separate pass: lead in, lead out).
     taping        per_layer_tape per wrap: (layers - 1) x the section's layer-tape wraps (from the Design) inside each
@@ -31,11 +32,19 @@ Labor per unit (seconds, from ``shop.labor``, located errors through ``loading.R
     terminations  per_termination x (sections + 1) per winding: start, finish and each tie pin;
                   strands in hand on one pin count once.
     assembly      core_assembly x core sets, plus per_lamination x 2 x lamination pairs (E and I
-                  are stacked piece by piece).
+                  are stacked piece by piece). A toroid is wound on its core: no assembly line.
     impregnation  impregnation, when the Design lists a varnish.
     test          test, every unit.
     setup         shop.setup_time per lot, divided by the lot quantity.
+    learning      the run time above is the settled time per unit; a lot of N averages
+                  learning_factor(N) times it (shop.quote_terms.learning; see that function).
     labor cost    seconds / 3600 x shop.labor_rate.
+
+Lot size (shop.quote_terms.price_breaks)
+    a material line whose lot buys at least a supplier's break of that stock item gets the break's
+    discount: by mass for wire and per-kg laminations or cores (the lot's kg including the scrap
+    allowance), by count for cores and bobbins priced per piece or set. Tape, sleeving and varnish
+    are bought in bulk whatever the lot: no break.
 
 Price (common practice in custom-magnetics quoting; the conventions chosen here)
     overhead      shop.overhead x direct labor (a labor burden: benches, oven, test station),
@@ -62,6 +71,7 @@ Release
 from __future__ import annotations
 
 import datetime as _dt
+import math
 from collections.abc import Iterable
 from dataclasses import dataclass, field
 from decimal import ROUND_HALF_UP, Decimal, InvalidOperation
@@ -91,6 +101,11 @@ def plain(x: Decimal) -> str:
     """A Decimal without trailing zeros or exponent: 90.0 -> '90', 0.80 -> '0.8'."""
     text = f"{x.normalize():f}"
     return text
+
+
+def count(n: int, one: str, many: str | None = None) -> str:
+    """'1 core set', '2 core sets', '3 winding passes': a count with its noun in the right number."""
+    return f"{n:,} {one if n == 1 else (many or one + 's')}"
 
 
 def cents(amount: Decimal) -> Decimal:
@@ -256,10 +271,11 @@ def wire_factor(wire_kind: str, overall_diameter_m: float, model: TimeModel) -> 
     """Slow-down factor of one wire on the winder and the reasons (fine, heavy, Litz)."""
     factor = Decimal(1)
     why = []
-    if wire_kind in ("foil", "strip") or overall_diameter_m > model.heavy_wire_above_m:
+    flat = wire_kind in ("foil", "strip")      # overall_diameter_m is then the thickness
+    if overall_diameter_m > model.heavy_wire_above_m:
         factor *= model.heavy_wire_factor
         why.append("heavy")
-    elif overall_diameter_m < model.fine_wire_below_m:
+    elif overall_diameter_m < model.fine_wire_below_m and not flat:
         factor *= model.fine_wire_factor
         why.append("fine")
     if wire_kind == "litz":
@@ -283,24 +299,25 @@ def labor_lines(design, model: TimeModel) -> list[TimeLine]:
             detail += f" x {plain(factor)} ({', '.join(why)})"
         out.append(TimeLine("winding", w.name, detail, seconds))
     passes = sum(len(w.sections) for w in design.windings)
-    out.append(TimeLine("per winding", "", f"{passes} winding pass(es) x {plain(model.per_winding_s)} s",
-                        passes * model.per_winding_s))
+    out.append(TimeLine("per winding", "", f"{count(passes, 'winding pass', 'winding passes')} x "
+                        f"{plain(model.per_winding_s)} s", passes * model.per_winding_s))
     wraps = 0
     for w in design.windings:
         for s in w.sections:
             wraps += max(len(s.layers) - 1, 0) * s.layer_tape_layers + (s.tape_after_layers if s.tape_after else 0)
-    out.append(TimeLine("taping", "", f"{wraps} tape wrap(s) x {plain(model.per_layer_tape_s)} s",
+    out.append(TimeLine("taping", "", f"{count(wraps, 'tape wrap')} x {plain(model.per_layer_tape_s)} s",
                         wraps * model.per_layer_tape_s))
     terms = sum(len(w.sections) + 1 for w in design.windings)
-    out.append(TimeLine("terminations", "", f"{terms} termination(s) x {plain(model.per_termination_s)} s",
+    out.append(TimeLine("terminations", "", f"{count(terms, 'termination')} x {plain(model.per_termination_s)} s",
                         terms * model.per_termination_s))
-    sets = design.core.count
-    pieces = 2 * (design.core.laminations or 0)
-    assembly = sets * model.core_assembly_s + pieces * model.per_lamination_s
-    detail = f"{sets} core set(s) x {plain(model.core_assembly_s)} s"
-    if pieces:
-        detail += f" + {pieces} lamination pieces x {plain(model.per_lamination_s)} s"
-    out.append(TimeLine("assembly", design.core.id, detail, assembly))
+    if not toroid:                      # a toroid is wound on its core: nothing to assemble
+        sets = design.core.count
+        pieces = 2 * (design.core.laminations or 0)
+        assembly = sets * model.core_assembly_s + pieces * model.per_lamination_s
+        detail = f"{count(sets, 'core set')} x {plain(model.core_assembly_s)} s"
+        if pieces:
+            detail += f" + {count(pieces, 'lamination piece')} x {plain(model.per_lamination_s)} s"
+        out.append(TimeLine("assembly", design.core.id, detail, assembly))
     if any(m.kind == "varnish" for m in design.materials):
         out.append(TimeLine("impregnation", "", "dip and bake", model.impregnation_s))
     out.append(TimeLine("test", "", "final test", model.test_s))
@@ -325,6 +342,8 @@ class PriceBreak:
     extended: Decimal          # unit_price x quantity
     unit_price_copper_low: Decimal     # copper price x 0.8
     unit_price_copper_high: Decimal    # copper price x 1.2
+    learning: Decimal = Decimal(1)     # the lot's mean run time / the settled run time
+    material_discount: Decimal = Decimal(0)   # per unit, from the suppliers' breaks (within material)
 
 
 def _check_margin(shop) -> None:
@@ -346,24 +365,100 @@ def unit_price(material: Decimal, run_s: Decimal, setup_s: Decimal, quantity: in
             "unit_price": price}
 
 
+# ------------------------------------------------------------------------------------------------ lot size
+# What makes a larger lot cheaper besides the setup: the bench learns the part, and the stock suppliers
+# give price breaks on larger buys. Both from shop.quote_terms; both absent means neither applies.
+
+#: Units summed one by one before the tail of a long learning curve is taken as an integral.
+_LEARNING_EXACT_UNITS = 100_000
+
+
+def learning_factor(quantity: int, first_unit: float, rate: float) -> Decimal:
+    """The mean run time of a lot of ``quantity`` units as a multiple of the settled time.
+
+    Unit n takes ``T_n = max(1, F1 * n**b)`` times the settled time, with ``b = log2(rate)``: each
+    doubling of the count multiplies the unit time by ``rate`` (the learning curve of T. P. Wright,
+    "Factors affecting the cost of airplanes", Journal of the Aeronautical Sciences 3 (1936) 122-128,
+    in its unit form; from memory), floored at the settled time the shop's labor figures describe,
+    which is reached at ``n = F1 ** (-1 / b)``. The mean is ``sum(T_n, n = 1..N) / N``: summed term
+    by term up to 100 000 units, beyond that by the midpoint integral ``((m + 1/2)**(b+1) -
+    (k + 1/2)**(b+1)) / (b + 1)`` of the smooth tail (relative error below 1e-9 there).
+
+    Parameters: quantity (units in the lot, >= 1); first_unit ``F1`` (>= 1); rate (0 < rate <= 1).
+    Returns a Decimal to 6 decimals (a time factor; money stays Decimal downstream).
+    """
+    if quantity < 1:
+        raise ValueError("a lot of at least one unit")
+    if first_unit <= 1.0 or rate >= 1.0:
+        return Decimal(1)
+    b = math.log2(rate)
+    settle = first_unit ** (-1.0 / b)                 # F1 n^b = 1 here
+    learning_units = min(quantity, math.floor(settle))
+    exact = min(learning_units, _LEARNING_EXACT_UNITS)
+    total = math.fsum(first_unit * n ** b for n in range(1, exact + 1))
+    if learning_units > exact:
+        e = b + 1.0
+        total += first_unit * ((learning_units + 0.5) ** e - (exact + 0.5) ** e) / e
+    total += quantity - learning_units                # settled units at 1 x
+    return Decimal(repr(round(total / quantity, 6)))
+
+
+def buy_discount(amount: float | Decimal, breaks) -> Decimal:
+    """The discount of the highest supplier's break that ``amount`` (kg or pieces in the lot) reaches."""
+    best = Decimal(0)
+    for brk in breaks:
+        if float(amount) >= brk.threshold:
+            best = brk.discount
+    return best
+
+
+def lot_material(lines: Iterable[CostLine], quantity: int, terms, scrap: Decimal) -> tuple[Decimal, Decimal]:
+    """(material per unit at a lot of ``quantity``, the part of it the breaks took off)."""
+    total = saved = Decimal(0)
+    for line in lines:
+        off = Decimal(0)
+        if line.unit == "kg":                          # wire (with its scrap allowance) and per-kg cores
+            bought = line.quantity * quantity * ((Decimal(1) + scrap) if line.kind == "wire" else Decimal(1))
+            off = buy_discount(bought, terms.breaks_by_mass)
+        elif line.unit in ("sets", "pcs") and line.kind in ("core", "laminations", "bobbin"):
+            off = buy_discount(line.quantity * quantity, terms.breaks_by_count)
+        total += line.amount * (Decimal(1) - off)
+        saved += line.amount * off
+    return total, saved
+
+
+def _terms(shop):
+    from .catalog.models import QuoteTerms
+
+    docs = getattr(shop, "documents", None)
+    return docs.terms if docs is not None else QuoteTerms()
+
+
 def price_breaks(design, cat, quantities: Iterable[int],
                  model: TimeModel | None = None) -> list[PriceBreak]:
     model = model or time_model(cat.shop)
     shop = cat.shop
-    run_s = run_seconds(labor_lines(design, model))
+    terms = _terms(shop)
+    settled_s = run_seconds(labor_lines(design, model))
     setup_s = dec(shop.setup_time_s)
-    mat = material_total(material_lines(design, cat))
-    mat_low = material_total(material_lines(design, cat, COPPER_LOW))
-    mat_high = material_total(material_lines(design, cat, COPPER_HIGH))
+    lines = material_lines(design, cat)
+    lines_low = material_lines(design, cat, COPPER_LOW)
+    lines_high = material_lines(design, cat, COPPER_HIGH)
     out = []
     for q in quantities:
+        learning = learning_factor(q, terms.learning_first_unit, terms.learning_rate)
+        run_s = settled_s * learning
+        mat, saved = lot_material(lines, q, terms, shop.scrap_wire)
         base = unit_price(mat, run_s, setup_s, q, shop)
         out.append(PriceBreak(
             quantity=q, material=base["material"], labor=base["labor"], setup=base["setup"],
             overhead=base["overhead"], cost=base["cost"], unit_price=base["unit_price"],
             extended=base["unit_price"] * q,
-            unit_price_copper_low=unit_price(mat_low, run_s, setup_s, q, shop)["unit_price"],
-            unit_price_copper_high=unit_price(mat_high, run_s, setup_s, q, shop)["unit_price"]))
+            unit_price_copper_low=unit_price(lot_material(lines_low, q, terms, shop.scrap_wire)[0],
+                                             run_s, setup_s, q, shop)["unit_price"],
+            unit_price_copper_high=unit_price(lot_material(lines_high, q, terms, shop.scrap_wire)[0],
+                                              run_s, setup_s, q, shop)["unit_price"],
+            learning=learning, material_discount=saved))
     return out
 
 
@@ -504,6 +599,7 @@ class Quote:
                 "unit_price": s(b.unit_price), "extended": s(b.extended),
                 "unit_price_copper_minus_20": s(b.unit_price_copper_low),
                 "unit_price_copper_plus_20": s(b.unit_price_copper_high),
+                "learning_factor": str(b.learning), "material_discount": s(b.material_discount, q4),
             } for b in self.breaks],
             "nre": s(self.nre),
             "notes": list(self.notes),

@@ -75,6 +75,10 @@ HEAVY_ABOVE_M, HEAVY_FACTOR = 1.2e-3, Decimal("2.0")
 PER_WINDING, PER_WRAP, PER_TERM = Decimal("90"), Decimal("20"), Decimal("30")
 CORE_ASSEMBLY, PER_LAMINATION = Decimal("120"), Decimal("0.8")
 IMPREGNATION, TEST = Decimal("60"), Decimal("150")
+# lot-size terms (catalog/shop.yaml quote_terms:, invented demo figures)
+LEARNING_FIRST, LEARNING_RATE = 1.8, 0.9
+BREAKS_BY_MASS = ((10.0, Decimal("0.04")), (50.0, Decimal("0.08")))       # kg of one item in the lot
+BREAKS_BY_COUNT = ((500, Decimal("0.05")), (2500, Decimal("0.10")))        # pieces of one item in the lot
 
 # BH-1042's catalogue prices (catalog/cores.yaml, wires.yaml, bobbins.yaml, insulation.yaml)
 LAMINATION_PER_KG = Decimal("3.00")                       # EI-125, price_unit kg
@@ -100,22 +104,47 @@ def test_written_out_prices_are_the_catalogue_s(cat):
         assert D(cat.tapes[tid].width_m) == width and cat.tapes[tid].price_per_m2 == price
     assert cat.sleevings["SLV-GLSIL-1.0"].price_per_m == SLEEVING_PER_M["SLV-GLSIL-1.0"]
     assert cat.varnishes["VAR-PEI-F"].price_per_litre == VARNISH_PER_L["VAR-PEI-F"]
+    terms = shop.documents.terms
+    assert (terms.learning_first_unit, terms.learning_rate) == (LEARNING_FIRST, LEARNING_RATE)
+    assert tuple((b.threshold, b.discount) for b in terms.breaks_by_mass) == BREAKS_BY_MASS
+    assert tuple((b.threshold, b.discount) for b in terms.breaks_by_count) == BREAKS_BY_COUNT
     model = qm.time_model(shop)
     assert model.bobbin_turns_per_minute == BOBBIN_TPM and model.per_lamination_s == PER_LAMINATION
     assert model.fine_wire_below_m == pytest.approx(FINE_BELOW_M) and model.heavy_wire_above_m == pytest.approx(HEAVY_ABOVE_M)
 
 
-def _hand_material(d) -> tuple[Decimal, Decimal]:
-    """BH-1042's material per unit and its copper share, line by line."""
+def _off(amount, breaks) -> Decimal:
+    """The supplier's discount for buying ``amount`` of one item (the highest break reached)."""
+    reached = [d for threshold, d in breaks if amount >= threshold]
+    return reached[-1] if reached else Decimal(0)
+
+
+def _hand_learning(n_lot: int) -> Decimal:
+    """Mean unit time of a lot / settled time, unit by unit: max(1, F1 n^log2(rate)) (Wright's learning
+    curve, unit form, floored at the settled time), summed by brute force."""
+    import math
+
+    b = math.log2(LEARNING_RATE)
+    mean = sum(max(1.0, LEARNING_FIRST * n ** b) for n in range(1, n_lot + 1)) / n_lot
+    return Decimal(repr(round(mean, 6)))
+
+
+def _hand_material(d, lot: int | None = None) -> tuple[Decimal, Decimal]:
+    """BH-1042's material per unit and its copper share, line by line; at a lot size, with the
+    suppliers' breaks on what the lot buys of each item (wire by kg with scrap, laminations by kg,
+    the bobbin by count)."""
     total = Decimal(0)
     copper = Decimal(0)
     for m in d.materials:
         if m.kind == "laminations":            # priced per kg: mass x price
-            total += D(m.mass_kg) * LAMINATION_PER_KG
+            off = _off(m.mass_kg * lot, BREAKS_BY_MASS) if lot else 0
+            total += D(m.mass_kg) * LAMINATION_PER_KG * (1 - off)
         elif m.kind == "bobbin":               # one piece
-            total += D(m.quantity) * BOBBIN
+            off = _off(m.quantity * lot, BREAKS_BY_COUNT) if lot else 0
+            total += D(m.quantity) * BOBBIN * (1 - off)
         elif m.kind == "wire":                 # mass x price per kg x (1 + scrap)
-            line = D(m.mass_kg) * WIRE_PER_KG[m.id] * (1 + SCRAP)
+            off = _off(m.mass_kg * lot * (1 + float(SCRAP)), BREAKS_BY_MASS) if lot else 0
+            line = D(m.mass_kg) * WIRE_PER_KG[m.id] * (1 + SCRAP) * (1 - off)
             total += line
             copper += line
         elif m.kind == "tape":                 # length x width x price per m2
@@ -160,7 +189,10 @@ def test_bh1042_build_up_reproduced_to_the_cent(cat, designs):
     assert q.copper_per_unit == copper
     assert q.run_time_s == run_s
     for b in q.breaks:
-        labor = (run_s + SETUP_S / b.quantity) / 3600 * LABOR_RATE     # setup amortised over the lot
+        material, copper = _hand_material(d, b.quantity)               # suppliers' breaks on the lot
+        learning = _hand_learning(b.quantity)
+        assert b.learning == learning
+        labor = (run_s * learning + SETUP_S / b.quantity) / 3600 * LABOR_RATE   # setup amortised over the lot
         overhead = labor * OVERHEAD                                    # overhead on labor only
         cost = material + labor + overhead
         price = (cost / (1 - MARGIN)).quantize(Decimal("0.01"), rounding=ROUND_HALF_UP)
@@ -463,3 +495,64 @@ def test_demo_quotes_writes_one_pdf_per_part(cat, designs, tmp_path):
         pages, text = _pdf_text(tmp_path / f"{part}-rev{q.revision}-quote.pdf")
         assert pages == 1 and str(q.breaks[-1].unit_price) in text
     assert len(said) == len(designs) + 1
+
+
+# ------------------------------------------------------------------------------------------------ lot size
+
+def test_learning_factor_matches_a_brute_force_sum_on_the_integral_tail():
+    # Wright's learning curve in its unit form, T_n = F1 n^log2(rate), floored at the settled time;
+    # 3 million units with rate 97 % run well past the term-by-term part (numpy sums every term here)
+    import numpy as np
+
+    first, rate, lot = 2.0, 0.97, 3_000_000
+    n = np.arange(1, lot + 1, dtype=float)
+    want = np.maximum(1.0, first * n ** np.log2(rate)).sum() / lot
+    assert float(qm.learning_factor(lot, first, rate)) == pytest.approx(want, rel=2e-6)
+    assert qm.learning_factor(1, first, rate) == Decimal("2.0")           # the first unit: F1 x
+    assert qm.learning_factor(10**6, 1.0, 0.9) == Decimal(1)             # no learning stated
+
+
+def test_a_larger_lot_is_cheaper_by_learning_and_breaks_not_a_flat_spread(cat, designs):
+    # the old model's only lot effect was the setup (about 1 % between 500 and 2500): now the unit
+    # time falls with the learning curve and the suppliers' breaks take material cost off
+    _path, spec, d = designs["BH-1042"]
+    q = qm.build_quote(spec, d, cat, (10, 100, 2500), issued=ISSUED)
+    small, mid, big = q.breaks
+    assert small.learning > mid.learning > big.learning >= 1
+    assert small.material_discount < mid.material_discount < big.material_discount
+    assert (small.unit_price - big.unit_price) / small.unit_price > Decimal("0.10")
+
+
+# ------------------------------------------------------------------------------------------------ wording
+
+def test_thin_foil_is_not_charged_as_heavy_wire_and_thick_strip_is(cat):
+    model = qm.time_model(cat.shop)
+    factor, why = qm.wire_factor("foil", 0.05e-3, model)                # a 0.05 mm foil screen
+    assert factor == 1 and why == []
+    factor, why = qm.wire_factor("strip", 2.0e-3, model)                 # 2 mm thick strip
+    assert why == ["heavy"] and factor == model.heavy_wire_factor
+
+
+@pytest.mark.parametrize("part", ["BH-4120", "BH-5018"])
+def test_a_toroid_is_charged_no_core_assembly(cat, designs, part):
+    _path, spec, d = designs[part]
+    assert d.core.shape == "toroid"
+    ops = [t.operation for t in qm.build_quote(spec, d, cat, (100,), issued=ISSUED).labor]
+    assert "assembly" not in ops and "winding" in ops
+
+
+@pytest.mark.parametrize("part", ["BH-1042", "BH-2210", "BH-3305", "BH-4120", "BH-5018"])
+def test_counts_read_in_the_right_number(cat, designs, part):
+    _path, spec, d = designs[part]
+    q = qm.build_quote(spec, d, cat, (100,), issued=ISSUED)
+    text = qm.quote_table(q)
+    assert "(s)" not in text and "(es)" not in text
+    assert not re.search(r"\b1 (core sets|terminations|tape wraps|winding passes)\b", text)
+
+
+def test_powder_core_is_named_as_a_material_not_an_application(cat, designs):
+    _path, spec, d = designs["BH-5018"]
+    q = qm.build_quote(spec, d, cat, (100,), issued=ISSUED)
+    assert d.frequency_hz >= 10e3
+    core = q.design_summary["core"]
+    assert "iron powder" in core and "50/60 Hz" not in core and "chokes" not in core
