@@ -546,6 +546,11 @@ class Quote:
     scrap_wire: Decimal
     notes: tuple = ()
     design_summary: dict = field(default_factory=dict)
+    # for the documents: the Design priced (its ratings go on the customer's copy), the shop's
+    # letterhead, paper and terms, and the customer's address block when the catalogue has one
+    design: Any = field(default=None, compare=False, repr=False)
+    shop_documents: Any = field(default=None, compare=False, repr=False)
+    customer_party: Any = field(default=None, compare=False, repr=False)
 
     @property
     def fingerprint_short(self) -> str:
@@ -669,7 +674,9 @@ def build_quote(spec, design, cat, quantities: Iterable[int], *, nre: Decimal | 
         materials=tuple(materials), labor=tuple(labor), run_time_s=run_seconds(labor),
         setup_time_s=dec(shop.setup_time_s), breaks=tuple(breaks), nre=None if nre is None else cents(nre),
         copper_per_unit=copper_total(materials), labor_rate=shop.labor_rate, overhead=shop.overhead,
-        margin=shop.margin, scrap_wire=shop.scrap_wire, notes=tuple(notes), design_summary=_summary(design))
+        margin=shop.margin, scrap_wire=shop.scrap_wire, notes=tuple(notes), design_summary=_summary(design),
+        design=design, shop_documents=getattr(shop, "documents", None),
+        customer_party=cat.customer(design.customer) if hasattr(cat, "customer") else None)
 
 
 # ------------------------------------------------------------------------------------------------ text

@@ -271,7 +271,8 @@ def _floats_in(obj, where="quote"):
 def test_money_is_decimal_everywhere(cat, designs):
     _path, spec, d = designs["BH-2210"]
     q = qm.build_quote(spec, d, cat, (100, 500), nre=Decimal("1250"), issued=ISSUED)
-    money_view = dataclasses.replace(q, design_summary={})    # the summary holds test volts, not money
+    # the summary holds test volts, the Design and the shop's terms SI floats and kg thresholds: not money
+    money_view = dataclasses.replace(q, design_summary={}, design=None, shop_documents=None)
     assert list(_floats_in(money_view)) == []
     for b in q.breaks:
         for f in dataclasses.fields(b):
@@ -399,22 +400,27 @@ def test_pdf_holds_every_break_and_its_json_unit_price(tmp_path):
         cells = [qty, b["unit_price"], extended, b["unit_price_copper_minus_20"], b["unit_price_copper_plus_20"]]
         row = re.compile("^" + r"\s+".join(re.escape(c) for c in cells) + r"\s*$", re.M)
         assert row.search(text), (b, text)
-    for item in (data["part"], data["fingerprint_short"], data["customer"], data["valid_until"], "1,500.00"):
+    for item in (data["part"], data["customer"], data["valid_until"], "1,500.00"):
         assert item in text
     assert "revision " + data["revision"] in text
+    # the fingerprint identifies the design for the shop: it is on the internal copy, not the customer's
+    assert data["fingerprint_short"] not in text
+    _pages, internal = _pdf_text(tmp_path / f"{data['part']}-rev{data['revision']}-quote-internal.pdf")
+    assert data["fingerprint"] in internal.replace("\n", "")
 
 
-def test_twelve_breaks_still_fit_one_page(cat, designs, tmp_path):
+def test_twelve_breaks_keep_the_price_table_on_the_first_page(cat, designs, tmp_path):
     from specgen.documents.quote_doc import write_quote
 
     _path, spec, d = designs["BH-4120"]
     qtys = (1, 5, 10, 25, 50, 100, 250, 500, 1000, 2500, 5000, 10000)
     assert len(qtys) == qm.MAX_BREAKS
     q = qm.build_quote(spec, d, cat, qtys, nre=Decimal("2400"), issued=ISSUED)
-    pdf = [p for p in write_quote(q, tmp_path) if p.suffix == ".pdf"][0]
-    pages, text = _pdf_text(pdf)
-    assert pages == 1
-    assert all(str(b.unit_price) in text for b in q.breaks)
+    pdf = write_quote(q, tmp_path)[0]
+    reader = pypdf.PdfReader(str(pdf))
+    first = reader.pages[0].extract_text()
+    assert len(reader.pages) <= 2
+    assert all(str(b.unit_price) in first for b in q.breaks)
 
 
 def test_pdf_fetches_nothing_outside_templates(cat, designs, tmp_path):
@@ -423,8 +429,7 @@ def test_pdf_fetches_nothing_outside_templates(cat, designs, tmp_path):
     _path, spec, d = designs["BH-4120"]
     blocked: list = []
     write_quote(qm.build_quote(spec, d, cat, (100,), issued=ISSUED), tmp_path, blocked)
-    # only the shared stylesheet may be absent (written by the work-order work); nothing else refused
-    assert all(url.endswith("/specgen.css") for url in blocked), blocked
+    assert blocked == []          # the quote's own stylesheet is inside templates/; nothing else is asked for
 
 
 def test_csv_rows_match_json(tmp_path):
@@ -494,6 +499,7 @@ def test_demo_quotes_writes_one_pdf_per_part(cat, designs, tmp_path):
         assert [b.quantity for b in q.breaks] == [100, 500, 2500]
         pages, text = _pdf_text(tmp_path / f"{part}-rev{q.revision}-quote.pdf")
         assert pages == 1 and str(q.breaks[-1].unit_price) in text
+        assert (tmp_path / f"{part}-rev{q.revision}-quote-internal.pdf").is_file()
     assert len(said) == len(designs) + 1
 
 
@@ -556,3 +562,96 @@ def test_powder_core_is_named_as_a_material_not_an_application(cat, designs):
     assert d.frequency_hz >= 10e3
     core = q.design_summary["core"]
     assert "iron powder" in core and "50/60 Hz" not in core and "chokes" not in core
+
+
+# ------------------------------------------------------------------------------------------------ two copies
+
+def _copies(cat, designs, part, tmp_path, quantities=(100, 500, 2500)):
+    from specgen.documents.quote_doc import write_quote
+
+    _path, spec, d = designs[part]
+    q = qm.build_quote(spec, d, cat, quantities, issued=ISSUED)
+    customer_pdf, _html, internal_pdf, _ihtml = write_quote(q, tmp_path)
+    return q, d, _pdf_text(customer_pdf)[1], _pdf_text(internal_pdf)[1]
+
+
+@pytest.mark.parametrize("part", ["BH-1042", "BH-3305", "BH-5018"])
+def test_customer_copy_holds_no_turns_fingerprint_or_cost_build_up(cat, designs, tmp_path, part):
+    q, d, customer, internal = _copies(cat, designs, part, tmp_path)
+    flat = " ".join(customer.split())
+    # turn counts: no "turn" at all, and no "<N> t" of any winding
+    assert "turn" not in flat.lower()
+    for w in d.windings:
+        assert not re.search(rf"\b{w.turns} (turns|t)\b", flat)
+    # the fingerprint, whole or short
+    assert d.fingerprint[:12] not in flat.replace(" ", "") and d.fingerprint[:8] not in flat
+    # the internal build-up: its words and its figures
+    for word in ("overhead", "margin", "labor", "labour", "learning", "material per", "setup", "scrap"):
+        assert word not in flat.lower(), word
+    for b in q.breaks:
+        assert qm.money(b.cost) not in flat and qm.money(b.material) not in flat
+    # ... all of which the internal copy does carry
+    iflat = " ".join(internal.split())
+    assert "Internal copy" in iflat and "overhead" in iflat.lower() and "margin" in iflat.lower()
+    assert f"{d.windings[0].turns:,} turns" in iflat
+    assert qm.money(q.breaks[0].cost) in iflat
+
+
+def test_customer_copy_carries_what_a_buyer_needs(cat, designs, tmp_path):
+    q, d, customer, _internal = _copies(cat, designs, "BH-1042", tmp_path)
+    flat = " ".join(customer.split())
+    shop = cat.shop.documents
+    buyer = cat.customer(d.customer)
+    assert buyer is not None and buyer.name == "Quillfeather Irrigation"
+    for text in (cat.shop.name, *shop.address.lines, shop.address.email,            # the shop's letterhead
+                 buyer.name, buyer.attention, *buyer.lines, buyer.email,            # the customer's block
+                 q.reference, q.valid_until.isoformat(),                            # number and validity
+                 "5 weeks", shop.terms.payment, shop.terms.delivery,                # lead time and terms
+                 shop.terms.signatory, shop.terms.signatory_title, "Copper clause"):
+        assert " ".join(text.split()) in flat, text
+    # the ratings, from the Design: input, each output at load, VA, the DCR maxima and the hipot
+    assert "230 V" in flat and "60 VA" in flat
+    for w in d.windings[1:]:
+        assert f"{w.voltage_v:.4g} V at {w.current_a:.4g} A" in flat
+    from specgen.documents.workorder import fmt_ohm
+    for lim in d.tests.dcr:
+        assert f"{lim.item} at most {fmt_ohm(lim.high)}" in flat
+    for h in d.tests.hipot:
+        assert f"{h.routine_voltage_v:.0f} V a.c." in flat
+
+
+def test_inductor_ratings_give_inductance_at_current(cat, designs, tmp_path):
+    from specgen.documents.quote_doc import ratings
+    from specgen.documents.workorder import fmt_henry
+
+    _path, _spec, d = designs["BH-3305"]
+    rows = {r.what: r for r in ratings(d)}
+    assert "Rated current" in rows and f"{d.inductor.current_dc_a:.4g} A DC" in rows["Rated current"].value
+    at_current = [r for r in rows.values() if r.what.startswith("Inductance at")] or \
+        [r for r in rows.values() if r.what.startswith("Inductance")]
+    assert at_current
+    low = min(lim.low for lim in d.tests.inductance if not lim.name.startswith("AL"))
+    assert any(fmt_henry(low) in r.value for r in at_current)
+    assert not any(r.what.startswith("AL") for r in rows.values())
+
+
+def test_customer_address_falls_back_to_the_spec_name(cat, designs, tmp_path):
+    from specgen.documents.quote_doc import quote_context
+
+    _path, spec, d = designs["BH-2210"]
+    q = qm.build_quote(spec, dataclasses.replace(d, customer="Nobody On File Ltd"), cat, (100,), issued=ISSUED)
+    ctx = quote_context(q)
+    assert ctx["customer"]["name"] == "Nobody On File Ltd" and ctx["customer"]["lines"] == []
+
+
+@pytest.mark.parametrize("paper,size_mm", [("A4", (210, 297)), ("Letter", (215.9, 279.4))])
+def test_quote_paper_follows_the_shop_file(cat, designs, tmp_path, paper, size_mm):
+    from specgen.documents.quote_doc import write_quote
+
+    _path, spec, d = designs["BH-2210"]
+    shop = dataclasses.replace(cat.shop, documents=dataclasses.replace(cat.shop.documents, paper=paper))
+    q = qm.build_quote(spec, d, dataclasses.replace(cat, shop=shop), (100, 500), issued=ISSUED)
+    for pdf in write_quote(q, tmp_path)[::2]:
+        box = pypdf.PdfReader(str(pdf)).pages[0].mediabox
+        # ISO 216 A4 is 210 x 297 mm; US Letter is 8.5 x 11 in
+        assert (float(box.width) * 25.4 / 72, float(box.height) * 25.4 / 72) == pytest.approx(size_mm, abs=0.2)

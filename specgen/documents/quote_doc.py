@@ -1,26 +1,48 @@
-"""The customer's quote: template context from a ``Quote`` and the PDF (+ HTML) beside it.
+"""The quote as two documents: the customer's copy and the shop's internal copy, from one ``Quote``.
 
-The PDF is what the customer receives: price per quantity break, extended price, the one-time
-tooling/NRE line, validity, the copper clause (unit price at copper -20 % / +20 %), what is built and
-tested, and the spec's part, revision and fingerprint. The internal cost build-up (material, labor,
-overhead, margin) is deliberately *not* on it; it is in ``specgen quote`` output and ``--json``.
+Customer's copy (``<part>-rev<R>-quote.pdf``): what a buyer needs to place an order. The shop's
+letterhead and the customer's address block (``customers.yaml`` in the catalogue, matched to the
+spec's ``customer``), the quote number and validity, the prices per quantity break with the copper
+clause and any one-time tooling, the ratings the shop guarantees (read from the Design: voltages,
+VA, inductance at current, DCR maximum, hipot, insulation class), lead time, payment and delivery
+terms, and who signs. It carries no turn counts, no design fingerprint and no cost build-up: those
+are how the shop makes the part, not what it promises.
+
+Internal copy (``<part>-rev<R>-quote-internal.pdf``): the same identity and prices, marked
+internal, plus the fingerprint, the construction, and the whole build-up (material lines, labor
+operations, learning and suppliers' breaks per lot, overhead, margin).
 
 Rendering goes through ``specgen.documents.render`` (one jinja2 environment, the locked-down
-WeasyPrint fetcher, both files written atomically). WeasyPrint is imported only when a PDF is made.
+WeasyPrint fetcher); the four files (two PDFs, two HTML) are written together atomically.
+WeasyPrint is imported only when a PDF is made.
 """
 
 from __future__ import annotations
 
+from dataclasses import dataclass
 from decimal import Decimal
 from pathlib import Path
 
-from ..quote import COPPER_HIGH, COPPER_LOW, Quote, build_quote, money, plain
+from ..quote import COPPER_HIGH, COPPER_LOW, Quote, build_quote, count, money, plain
 
 TEMPLATE = "quote.html"
 DEMO_QUANTITIES = (100, 500, 2500)
+INTERNAL_SUFFIX = "-internal"
 
 SAFETY_NOTE = ("Test voltages are the shop's defaults; the applicable product safety standard, the "
                "customer's drawing, local codes and licensed practice decide.")
+
+#: CSS page size of each paper the shop file may name (WeasyPrint's names).
+CSS_PAPER = {"A4": "A4", "Letter": "letter"}
+
+
+@dataclass(frozen=True, slots=True)
+class Rating:
+    """One guaranteed rating as the customer reads it."""
+
+    what: str
+    value: str
+    condition: str = ""
 
 
 def _pct_change(factor: Decimal) -> str:
@@ -35,51 +57,177 @@ def _thermal_class(class_c) -> str:
     return class_label(class_c)
 
 
-def quote_context(q: Quote) -> dict:
+def _num(x: float, unit: str) -> str:
+    """A rating as people write it: 230 V, 25.6 V, 2.5 A, 60 VA (four significant figures at most)."""
+    return f"{x:.4g} {unit}"
+
+
+def _weeks(seconds: float | None) -> str:
+    if seconds is None:
+        return ""
+    weeks = seconds / (7 * 86400)
+    if abs(weeks - round(weeks)) < 1e-9:
+        return count(int(round(weeks)), "week")
+    return f"{seconds / 86400:.0f} days"
+
+
+def ratings(design) -> list[Rating]:
+    """What the shop guarantees, read from the Design: voltages, VA, inductance, DCR, hipot, class."""
+    from .workorder import fmt_henry, fmt_ohm, fmt_test_volt
+
+    d = design
+    out: list[Rating] = []
+    freq = f"{d.frequency_hz / 1e3:g} kHz" if d.frequency_hz >= 1e3 else f"{d.frequency_hz:g} Hz"
+    prim = next((w for w in d.windings if w.role == "primary"), None)
+    if prim is not None and prim.voltage_v:
+        top = f", up to {_num(prim.voltage_max_v, 'V')}" if prim.voltage_max_v and \
+            prim.voltage_max_v > prim.voltage_v * 1.0005 else ""
+        out.append(Rating(f"Input ({prim.name})", f"{_num(prim.voltage_v, 'V')}{top}", f"{freq}, {d.waveform}"))
+    ocv = {lim.item: lim for lim in d.tests.open_circuit}
+    for w in d.windings:
+        if w.role not in ("secondary", "auxiliary") or not w.voltage_v:
+            continue
+        value = f"{_num(w.voltage_v, 'V')} at {_num(w.current_a, 'A')} (full load)"
+        lim = ocv.get(w.name)
+        if lim is not None and lim.low is not None and lim.high is not None:
+            value += f"; {_num(lim.low, 'V')} to {_num(lim.high, 'V')} (no load)"
+        out.append(Rating(f"Output {w.name}", value, "at rated input"))
+    if d.output_power_w and d.kind != "inductor":
+        out.append(Rating("Rated output", _num(d.output_power_w, "VA"), f"continuous, ambient up to {d.ambient_c:g} °C"))
+    if d.inductor is not None:
+        ind = d.inductor
+        out.append(Rating("Rated current", f"{_num(ind.current_dc_a, 'A')} DC",
+                          f"{_num(ind.ripple_a, 'A')} peak-to-peak ripple at {freq}" if ind.ripple_a else ""))
+        for lim in d.tests.inductance:
+            if lim.name.startswith("AL"):
+                continue                         # a bench check of the core set, not a rating
+            value = f"at least {fmt_henry(lim.low)}" if lim.high is None else \
+                f"{fmt_henry(lim.low)} to {fmt_henry(lim.high)}"
+            out.append(Rating(lim.name[0].upper() + lim.name[1:], value, f"winding {lim.item}"))
+    dcr = [f"{lim.item} at most {fmt_ohm(lim.high)}" for lim in d.tests.dcr if lim.high is not None]
+    if dcr:
+        out.append(Rating("DC resistance", "; ".join(dcr), "at 20 °C"))
+    hipot = [f"{h.between}: {fmt_test_volt(h.routine_voltage_v)} a.c. for {h.routine_duration_s:g} s"
+             for h in d.tests.hipot]
+    if hipot:
+        out.append(Rating("Dielectric strength", "; ".join(hipot), "every piece, no breakdown"))
+    out.append(Rating("Insulation class", f"{_thermal_class(d.insulation_class_c)}, IEC 60085",
+                      "varnish impregnated" if any(m.kind == "varnish" for m in d.materials) else ""))
+    return out
+
+
+def _party(p) -> dict | None:
+    if p is None:
+        return None
+    return {"name": p.name, "attention": p.attention, "lines": list(p.lines), "phone": p.phone, "email": p.email}
+
+
+def _internal(q: Quote) -> dict:
+    """The build-up for the shop's own copy: material and labor per unit, and the price per lot."""
+    q4 = Decimal("0.0001")
+    materials = [{"kind": m.kind, "id": m.id, "quantity": f"{m.quantity.quantize(q4)} {m.unit}",
+                  "rate": f"{m.rate.quantize(q4)}", "amount": f"{m.amount.quantize(q4)}",
+                  "note": m.note + ("; copper" if m.copper else "")} for m in q.materials]
+    labor = [{"operation": t.operation, "item": t.item, "detail": t.detail,
+              "seconds": f"{t.seconds.quantize(Decimal('0.1'))}"} for t in q.labor]
+    lots = [{"quantity": f"{b.quantity:,}", "learning": f"{b.learning.normalize():f}",
+             "material": money(b.material), "discount": money(b.material_discount), "labor": money(b.labor),
+             "setup": money(b.setup), "overhead": money(b.overhead), "cost": money(b.cost),
+             "margin": money(b.unit_price - b.cost), "unit_price": money(b.unit_price)} for b in q.breaks]
+    s = q.design_summary
+    windings = []
+    for w in s.get("windings", []):
+        wire = w["wire"] + (f", {w['strands']} in hand" if w["strands"] > 1 else "")
+        windings.append(f"{w['name']}: {count(w['turns'], 'turn')}, {wire}")
+    return {
+        "fingerprint": q.fingerprint, "materials": materials, "material_total": f"{q.material_per_unit.quantize(q4)}",
+        "copper_total": f"{q.copper_per_unit.quantize(q4)}", "labor": labor,
+        "run_time": f"{q.run_time_s.quantize(Decimal('0.1'))}", "setup_min": plain(q.setup_time_s / 60),
+        "lots": lots, "core": s.get("core", ""), "windings": windings,
+        "rules": f"labor {money(q.labor_rate)} per hour; overhead {plain(q.overhead * 100)} % on labor; "
+                 f"margin {plain(q.margin * 100)} % of the price; wire scrap {plain(q.scrap_wire * 100)} %",
+        "budgetary_detail": q.budgetary_detail,
+    }
+
+
+def quote_context(q: Quote, internal: bool = False) -> dict:
     """Everything the template shows, as display strings (the template does no arithmetic)."""
     cur = q.currency
     breaks = [{"quantity": f"{b.quantity:,}", "unit_price": money(b.unit_price), "extended": money(b.extended),
                "copper_low": money(b.unit_price_copper_low), "copper_high": money(b.unit_price_copper_high)}
               for b in q.breaks]
     copper_kg = sum((m.quantity for m in q.materials if m.copper), Decimal(0))
-    s = q.design_summary
-    windings = []
-    for w in s.get("windings", []):
-        wire = w["wire"] + (f", {w['strands']} in hand" if w["strands"] > 1 else "")
-        windings.append({"name": w["name"], "turns": f"{w['turns']:,}", "wire": wire})
-    hipot = [f"{h['between']}: {h['volts']:,.0f} V a.c. for {h['seconds']:g} s" for h in s.get("hipot", [])]
+    docs = q.shop_documents
+    terms = docs.terms if docs is not None else None
+    paper = docs.paper if docs is not None else "A4"
+    shop_party = _party(docs.address) if docs is not None and docs.address is not None else \
+        {"name": q.shop_name, "attention": "", "lines": [], "phone": "", "email": ""}
+    customer = _party(q.customer_party) or {"name": q.customer, "attention": "", "lines": [], "phone": "",
+                                            "email": ""}
+    lead = _weeks(terms.lead_time_s) if terms is not None else ""
+    repeat = _weeks(terms.repeat_lead_time_s) if terms is not None else ""
+    hipot = bool(q.design is not None and q.design.tests.hipot)
     return {
+        "internal": internal, "paper": CSS_PAPER[paper],
         "q": {
             "reference": q.reference, "part": q.part, "title": q.title, "revision": q.revision,
-            "status": q.status, "customer": q.customer, "fingerprint": q.fingerprint_short,
-            "shop": q.shop_name, "currency": cur, "issued": q.issued.isoformat(),
+            "status": q.status, "shop": q.shop_name, "currency": cur, "issued": q.issued.isoformat(),
             "valid_until": q.valid_until.isoformat(), "valid_days": (q.valid_until - q.issued).days,
             "budgetary": q.budgetary,
         },
+        "shop": shop_party, "customer": customer,
         "breaks": breaks,
         "nre": money(q.nre) if q.nre is not None else None,
         "copper": {"low": _pct_change(COPPER_LOW), "high": _pct_change(COPPER_HIGH),
                    "kg": f"{copper_kg:.3f}" if copper_kg else None},
-        "construction": {"core": s.get("core", ""), "windings": windings,
-                         "insulation_class": _thermal_class(s.get("insulation_class_c")),
-                         "varnish": bool(s.get("varnish")), "hipot": hipot, "tests": s.get("tests", [])},
-        "safety_note": SAFETY_NOTE,
+        "ratings": ratings(q.design) if q.design is not None else [],
+        "terms": {
+            "lead_time": (f"{lead} from order to despatch" + (f"; repeat orders of this revision {repeat}"
+                                                               if repeat else "")) if lead else "",
+            "payment": terms.payment if terms is not None else "",
+            "delivery": terms.delivery if terms is not None else "",
+            "signatory": terms.signatory if terms is not None else "",
+            "signatory_title": terms.signatory_title if terms is not None else "",
+        },
+        "safety_note": SAFETY_NOTE if hipot else "",
+        "build": _internal(q) if internal else None,
+        "notes": list(q.notes) if internal else [],
     }
 
 
-def render_quote_html(q: Quote) -> str:
+def render_quote_html(q: Quote, internal: bool = False) -> str:
     from .render import render_html
 
-    return render_html(TEMPLATE, **quote_context(q))
+    return render_html(TEMPLATE, **quote_context(q, internal))
+
+
+def quote_paths(q: Quote, out_dir: str | Path) -> dict[str, Path]:
+    out = Path(out_dir)
+    stem, internal = q.filename_stem, q.filename_stem + INTERNAL_SUFFIX
+    return {"pdf": out / f"{stem}.pdf", "html": out / f"{stem}.html",
+            "internal_pdf": out / f"{internal}.pdf", "internal_html": out / f"{internal}.html"}
 
 
 def write_quote(q: Quote, out_dir: str | Path, blocked: list | None = None) -> list[Path]:
-    """Write ``<part>-rev<R>-quote.pdf`` and ``.html`` into ``out_dir`` (both or neither)."""
-    from .render import write_pdf_and_html
+    """Write the customer's copy and the internal copy (PDF and HTML each): all four or none.
 
-    out = Path(out_dir)
-    html = render_quote_html(q)
-    return write_pdf_and_html(html, out / f"{q.filename_stem}.pdf", out / f"{q.filename_stem}.html", blocked)
+    Returns the paths, the customer's PDF first.
+    """
+    from ..atomic import atomic_paths
+    from .render import html_to_pdf
+
+    paths = quote_paths(q, out_dir)
+    customer_html = render_quote_html(q, internal=False)
+    internal_html = render_quote_html(q, internal=True)
+    customer_pdf = html_to_pdf(customer_html, blocked)
+    internal_pdf = html_to_pdf(internal_html, blocked)
+    order = [paths["pdf"], paths["html"], paths["internal_pdf"], paths["internal_html"]]
+    with atomic_paths(*order) as temps:
+        temps[0].write_bytes(customer_pdf)
+        temps[1].write_text(customer_html, encoding="utf-8")
+        temps[2].write_bytes(internal_pdf)
+        temps[3].write_text(internal_html, encoding="utf-8")
+    return order
 
 
 def demo_quotes(designs: dict, cat, out_dir, echo=print, quantities=DEMO_QUANTITIES) -> dict:
@@ -101,5 +249,5 @@ def demo_quotes(designs: dict, cat, out_dir, echo=print, quantities=DEMO_QUANTIT
         prices = "  ".join(f"{b.quantity:,} pcs {money(b.unit_price)}" for b in q.breaks)
         echo(f"{part:8} quote {q.currency} each: {prices}{'  (budgetary)' if q.budgetary else ''}")
     if quotes:
-        echo(f"quotes written to {out}/")
+        echo(f"quotes written to {out}/ (the customer's copy, and an -internal copy with the build-up)")
     return quotes
