@@ -83,16 +83,23 @@ class Side:
     release_ok: bool | None           # None for drafts/obsolete (nothing recorded to check)
     release_problems: tuple = ()
     recorded: str | None = None       # the fingerprint its history entry recorded
+    # this revision's history entry, for a reader: when, by whom and why it was released
+    released_on: str = ""
+    released_by: str = ""
+    release_note: str = ""
 
     @classmethod
     def of(cls, loaded: Loaded) -> Side:
         d = loaded.design
         status = loaded.release.status
         ok = loaded.release.ok if status == "released" else None
+        entry = revision.history_entry(loaded.data) if status == "released" else None
+        entry = entry if isinstance(entry, Mapping) else {}
         return cls(name=loaded.name, part=d.part, title=d.title, revision=d.revision or "-", status=status,
                    fingerprint=d.fingerprint, release_ok=ok,
                    release_problems=tuple(loaded.release.problems),
-                   recorded=loaded.release.recorded)
+                   recorded=loaded.release.recorded, released_on=str(entry.get("date") or ""),
+                   released_by=str(entry.get("by") or ""), release_note=str(entry.get("note") or "").strip())
 
     @property
     def release_text(self) -> str:
@@ -113,6 +120,7 @@ class ChangeSummary:
     results: tuple                    # of ResultChange
     cost_note: str = ""               # why unit cost is not compared (empty when it is)
     catalog: str = ""                 # the catalogue folder both sides were designed with
+    roles: tuple = ()                 # (winding name, role) of both sides, for naming inputs to a reader
 
     @property
     def part(self) -> str:
@@ -454,7 +462,8 @@ def compare(old: Loaded, new: Loaded, costs: CostFunction | None | str = "defaul
         old=Side.of(old), new=Side.of(new),
         inputs=tuple(input_changes(old.data, new.data)),
         results=tuple(result_changes(old.design, new.design, old_cost, new_cost)),
-        cost_note=note, catalog=_catalog_text(old, new))
+        cost_note=note, catalog=_catalog_text(old, new),
+        roles=tuple(dict.fromkeys((w.name, w.role) for w in (*old.design.windings, *new.design.windings))))
 
 
 def _catalog_text(old: Loaded, new: Loaded) -> str:

@@ -122,7 +122,7 @@ def test_diff_of_two_git_revisions_lists_turns_and_the_dcr_limit(two_revisions, 
 
 
 @git_only
-def test_diff_pdf_is_one_page_with_both_revisions(two_revisions, tmp_path, cat):
+def test_diff_pdf_names_things_as_a_reader_does(two_revisions, tmp_path, cat):
     from pypdf import PdfReader
 
     spec, _ = two_revisions
@@ -130,13 +130,17 @@ def test_diff_pdf_is_one_page_with_both_revisions(two_revisions, tmp_path, cat):
     r = cli("diff", f"{spec}@HEAD~1", spec, "--pdf", pdf)
     assert r.exit_code == 0, r.stderr
     reader = PdfReader(str(pdf))
-    assert len(reader.pages) == 1
     text = " ".join(p.extract_text() for p in reader.pages)
+    flat = " ".join(text.split())
     assert "BH-2210" in text and "rev B" in text
     summary = diff.compare_refs(f"{spec}@HEAD~1", str(spec), cat)
     for side in (summary.old, summary.new):
-        assert side.fingerprint[:24] in text.replace("\n", "").replace(" ", "")
-    assert "windings[P].turns" in text
+        assert side.fingerprint[:12] in flat                     # short fingerprints, 12 hex digits
+        assert side.fingerprint[:13] not in flat.replace(" ", "")
+    assert "Primary turns" in flat and "windings[P]" not in flat  # the input by its plain name
+    assert "revision B as released 2026-11-02 by T. Vance" in flat     # not a git ref the reader lacks
+    assert "HEAD" not in flat and "@" not in flat
+    assert str(tmp_path) not in flat and not re.search(r"(^|\s)/[a-z]+/", flat)   # no local path
 
 
 def test_change_pdf_of_a_released_revision_pair_and_a_long_summary(tmp_path, cat):
@@ -168,8 +172,37 @@ def test_change_pdf_of_a_released_revision_pair_and_a_long_summary(tmp_path, cat
     pdf2 = tmp_path / "big.pdf"
     write_change_pdf(big, pdf2)
     reader = PdfReader(str(pdf2))
-    assert len(reader.pages) == 1
-    assert "more changed result(s) not shown" in reader.pages[0].extract_text()
+    # one column that flows: every changed result is printed, over as many pages as it takes
+    text = " ".join(" ".join(p.extract_text() for p in reader.pages).split())
+    assert len(reader.pages) >= 2 and "not shown" not in text
+    for r in big.results:
+        assert " ".join(r.quantity.split()) in text, r.quantity
+
+
+def test_change_pdf_text_is_9_pt_or_more_on_either_paper(tmp_path, cat):
+    # 9 pt body and nothing smaller (the old summary printed 6.6 to 8 pt); pypdf reads the sizes back
+    from pdf_measure import page_sizes_mm, smallest_text
+
+    from specgen.documents.change_doc import write_change_pdf
+
+    s = diff.compare_refs(str(DEMO / "BH-2210.yaml"), str(DEMO / "BH-1042.yaml"), cat)
+    for paper, size in (("A4", (210, 297)), ("Letter", (215.9, 279.4))):   # ISO 216 A4; US Letter 8.5 x 11 in
+        pdf = tmp_path / f"{paper}.pdf"
+        write_change_pdf(s, pdf, paper=paper)
+        assert smallest_text(pdf)[0] >= 9.0, smallest_text(pdf)
+        assert all(p == pytest.approx(size, abs=0.2) for p in page_sizes_mm(pdf))
+
+
+def test_inputs_get_plain_names():
+    from specgen.documents.change_doc import input_name
+
+    roles = {"P": "primary", "S1": "secondary", "S2": "secondary"}
+    assert input_name("windings[P].turns", roles) == "Primary turns"
+    assert input_name("windings[S1].voltage", roles) == "Secondary S1 voltage"
+    assert input_name("insulation.barriers[0].working_voltage", roles) == "Insulation barrier 1 working voltage"
+    assert input_name("core.id", roles) == "Core"
+    assert input_name("operating.ambient", roles) == "Ambient temperature"
+    assert input_name("windings[X].turns", roles) == "Winding X turns"
 
 
 def test_no_change_for_reordered_keys_comments_or_spacing(tmp_path, cat):
@@ -267,9 +300,14 @@ def test_demo_change_summary(tmp_path, git_env, cat, monkeypatch):
     said = []
     pdf = demo_change_summary(tmp_path / "out", cat, said.append)
     assert pdf is not None and pdf.is_file() and said
-    text = PdfReader(str(pdf)).pages[0].extract_text()
-    assert "rev B" in text and "rev C" in text and "BH-2210.yaml@HEAD~1" in text
-    assert "windings[P].turns" in text
+    text = " ".join(" ".join(p.extract_text() for p in PdfReader(str(pdf)).pages).split())
+    assert "rev B" in text and "rev C" in text and "HEAD" not in text
+    assert "Primary turns" in text
+    # the new revision's release: date, author, note and effectivity; the old one by its release
+    assert "released 2026-12-07 by T. Vance" in text and "primary turns: lower flux" in text
+    assert "Effectivity Work orders issued from 2026-12-07 are built to revision C" in text
+    assert "revision B as released 2026-11-02 by T. Vance" in text
+    assert str(tmp_path) not in text and "data/catalog" not in text and not re.search(r"(^|\s)/[A-Za-z]", text)
     assert list(scratch.iterdir()) == []                  # the throwaway repository is gone
 
 

@@ -95,7 +95,7 @@ def register(app) -> None:
         if pdf is not None:
             from ..documents.change_doc import write_change_pdf  # WeasyPrint only when asked
 
-            write_change_pdf(summary, pdf)
+            write_change_pdf(summary, pdf, paper=cat.shop.documents.paper)
         if as_json:
             print_json(summary.to_dict())
         else:

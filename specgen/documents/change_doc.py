@@ -1,12 +1,17 @@
-"""The one-page change summary between two revisions of a part (``specgen diff --pdf``).
+"""The change summary between two revisions of a part (``specgen diff --pdf``), for a reader.
 
 Reads a ``specgen.diff.ChangeSummary`` only: every number on it was read from the two Designs,
-so it shows the same figures as the work order of each revision. Rendered through
-``documents.render`` (autoescaped jinja2, the locked-down WeasyPrint fetcher); WeasyPrint is
-imported only when a PDF is written.
+so it shows the same figures as the work order of each revision. It is written for someone who
+has the two paper revisions and nothing else: inputs by their plain names ("primary turns", not
+the spec's key path), fingerprints to 12 hex digits, each revision by its letter and its release
+(date, author, note) rather than a file path or a git ref, and the new revision's effectivity.
+One column that flows over as many pages as it needs; nothing is cut.
+
+Rendered through ``documents.render`` (autoescaped jinja2, the locked-down WeasyPrint fetcher);
+WeasyPrint is imported only when a PDF is written.
 
 ``demo_change_summary`` is the demo's example: BH-2210 at revision B, then a revision C with one
-more primary turn, committed in a throwaway git repository, compared as FILE@HEAD~1 vs FILE@HEAD.
+more primary turn, committed in a throwaway git repository and compared.
 """
 
 from __future__ import annotations
@@ -19,102 +24,123 @@ import subprocess
 import tempfile
 from pathlib import Path
 
-#: Table lines that fit below the header of one A4 page at the template's type size. The
-#: inputs take full-width lines; the results fill two columns side by side. What does not fit is
-#: counted in one line and left to ``specgen diff --json``.
-PAGE_LINES = 46
-MAX_INPUT_LINES = 12
-#: Characters of an input's old or new value that fit on one line (longer ones wrap), and the
-#: most shown of one value (the rest is cut with an ellipsis; the JSON has it whole).
-VALUE_CHARS = 30
-VALUE_MAX = 90
-#: Characters of a quantity label that fit on one line of a result column (longer ones wrap).
-LABEL_CHARS = 26
+#: The most shown of one input's old or new value (the rest is cut with an ellipsis; the JSON has it whole).
+VALUE_MAX = 160
 
 SAFETY_NOTE = ("Test voltages are the shop's defaults: the applicable product safety standard, the "
                "customer's drawing, local codes and licensed practice decide.")
 
-
-def _columns(groups: list, capacity: int, columns: int = 2) -> tuple[list, int]:
-    """Lay the result groups into ``columns`` columns of ``capacity`` lines (a group heading is
-    a line; a group cut by a column break repeats its heading). Returns (columns, left out)."""
-    def lines(row) -> int:
-        return 1 + (len(row["quantity"]) - 1) // LABEL_CHARS
-
-    out = [[] for _ in range(columns)]
-    col, used, left_out = 0, 0, 0
-    for name, rows in groups:
-        i = 0
-        while i < len(rows):
-            if col >= columns:
-                left_out += len(rows) - i
-                break
-            take, need = [], 1                      # the group heading
-            while i + len(take) < len(rows) and \
-                    used + need + lines(rows[i + len(take)]) <= capacity:
-                need += lines(rows[i + len(take)])
-                take.append(rows[i + len(take)])
-            if not take:
-                col, used = col + 1, 0
-                continue
-            out[col].append({"name": name if i == 0 else f"{name} (continued)", "rows": take})
-            used += need
-            i += len(take)
-    return [c for c in out if c], left_out
+#: Plain names of spec keys (the last part of a key path), as a reader of the two revisions says them.
+KEY_NAMES = {
+    "part": "part number", "title": "title", "customer": "customer", "kind": "kind of part", "notes": "notes",
+    "id": "", "stack": "stack", "count": "number of core sets",
+    "frequency": "frequency", "waveform": "waveform", "duty": "duty cycle", "ambient": "ambient temperature",
+    "cooling": "cooling", "insulation_class": "insulation class",
+    "name": "name", "role": "role", "turns": "turns", "voltage": "voltage", "voltage_max": "highest voltage",
+    "current": "current", "va": "VA", "wire": "wire", "strands": "strands in hand", "sections": "sections",
+    "section_pins": "tie pins between sections", "start": "start pin", "finish": "finish pin",
+    "direction": "winding direction", "margin": "creepage margin", "match": "wound to match",
+    "build_order": "build order", "layer_tape": "tape between layers", "winding_tape": "tape between windings",
+    "outer_wrap": "outer wrap", "margin_tape": "margin tape", "sleeving": "lead sleeving", "varnish": "varnish",
+    "tape": "tape", "layers": "layers", "between": "between", "rating": "rating",
+    "working_voltage": "working voltage", "inductance": "inductance", "ripple": "ripple current",
+    "gap": "air gap", "core": "core", "operating": "", "insulation": "", "windings": "", "inductor": "",
+}
 
 
-def build_context(summary, page_lines: int = PAGE_LINES) -> dict:
-    """Plain strings for the template; a long summary is cut to one page with a note."""
+def input_name(key: str, roles: dict) -> str:
+    """``windings[P].turns`` -> 'primary turns'; ``insulation.barriers[0].rating`` -> 'insulation
+    barrier 1 rating'; ``core.id`` -> 'core'. A winding is named by its role when it is the only one
+    in that role, else by role and name ('secondary S1 voltage')."""
+    by_role: dict = {}
+    for name, role in roles.items():
+        by_role.setdefault(role, []).append(name)
+    words = []
+    for part in key.split("."):
+        m = re.fullmatch(r"([A-Za-z_]+)\[(.+)\]", part)
+        if m and m.group(1) == "windings":
+            name = m.group(2)
+            role = roles.get(name)
+            words.append(f"{role} {name}" if role is None or len(by_role.get(role, [])) > 1 else role)
+            if role is None:
+                words[-1] = f"winding {name}"
+            continue
+        if m:                                              # a list by position: barriers[0] -> barrier 1
+            head, index = m.group(1), m.group(2)
+            noun = "insulation barrier" if head == "barriers" else head.rstrip("s").replace("_", " ")
+            words.append(f"{noun} {int(index) + 1}" if index.isdigit() else f"{noun} {index}")
+            continue
+        word = KEY_NAMES.get(part, part.replace("_", " "))
+        if word:
+            words.append(word)
+    text = " ".join(words).strip() or key
+    return text[0].upper() + text[1:]
+
+
+def _effectivity(new) -> str:
+    """What the new revision governs from when, in the shop's terms: work orders are issued from
+    released revisions only, so a release takes effect for the orders issued after it."""
+    if new.status != "released":
+        return (f"None yet: revision {new.revision} is a {new.status}. It governs no work order until it is "
+                f"released.")
+    since = f"from {new.released_on}" if new.released_on else "from its release"
+    return (f"Work orders issued {since} are built to revision {new.revision}; orders already issued to an "
+            f"earlier revision finish to the revision printed on them.")
+
+
+def build_context(summary) -> dict:
+    """Plain strings for the template; nothing is cut but an over-long input value."""
     from .. import __version__
     from ..revision import short
+
+    roles = dict(summary.roles)
 
     def cut(text: str) -> str:
         return text if len(text) <= VALUE_MAX else text[:VALUE_MAX - 1].rstrip() + "\u2026"
 
-    inputs = [{"key": c.key, "old": cut(c.old_text), "new": cut(c.new_text)}
+    inputs = [{"name": input_name(c.key, roles), "old": cut(c.old_text), "new": cut(c.new_text)}
               for c in summary.inputs]
-    shown_inputs, input_lines = [], 0
-    for row in inputs:
-        n = 1 + (max(len(row["old"]), len(row["new"]), 1) - 1) // VALUE_CHARS
-        if input_lines + n > MAX_INPUT_LINES:
-            break
-        shown_inputs.append(row)
-        input_lines += n
-    # the two section headings, the column headings and the notes take about six lines
-    capacity = max(8, page_lines - max(1, input_lines) - 6)
-    groups = [(g, [{"quantity": r.quantity, "old": r.old_text, "new": r.new_text} for r in rows])
+    groups = [{"name": g[0].upper() + g[1:], "rows": [{"quantity": r.quantity, "old": r.old_text, "new": r.new_text}
+                                                     for r in rows]}
               for g, rows in summary.groups()]
-    columns, left_out = _columns(groups, capacity)
 
     def side(s) -> dict:
-        return {"name": s.name, "revision": s.revision, "status": s.status,
-                "fingerprint": s.fingerprint, "short": short(s.fingerprint),
-                "release": s.release_text, "release_ok": s.release_ok,
-                "problems": list(s.release_problems)}
+        if s.status == "released":
+            when = f"released {s.released_on}" if s.released_on else "released"
+            label = f"revision {s.revision} as {when}" + (f" by {s.released_by}" if s.released_by else "")
+        else:
+            label = f"revision {s.revision}, {s.status} (not released)"
+        return {"revision": s.revision, "status": s.status, "label": label, "short": short(s.fingerprint),
+                "release": s.release_text, "release_ok": s.release_ok, "problems": list(s.release_problems),
+                "released_on": s.released_on, "released_by": s.released_by, "note": s.release_note,
+                "file": Path(str(s.name).split("@", 1)[0]).name}
 
+    two_catalogues = " (old), " in (summary.catalog or "")
     hipot = any(r.quantity.startswith("hipot") for r in summary.results)
     return {
-        "part": summary.part, "title": summary.new.title, "old": side(summary.old),
-        "new": side(summary.new), "inputs": shown_inputs,
-        "left_out_inputs": len(inputs) - len(shown_inputs),
-        "columns": columns, "left_out_results": left_out, "n_results": len(summary.results),
+        "part": summary.part, "title": summary.new.title, "old": side(summary.old), "new": side(summary.new),
+        "inputs": inputs, "groups": groups, "n_results": len(summary.results),
         "unchanged": summary.unchanged, "cost_note": summary.cost_note,
-        "catalog": summary.catalog, "version": __version__,
-        "safety_note": SAFETY_NOTE if hipot else "",
+        "effectivity": _effectivity(summary.new),
+        "catalogue": ("two different catalogues (one for each revision)" if two_catalogues
+                      else "the same catalogue"),
+        "version": __version__, "safety_note": SAFETY_NOTE if hipot else "",
     }
 
 
-def change_html(summary) -> str:
+def change_html(summary, paper: str = "A4") -> str:
+    """The summary's HTML on ``paper`` (the shop file's ``paper``: A4 or Letter)."""
+    from .quote_doc import CSS_PAPER
     from .render import render_html
 
-    return render_html("change.html", **build_context(summary))
+    return render_html("change.html", **{**build_context(summary), "paper": CSS_PAPER.get(paper, "A4")})
 
 
-def write_change_pdf(summary, pdf_path, html_path=None, blocked: list | None = None) -> list:
+def write_change_pdf(summary, pdf_path, html_path=None, blocked: list | None = None, paper: str = "A4") -> list:
     """Render the change summary and write the PDF (and the HTML if asked), atomically."""
     from .render import write_pdf_and_html
 
-    return write_pdf_and_html(change_html(summary), pdf_path, html_path, blocked)
+    return write_pdf_and_html(change_html(summary, paper), pdf_path, html_path, blocked)
 
 
 # ----------------------------------------------------------------------------------------------
@@ -149,7 +175,7 @@ def demo_change_summary(out_dir, cat, echo=print):
 
     A throwaway git repository gets BH-2210 as shipped (rev B), then rev C: the next draft, one
     more primary turn fixed with ``turns:``, released with ``specgen.lifecycle.release_spec``. The
-    summary compares ``BH-2210.yaml@HEAD~1`` with ``BH-2210.yaml@HEAD``. Returns the PDF path,
+    summary compares the two commits. Returns the PDF path,
     or None (with a message) when git is not installed.
     """
     from ..api import demo_specs
@@ -184,13 +210,14 @@ def demo_change_summary(out_dir, cat, echo=print):
                      note=f"{primary.turns + 1} primary turns: lower flux at the top of the bus range")
         _git(repo, "commit", "-q", "-a", "-m", "BH-2210 rev C")
         summary = compare_refs(f"{spec_path}@HEAD~1", f"{spec_path}@HEAD", cat)
+        # the throwaway repository is gone after this: the document names each side by its revision
         summary = dataclasses.replace(
             summary,
-            old=dataclasses.replace(summary.old, name=f"{source.name}@HEAD~1"),
-            new=dataclasses.replace(summary.new, name=f"{source.name}@HEAD"))
+            old=dataclasses.replace(summary.old, name=source.name),
+            new=dataclasses.replace(summary.new, name=source.name))
         stem = f"{summary.new.part}.change-{summary.old.revision}-{summary.new.revision}"
         pdf = out_dir / f"{stem}.pdf"
-        write_change_pdf(summary, pdf)
+        write_change_pdf(summary, pdf, paper=cat.shop.documents.paper)
         write_atomic(out_dir / f"{stem}.txt", summary_text(summary) + "\n")
         echo(f"change summary {summary.new.part} rev {summary.old.revision} -> "
              f"{summary.new.revision}: {len(summary.inputs)} input(s), "
