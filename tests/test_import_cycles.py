@@ -150,3 +150,16 @@ def test_specgen_has_no_import_cycle():
     found = cycles(import_graph())
     if found:
         pytest.fail("import cycles (module-level imports): " + "; ".join(" <-> ".join(c) for c in found))
+
+
+def test_the_designs_readers_and_the_spec_parser_load_without_numpy():
+    """Quick commands read a Design or parse a spec without the calculation: numpy (and the kernel) stay out
+    until ``design()`` runs (design notes: imports; the measured cost is in ``make bench``)."""
+    import subprocess
+    import sys
+
+    code = ("import sys; import specgen.api, specgen.report, specgen.design.result, specgen.design.spec; "
+            "print(sorted(m for m in ('numpy', 'specgen.design.kernel') if m in sys.modules))")
+    out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, timeout=60)
+    assert out.returncode == 0, out.stderr
+    assert out.stdout.strip() == "[]"

@@ -8,7 +8,7 @@ from __future__ import annotations
 from dataclasses import asdict, dataclass
 from typing import Any
 
-from .state import CheckLevel
+from .vocab import CheckLevel
 
 
 @dataclass(frozen=True)

@@ -9,21 +9,17 @@ record the checks and the test plan read (``DesignState``). Nothing here compute
 from __future__ import annotations
 
 from dataclasses import dataclass, field
-from typing import TYPE_CHECKING, Literal
+from typing import TYPE_CHECKING
 
 from ..physics import geometry
+from .vocab import CheckLevel, Cooling, FormerKind, GapArrangement, Waveform, WireKind
 
 if TYPE_CHECKING:
     from ..catalog.models import Bobbin, Catalog, Core, Material, Wire
     from .result import Build, Check, InductorResult, Layer, Limit, Losses, WindingResult
     from .spec import Spec, Winding
 
-FormerKind = Literal["rect", "round", "toroid"]
-WireKind = Literal["round", "litz", "tiw", "foil", "strip"]
-Waveform = Literal["sine", "square", "unipolar"]
-CheckLevel = Literal["pass", "warn", "fail"]
-Cooling = Literal["natural", "forced", "potted"]
-GapArrangement = Literal["centre", "spacer", "none"]
+__all__ = ["CheckLevel", "Cooling", "FormerKind", "GapArrangement", "Waveform", "WireKind"]
 
 
 @dataclass(frozen=True, slots=True)
