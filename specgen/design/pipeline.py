@@ -16,6 +16,8 @@ Order of work:
 
 from __future__ import annotations
 
+from typing import Any
+
 from ..catalog.models import Catalog
 from ..physics import wire as wiremod
 from . import kernel as K
@@ -70,7 +72,7 @@ def _section_pins(w: Winding, k: int) -> tuple[str, str]:
     return pins[k - 1], pins[k]
 
 
-def _sections(spec: Spec, built: BuiltWindow, ev: Evaluation, w: Winding) -> tuple[Section, ...]:
+def _sections(spec: Spec, built: BuiltWindow, ev: Evaluation[Any], w: Winding) -> tuple[Section, ...]:
     out = []
     for s in built.of(w.name):
         sb = s.build
@@ -88,7 +90,7 @@ def _sections(spec: Spec, built: BuiltWindow, ev: Evaluation, w: Winding) -> tup
     return tuple(out)
 
 
-def _winding_result(spec: Spec, st: WindingState, ev: Evaluation, temp: ThermalState, length: float,
+def _winding_result(spec: Spec, st: WindingState, ev: Evaluation[Any], temp: ThermalState, length: float,
                     summary: ElectricalSummary, ref: Winding) -> WindingResult:
     w, wire = st.spec, st.wire
     area = wire.copper_area_m2 * st.strands
@@ -129,7 +131,7 @@ def _build_result(parts: Parts, built: BuiltWindow, ku_num: float, bulge: float)
                  fill_fraction=bulged / available if available > 0 else float("inf"), hole_m=hole)
 
 
-def finish(spec: Spec, cat: Catalog, parts: Parts, kind: PartKind, ev: Evaluation, temp: ThermalState,
+def finish(spec: Spec, cat: Catalog, parts: Parts, kind: PartKind, ev: Evaluation[Any], temp: ThermalState,
            summary: ElectricalSummary, iterations: int) -> Design:
     """Freeze the settled evaluation into the Design: windings, build, losses, checks, tests, materials."""
     lengths = copper_lengths_m(ev.built, cat.shop.lead_length_m)

@@ -9,7 +9,7 @@ record the checks and the test plan read (``DesignState``). Nothing here compute
 from __future__ import annotations
 
 from dataclasses import dataclass, field
-from typing import TYPE_CHECKING
+from typing import TYPE_CHECKING, Generic, TypeVar
 
 from ..physics import geometry
 from .vocab import CheckLevel, Cooling, FormerKind, GapArrangement, Waveform, WireKind
@@ -151,8 +151,11 @@ class Magnetics:
     notes: tuple[Check, ...] = ()
 
 
+D = TypeVar("D")
+
+
 @dataclass(frozen=True, slots=True)
-class Evaluation:
+class Evaluation(Generic[D]):
     """One pass of a kind's calculation at a temperature: windings, build, AC factors and losses.
 
     ``detail`` is the kind's own record (a transformer's voltages, an inductor's magnetics)."""
@@ -162,7 +165,7 @@ class Evaluation:
     copper_w: float
     core_w: float
     core_w_m3: float
-    detail: object = None
+    detail: D
 
     @property
     def total_w(self) -> float:

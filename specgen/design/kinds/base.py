@@ -2,7 +2,7 @@
 
 from __future__ import annotations
 
-from typing import TYPE_CHECKING, Protocol
+from typing import TYPE_CHECKING, Any, Protocol
 
 if TYPE_CHECKING:
     from ...catalog.models import Catalog
@@ -14,15 +14,15 @@ if TYPE_CHECKING:
 class KindRun(Protocol):
     """One design of one kind in progress: it holds what the kind chose (turns, wires) between passes."""
 
-    def first(self, temp: ThermalState) -> tuple[Evaluation, int]:
+    def first(self, temp: ThermalState) -> tuple[Evaluation[Any], int]:
         """Choose turns, gap and wires at the first-guess temperature: the evaluation and the passes it took."""
         ...
 
-    def again(self, previous: Evaluation, temp: ThermalState) -> Evaluation:
+    def again(self, previous: Evaluation[Any], temp: ThermalState) -> Evaluation[Any]:
         """Evaluate again at a new temperature (one pass of the pipeline's temperature loop)."""
         ...
 
-    def summary(self, ev: Evaluation, temp: ThermalState) -> ElectricalSummary:
+    def summary(self, ev: Evaluation[Any], temp: ThermalState) -> ElectricalSummary:
         """The kind's figures and own checks for the Design, from the settled evaluation."""
         ...
 

@@ -146,7 +146,7 @@ class InductorRun:
                          b_peak_max_t=float(gapmod.b_peak_from_inductance_t(l_built, c.i_pk, n, ae)),
                          rolloff_pct=0.0, notes=tuple(notes))
 
-    def evaluate(self, temp: ThermalState) -> Evaluation:
+    def evaluate(self, temp: ThermalState) -> Evaluation[InductorPass]:
         spec, parts, c, mat = self.spec, self.parts, self.c, self.parts.material
         mg = self.powder(temp) if mat.is_powder else self.gapped(temp)
         st = WindingState(self.w, 0, self.wire, self.strands, mg.turns, c.i_rms, self.reason)
@@ -166,14 +166,13 @@ class InductorRun:
         return Evaluation(states, built, frs, copper, pv * parts.ve_m3, pv, InductorPass(mg, delta_b))
 
     # -- the KindRun protocol
-    def first(self, temp: ThermalState) -> tuple[Evaluation, int]:
+    def first(self, temp: ThermalState) -> tuple[Evaluation[InductorPass], int]:
         return self.evaluate(temp), 0
 
-    def again(self, previous: Evaluation, temp: ThermalState) -> Evaluation:
+    def again(self, previous: Evaluation[InductorPass], temp: ThermalState) -> Evaluation[InductorPass]:
         return self.evaluate(temp)
 
-    def summary(self, ev: Evaluation, temp: ThermalState) -> ElectricalSummary:
-        assert isinstance(ev.detail, InductorPass)
+    def summary(self, ev: Evaluation[InductorPass], temp: ThermalState) -> ElectricalSummary:
         mg, c, le, ae = ev.detail.magnetics, self.c, self.parts.le_m, self.parts.ae_m2
         n = mg.turns
         powder = self.parts.material.is_powder

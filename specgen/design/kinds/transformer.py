@@ -188,7 +188,7 @@ class TransformerRun:
         assert built is not None
         return built, loaded
 
-    def evaluate(self, np_turns: int, temp: ThermalState, eta: float) -> Evaluation:
+    def evaluate(self, np_turns: int, temp: ThermalState, eta: float) -> Evaluation[TransformerPass]:
         spec, parts, mat = self.spec, self.parts, self.parts.material
         f, wf = spec.frequency_hz, spec.waveform
         lm = float(faraday.magnetizing_inductance_h(np_turns, parts.ae_m2, parts.le_m, mat.mu_working))
@@ -213,11 +213,11 @@ class TransformerRun:
         detail = TransformerPass(np_turns, eta, lm, imag, imag_pk, b_pk, b_pk_max, loaded, open_v, l_lk)
         return Evaluation(states, built, frs, copper, pv * parts.ve_m3, pv, detail)
 
-    def fits(self, ev: Evaluation) -> bool:
+    def fits(self, ev: Evaluation[TransformerPass]) -> bool:
         return ev.built.ok and ev.built.height_m * self.cat.shop.bulge_factor <= self.parts.former.height_m
 
     # -- the KindRun protocol
-    def first(self, temp: ThermalState) -> tuple[Evaluation, int]:
+    def first(self, temp: ThermalState) -> tuple[Evaluation[TransformerPass], int]:
         """Saturation-limited turns; above 1 kHz raised while the total loss falls; wires for the turns kept."""
         eta = self.spec.efficiency_guess
         n0 = self.min_turns(temp)
@@ -238,10 +238,10 @@ class TransformerRun:
                     best = cand
         # `auto` wire for the turns actually chosen (the scan sized it at its first candidate, where the
         # magnetizing current is largest); keep the new choice only if the build still fits
-        if any(w.wire.startswith("auto") for w in self.spec.windings) and _pass(best).primary_turns != n0:
+        if any(w.wire.startswith("auto") for w in self.spec.windings) and best.detail.primary_turns != n0:
             kept = dict(self.wires)
             self.wires.clear()
-            again = self.evaluate(_pass(best).primary_turns, temp, eta)
+            again = self.evaluate(best.detail.primary_turns, temp, eta)
             passes += 1
             if self.fits(again):
                 best = again
@@ -249,13 +249,13 @@ class TransformerRun:
                 self.wires = kept
         return best, passes
 
-    def again(self, previous: Evaluation, temp: ThermalState) -> Evaluation:
-        p = _pass(previous)
+    def again(self, previous: Evaluation[TransformerPass], temp: ThermalState) -> Evaluation[TransformerPass]:
+        p = previous.detail
         eta = self.p_out / (self.p_out + previous.total_w) if previous.total_w > 0 else p.eta
         return self.evaluate(p.primary_turns, temp, eta)
 
-    def summary(self, ev: Evaluation, temp: ThermalState) -> ElectricalSummary:
-        p = _pass(ev)
+    def summary(self, ev: Evaluation[TransformerPass], temp: ThermalState) -> ElectricalSummary:
+        p = ev.detail
         eff = self.p_out / (self.p_out + ev.total_w)
         regulation = None
         for w in self.loads:
@@ -281,11 +281,6 @@ class TransformerRun:
             magnetizing_inductance_h=p.lm_h, magnetizing_current_a=p.imag_a, leakage_inductance_h=p.leakage_h,
             voltages={self.prim.name: self.vp, **p.loaded_v}, open_circuit=dict(p.open_v), efficiency=eff,
             regulation_pct=regulation, output_power_w=self.p_out, checks=tuple(extra))
-
-
-def _pass(ev: Evaluation) -> TransformerPass:
-    assert isinstance(ev.detail, TransformerPass)
-    return ev.detail
 
 
 def _fmt_t(b: float) -> str:
