@@ -18,6 +18,8 @@ from __future__ import annotations
 
 from collections.abc import Mapping
 
+import numpy as np
+
 from ..catalog.models import Catalog
 from ..physics.layers import leakage_inductance_h
 from . import kernel as K
@@ -45,7 +47,7 @@ def wind_section(former: Former, turns: int, pitch_m: float, layer_height_m: flo
     first: tuple[int, float] | None = None
     while left > 0:
         j = len(layers)
-        centre = float(K.layer_centre_m(start_build_m, j, layer_height_m, layer_tape_m))
+        centre = float(K.layer_centre_m(start_build_m, float(j), layer_height_m, layer_tape_m))
         cap_f, room = K.layer_capacity(former.kind, pitch_m, usable, former.id_m, centre, one_turn_per_layer)
         capacity = int(cap_f)
         if capacity < 1:
@@ -141,15 +143,20 @@ def section_frs(built: BuiltWindow, states: Mapping[str, WindingState], freq_hz:
         sb = s.build
         current = st.current_a * signs.get(s.winding, 1.0)
         geo = K.wire_geometry(st.wire, st.strands)
+        turns = [layer.turns for layer in sb.layers]
+        faces = [mmf]
+        for t in turns:
+            faces.append(faces[-1] + t * current)
+        mmf = faces[-1]
+        if abs(current) < 1e-12:
+            out[(s.winding, s.index)] = 1.0
+            continue
+        # every layer of the section in one call (rows = layers), summed in build order
+        frs = K.layer_ac_factor(geo, np.array(turns, dtype=float), sb.usable_breadth_m, delta_cu,
+                                np.array(faces[:-1]), np.array(faces[1:]), harmonics)
         sec_loss = 0.0
         sec_dc = 0.0
-        for layer in sb.layers:
-            f1 = mmf
-            f2 = mmf + layer.turns * current
-            mmf = f2
-            if abs(current) < 1e-12:
-                continue
-            fr_layer = float(K.layer_ac_factor(geo, layer.turns, sb.usable_breadth_m, delta_cu, f1, f2, harmonics))
+        for fr_layer, layer in zip(np.atleast_1d(frs).tolist(), sb.layers):
             sec_loss += fr_layer * layer.length_m
             sec_dc += layer.length_m
         out[(s.winding, s.index)] = sec_loss / sec_dc if sec_dc > 0 else 1.0

@@ -380,11 +380,11 @@ def mean_turn_length_m(former_kind: Any, centre_m: ArrayLike, *, tube_width_m: A
     return _out(np.where(code == 0, rect, np.where(code == 1, rnd, tor)))
 
 
-def layer_centre_m(start_m: ArrayLike, index: ArrayLike, layer_height_m: ArrayLike, layer_tape_m: ArrayLike) -> Arr:
+def layer_centre_m(start_m: Arr, index: Arr, layer_height_m: Arr, layer_tape_m: Arr) -> Arr:
     """Build from the former to the centre line of layer ``index`` (0-based) of a section starting at
-    ``start_m``: each layer its height, the layer tape between layers."""
-    h = _f(layer_height_m)
-    return _out(_f(start_m) + _f(index) * (h + _f(layer_tape_m)) + h / 2.0)
+    ``start_m``: each layer its height, the layer tape between layers. (Plain arithmetic: floats stay floats,
+    arrays broadcast.)"""
+    return start_m + index * (layer_height_m + layer_tape_m) + layer_height_m / 2.0
 
 
 def layer_capacity(former_kind: Any, pitch_m: ArrayLike, usable_m: ArrayLike, id_m: ArrayLike, centre_m: ArrayLike,
@@ -392,7 +392,17 @@ def layer_capacity(former_kind: Any, pitch_m: ArrayLike, usable_m: ArrayLike, id
     """(turns one layer holds, room along it [m]). Bobbin: floor(usable breadth / pitch) (1e-9 slack),
     foil one turn if it fits the breadth; room = the usable breadth. Toroid: the wire's centre line runs on
     the layer's inner face, so the layer holds floor(pi (ID - 2 centre) / pitch) and room is that
-    circumference."""
+    circumference. ``former_kind``: a name (one former, floats) or FORMER_CODE per row."""
+    if isinstance(former_kind, str) and _scalar(pitch_m, usable_m, id_m, centre_m, one_turn_per_layer):
+        # one former, one layer (the engine's layer-by-layer build): the same rule without array overhead
+        pitch = float(np.asarray(pitch_m))
+        if former_kind == "toroid":
+            circ = float(geometry.toroid_inner_circumference_m(id_m, centre_m))
+            return float(max(math.floor(circ / pitch + 1e-9), 0)), circ
+        usable = float(np.asarray(usable_m))
+        if one_turn_per_layer:
+            return (1.0 if pitch <= usable + 1e-12 else 0.0), usable
+        return (float(math.floor(usable / pitch + 1e-9)) if usable > 0 else 0.0), usable
     pitch, usable = _f(pitch_m), _f(usable_m)
     code = FORMER_CODE[former_kind] if isinstance(former_kind, str) else np.asarray(former_kind)
     with np.errstate(divide="ignore", invalid="ignore"):
@@ -567,21 +577,39 @@ def current_harmonics(waveform: str) -> Harmonics:
 def _layer_porosity(wire: WireGeometry, turns_in_layer: Any, usable_m: Any) -> npt.NDArray[np.float64]:
     """Copper fraction across a layer, Dowell's eta: round/tiw turns x strands x d over the usable breadth;
     Litz the strand porosity x LITZ_POROSITY_FACTOR; foil its width over the breadth; strip like round."""
-    kind = np.asarray(wire.kind)
     usable = _f(usable_m)
-    turns = _f(turns_in_layer)
     room = np.maximum(usable, 1e-9)
+
+    def litz() -> Any:
+        return _f(dowell.porosity(wire.strand_diameter_m, wire.strand_overall_m)) * LITZ_POROSITY_FACTOR
+
+    def foil() -> Any:
+        return np.minimum(1.0, _f(wire.width_m) / np.maximum(usable, _f(wire.width_m)))
+
+    def side_by_side(size: Arr) -> Any:
+        return np.minimum(1.0, _f(turns_in_layer) * _f(wire.strands_in_hand) * _f(size) / room)
+
+    if np.ndim(wire.kind) == 0:         # one wire (the engine): only its own rule
+        kind = int(wire.kind)
+        if kind == WIRE_CODE["litz"]:
+            return _f(litz())
+        if kind == WIRE_CODE["foil"]:
+            return _f(foil())
+        return _f(side_by_side(wire.width_m if kind == WIRE_CODE["strip"] else wire.strand_diameter_m))
+    kinds = np.asarray(wire.kind)
     with np.errstate(divide="ignore", invalid="ignore"):
-        litz = _f(dowell.porosity(np.where(kind == 1, wire.strand_diameter_m, 1.0),
-                                  np.where(kind == 1, wire.strand_overall_m, 1.0))) * LITZ_POROSITY_FACTOR
-        foil = np.minimum(1.0, _f(wire.width_m) / np.maximum(usable, _f(wire.width_m)))
-    strip = np.minimum(1.0, turns * _f(wire.strands_in_hand) * _f(wire.width_m) / room)
-    rnd = np.minimum(1.0, turns * _f(wire.strands_in_hand) * _f(wire.strand_diameter_m) / room)
-    return np.where(kind == 1, litz, np.where(kind == 3, foil, np.where(kind == 4, strip, rnd)))
+        lz = np.where(kinds == 1, litz(), 0.0)
+        fo = foil()
+    return _f(np.where(kinds == 1, lz, np.where(kinds == 3, fo, np.where(kinds == 4, side_by_side(wire.width_m),
+                                                                          side_by_side(wire.strand_diameter_m)))))
 
 
 def _layer_delta(wire: WireGeometry, skin: Any, eta: Any) -> npt.NDArray[np.float64]:
     """Dowell's Delta: the equivalent foil of a round strand (round, tiw, Litz), t/delta for foil and strip."""
+    if np.ndim(wire.kind) == 0:
+        if int(wire.kind) in (WIRE_CODE["foil"], WIRE_CODE["strip"]):
+            return _f(dowell.foil_delta(wire.thickness_m, skin, eta))
+        return _f(dowell.round_wire_delta(wire.strand_diameter_m, skin, eta))
     kind = np.asarray(wire.kind)
     flat = (kind == 3) | (kind == 4)
     with np.errstate(divide="ignore", invalid="ignore"):
@@ -597,12 +625,16 @@ def layer_ac_factor(wire: WireGeometry, turns_in_layer: ArrayLike, usable_m: Arr
 
     A layer of Litz bundles is k = round(sqrt(strands)) layers of strands (common practice approximation):
     the MMF steps evenly across them and the factor is their mean."""
-    rows = np.broadcast_shapes(np.shape(turns_in_layer), np.shape(usable_m), np.shape(skin_depth),
-                               np.shape(f_inner), np.shape(f_outer), np.shape(wire.kind))
     eta = _layer_porosity(wire, turns_in_layer, usable_m)[..., None]
     skin = _f(skin_depth)[..., None] / np.sqrt(harmonics.orders)          # rows x harmonics
-    d = _layer_delta(wire, skin, eta)[..., None]                           # rows x harmonics x 1
-    k = np.broadcast_to(_f(wire.sub_layers), rows)
+    d = _layer_delta(wire, skin, eta)                                      # rows x harmonics
+    k = _f(wire.sub_layers)
+    if k.size and float(k.max()) == 1.0:                                   # no Litz: one layer of conductors
+        fr1 = _f(layer_fr(d, _f(f_inner)[..., None], _f(f_outer)[..., None]))
+        return _out(fr1 @ harmonics.weights)
+    rows = np.broadcast_shapes(np.shape(turns_in_layer), np.shape(usable_m), np.shape(skin_depth),
+                               np.shape(f_inner), np.shape(f_outer), np.shape(wire.kind))
+    k = np.broadcast_to(k, rows)
     kmax = int(k.max()) if k.size else 1
     j = np.arange(kmax, dtype=float)
     kk = k[..., None]
@@ -612,7 +644,7 @@ def layer_ac_factor(wire: WireGeometry, turns_in_layer: ArrayLike, usable_m: Arr
     one = kk == 1.0
     a = np.where(one, f1, f1 + span * j / kk)                              # rows x sub-layers
     b = np.where(one, f2, f1 + span * (j + 1.0) / kk)
-    fr = _f(layer_fr(d, a[..., None, :], b[..., None, :]))                 # rows x harmonics x sub-layers
+    fr = _f(layer_fr(d[..., None], a[..., None, :], b[..., None, :]))     # rows x harmonics x sub-layers
     used = (j < kk)[..., None, :]
     mean = np.where(used, fr, 0.0).sum(axis=-1) / kk
     return _out(mean @ harmonics.weights)
