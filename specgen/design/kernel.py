@@ -395,14 +395,14 @@ def layer_capacity(former_kind: Any, pitch_m: ArrayLike, usable_m: ArrayLike, id
     circumference. ``former_kind``: a name (one former, floats) or FORMER_CODE per row."""
     if isinstance(former_kind, str) and _scalar(pitch_m, usable_m, id_m, centre_m, one_turn_per_layer):
         # one former, one layer (the engine's layer-by-layer build): the same rule without array overhead
-        pitch = float(np.asarray(pitch_m))
+        p1 = float(np.asarray(pitch_m))
         if former_kind == "toroid":
-            circ = float(geometry.toroid_inner_circumference_m(id_m, centre_m))
-            return float(max(math.floor(circ / pitch + 1e-9), 0)), circ
-        usable = float(np.asarray(usable_m))
+            c1 = float(geometry.toroid_inner_circumference_m(id_m, centre_m))
+            return float(max(math.floor(c1 / p1 + 1e-9), 0)), c1
+        u1 = float(np.asarray(usable_m))
         if one_turn_per_layer:
-            return (1.0 if pitch <= usable + 1e-12 else 0.0), usable
-        return (float(math.floor(usable / pitch + 1e-9)) if usable > 0 else 0.0), usable
+            return (1.0 if p1 <= u1 + 1e-12 else 0.0), u1
+        return (float(math.floor(u1 / p1 + 1e-9)) if u1 > 0 else 0.0), u1
     pitch, usable = _f(pitch_m), _f(usable_m)
     code = FORMER_CODE[former_kind] if isinstance(former_kind, str) else np.asarray(former_kind)
     with np.errstate(divide="ignore", invalid="ignore"):
