@@ -21,11 +21,12 @@ from __future__ import annotations
 
 import os
 from dataclasses import dataclass, field
-from typing import Any
+from typing import Any, cast
 
 from ..errors import SpecError
 from ..loading import Reader, load_yaml, parse_yaml
 from .limits import MAX_TURNS
+from .vocab import Cooling, Waveform
 
 ROLES = ("primary", "secondary", "auxiliary", "shield", "main")
 WAVEFORMS = ("sine", "square", "unipolar")
@@ -101,10 +102,10 @@ class Spec:
     core_count: int
     bobbin_id: str | None
     frequency_hz: float
-    waveform: str
+    waveform: Waveform
     duty: float
     ambient_c: float
-    cooling: str
+    cooling: Cooling
     insulation_class_c: int
     flux_limit_t: float | None
     efficiency_guess: float
@@ -196,7 +197,7 @@ def parse_spec(data: Any, name: str) -> Spec:
     kind = r.choice("kind", ("transformer", "inductor"))
     core = _section(r, "core")
     op = _section(r, "operating")
-    waveform = op.choice("waveform", WAVEFORMS, "sine")
+    waveform = cast(Waveform, op.choice("waveform", WAVEFORMS, "sine"))
     ins_class = op.raw("insulation_class", 130)
     cls = _insulation_class(op, ins_class)
     freq = op.quantity("frequency", "frequency")
@@ -208,7 +209,7 @@ def parse_spec(data: Any, name: str) -> Spec:
     if not -60.0 <= ambient <= 200.0:
         raise op.error(f"ambient {ambient:g} degC is outside -60..200 degC", "ambient")
     duty = op.number("duty", 0.5, minimum=0.01, maximum=0.99)
-    cooling = op.choice("cooling", COOLING, "natural")
+    cooling = cast(Cooling, op.choice("cooling", COOLING, "natural"))
     flux_limit_t = op.quantity("flux_limit", "flux_density", None)
     efficiency_guess = op.number("efficiency", 0.9, minimum=0.3, maximum=0.999)
     op.done()
