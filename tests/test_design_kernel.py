@@ -245,6 +245,9 @@ def test_dcr_and_skin_depth():
     # 1 m of 1 mm^2 copper at 20 degC: 1/58 ohm (IEC 60028); at 100 Hz... skin depth of copper at 20 degC,
     # 50 Hz: sqrt(rho / (pi f mu0)) = 9.33 mm (any fields text)
     assert K.dc_resistance_ohm(1e-6, 1.0, 20.0) == pytest.approx(1 / 58.0, rel=1e-12)
+    # a conductor per row: aluminium 0.028264 ohm mm^2/m at 20 degC (IEC 60889, from memory)
+    rows = K.dc_resistance_ohm(np.array([1e-6, 1e-6]), np.array([1.0, 2.0]), 20.0, ["copper", "aluminium"])
+    assert rows == pytest.approx([1 / 58.0, 2 * 0.028264], rel=1e-12)
     assert K.skin_depth_m(50.0, 20.0) == pytest.approx(9.33e-3, rel=2e-3)
     assert K.skin_depth_m(0.0, 20.0) == math.inf
     assert K.copper_loss_w(0.5, 2.0, 3.0, 4.0) == pytest.approx(16 * 0.5 + 9 * 0.5 * 2.0)

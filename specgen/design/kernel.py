@@ -26,7 +26,7 @@ Winding
   layer_centre_m(start_m, index, layer_height_m, layer_tape_m)       build to a layer's centre
   layer_capacity(former_kind, pitch_m, usable_m, id_m, centre_m, one_turn_per_layer)  (turns, room)
   wind_section(former, turns, pitch, lh, start, margin, layer_tape, foil, limit) -> SectionWinding
-  dc_resistance_ohm(copper_area_m2, length_m, temp_c, conductor)
+  dc_resistance_ohm(copper_area_m2, length_m, temp_c, conductor)    conductor: one name or a name per row
   skin_depth_m(freq_hz, temp_c, conductor)
   current_harmonics(waveform) -> Harmonics
   layer_ac_factor(wire, turns_in_layer, usable_m, skin_depth_m, f_inner, f_outer, harmonics)
@@ -549,9 +549,19 @@ def _wind_toroid(fm: FormerArrays, tor: npt.NDArray[np.intp], turns: npt.NDArray
 
 
 def dc_resistance_ohm(copper_area_m2: ArrayLike, length_m: ArrayLike, temp_c: ArrayLike,
-                      conductor: str = "copper") -> Arr:
-    """DC resistance R = rho(T) l / A of a winding's copper at a temperature (IEC 60028 / IEC 60889)."""
-    return _out(_f(wiremod.resistance_per_m_ohm(copper_area_m2, temp_c, conductor)) * _f(length_m))
+                      conductor: str | Sequence[str] | npt.NDArray[np.str_] = "copper") -> Arr:
+    """DC resistance R = rho(T) l / A of a winding's copper at a temperature (IEC 60028 / IEC 60889).
+
+    ``conductor``: one name for every row, or a name per row ('copper', 'aluminium')."""
+    if isinstance(conductor, str):
+        return _out(_f(wiremod.resistance_per_m_ohm(copper_area_m2, temp_c, conductor)) * _f(length_m))
+    names = np.asarray(conductor)
+    out = np.zeros(np.broadcast_shapes(names.shape, np.shape(copper_area_m2), np.shape(length_m), np.shape(temp_c)))
+    for name in np.unique(names):
+        sel = np.broadcast_to(names == name, out.shape)
+        r = _f(wiremod.resistance_per_m_ohm(copper_area_m2, temp_c, str(name))) * _f(length_m)
+        out = np.where(sel, np.broadcast_to(r, out.shape), out)
+    return out
 
 
 def skin_depth_m(freq_hz: ArrayLike, temp_c: ArrayLike, conductor: str = "copper") -> Arr:
