@@ -33,6 +33,10 @@ HIPOT_CAUTION = (
 STANDARDS_NOTE = ("The figures printed are defaults to be confirmed against the applicable product safety "
                   "standard, the customer's drawing, local codes and licensed practice.")
 DCR_FORMULA = "R20 = Rt / (1 + α (t − 20))"
+#: Side margins of every work-order page (the template's @page rule uses this one figure): the
+#: drawings are sized to the text width left between them, so they print at their stated scale.
+SIDE_MARGIN_MM = 13.0
+CSS_PAPER = {"A4": "A4", "Letter": "letter"}
 MAX_QTY = 1_000_000
 MAX_LOT_CHARS = 40
 _NUMBER_RE = re.compile(r"[A-Za-z0-9][A-Za-z0-9._-]{0,59}")
@@ -177,10 +181,17 @@ def _pins_of(condition: str) -> str:
     return m.group(1).rstrip(",") if m else ""
 
 
+def in_number(text: str) -> str:
+    """'2 piece(s) per set' -> '2 pieces per set', '1 set(s)' -> '1 set': the Design's notes write a
+    count with '(s)'; the floor reads it in the right number."""
+    text = re.sub(r"\b1 (\w+)\(s\)", r"1 \1", text)
+    return re.sub(r"\b(\d[\d,]*) (\w+)\(s\)", r"\1 \2s", text)
+
+
 def _materials(design, qty: int, scrap: float) -> list:
     rows = []
     for m in design.materials:
-        row = {"kind": m.kind, "id": m.id, "description": m.description, "note": m.note,
+        row = {"kind": m.kind, "id": m.id, "description": m.description, "note": in_number(m.note),
                "per_unit": "", "lot": "", "mass_unit": "", "mass_lot": ""}
         if m.unit == "m":
             factor = 1.0 + scrap if m.kind == "wire" else 1.0
@@ -222,6 +233,24 @@ def _tape_thickness(cat, tape_id: str | None) -> float:
     return cat.tapes[tape_id].thickness_m
 
 
+def _svg_width_mm(svg) -> float:
+    m = re.search(r'width="([0-9.]+)mm"', str(svg))
+    return float(m.group(1)) if m else 0.0
+
+
+def _fit_to_text_width(draw, text_width_mm: float, max_w_mm: float):
+    """Draw at the largest scale whose whole figure (drawing and its label column) fits the text
+    width: a figure wider than the page would be shrunk by the renderer and no longer be to scale."""
+    svg, scale = draw(max_w_mm)
+    for _ in range(20):             # the scales are steps: narrow the box until the next one down is taken
+        excess = _svg_width_mm(svg) - text_width_mm
+        if excess <= 0 or max_w_mm <= 10.0:
+            break
+        max_w_mm = max(max_w_mm - max(excess, 0.05 * max_w_mm), 10.0)
+        svg, scale = draw(max_w_mm)
+    return svg, scale
+
+
 def _drawings(design, cat) -> dict:
     from . import drawings as dr
 
@@ -242,6 +271,7 @@ def _drawings(design, cat) -> dict:
         b = cat.bobbins[design.core.bobbin]
         pin_svg = dr.pin_diagram(list(b.pins), b.pin_rows, coils, dots)
 
+    text_width_mm = cat.shop.documents.paper_m[0] * 1e3 - 2 * SIDE_MARGIN_MM
     tf = 2.0 if toroid else 1.0          # tape on a toroid is half-lapped (the build's own rule)
     secs = []
     for w, s in _sections_in_order(design):
@@ -258,16 +288,69 @@ def _drawings(design, cat) -> dict:
     if toroid:
         core = cat.cores.get(design.core.id)
         dims = core.dims if core is not None else {}
-        window_svg, scale = dr.toroid_sector(dims.get("id", 0.0), dims.get("od", 0.0),
-                                             core.coating_m if core is not None else 0.0,
-                                             design.build.available_m, design.build.bulged_height_m, secs)
+        window_svg, scale = _fit_to_text_width(
+            lambda w: dr.toroid_sector(dims.get("id", 0.0), dims.get("od", 0.0),
+                                       core.coating_m if core is not None else 0.0, design.build.available_m,
+                                       design.build.bulged_height_m, secs, max_w_mm=w), text_width_mm, 105.0)
     else:
         first = design.windings[0].sections[0]
         breadth = first.usable_breadth_m + 2 * first.margin_m
-        window_svg, scale = dr.window_section(breadth, design.build.available_m, design.build.bulged_height_m,
-                                              secs)
+        window_svg, scale = _fit_to_text_width(
+            lambda w: dr.window_section(breadth, design.build.available_m, design.build.bulged_height_m, secs,
+                                        max_w_mm=w), text_width_mm, 112.0)
     return {"pin_svg": pin_svg, "window_svg": window_svg, "window_scale": dr.scale_text(scale),
             "dot_legend": dr.DOT_LEGEND}
+
+
+_LEAD_PREP = {
+    "round": "Strip the enamel over the length to be soldered (solder pot or stripping tool).",
+    "litz": "Strip and tin the whole Litz bundle in the solder pot until every strand is wetted; no loose strand.",
+    "tiw": "Strip triple-insulated wire only over the length to be soldered; keep its insulation right up to "
+           "the joint.",
+    "foil": "Solder the lead strap to the foil across its full width before the first turn is covered.",
+    "strip": "Strip the strip's ends and form them before soldering.",
+}
+
+
+def termination_step(d, n: int) -> dict:
+    """Lead termination: each winding's ends to their pins (or a toroid's free leads), from the Design."""
+    toroid = d.core.shape == "toroid"
+    word = "lead" if toroid else "pin"
+    lines = []
+    for w in d.windings:
+        ties = [s.finish_pin for s in w.sections[:-1]]
+        tie = f"; tie {word}{'s' if len(ties) > 1 else ''} {', '.join(ties)} between its sections" if ties else ""
+        dot = f" (dot at {w.dot_pin})" if w.dot_pin else ""
+        lines.append(f"{w.name}: start on {word} {w.start}, finish on {word} {w.finish}{dot}{tie}.")
+    for kind in dict.fromkeys(w.wire_kind for w in d.windings):
+        lines.append(_LEAD_PREP.get(kind, _LEAD_PREP["round"]))
+    sleeved = sorted({w.lead_sleeving for w in d.windings if w.lead_sleeving})
+    if sleeved:
+        lines.append(f"Sleeve each lead that crosses a margin or another winding with {', '.join(sleeved)}, "
+                     "the sleeve reaching into the winding.")
+    if toroid:
+        lines.append("Strip and tin the free end of each lead; tag each lead with its winding and end "
+                     "(for example P start) as the pin diagram names it.")
+    else:
+        lines.append("Wrap each lead two to three turns round its pin and solder it; no bridge to a neighbouring "
+                     "pin, no strand standing proud; trim the tails.")
+    lines.append("Check each winding for continuity from its start to its finish before going on.")
+    heading = "Prepare and tag the leads" if toroid else "Terminate the leads on the pins"
+    return {"n": n, "kind": "terminate", "heading": heading, "lines": lines, "rows": [], "layers": [], "dot": ""}
+
+
+def marking_step(d, n: int, number: str) -> dict:
+    """Marking and labelling of every part, from the Design: identity, revision, polarity dots."""
+    word = "lead" if d.core.shape == "toroid" else "pin"
+    dots = ", ".join(f"{w.name} at {word} {w.dot_pin}" for w in d.windings if w.dot_pin)
+    lines = [f"Label each part: {d.part} rev {d.revision}, work order {number}, date code (year and week).",
+             "Put the label where it stays readable once the part is fitted and does not bridge a creepage "
+             "margin; add any customer marking the customer's drawing asks for."]
+    if dots:
+        lines.append(f"Polarity dots: {dots}. Check each one against the pin diagram.")
+    lines.append("Check the label against this work order before the part goes to test.")
+    return {"n": n, "kind": "mark", "heading": "Mark and label", "lines": lines, "rows": [], "layers": [],
+            "dot": ""}
 
 
 def build_context(design, cat, *, number: str, qty: int, due: str | None = None, lot: str | None = None,
@@ -379,6 +462,10 @@ def build_context(design, cat, *, number: str, qty: int, due: str | None = None,
                       "wire": w.wire, "rows": rows, "dot": dot, "lines": [],
                       "layers": [{"index": l.index, "turns": l.turns} for l in s.layers]})
 
+    if not toroid:          # leads go onto the pins before the core closes the bobbin
+        n += 1
+        steps.append(termination_step(d, n))
+
     # core assembly
     core_lines = []
     lam = next((m for m in d.materials if m.kind == "laminations"), None)
@@ -392,7 +479,7 @@ def build_context(design, cat, *, number: str, qty: int, due: str | None = None,
             core_lines.append(f"Stack {fmt_count(lam.quantity, 'pairs')} of {lam.id} laminations (E and I) into the "
                               f"bobbin, interleaving the E pieces from alternate sides; press the stack tight.")
     elif core_line is not None and not toroid:
-        core_lines.append(f"Fit the core {core_line.id} ({core_line.note}) into the wound bobbin"
+        core_lines.append(f"Fit the core {core_line.id} ({in_number(core_line.note)}) into the wound bobbin"
                           + (", the ground half with its gap inside the bobbin" if ind is not None and ind.grind_m
                              else "") + ".")
         if clips is not None:
@@ -418,6 +505,13 @@ def build_context(design, cat, *, number: str, qty: int, due: str | None = None,
                                "running, no open flame or sparks nearby.",
                                "Wear solvent-resistant gloves and eye protection when handling wet varnish.",
                                f"Cure temperature and time from the catalogue: {cure}."]}
+
+    after = []              # after the varnish: a toroid's free leads, then the marking of every part
+    if toroid:
+        n += 1
+        after.append(termination_step(d, n))
+    n += 1
+    after.append(marking_step(d, n, number))
 
     # ---- tests
     t = d.tests
@@ -451,10 +545,10 @@ def build_context(design, cat, *, number: str, qty: int, due: str | None = None,
                         "fingerprint": revision.short(fp) if fp else "not recorded"})
     ctx = {
         "head": head, "summary": summary, "materials": _materials(d, qty, scrap),
-        "scrap": f"{scrap:.0%}", "steps": steps, "varnish": varnish, "tests": tests,
+        "scrap": f"{scrap:.0%}", "steps": steps, "varnish": varnish, "after_varnish": after, "tests": tests,
         "caution": list(HIPOT_CAUTION), "standards_note": STANDARDS_NOTE, "notes": (d.notes or "").strip(),
         "history": history, "warnings": [c.message for c in d.warnings], "toroid": toroid,
-        "pin_word": pin_word,
+        "pin_word": pin_word, "paper": CSS_PAPER[shop.documents.paper], "side_margin_mm": SIDE_MARGIN_MM,
     }
     ctx.update(_drawings(d, cat))
     return ctx
