@@ -97,6 +97,26 @@ def test_litz_layer_is_the_mean_over_its_strand_layers():
     assert got == pytest.approx(want, rel=1e-9)
 
 
+def test_layer_factor_with_a_wire_per_row_equals_each_wire_alone():
+    from specgen.catalog.loader import load_catalog
+
+    cat = load_catalog(None)
+    wires = sorted(cat.wires.values(), key=lambda w: w.id)
+    picks = [next(w for w in wires if w.kind == k) for k in ("round", "litz", "foil", "strip", "tiw")
+             if any(w.kind == k for w in wires)]
+    geos = [K.wire_geometry(w, 2 if w.kind == "round" else 1) for w in picks]
+    rows = K.stack_wires(geos)
+    n = len(geos)
+    turns, usable = np.arange(3.0, 3.0 + n), np.linspace(10e-3, 30e-3, n)
+    f1, f2 = np.linspace(0.0, 8.0, n), np.linspace(3.0, 14.0, n)
+    for wf in ("sine", "square"):
+        h = K.current_harmonics(wf)
+        got = K.layer_ac_factor(rows, turns, usable, 0.2e-3, f1, f2, h)
+        for i, g in enumerate(geos):
+            assert got[i] == pytest.approx(K.layer_ac_factor(g, turns[i], usable[i], 0.2e-3, f1[i], f2[i], h),
+                                           rel=1e-9)
+
+
 def test_square_wave_harmonics_weight_as_its_power_spectrum():
     h = K.current_harmonics("square")
     assert h.orders[:3].tolist() == [1.0, 3.0, 5.0] and h.orders[-1] == 39.0

@@ -29,7 +29,8 @@ Winding
   dc_resistance_ohm(copper_area_m2, length_m, temp_c, conductor)    conductor: one name or a name per row
   skin_depth_m(freq_hz, temp_c, conductor)
   current_harmonics(waveform) -> Harmonics
-  layer_ac_factor(wire, turns_in_layer, usable_m, skin_depth_m, f_inner, f_outer, harmonics)
+  layer_porosity(wire, turns_in_layer, usable_m) / layer_delta(wire, skin_depth_m, porosity)   Dowell's eta, Delta
+  layer_ac_factor(wire, turns_in_layer, usable_m, skin_depth_m, f_inner, f_outer, harmonics)  one wire or one per row
   section_ac_factor(wire, layers, turns_per_layer, usable_m, skin_depth_m, f_start, f_end, harmonics)
   copper_loss_w(dcr_ohm, fr, i_ac_rms_a, i_dc_a)
 Loss and temperature
@@ -88,7 +89,7 @@ __all__ = [
     "FLUX_LIMIT_DESIGN", "FLUX_LIMIT_SHOP", "FLUX_LIMIT_SPEC", "FormerArrays", "Harmonics", "SectionWinding", "WireGeometry",
     "b_sat_t", "copper_loss_w", "core_loss_grouped_w_m3", "core_loss_w_m3", "current_density_a_m2",
     "current_harmonics", "dc_resistance_ohm", "first_guess_thermal", "flux_limit_source", "flux_limit_t", "gap_for_inductance_m",
-    "gapped_turns_and_gap", "hot_spot_c", "layer_ac_factor", "layer_capacity", "layer_centre_m",
+    "gapped_turns_and_gap", "hot_spot_c", "layer_ac_factor", "layer_capacity", "layer_centre_m", "layer_delta", "layer_porosity",
     "magnetizing_current_a", "mean_turn_length_m", "pitch_and_height", "powder_flux_t", "round_gap_down_m",
     "section_ac_factor", "skin_depth_m", "stack_wires", "temperature_rise_k", "thermal_state",
     "turns_for_inductance", "turns_for_peak_flux", "turns_for_voltage", "unipolar_swing_t", "whole_turns",
@@ -628,16 +629,30 @@ def _layer_delta(wire: WireGeometry, skin: Any, eta: Any) -> npt.NDArray[np.floa
     return np.where(flat, foil, rnd)
 
 
+def layer_porosity(wire: WireGeometry, turns_in_layer: ArrayLike, usable_m: ArrayLike) -> npt.NDArray[np.float64]:
+    """Dowell's porosity eta of a layer of this wire (see ``_layer_porosity``); one wire or a wire per row."""
+    return _layer_porosity(wire, turns_in_layer, usable_m)
+
+
+def layer_delta(wire: WireGeometry, skin_depth: ArrayLike, porosity: ArrayLike) -> npt.NDArray[np.float64]:
+    """Dowell's Delta of a layer of this wire at a skin depth and porosity (see ``_layer_delta``)."""
+    return _layer_delta(wire, skin_depth, porosity)
+
+
 def layer_ac_factor(wire: WireGeometry, turns_in_layer: ArrayLike, usable_m: ArrayLike, skin_depth: ArrayLike,
                     f_inner: ArrayLike, f_outer: ArrayLike, harmonics: Harmonics) -> Arr:
     """Rac/Rdc of one layer between the enclosed ampere-turns f_inner and f_outer (Dowell's layer form,
     ``physics.layers.layer_fr``), weighted over the current's harmonics (skin depth / sqrt(n) each).
+    ``wire``: one wire (floats) for every row, or a wire per row (``stack_wires``).
 
     A layer of Litz bundles is k = round(sqrt(strands)) layers of strands (common practice approximation):
     the MMF steps evenly across them and the factor is their mean."""
     eta = _layer_porosity(wire, turns_in_layer, usable_m)[..., None]
     skin = _f(skin_depth)[..., None] / np.sqrt(harmonics.orders)          # rows x harmonics
-    d = _layer_delta(wire, skin, eta)                                      # rows x harmonics
+    # a wire per row: its fields get the harmonics axis too
+    wide = wire if np.ndim(wire.kind) == 0 else WireGeometry(
+        **{f: np.asarray(getattr(wire, f))[..., None] for f in WireGeometry.__dataclass_fields__})
+    d = _layer_delta(wide, skin, eta)                                      # rows x harmonics
     k = _f(wire.sub_layers)
     if k.size and float(k.max()) == 1.0:                                   # no Litz: one layer of conductors
         fr1 = _f(layer_fr(d, _f(f_inner)[..., None], _f(f_outer)[..., None]))
