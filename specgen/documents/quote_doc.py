@@ -130,8 +130,10 @@ def _internal(q: Quote) -> dict:
                   "note": m.note + ("; copper" if m.copper else "")} for m in q.materials]
     labor = [{"operation": t.operation, "item": t.item, "detail": t.detail,
               "seconds": f"{t.seconds.quantize(Decimal('0.1'))}"} for t in q.labor]
-    lots = [{"quantity": f"{b.quantity:,}", "learning": f"{b.learning.normalize():f}",
-             "material": money(b.material), "discount": money(b.material_discount), "labor": money(b.labor),
+    lots = [{"quantity": f"{b.quantity:,}", "learning": f"{b.learning:.3f}",
+             "material": money(b.material),
+             "discount": f"−{money(b.material_discount)}" if money(b.material_discount) != "0.00" else "0.00",
+             "labor": money(b.labor),
              "setup": money(b.setup), "overhead": money(b.overhead), "cost": money(b.cost),
              "margin": money(b.unit_price - b.cost), "unit_price": money(b.unit_price)} for b in q.breaks]
     s = q.design_summary
