@@ -593,6 +593,7 @@ def test_customer_copy_holds_no_turns_fingerprint_or_cost_build_up(cat, designs,
     # ... all of which the internal copy does carry
     iflat = " ".join(internal.split())
     assert "Internal copy" in iflat and "overhead" in iflat.lower() and "margin" in iflat.lower()
+    assert "90 % at each doubling" in iflat and "10 kg: 4 % off" in iflat      # the shop file's lot effects
     assert f"{d.windings[0].turns:,} turns" in iflat
     assert qm.money(q.breaks[0].cost) in iflat
 

@@ -122,6 +122,24 @@ def _party(p) -> dict | None:
     return {"name": p.name, "attention": p.attention, "lines": list(p.lines), "phone": p.phone, "email": p.email}
 
 
+def _lot_rules(q: Quote) -> str:
+    """The shop file's lot effects in words, for the internal copy."""
+    terms = q.shop_documents.terms if q.shop_documents is not None else None
+    if terms is None:
+        return ""
+    out = ""
+    if terms.learning_first_unit > 1 and terms.learning_rate < 1:
+        out += (f"; learning: the first piece takes {terms.learning_first_unit:g} x the settled time, "
+                f"{terms.learning_rate * 100:g} % at each doubling")
+    for name, unit, breaks in (("kg of one item", "kg", terms.breaks_by_mass),
+                               ("pieces of one item", "", terms.breaks_by_count)):
+        if breaks:
+            steps = ", ".join(f"{b.threshold:g}{' ' + unit if unit else ''}: {plain(b.discount * 100)} % off"
+                              for b in breaks)
+            out += f"; suppliers' breaks on {name} in the lot: {steps}"
+    return out
+
+
 def _internal(q: Quote) -> dict:
     """The build-up for the shop's own copy: material and labor per unit, and the price per lot."""
     q4 = Decimal("0.0001")
@@ -147,7 +165,8 @@ def _internal(q: Quote) -> dict:
         "run_time": f"{q.run_time_s.quantize(Decimal('0.1'))}", "setup_min": plain(q.setup_time_s / 60),
         "lots": lots, "core": s.get("core", ""), "windings": windings,
         "rules": f"labor {money(q.labor_rate)} per hour; overhead {plain(q.overhead * 100)} % on labor; "
-                 f"margin {plain(q.margin * 100)} % of the price; wire scrap {plain(q.scrap_wire * 100)} %",
+                 f"margin {plain(q.margin * 100)} % of the price; wire scrap {plain(q.scrap_wire * 100)} %"
+                 + _lot_rules(q),
         "budgetary_detail": q.budgetary_detail,
     }
 
