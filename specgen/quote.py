@@ -19,7 +19,7 @@ Material per unit (one line per ``Design.materials`` entry)
     varnish       litres x price_per_litre.
     anything else priced at 0 and flagged, for the same reason as clips.
 
-Labor per unit (seconds, from ``shop.labor``, located errors through ``loading.Reader``)
+Labor per unit (seconds, from ``shop.labor``: typed and range-checked when the catalogue loads)
     winding       each section: turns x 60 / turns_per_minute x factor, where turns_per_minute is
                   toroid_turns_per_minute on a toroid (shuttle winder) else bobbin_turns_per_minute,
                   and factor multiplies fine_wire_factor (overall diameter below fine_wire_below),
@@ -77,6 +77,7 @@ from dataclasses import dataclass, field
 from decimal import ROUND_HALF_UP, Decimal, InvalidOperation
 from typing import Any
 
+from .catalog.models import LaborFigures
 from .errors import DesignFailed, SpecError
 
 CENT = Decimal("0.01")
@@ -115,62 +116,13 @@ def cents(amount: Decimal) -> Decimal:
 
 # ------------------------------------------------------------------------------------------------ time model
 
-@dataclass(frozen=True)
-class TimeModel:
-    """The shop's labor figures (catalog/shop.yaml ``labor``), times in seconds as Decimal."""
-
-    bobbin_turns_per_minute: Decimal
-    toroid_turns_per_minute: Decimal
-    fine_wire_below_m: float
-    fine_wire_factor: Decimal
-    heavy_wire_above_m: float
-    heavy_wire_factor: Decimal
-    litz_factor: Decimal
-    per_winding_s: Decimal
-    per_layer_tape_s: Decimal
-    per_termination_s: Decimal
-    core_assembly_s: Decimal
-    per_lamination_s: Decimal
-    impregnation_s: Decimal
-    test_s: Decimal
+#: The shop's labor figures, typed and range-checked when the catalogue loads (``catalog.models``).
+TimeModel = LaborFigures
 
 
-def time_model(shop) -> TimeModel:
-    """Parse ``shop.labor`` ({"data", "file", "path"}); every mistake is located in shop.yaml."""
-    from .loading import Reader
-
-    labor = shop.labor
-    r = Reader(labor["data"], labor.get("file"), labor.get("path", "shop.labor"))
-
-    def num(key: str, minimum: float) -> Decimal:
-        value = r.number(key, minimum=minimum)
-        return dec(value)
-
-    def secs(key: str) -> Decimal:
-        return dec(r.quantity(key, "time", allow_zero=True))
-
-    model = TimeModel(
-        bobbin_turns_per_minute=num("bobbin_turns_per_minute", 1e-6),
-        toroid_turns_per_minute=num("toroid_turns_per_minute", 1e-6),
-        fine_wire_below_m=r.quantity("fine_wire_below", "length", allow_zero=True),
-        fine_wire_factor=num("fine_wire_factor", 1.0),
-        heavy_wire_above_m=r.quantity("heavy_wire_above", "length"),
-        heavy_wire_factor=num("heavy_wire_factor", 1.0),
-        litz_factor=num("litz_factor", 1.0),
-        per_winding_s=secs("per_winding"),
-        per_layer_tape_s=secs("per_layer_tape"),
-        per_termination_s=secs("per_termination"),
-        core_assembly_s=secs("core_assembly"),
-        per_lamination_s=secs("per_lamination"),
-        impregnation_s=secs("impregnation"),
-        test_s=secs("test"),
-    )
-    r.done()
-    for key, value in (("bobbin_turns_per_minute", model.bobbin_turns_per_minute),
-                       ("toroid_turns_per_minute", model.toroid_turns_per_minute)):
-        if value <= 0:
-            raise r.error("must be greater than zero", key)
-    return model
+def time_model(shop) -> LaborFigures:
+    """The quote's time model: ``shop.labor``, already parsed and checked by the catalogue loader."""
+    return shop.labor
 
 
 # ------------------------------------------------------------------------------------------------ materials
@@ -349,7 +301,7 @@ class PriceBreak:
 def _check_margin(shop) -> None:
     if shop.margin >= 1:
         raise SpecError(f"a margin of {plain(shop.margin * 100)} % leaves no price (cost / (1 - margin)); "
-                        f"it must be below 100 %", file=shop.labor.get("file"), path="shop.margin")
+                        f"it must be below 100 %", path="shop.margin")
 
 
 def unit_price(material: Decimal, run_s: Decimal, setup_s: Decimal, quantity: int, shop) -> dict:

@@ -9,6 +9,8 @@ import pytest
 from specgen.catalog.loader import check_catalog, load_catalog, shipped_catalog_dir
 from specgen.physics import wire
 
+DEMO = shipped_catalog_dir().parent.parent / "demo"
+
 
 @pytest.fixture(scope="module")
 def cat():
@@ -108,3 +110,52 @@ def test_cli_catalog_list_json():
     assert r.returncode == 0
     rows = json.loads(r.stdout)
     assert any(row["id"] == "ETD-39-F100" for row in rows)
+
+
+# Each planted value below is a slip a shop could make; the check must name file, line and key path.
+# (Ranges are this program's own plausibility guards: common practice, not a standard.)
+@pytest.mark.parametrize("file, old, new, where", [
+    ("shop.yaml", "bobbin_turns_per_minute: 600", "bobbin_turns_per_minute: fast", "shop.labor.bobbin_turns_per_minute"),
+    ("shop.yaml", "per_winding: 90 s", "per_winding: 90 kg", "shop.labor.per_winding"),
+    ("shop.yaml", "per_layer_tape: 20 s", "per_windnig: 90 s\n    per_layer_tape: 20 s", "shop.labor.per_windnig"),
+    ("shop.yaml", "test: 150 s", "test: 150 d", "shop.labor.test"),
+    ("shop.yaml", "margin: 22 %", "margin: 100 %", "shop.margin"),
+    ("shop.yaml", "trip_current: 5 mA", "trip_current: 5 kA", "shop.hipot.trip_current"),
+    ("shop.yaml", "ratio: 0.5 %", "ratio: 50 %x", "shop.tolerances.ratio"),
+    ("shop.yaml", "minimum: 100 Mohm", "minimum: 100 V", "shop.insulation_resistance.minimum"),
+    ("shop.yaml", "forced: 5.0 A/mm^2", "forced: 5.0 A", "shop.current_density.forced"),
+    ("shop.yaml", "forced: 5.0 A/mm^2", "frosted: 5.0 A/mm^2", "shop.current_density.frosted"),
+    ("shop.yaml", 'work_order_format: "WO-{year}-{seq:05d}"', 'work_order_format: "WO-{year}"',
+     "shop.work_order_format"),
+    ("shop.yaml", 'work_order_format: "WO-{year}-{seq:05d}"', 'work_order_format: "../WO-{seq:05d}"',
+     "shop.work_order_format"),
+    ("cores.yaml", "dims: {tongue: 19.05 mm}", "dims: {tongue: 1e300 mm}", "cores[2].dims.tongue"),
+    ("bobbins.yaml", "    pins: 8\n", "    pins: 0\n", ".pins"),
+    ("materials.yaml", "curie: 215 degC", "curie: 21.5 degC", ".curie"),
+])
+def test_check_catches_bad_shop_and_stock_values(tmp_path, file, old, new, where):
+    d = _copy(tmp_path)
+    line = _plant(d / file, old, new)
+    problems = [str(p) for p in check_catalog(d)]
+    assert any(f"{file}:{line}:" in p and where in p for p in problems), problems
+
+
+def test_check_catches_two_bobbins_for_one_core_and_stack(tmp_path):
+    d = _copy(tmp_path)
+    text = (d / "bobbins.yaml").read_text()
+    start = text.index("  - id: BOB-EI75-19-2S\n")
+    end = text.index("\n\n", start)
+    twin = text[start:end].replace("BOB-EI75-19-2S", "BOB-EI75-19-2S-B")
+    (d / "bobbins.yaml").write_text(text[:end] + "\n\n" + twin + text[end:])
+    problems = [str(p) for p in check_catalog(d)]
+    assert any("BOB-EI75-19-2S-B.core" in p and "second 2-section bobbin" in p for p in problems), problems
+
+
+def test_cli_catalog_check_fails_on_a_bad_labour_figure(tmp_path):
+    d = _copy(tmp_path)
+    _plant(d / "shop.yaml", "bobbin_turns_per_minute: 600", "bobbin_turns_per_minute: fast")
+    r = subprocess.run([sys.executable, "-m", "specgen.cli", "catalog", "check", str(d)], capture_output=True, text=True)
+    assert r.returncode == 2 and "bobbin_turns_per_minute" in r.stderr and "Traceback" not in r.stderr
+    r = subprocess.run([sys.executable, "-m", "specgen.cli", "design", str(DEMO / "BH-5018.yaml"), "--catalog", str(d)],
+                       capture_output=True, text=True)
+    assert r.returncode == 2 and "bobbin_turns_per_minute" in r.stderr

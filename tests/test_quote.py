@@ -334,18 +334,11 @@ def test_draft_is_budgetary_and_a_consistent_release_is_firm(cat, designs, tmp_p
     assert q3.budgetary and "draft" in q3.budgetary
 
 
-def test_time_model_errors_are_located(cat):
-    labor = dict(cat.shop.labor["data"])
-    labor["per_winding"] = "90 kg"
-    shop = dataclasses.replace(cat.shop, labor={"data": labor, "file": "shop.yaml", "path": "shop.labor"})
-    with pytest.raises(SpecError) as err:
-        qm.time_model(shop)
-    assert err.value.file == "shop.yaml" and err.value.path == "shop.labor.per_winding"
-    labor = dict(cat.shop.labor["data"])
-    labor["per_windnig"] = "90 s"
-    shop = dataclasses.replace(cat.shop, labor={"data": labor, "file": "shop.yaml", "path": "shop.labor"})
-    with pytest.raises(SpecError, match="unknown key 'per_windnig'"):
-        qm.time_model(shop)
+def test_time_model_is_the_shop_figures_typed_at_load(cat):
+    """The quote reads the labor figures the loader typed (bad ones are caught by `catalog check`)."""
+    model = qm.time_model(cat.shop)
+    assert model is cat.shop.labor
+    assert model.bobbin_turns_per_minute == Decimal(600) and model.per_winding_s == Decimal(90)
 
 
 def test_margin_of_100_percent_is_refused(cat):

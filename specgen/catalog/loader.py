@@ -9,6 +9,7 @@ Where the catalogue comes from: ``--catalog DIR`` > ``$SPECGEN_CATALOG`` > the c
 from __future__ import annotations
 
 import os
+import re
 from decimal import Decimal
 from pathlib import Path
 
@@ -23,6 +24,10 @@ from .models import (
     BuyBreak,
     Catalog,
     Core,
+    CurrentDensities,
+    HipotFigures,
+    InsulationResistanceFigures,
+    LaborFigures,
     Material,
     Party,
     QuoteTerms,
@@ -30,6 +35,7 @@ from .models import (
     ShopDocuments,
     Sleeving,
     Tape,
+    Tolerances,
     Varnish,
     Wire,
 )
@@ -72,21 +78,23 @@ def resolve_catalog_dir(explicit: str | os.PathLike | None = None) -> Path:
 
 # ----------------------------------------------------------------------------------------------
 
-def _pct(r: Reader, key: str, default=None) -> Decimal:
-    """A fraction written '45 %' (or a plain number 0.45), kept as Decimal."""
+_NO_DEFAULT = object()
+
+
+def _pct(r: Reader, key: str, default=None, maximum: Decimal = Decimal(10)) -> Decimal:
+    """A fraction written '45 %' (or a plain number 0.45), kept as Decimal, from 0 to ``maximum``."""
+    from decimal import InvalidOperation
+
     value = r.raw(key, default)
     if value is default and default is not None:
         return Decimal(str(default))
     text = str(value).strip()
     try:
-        if text.endswith("%"):
-            out = Decimal(text[:-1].strip()) / Decimal(100)
-        else:
-            out = Decimal(text)
-    except Exception:
+        out = Decimal(text[:-1].strip()) / Decimal(100) if text.endswith("%") else Decimal(text)
+    except InvalidOperation:
         raise r.error(f"expected a percentage like '45 %', got '{value}'", key) from None
-    if not out.is_finite() or out < 0 or out > 10:
-        raise r.error(f"expected a percentage like '45 %', got '{value}'", key)
+    if not out.is_finite() or out < 0 or out > maximum:
+        raise r.error(f"expected a percentage from 0 to {(maximum * 100).normalize():f} %, got '{value}'", key)
     return out
 
 
@@ -181,6 +189,11 @@ def _material(r: Reader) -> Material:
         raise st.error("f_max is below f_min", "f_max")
     if out["b_r_t"] > out["b_sat_25c_t"]:
         raise r.error("remanence is above saturation", "b_r")
+    if out["family"] == "ferrite" and out["curie_c"] < FERRITE_CURIE_MIN_C:
+        # power ferrites lose their magnetism at the Curie point; below 100 degC a part would
+        # fail in ordinary service, so such a figure is a slip (of unit or of digit)
+        raise r.error(f"a ferrite's Curie point of {out['curie_c']:g} degC is below {FERRITE_CURIE_MIN_C:g} degC; "
+                      "power ferrites lie far above (common practice: 150-300 degC)", "curie")
     ro = r.mapping("rolloff", None)
     if ro is not None:
         out.update(rolloff_a=ro.number("a", minimum=0.01), rolloff_b=ro.number("b", minimum=0.0),
@@ -204,10 +217,10 @@ def _core(r: Reader) -> Core:
         raise r.error(f"expected one of {', '.join(CORE_SHAPES)}; got '{r.data.get('shape')}'", "shape")
     d = r.mapping("dims")
     need, optional = CORE_DIMS[shape]
-    dims = {k: d.quantity(k, "length") for k in need}
+    dims = {k: d.quantity(k, "length", maximum=MAX_DIMENSION_M) for k in need}
     for k in optional:
         if d.has(k):
-            dims[k] = d.quantity(k, "length")
+            dims[k] = d.quantity(k, "length", maximum=MAX_DIMENSION_M)
     if shape == "RM":
         dims["ring_fraction"] = d.number("ring_fraction", 0.6, minimum=0.1, maximum=1.0)
     elif shape == "POT":
@@ -220,7 +233,7 @@ def _core(r: Reader) -> Core:
         if not raw_stacks:
             raise r.error("needs at least one stack height", "stacks")
         sr = Reader({f"stacks[{i}]": v for i, v in enumerate(raw_stacks)}, r.file, r.path, r.line_of("stacks"))
-        stacks = tuple(sr.quantity(f"stacks[{i}]", "length") for i in range(len(raw_stacks)))
+        stacks = tuple(sr.quantity(f"stacks[{i}]", "length", maximum=MAX_DIMENSION_M) for i in range(len(raw_stacks)))
     ov = r.mapping("override", None)
     override = {}
     if ov is not None:
@@ -265,25 +278,28 @@ def _check_core_dims(shape: str, dims: dict, d: Reader) -> None:
 
 def _bobbin(r: Reader) -> Bobbin:
     shape = r.choice("shape", ("rect", "round"))
-    tube_w = r.quantity("tube_width", "length")
-    tube_d = r.quantity("tube_depth", "length", tube_w) if shape == "rect" else tube_w
+    tube_w = r.quantity("tube_width", "length", maximum=MAX_DIMENSION_M)
+    tube_d = r.quantity("tube_depth", "length", tube_w, maximum=MAX_DIMENSION_M) if shape == "rect" else tube_w
     if shape == "round":
         r.raw("tube_depth", None)
     pins_raw = r.raw("pins")
     if isinstance(pins_raw, list):
         pins = tuple(str(p).strip() for p in pins_raw)
+        if not pins:
+            raise r.error("a bobbin has at least one pin (the windings start and finish on pins)", "pins")
         if len(set(pins)) != len(pins):
             raise r.error("pin names repeat", "pins")
     else:
-        n = r.integer("pins", minimum=0, maximum=200)
+        n = r.integer("pins", minimum=1, maximum=200)
         pins = tuple(str(i) for i in range(1, n + 1))
     b = Bobbin(
         id=r.text("id"), core=r.text("core"), shape=shape, tube_width_m=tube_w, tube_depth_m=tube_d,
-        breadth_m=r.quantity("breadth", "length"), height_m=r.quantity("height", "length"),
+        breadth_m=r.quantity("breadth", "length", maximum=MAX_DIMENSION_M),
+        height_m=r.quantity("height", "length", maximum=MAX_DIMENSION_M),
         pins=pins, pin_pitch_m=r.quantity("pin_pitch", "length", 0.005),
         pin_rows=r.integer("pin_rows", 2 if len(pins) > 4 else 1, minimum=1, maximum=2),
         sections=r.integer("sections", 1, minimum=1, maximum=4), thermal_class_c=_thermal_class(r),
-        price=r.decimal("price"), source=r.text("source"), stack_m=r.quantity("stack", "length", None),
+        price=r.decimal("price"), source=r.text("source"), stack_m=r.quantity("stack", "length", None, maximum=MAX_DIMENSION_M),
         clips=r.integer("clips", 0, minimum=0, maximum=8), raw=_plain(r.data),
     )
     r.done()
@@ -318,53 +334,128 @@ def _varnish(r: Reader) -> Varnish:
     return v
 
 
-def _shop(r: Reader) -> Shop:
-    cd = r.mapping("current_density")
-    densities = {str(k): cd.quantity(k, "current_density") for k in cd.data}
-    if "natural" not in densities:
-        raise cd.error("needs at least the 'natural' cooling case")
-    hp = r.mapping("hipot")
-    hipot = {
-        "functional_v": hp.quantity("functional", "voltage", 500.0),
-        "basic_v": hp.quantity("basic", "voltage"),
-        "supplementary_v": hp.quantity("supplementary", "voltage", None),
-        "reinforced_v": hp.quantity("reinforced", "voltage"),
-        "type_duration_s": hp.quantity("type_duration", "time", 60.0),
-        "routine_factor": hp.number("routine_factor", 1.2, minimum=1.0, maximum=2.0),
-        "routine_duration_s": hp.quantity("routine_duration", "time", 1.0),
-        "trip_current_a": hp.quantity("trip_current", "current", 0.005),
-    }
-    if hipot["supplementary_v"] is None:
-        hipot["supplementary_v"] = hipot["basic_v"]
+#: The largest dimension a catalogue core, bobbin or stack may have (a guard against a slip of the
+#: unit such as 1e300 mm or 400 m; the shop's largest cores are a few hundred millimetres).
+MAX_DIMENSION_M = 2.0
+#: The lowest Curie point a ferrite may have (common practice: MnZn and NiZn power ferrites 150-300 degC).
+FERRITE_CURIE_MIN_C = 100.0
+
+
+def _current_densities(cd: Reader) -> CurrentDensities:
+    def j(key: str, default=None):
+        return cd.quantity(key, "current_density", default, minimum=0.1e6, maximum=50e6)
+
+    out = CurrentDensities(natural=j("natural"), forced=j("forced", None), potted=j("potted", None))
+    cd.done()
+    return out
+
+
+def _hipot(hp: Reader) -> HipotFigures:
+    def volts(key: str, default=_NO_DEFAULT):
+        args = () if default is _NO_DEFAULT else (default,)
+        return hp.quantity(key, "voltage", *args, minimum=50.0, maximum=100e3)
+
+    basic = volts("basic")
+    supplementary = volts("supplementary", None)
+    out = HipotFigures(
+        functional_v=volts("functional", 500.0), basic_v=basic,
+        supplementary_v=basic if supplementary is None else supplementary, reinforced_v=volts("reinforced"),
+        type_duration_s=hp.quantity("type_duration", "time", 60.0, minimum=0.1, maximum=3600.0),
+        routine_factor=hp.number("routine_factor", 1.2, minimum=1.0, maximum=2.0),
+        routine_duration_s=hp.quantity("routine_duration", "time", 1.0, minimum=0.1, maximum=3600.0),
+        trip_current_a=hp.quantity("trip_current", "current", 0.005, minimum=1e-5, maximum=1.0),
+    )
     hp.done()
+    if out.reinforced_v < out.basic_v:
+        raise hp.error("reinforced insulation is tested at no less than basic", "reinforced")
+    return out
+
+
+def _labor(lb: Reader) -> LaborFigures:
+    """The quote's time model, typed and range-checked here so `catalog check` sees every bad figure."""
+    from decimal import Decimal as D
+
+    def num(key: str, minimum: float, maximum: float) -> Decimal:
+        return D(repr(lb.number(key, minimum=minimum, maximum=maximum)))
+
+    def secs(key: str) -> Decimal:
+        # one operation of one unit: up to a shift (8 h); anything longer is a slip of the unit
+        return D(repr(lb.quantity(key, "time", allow_zero=True, maximum=8 * 3600.0)))
+
+    out = LaborFigures(
+        bobbin_turns_per_minute=num("bobbin_turns_per_minute", 1.0, 20000.0),
+        toroid_turns_per_minute=num("toroid_turns_per_minute", 1.0, 5000.0),
+        fine_wire_below_m=lb.quantity("fine_wire_below", "length", allow_zero=True, maximum=0.005),
+        fine_wire_factor=num("fine_wire_factor", 1.0, 20.0),
+        heavy_wire_above_m=lb.quantity("heavy_wire_above", "length", maximum=0.05),
+        heavy_wire_factor=num("heavy_wire_factor", 1.0, 20.0),
+        litz_factor=num("litz_factor", 1.0, 20.0),
+        per_winding_s=secs("per_winding"), per_layer_tape_s=secs("per_layer_tape"),
+        per_termination_s=secs("per_termination"), core_assembly_s=secs("core_assembly"),
+        per_lamination_s=secs("per_lamination"), impregnation_s=secs("impregnation"), test_s=secs("test"),
+    )
+    lb.done()
+    if out.fine_wire_below_m >= out.heavy_wire_above_m:
+        raise lb.error("fine wire must be thinner than heavy wire", "fine_wire_below")
+    return out
+
+
+_FORMAT_LITERAL = re.compile(r"[A-Za-z0-9._-]*")
+
+
+def _work_order_format(r: Reader) -> str:
+    """The work-order number format: {year}, {seq} (required) and {part}; literal text file-name safe."""
+    import string
+
+    fmt = r.text("work_order_format", "WO-{year}-{seq:05d}", max_len=60)
+    try:
+        fields = [(lit, name) for lit, name, _spec, _conv in string.Formatter().parse(fmt)]
+        fmt.format(year=2026, seq=1, part="X")
+    except (KeyError, IndexError, ValueError, AttributeError):
+        raise r.error("work-order format may use only {year}, {seq} and {part}", "work_order_format") from None
+    names = {name for _lit, name in fields if name is not None}
+    if "seq" not in names:
+        raise r.error("work-order format needs the {seq} field (the register's running number)", "work_order_format")
+    literal = "".join(lit for lit, _name in fields)
+    if ".." in literal or not _FORMAT_LITERAL.fullmatch(literal):
+        raise r.error("work-order format may hold letters, digits, '.', '_' and '-' around its fields (the number "
+                      "names the work order's files)", "work_order_format")
+    return fmt
+
+
+def _shop(r: Reader) -> Shop:
+    densities = _current_densities(r.mapping("current_density"))
+    hipot = _hipot(r.mapping("hipot"))
     ir = r.mapping("insulation_resistance")
-    insulation_resistance = {"voltage_v": ir.quantity("voltage", "voltage"),
-                             "minimum_ohm": ir.quantity("minimum", "resistance")}
+    insulation_resistance = InsulationResistanceFigures(
+        voltage_v=ir.quantity("voltage", "voltage", minimum=10.0, maximum=20e3),
+        minimum_ohm=ir.quantity("minimum", "resistance", minimum=1e3, maximum=1e15))
     ir.done()
     tol = r.mapping("tolerances")
-    tolerances = {k: float(_pct(tol, k)) for k in ("dcr", "ratio", "inductance", "open_circuit_voltage")}
+    tolerances = Tolerances(**{k: float(_pct(tol, k, maximum=Decimal("0.5")))
+                               for k in ("dcr", "ratio", "inductance", "open_circuit_voltage")})
     tol.done()
-    fmt = r.text("work_order_format", "WO-{year}-{seq:05d}")
-    try:
-        fmt.format(year=2026, seq=1, part="X")
-    except (KeyError, IndexError, ValueError):
-        raise r.error("work-order format may use only {year}, {seq} and {part}", "work_order_format") from None
-    labor = r.mapping("labor")
+    fmt = _work_order_format(r)
+    labor = _labor(r.mapping("labor"))
     documents = _shop_documents(r)
+    margin = _pct(r, "margin")
+    if margin >= 1:
+        raise r.error(f"a margin of {(margin * 100).normalize():f} % leaves no price (cost / (1 - margin)); "
+                      "it must be below 100 %", "margin")
     shop = Shop(
         name=r.text("name"), currency=r.text("currency", "USD"), labor_rate=r.decimal("labor_rate"),
-        overhead=_pct(r, "overhead"), margin=_pct(r, "margin"),
-        setup_time_s=r.quantity("setup_time", "time", allow_zero=True), scrap_wire=_pct(r, "scrap_wire"),
+        overhead=_pct(r, "overhead"), margin=margin,
+        setup_time_s=r.quantity("setup_time", "time", allow_zero=True, maximum=7 * 24 * 3600.0),
+        scrap_wire=_pct(r, "scrap_wire", maximum=Decimal(1)),
         current_density_a_m2=densities, bulge_factor=r.number("bulge_factor", 1.12, minimum=1.0, maximum=1.6),
-        lead_length_m=r.quantity("lead_length", "length", 0.1, allow_zero=True),
+        lead_length_m=r.quantity("lead_length", "length", 0.1, allow_zero=True, maximum=MAX_DIMENSION_M),
         flux_limit_fraction=r.number("flux_limit_fraction", 0.8, minimum=0.3, maximum=1.0),
-        hotspot_margin_k=r.quantity("hotspot_margin", "temperature_difference", 10.0, allow_zero=True),
+        hotspot_margin_k=r.quantity("hotspot_margin", "temperature_difference", 10.0, allow_zero=True, maximum=100.0),
         work_order_format=fmt, hipot=hipot, insulation_resistance=insulation_resistance,
-        tolerances=tolerances, labor={"data": labor.data, "file": labor.file, "path": labor.path},
+        tolerances=tolerances, labor=labor,
         source=r.text("source"), register_path=r.text("register", None), documents=documents,
         raw={k: v for k, v in _plain(r.data).items() if k not in DOCUMENT_KEYS},
     )
-    labor._seen.update(labor.data.keys())   # the quote module reads and checks these
     r.done()
     return shop
 
@@ -523,7 +614,15 @@ def _cross_check(tables: dict, locations: dict, problems: list | None) -> None:
     for core in tables["cores"].values():
         if core.material not in tables["materials"]:
             fail(core.id, "material", f"unknown material '{core.material}'")
+    seen: dict = {}
     for bob in tables["bobbins"].values():
+        key = (bob.core, None if bob.stack_m is None else round(bob.stack_m, 6), bob.sections)
+        if key in seen:
+            stack = "" if bob.stack_m is None else f" at stack {bob.stack_m * 1e3:g} mm"
+            fail(bob.id, "core", f"a second {bob.sections}-section bobbin for core '{bob.core}'{stack} (first: "
+                                 f"'{seen[key]}'); the design picks one bobbin per core, stack and sections")
+            continue
+        seen[key] = bob.id
         core = tables["cores"].get(bob.core)
         if core is None:
             fail(bob.id, "core", f"unknown core '{bob.core}'")
@@ -534,7 +633,7 @@ def _cross_check(tables: dict, locations: dict, problems: list | None) -> None:
         try:
             breadth = geometry.window_breadth_m(core.shape, core.dims)
             height = geometry.window_height_m(core.shape, core.dims)
-        except Exception as exc:  # a shape the geometry cannot size is a catalogue problem, not a crash
+        except (ValueError, ZeroDivisionError, KeyError) as exc:   # a shape the geometry cannot size
             fail(core.id, "dims", f"cannot size the window: {exc}")
             continue
         if bob.breadth_m > breadth + 1e-9:

@@ -182,6 +182,93 @@ class Varnish:
     raw: dict = field(default_factory=dict, compare=False, repr=False)
 
 
+# ----------------------------------------------------------------------------------------------
+# The shop's figures, typed and range-checked when the catalogue loads (catalog.loader._shop)
+
+
+class _ByKey:
+    """Read-only ``figures["key"]`` access to the fields, for callers written against the old
+    dict form (the design and search modules read ``shop.hipot["basic_v"]``); new code uses the
+    attributes."""
+
+    __slots__ = ()
+
+    def __getitem__(self, key: str) -> Any:
+        if key not in self.__dataclass_fields__:  # type: ignore[attr-defined]
+            raise KeyError(key)
+        return getattr(self, key)
+
+    def get(self, key: str, default: Any = None) -> Any:
+        value = getattr(self, key, None) if key in self.__dataclass_fields__ else None  # type: ignore[attr-defined]
+        return default if value is None else value
+
+
+@dataclass(frozen=True, slots=True)
+class CurrentDensities(_ByKey):
+    """Design current density [A/m^2] per cooling case (``natural`` is required; the others fall back to it)."""
+
+    natural: float
+    forced: float | None = None
+    potted: float | None = None
+
+    def for_cooling(self, cooling: str) -> float:
+        value = getattr(self, cooling, None) if cooling in self.__dataclass_fields__ else None
+        return self.natural if value is None else float(value)
+
+
+@dataclass(frozen=True, slots=True)
+class HipotFigures(_ByKey):
+    """Dielectric (hipot) test figures: type-test voltages per insulation rating, durations, trip."""
+
+    functional_v: float
+    basic_v: float
+    supplementary_v: float
+    reinforced_v: float
+    type_duration_s: float
+    routine_factor: float             # routine test voltage = this x the type-test voltage
+    routine_duration_s: float
+    trip_current_a: float
+
+
+@dataclass(frozen=True, slots=True)
+class InsulationResistanceFigures(_ByKey):
+    voltage_v: float                  # d.c. test voltage
+    minimum_ohm: float
+
+
+@dataclass(frozen=True, slots=True)
+class Tolerances(_ByKey):
+    """Test limits as fractions of the nominal (0.1 = +-10 %)."""
+
+    dcr: float
+    ratio: float
+    inductance: float
+    open_circuit_voltage: float
+
+
+@dataclass(frozen=True, slots=True)
+class LaborFigures:
+    """The quote's time model (shop.yaml ``labor``): winder speeds, factors, times in seconds.
+
+    Decimal where the quote multiplies money by it, floats for the wire-size thresholds.
+    """
+
+    bobbin_turns_per_minute: Decimal
+    toroid_turns_per_minute: Decimal
+    fine_wire_below_m: float
+    fine_wire_factor: Decimal
+    heavy_wire_above_m: float
+    heavy_wire_factor: Decimal
+    litz_factor: Decimal
+    per_winding_s: Decimal
+    per_layer_tape_s: Decimal
+    per_termination_s: Decimal
+    core_assembly_s: Decimal
+    per_lamination_s: Decimal
+    impregnation_s: Decimal
+    test_s: Decimal
+
+
 @dataclass(frozen=True)
 class Shop:
     name: str
@@ -191,16 +278,16 @@ class Shop:
     margin: Decimal                # fraction
     setup_time_s: float            # per lot
     scrap_wire: Decimal            # fraction of wire
-    current_density_a_m2: dict     # cooling -> A/m^2
+    current_density_a_m2: CurrentDensities   # cooling -> A/m^2
     bulge_factor: float
     lead_length_m: float           # each lead, beyond the pin
     flux_limit_fraction: float     # default B limit = fraction x B_sat at hot spot
     hotspot_margin_k: float        # hot spot above the average winding temperature (common practice)
     work_order_format: str
-    hipot: dict                    # see shop.yaml: basic/reinforced voltages, durations, trip current
-    insulation_resistance: dict    # test voltage, minimum resistance
-    tolerances: dict               # dcr, ratio, inductance (fractions)
-    labor: dict                    # the quote's time model (seconds), read by the quote module
+    hipot: HipotFigures            # see shop.yaml: basic/reinforced voltages, durations, trip current
+    insulation_resistance: InsulationResistanceFigures   # test voltage, minimum resistance
+    tolerances: Tolerances         # dcr, ratio, inductance (fractions)
+    labor: LaborFigures            # the quote's time model
     source: str
     register_path: str | None = None   # the work-order register, if the shop keeps one fixed place
     raw: dict = field(default_factory=dict, compare=False, repr=False)
