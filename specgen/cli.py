@@ -14,19 +14,13 @@ import typer
 
 from . import __version__
 from .commands._common import guarded, print_json
+from .commands.options import CatalogOpt, JsonOpt
 from .errors import SpecError
 
 # rich_markup_mode=None: plain help, so the quick commands do not import rich (~50 ms)
 app = typer.Typer(name="specgen", no_args_is_help=True, add_completion=False, pretty_exceptions_enable=False,
                   rich_markup_mode=None,
                   help="Specs, calculations, work orders and quotes for custom wound magnetics.")
-catalog_app = typer.Typer(name="catalog", no_args_is_help=True, rich_markup_mode=None,
-                          help="The shop's stock: list, show, check.")
-app.add_typer(catalog_app)
-
-CatalogOpt = typer.Option(None, "--catalog", envvar="SPECGEN_CATALOG", metavar="DIR",
-                          help="Catalogue folder (default: the one shipped with specgen).")
-JsonOpt = typer.Option(False, "--json", help="Print the result as JSON.")
 
 
 def _version(value: bool):
@@ -41,68 +35,6 @@ def _root(version: bool = typer.Option(False, "--version", callback=_version, is
     """specgen: one YAML spec per part + the shop's catalogue -> design, work orders, quotes, change summaries."""
 
 
-# ------------------------------------------------------------------------------------------------ catalog
-
-KINDS = {"wires": "wires", "wire": "wires", "cores": "cores", "core": "cores", "bobbins": "bobbins",
-         "bobbin": "bobbins", "materials": "materials", "material": "materials", "tapes": "tapes",
-         "tape": "tapes", "sleevings": "sleevings", "sleeving": "sleevings", "varnishes": "varnishes",
-         "varnish": "varnishes"}
-
-
-@catalog_app.command("list")
-@guarded
-def catalog_list(kind: str = typer.Argument(..., help="wires, cores, bobbins, materials, tapes, sleevings, varnishes"),
-                 catalog: Path | None = CatalogOpt, as_json: bool = JsonOpt):
-    """List one kind of catalogue item."""
-    from .catalog import views
-    from .catalog.loader import load_catalog
-
-    table = KINDS.get(kind.lower())
-    if table is None:
-        raise SpecError(f"unknown kind '{kind}'; one of {', '.join(sorted(set(KINDS.values())))}", path="KIND")
-    cat = load_catalog(catalog)
-    rows = views.rows(cat, table)
-    if as_json:
-        print_json(rows)
-    else:
-        typer.echo(views.text_table(rows))
-
-
-@catalog_app.command("show")
-@guarded
-def catalog_show(item_id: str = typer.Argument(..., metavar="ID"), catalog: Path | None = CatalogOpt,
-                 as_json: bool = JsonOpt):
-    """Show one catalogue item with its computed properties and source."""
-    from .catalog import views
-    from .catalog.loader import load_catalog
-
-    cat = load_catalog(catalog)
-    info = views.show(cat, item_id)
-    if as_json:
-        print_json(info)
-    else:
-        typer.echo(views.text_show(info))
-
-
-@catalog_app.command("check")
-@guarded
-def catalog_check(folder: Path | None = typer.Argument(None, metavar="[DIR]"),
-                  catalog: Path | None = CatalogOpt):
-    """Validate a catalogue folder; every problem with its file and line (exit 2 if any)."""
-    from .catalog.loader import check_catalog, resolve_catalog_dir
-
-    target = folder or catalog
-    resolve_catalog_dir(target)        # a missing folder is one line, not a problem list
-    problems = check_catalog(target)
-    if problems:
-        for p in problems:
-            typer.echo(str(p), err=True)
-        typer.echo(f"{len(problems)} problem(s) in {resolve_catalog_dir(target) if target else 'the catalogue'}",
-                   err=True)
-        raise typer.Exit(2)
-    typer.echo(f"catalogue {resolve_catalog_dir(target)}: no problems")
-
-
 # ------------------------------------------------------------------------------------------------ design
 
 @app.command("design")
@@ -110,10 +42,10 @@ def catalog_check(folder: Path | None = typer.Argument(None, metavar="[DIR]"),
 def design_cmd(spec: Path = typer.Argument(..., metavar="SPEC.yaml"), catalog: Path | None = CatalogOpt,
                as_json: bool = JsonOpt):
     """Run the whole calculation for one part and print it (exit 1 if a check fails)."""
-    from .api import design_file
+    from . import run_design
     from .report import design_report
 
-    d = design_file(spec, catalog)
+    d = run_design(spec, catalog)
     if as_json:
         print_json(d.to_dict())
     else:
@@ -133,8 +65,8 @@ def demo_cmd(out: Path = typer.Option(Path("specgen-demo"), "--out", metavar="DI
     run_demo(out, catalog, echo=typer.echo)
 
 
-# commands that live in their own modules (work orders, register, quotes, revisions, search)
-for _name in ("orders", "workorder", "quote", "revision_cmds", "search"):
+# commands that live in their own modules (catalogue, work orders, register, quotes, revisions, search)
+for _name in ("catalog", "orders", "workorder", "quote", "revision_cmds", "search"):
     _mod = importlib.import_module(f"specgen.commands.{_name}")
     if hasattr(_mod, "register"):
         _mod.register(app)

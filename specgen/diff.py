@@ -14,10 +14,10 @@ from __future__ import annotations
 
 from collections.abc import Callable, Iterable, Mapping
 from dataclasses import dataclass
-from decimal import ROUND_HALF_UP, Decimal
+from decimal import Decimal
 from typing import Any
 
-from . import revision
+from . import present, revision
 from .errors import DesignFailed, SpecError
 from .lifecycle import Loaded, load_design
 
@@ -230,69 +230,9 @@ def input_changes(old_data: Mapping, new_data: Mapping) -> list[InputChange]:
 
 # -- shop-floor results --
 
-def _sig(v: float, digits: int = 4) -> str:
-    text = f"{v:.{digits}g}"
-    if "e" in text:                   # 1.2e+04 is not how a shop writes 12000
-        text = f"{v:.{max(0, digits - 1 - int(f'{abs(v):e}'.split('e')[1]))}f}"
-    return text
-
-
 def fmt(v: Any, unit: str) -> str:
-    """A result in shop units: ohm -> mΩ/Ω, H -> µH/mH, m (build) -> mm, l -> ml, ...
-
-    ``unit`` is the SI unit of ``v`` or one of: 'count', 'text', 'mm' (v in m, shown in mm),
-    'pct' (v in %), 'frac' (a 0..1 fraction shown in %), 'degC', 's'.
-    """
-    if v is None:
-        return "-"
-    if unit in ("text", "count") or isinstance(v, str):
-        return str(v)
-    if unit == "ohm":
-        return f"{_sig(v * 1e3)} mΩ" if abs(v) < 1 else f"{_sig(v)} Ω"
-    if unit == "H":
-        if abs(v) < 1e-3:
-            return f"{_sig(v * 1e6)} µH"
-        return f"{_sig(v * 1e3)} mH" if abs(v) < 1 else f"{_sig(v)} H"
-    if unit == "mm":
-        return f"{v * 1e3:.3f} mm"
-    if unit == "m":
-        return f"{_sig(v)} m"
-    if unit == "V":
-        return f"{_sig(v)} V"
-    if unit == "A":
-        return f"{_sig(v * 1e3)} mA" if abs(v) < 1 else f"{_sig(v)} A"
-    if unit == "T":
-        return f"{v:.3f} T"
-    if unit == "W":
-        return f"{_sig(v)} W"
-    if unit == "degC":
-        return f"{v:.1f} °C"
-    if unit == "K":
-        return f"{v:.1f} K"
-    if unit == "s":
-        return f"{_sig(float(v))} s"
-    if unit == "pct":
-        return f"{v:.2f} %"
-    if unit == "frac":
-        return f"{v * 100:.2f} %"
-    if unit == "kg":
-        return f"{_sig(v * 1e3)} g" if abs(v) < 1 else f"{_sig(v)} kg"
-    if unit == "l":
-        return f"{_sig(v * 1e3, 3)} ml" if abs(v) < 1 else f"{_sig(v, 3)} l"
-    if unit == "m2":
-        return f"{_sig(v * 1e4, 3)} cm²"
-    if unit == "nH":
-        return f"{_sig(v)} nH"
-    if unit == "H/turn2":
-        return f"{_sig(v * 1e9)} nH"
-    if unit.startswith("money"):
-        cur = unit[len("money"):].strip()
-        return f"{cur} {Decimal(v).quantize(Decimal('0.01'), ROUND_HALF_UP):,}".strip()
-    if unit in ("pcs", "sets"):
-        return f"{v:g} {unit}"
-    if unit == ":1":
-        return f"{_sig(v)} : 1"
-    return f"{_sig(v)} {unit}"
+    """A result in shop units (``specgen.present.quantity``): ohm -> mΩ/Ω, H -> µH/mH, m -> mm, ..."""
+    return present.quantity(v, unit)
 
 
 def _limit_rows(prefix: str, lim) -> list:
@@ -480,12 +420,7 @@ def compare_refs(old_ref: str, new_ref: str, cat, costs: CostFunction | None | s
 # -- text --
 
 def _table(headers: list[str], rows: list[list[str]]) -> list[str]:
-    widths = [max(len(str(r[i])) for r in [headers] + rows) for i in range(len(headers))]
-    lines = ["  " + "  ".join(str(h).ljust(w) for h, w in zip(headers, widths)).rstrip(),
-             "  " + "  ".join("-" * w for w in widths)]
-    for r in rows:
-        lines.append("  " + "  ".join(str(c).ljust(w) for c, w in zip(r, widths)).rstrip())
-    return lines
+    return present.table(headers, rows).split("\n")
 
 
 def _cut(text: str, width: int = 48) -> str:

@@ -2,33 +2,18 @@
 
 from __future__ import annotations
 
+from . import present
 from .design.result import Design
 from .standards.thermal_classes import class_label
 
 
 def _table(headers: list, rows: list, align: str | None = None) -> str:
-    has_header = any(str(h) for h in headers)
-    cells = ([[str(h) for h in headers]] if has_header else []) + \
-        [[("" if c is None else str(c)) for c in r] for r in rows]
-    widths = [max(len(row[i]) for row in cells) for i in range(len(headers))]
-    align = align or ("l" + "r" * (len(headers) - 1))
-    lines = []
-    for n, row in enumerate(cells):
-        parts = [c.ljust(w) if a == "l" else c.rjust(w) for c, w, a in zip(row, widths, align)]
-        lines.append("  " + "  ".join(parts).rstrip())
-        if n == 0 and has_header:
-            lines.append("  " + "  ".join("-" * w for w in widths))
-    return "\n".join(lines)
+    return present.table(headers, rows, align or ("l" + "r" * (len(headers) - 1)))
 
 
 def freq(hz: float) -> str:
-    return f"{hz / 1e3:g} kHz" if hz >= 1e3 else f"{hz:g} Hz"
-
-
-def _si(v, unit: str, scale: float = 1.0, digits: int = 4) -> str:
-    if v is None:
-        return "-"
-    return f"{v / scale:.{digits}g} {unit}"
+    """'50 Hz', '100 kHz' (``specgen.present.si``, trailing zeros dropped)."""
+    return present.si(hz, "Hz", keep_zeros=False)
 
 
 def waveform_text(d: Design) -> str:
@@ -67,23 +52,22 @@ def design_report(d: Design) -> str:
         ["H_pk = N I / le", f"{d.h_peak_a_m:.4g} A/m"],
     ]
     if d.magnetizing_current_a is not None:
-        core_rows.append(["magnetizing", f"{d.magnetizing_current_a * 1e3:.4g} mA rms, "
-                                         f"L_m {d.magnetizing_inductance_h:.4g} H"])
+        core_rows.append(["magnetizing", f"{present.si(d.magnetizing_current_a, 'A')} rms, "
+                                         f"L_m {present.si(d.magnetizing_inductance_h, 'H')}"])
     if d.leakage_inductance_h:
         lk = d.leakage_inductance_h
-        core_rows.append(["leakage", (f"{lk * 1e6:.4g} µH" if lk < 1e-3 else f"{lk * 1e3:.4g} mH")
-                          + " referred to the primary, secondaries shorted"])
+        core_rows.append(["leakage", f"{present.si(lk, 'H')} referred to the primary, secondaries shorted"])
     if d.inductor is not None:
         i = d.inductor
         core_rows += [
-            ["inductance", f"{i.inductance_h * 1e6:.4g} µH built (target {i.target_h * 1e6:.4g} µH); "
-                           f"{i.inductance_zero_bias_h * 1e6:.4g} µH at no bias"],
+            ["inductance", f"{present.si(i.inductance_h, 'H')} built (target {present.si(i.target_h, 'H')}); "
+                           f"{present.si(i.inductance_zero_bias_h, 'H')} at no bias"],
             ["gap", "none" if not i.gap_m else
              f"{i.gap_m * 1e3:.2f} mm, {i.gap_arrangement}"
              + (f" (spacer {i.spacer_m * 1e3:.2f} mm in every leg)" if i.spacer_m else "")
              + (f" (grind centre leg {i.grind_m * 1e3:.2f} mm)" if i.grind_m else "")
              + f", fringing F {i.fringing_factor:.3f}"],
-            ["AL, energy", f"{i.al_nh:.4g} nH/turn², {i.energy_j * 1e3:.4g} mJ"],
+            ["AL, energy", f"{present.si(i.al_nh * 1e-9, 'H')}/turn², {present.si(i.energy_j, 'J')}"],
             ["DC bias", f"H_dc {i.h_dc_a_m:.4g} A/m, roll-off {i.rolloff_pct:.1f} %"],
             ["current", f"{i.current_dc_a:g} A, ripple {i.ripple_a:g} A p-p, peak {i.current_peak_a:g} A; "
                         f"ΔB {i.delta_b_t * 1e3:.1f} mT"],

@@ -292,7 +292,7 @@ def test_demo_change_summary(tmp_path, git_env, cat, monkeypatch):
 
     from pypdf import PdfReader
 
-    from specgen.documents.change_doc import demo_change_summary
+    from specgen.demo.run import demo_change_summary
 
     scratch = tmp_path / "scratch"
     scratch.mkdir()
@@ -312,11 +312,11 @@ def test_demo_change_summary(tmp_path, git_env, cat, monkeypatch):
 
 
 def test_demo_change_summary_without_git(tmp_path, monkeypatch, cat):
-    from specgen.documents import change_doc
+    from specgen.demo import run as demo_run
 
-    monkeypatch.setattr(change_doc.shutil, "which", lambda name: None)
+    monkeypatch.setattr(demo_run.shutil, "which", lambda name: None)
     said = []
-    assert change_doc.demo_change_summary(tmp_path, cat, said.append) is None
+    assert demo_run.demo_change_summary(tmp_path, cat, said.append) is None
     assert "git is not installed" in said[0]
     assert list(tmp_path.iterdir()) == []
 

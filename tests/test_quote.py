@@ -483,7 +483,7 @@ def test_json_quote_does_not_import_weasyprint():
 
 
 def test_demo_quotes_writes_one_pdf_per_part(cat, designs, tmp_path):
-    from specgen.documents.quote_doc import demo_quotes
+    from specgen.demo.run import demo_quotes
 
     said: list = []
     quotes = demo_quotes(designs, cat, tmp_path, echo=said.append)

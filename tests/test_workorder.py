@@ -29,6 +29,7 @@ from typer.testing import CliRunner
 from specgen import api
 from specgen.catalog.loader import load_catalog
 from specgen.cli import app
+from specgen.demo import run as demo_run
 from specgen.design.spec import load_spec
 from specgen.documents import render
 from specgen.documents import workorder as wo
@@ -358,7 +359,7 @@ def test_demo_workorders_one_per_part(tmp_path, cat):
     spec = load_spec(spec_path)
     designs = {spec.part: (spec_path, spec, api.run_design(spec, cat))}
     lines = []
-    done = wo.demo_workorders(designs, tmp_path, None, lines.append, cat=cat)
+    done = demo_run.demo_workorders(designs, tmp_path, None, lines.append, cat=cat)
     assert len(done) == 1 and done[0].pdf.exists() and done[0].html.exists()
     (order,) = _orders(tmp_path / "specgen-register.sqlite")
     assert order.qty == 50 and order.lot == "DEMO-BH-5018" and order.state == "issued"

@@ -42,16 +42,13 @@ def rows(cat, table: str) -> list:
 
 
 def text_table(items: list) -> str:
+    """Rows (dicts of one kind) as a plain-text table with a count line."""
+    from ..present import table
+
     if not items:
         return "(none)"
     keys = list(items[0].keys())
-    cells = [keys] + [["" if it[k] is None else (", ".join(map(str, it[k])) if isinstance(it[k], list)
-                                                   else str(it[k])) for k in keys] for it in items]
-    widths = [max(len(r[i]) for r in cells) for i in range(len(keys))]
-    lines = ["  ".join(c.ljust(w) for c, w in zip(r, widths)).rstrip() for r in cells]
-    lines.insert(1, "  ".join("-" * w for w in widths))
-    lines.append(f"({len(items)} items)")
-    return "\n".join(lines)
+    return table(keys, [[it[k] for k in keys] for it in items], indent=0) + f"\n({len(items)} items)"
 
 
 def show(cat, item_id: str) -> dict:
@@ -87,17 +84,51 @@ def show(cat, item_id: str) -> dict:
 
         computed = {"copper_mm2": obj.copper_area_m2 * 1e6,
                     "ohm_per_km_20c": wire.resistance_per_m_ohm(obj.copper_area_m2, 20.0, obj.conductor) * 1e3,
-                    "g_per_m": wire.mass_per_m_kg(obj.copper_area_m2, obj.conductor) * 1e6}
+                    "g_per_m": wire.mass_per_m_kg(obj.copper_area_m2, obj.conductor) * 1e3}
     info["computed"] = computed
     return info
 
 
+#: Computed figures of ``show``: key -> (label, unit shown after the number).
+_COMPUTED = {"ae_mm2": ("Ae", "mm²"), "le_mm": ("le", "mm"), "ve_mm3": ("Ve", "mm³"), "wa_mm2": ("window Wa", "mm²"),
+             "at_stack_mm": ("at stack", "mm"), "method": ("method", ""), "bobbins": ("bobbins", ""),
+             "override": ("measured (replace computed)", ""), "copper_mm2": ("copper area", "mm²"),
+             "ohm_per_km_20c": ("resistance at 20 °C", "Ω/km"), "g_per_m": ("copper mass", "g/m"),
+             "error": ("cannot compute", "")}
+
+
+def _value_text(v) -> str:
+    """A catalogue value as a person reads it: mappings as 'key value, ...', lists joined, yes/no."""
+    from ..present import sig
+
+    if v is None:
+        return "-"
+    if isinstance(v, bool):
+        return "yes" if v else "no"
+    if isinstance(v, dict):
+        return ", ".join(f"{k} {_value_text(x)}" for k, x in v.items())
+    if isinstance(v, (list, tuple)):
+        return ", ".join(_value_text(x) for x in v) or "-"
+    if isinstance(v, float):
+        return sig(v, 4)
+    return str(v)
+
+
 def text_show(info: dict) -> str:
-    lines = [f"{info['id']} ({info['kind']})" + (f"  at {info['file']}" if info.get("file") else "")]
-    for k, v in info["entry"].items():
-        lines.append(f"  {k}: {v}")
+    """The item as two aligned columns: its catalogue entry, then what specgen computes from it."""
+    from ..present import table
+
+    head = f"{info['id']}  ({info['kind'][:-1] if info['kind'].endswith('s') else info['kind']})"
+    lines = [head + (f"  {info['file']}" if info.get("file") else ""), ""]
+    entry = [(k, _value_text(v)) for k, v in info["entry"].items() if k not in ("id", "source")]
+    lines.append(table(["entry", ""], entry, rule=False))
     if info["computed"]:
-        lines.append("  computed:")
+        rows = []
         for k, v in info["computed"].items():
-            lines.append(f"    {k}: {v:.5g}" if isinstance(v, float) else f"    {k}: {v}")
+            label, unit = _COMPUTED.get(k, (k, ""))
+            text = _value_text(v)
+            rows.append((label, f"{text} {unit}".strip() if v is not None else "-"))
+        lines += ["", table(["computed", ""], rows, rule=False)]
+    if info["entry"].get("source"):
+        lines += ["", f"  source: {info['entry']['source']}"]
     return "\n".join(lines)

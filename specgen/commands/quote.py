@@ -18,6 +18,7 @@ from pathlib import Path
 import typer
 
 from ._common import guarded, print_json
+from .options import CatalogOpt
 
 
 def register(app) -> None:
@@ -35,8 +36,7 @@ def register(app) -> None:
                                            help="Folder for the PDF and HTML (default: current folder)."),
         nre: str | None = typer.Option(None, "--nre", metavar="AMOUNT", help="One-time tooling / NRE charge."),
         valid_days: str = typer.Option("30", "--valid-days", metavar="N", help="Days the quote is valid."),
-        catalog: Path | None = typer.Option(None, "--catalog", envvar="SPECGEN_CATALOG", metavar="DIR",
-                                               help="Catalogue folder (default: the one shipped with specgen)."),
+        catalog: Path | None = CatalogOpt,
     ):
         """Quote a part: unit and extended price per quantity break, copper sensitivity, a PDF."""
         from ..api import run_design

@@ -13,10 +13,7 @@ import typer
 
 from ..errors import SpecError
 from ._common import guarded, print_json
-
-_CatalogOpt = typer.Option(None, "--catalog", envvar="SPECGEN_CATALOG", metavar="DIR",
-                           help="Catalogue folder (default: the one shipped with specgen).")
-_JsonOpt = typer.Option(False, "--json", help="Print the result as JSON.")
+from .options import CatalogOpt, JsonOpt
 
 
 def register(app) -> None:
@@ -32,28 +29,35 @@ def register(app) -> None:
                                            help="Release date (default: today)."),
         commit: bool = typer.Option(False, "--commit",
                                     help="Commit just this file and tag it PART-rev-X (never pushes)."),
-        catalog: Path | None = _CatalogOpt,
+        catalog: Path | None = CatalogOpt,
+        as_json: bool = JsonOpt,
     ):
         """Release a spec: refuse if a design check fails, set the next revision letter, record
         the fingerprint in its history (comments and formatting kept)."""
-        from ..catalog.loader import load_catalog
-        from ..lifecycle import release_spec
+        from .. import load_catalog, release_spec
+        from ..lifecycle import MAX_BY_CHARS, MAX_NOTE_CHARS, check_release_date, check_release_text
 
-        cat = load_catalog(catalog)
-        result = release_spec(spec, by=by, note=note, cat=cat, date=date, commit=commit)
-        typer.echo(result.message())
+        # every option checked before the catalogue is read or the file touched
+        check_release_text(by, "--by", MAX_BY_CHARS)
+        check_release_text(note, "--note", MAX_NOTE_CHARS)
+        check_release_date(date)
+        result = release_spec(spec, by=by, note=note, catalog=load_catalog(catalog), date=date, commit=commit)
+        if as_json:
+            print_json(result.to_dict())
+        else:
+            typer.echo(result.message())
 
     @app.command("verify")
     @guarded
     def verify_cmd(
         paths: list[Path] = typer.Argument(..., metavar="PATH...",
                                            help="Spec files, or folders searched for specs."),
-        catalog: Path | None = _CatalogOpt,
-        as_json: bool = _JsonOpt,
+        catalog: Path | None = CatalogOpt,
+        as_json: bool = JsonOpt,
     ):
         """Check every released spec against the fingerprint recorded at its release (for CI):
         exit 1 on a mismatch, 2 on a spec that cannot be read or designed."""
-        from ..catalog.loader import load_catalog
+        from .. import load_catalog
         from ..lifecycle import spec_files, verify_file
 
         files = spec_files(paths)
@@ -78,12 +82,12 @@ def register(app) -> None:
     def diff_cmd(
         old: str = typer.Argument(..., metavar="OLD", help="A spec file or FILE@GITREV."),
         new: str = typer.Argument(..., metavar="NEW", help="A spec file or FILE@GITREV."),
-        as_json: bool = _JsonOpt,
+        as_json: bool = JsonOpt,
         pdf: Path | None = typer.Option(None, "--pdf", metavar="FILE",
                                            help="Also write a one-page change summary PDF."),
         qty: int = typer.Option(100, "--qty", metavar="N", min=1, max=1_000_000,
                                 help="Lot size for the unit price compared (default 100)."),
-        catalog: Path | None = _CatalogOpt,
+        catalog: Path | None = CatalogOpt,
     ):
         """Compare two revisions of a spec: the changed inputs and the changed shop-floor results
         (turns, wire, layers, lengths, DCR limits, hipot, materials, cost), each old -> new."""

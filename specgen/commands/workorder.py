@@ -16,7 +16,8 @@ from pathlib import Path
 
 import typer
 
-from ._common import guarded
+from ._common import guarded, print_json
+from .options import CatalogOpt, JsonOpt
 
 
 def register(app) -> None:
@@ -45,8 +46,8 @@ def register(app) -> None:
         number: str | None = typer.Option(None, "--number", metavar="NUM",
                                              help="Use this number (from the ERP) instead of the next one."),
         by: str | None = typer.Option(None, "--by", metavar="NAME", help="Who issues it (default: login name)."),
-        catalog: Path | None = typer.Option(None, "--catalog", envvar="SPECGEN_CATALOG", metavar="DIR",
-                                               help="Catalogue folder (default: the one shipped with specgen)."),
+        catalog: Path | None = CatalogOpt,
+        as_json: bool = JsonOpt,
     ):
         """Issue a work order: winding instructions, drawings and test sheet for the floor."""
         from ..errors import SpecError
@@ -59,8 +60,16 @@ def register(app) -> None:
                 raise SpecError(f"expected 1 to 32 workers, got {workers}", path="--workers")
             from ..documents.batch import issue_batch
 
+            quiet = (lambda *a, **k: None) if as_json else typer.echo
             result = issue_batch(batch, out_dir=out, register_path=register_path, workers=workers,
-                                 catalog_dir=catalog, by=by, progress=progress, echo=typer.echo)
+                                 catalog_dir=catalog, by=by, progress=False if as_json else progress, echo=quiet)
+            if as_json:
+                print_json({"seconds": round(result.seconds, 3), "workers": result.workers,
+                            "issued": len(result.rows) - len(result.failed), "failed": len(result.failed),
+                            "rows": [{"line": r.line, "spec": r.spec, "qty": r.qty, "due": r.due or None,
+                                      "lot": r.lot or None, "number": r.number,
+                                      "pdf": None if r.pdf is None else str(r.pdf), "error": r.error}
+                                     for r in result.rows]})
             if result.failed:
                 raise typer.Exit(1)
             return
@@ -73,5 +82,10 @@ def register(app) -> None:
         issued = issue_work_order(spec, qty=qty, due=due, lot=lot, out_dir=out, draft=draft,
                                   register_path=register_path, number=number, by=by, catalog_dir=catalog,
                                   warn=lambda msg: typer.echo(f"warning: {msg}", err=True))
-        typer.echo(str(issued.pdf))
-        typer.echo(str(issued.html))
+        if as_json:
+            print_json({"number": issued.number, "pdf": str(issued.pdf), "html": str(issued.html),
+                        "register": str(issued.register), "warnings": list(issued.warnings),
+                        "seconds": round(issued.seconds, 3)})
+        else:
+            typer.echo(str(issued.pdf))
+            typer.echo(str(issued.html))

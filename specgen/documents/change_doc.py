@@ -9,19 +9,12 @@ One column that flows over as many pages as it needs; nothing is cut.
 
 Rendered through ``documents.render`` (autoescaped jinja2, the locked-down WeasyPrint fetcher);
 WeasyPrint is imported only when a PDF is written.
-
-``demo_change_summary`` is the demo's example: BH-2210 at revision B, then a revision C with one
-more primary turn, committed in a throwaway git repository and compared.
+The demo's example lives in ``specgen.demo.run``.
 """
 
 from __future__ import annotations
 
-import dataclasses
-import os
 import re
-import shutil
-import subprocess
-import tempfile
 from pathlib import Path
 
 #: The most shown of one input's old or new value (the rest is cut with an ellipsis; the JSON has it whole).
@@ -141,87 +134,3 @@ def write_change_pdf(summary, pdf_path, html_path=None, blocked: list | None = N
     from .render import write_pdf_and_html
 
     return write_pdf_and_html(change_html(summary, paper), pdf_path, html_path, blocked)
-
-
-# ----------------------------------------------------------------------------------------------
-# The demo's change summary
-
-def _git(repo: Path, *args: str) -> None:
-    env = {k: v for k, v in os.environ.items() if k not in ("GIT_DIR", "GIT_WORK_TREE", "GIT_INDEX_FILE")}
-    env.update(LC_ALL="C", GIT_TERMINAL_PROMPT="0", GIT_CONFIG_NOSYSTEM="1",
-               GIT_CONFIG_GLOBAL=os.devnull)
-    # identity and settings for this throwaway repository only, never the user's config
-    cmd = ["git", "-c", "user.name=Brindle Hollow Demo", "-c", "user.email=demo@brindle-hollow.invalid",
-           "-c", "commit.gpgsign=false", "-c", "tag.gpgsign=false", "-c", "init.defaultBranch=main",
-           *args]
-    proc = subprocess.run(cmd, cwd=repo, capture_output=True, env=env, timeout=60)
-    if proc.returncode != 0:
-        raise RuntimeError(f"git {args[0]} failed in the demo repository: "
-                           f"{proc.stderr.decode('utf-8', 'replace').strip()}")
-
-
-def _add_turns(text: str, winding: str, turns: int) -> str:
-    """Insert ``turns: N`` after the ``name:`` line of one winding (a text edit, like a person's)."""
-    m = re.search(rf"^(\s*)- name: {re.escape(winding)}[ \t]*(#.*)?\r?\n", text, flags=re.M)
-    if m is None:
-        raise ValueError(f"winding {winding} not found")
-    indent = m.group(1) + "  "
-    line = f"{indent}turns: {turns}               # fixed: one more turn than rev B calculated\n"
-    return text[:m.end()] + line + text[m.end():]
-
-
-def demo_change_summary(out_dir, cat, echo=print):
-    """Write the demo's change summary of BH-2210 rev B -> rev C into ``out_dir``.
-
-    A throwaway git repository gets BH-2210 as shipped (rev B), then rev C: the next draft, one
-    more primary turn fixed with ``turns:``, released with ``specgen.lifecycle.release_spec``. The
-    summary compares the two commits. Returns the PDF path,
-    or None (with a message) when git is not installed.
-    """
-    from ..api import demo_specs
-    from ..atomic import write_atomic
-    from ..diff import compare_refs, load_ref, summary_text
-    from ..lifecycle import release_spec
-    from ..revision import start_next_draft_file
-
-    if shutil.which("git") is None:
-        echo("change summary skipped: git is not installed")
-        return None
-    if cat is None:
-        from ..catalog.loader import load_catalog
-
-        cat = load_catalog(None)
-    source = next(p for p in demo_specs() if p.name == "BH-2210.yaml")
-    out_dir = Path(out_dir)
-    out_dir.mkdir(parents=True, exist_ok=True)
-    repo = Path(tempfile.mkdtemp(prefix="specgen-demo-git-"))
-    try:
-        spec_path = repo / source.name
-        shutil.copyfile(source, spec_path)
-        _git(repo, "init", "-q")
-        _git(repo, "add", "--", spec_path.name)
-        _git(repo, "commit", "-q", "-m", "BH-2210 rev B as shipped")
-        primary = next(w for w in load_ref(str(spec_path), cat).design.windings
-                       if w.role == "primary")
-        start_next_draft_file(spec_path)                        # revision C, draft
-        spec_path.write_text(_add_turns(spec_path.read_text(encoding="utf-8"), primary.name,
-                                        primary.turns + 1), encoding="utf-8")
-        release_spec(spec_path, by="T. Vance", date="2026-12-07", cat=cat,
-                     note=f"{primary.turns + 1} primary turns: lower flux at the top of the bus range")
-        _git(repo, "commit", "-q", "-a", "-m", "BH-2210 rev C")
-        summary = compare_refs(f"{spec_path}@HEAD~1", f"{spec_path}@HEAD", cat)
-        # the throwaway repository is gone after this: the document names each side by its revision
-        summary = dataclasses.replace(
-            summary,
-            old=dataclasses.replace(summary.old, name=source.name),
-            new=dataclasses.replace(summary.new, name=source.name))
-        stem = f"{summary.new.part}.change-{summary.old.revision}-{summary.new.revision}"
-        pdf = out_dir / f"{stem}.pdf"
-        write_change_pdf(summary, pdf, paper=cat.shop.documents.paper)
-        write_atomic(out_dir / f"{stem}.txt", summary_text(summary) + "\n")
-        echo(f"change summary {summary.new.part} rev {summary.old.revision} -> "
-             f"{summary.new.revision}: {len(summary.inputs)} input(s), "
-             f"{len(summary.results)} result(s) changed -> {pdf}")
-        return pdf
-    finally:
-        shutil.rmtree(repo, ignore_errors=True)

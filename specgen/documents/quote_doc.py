@@ -23,10 +23,9 @@ from dataclasses import dataclass
 from decimal import Decimal
 from pathlib import Path
 
-from ..quote import COPPER_HIGH, COPPER_LOW, Quote, build_quote, count, money, plain
+from ..quote import COPPER_HIGH, COPPER_LOW, Quote, count, money, plain
 
 TEMPLATE = "quote.html"
-DEMO_QUANTITIES = (100, 500, 2500)
 INTERNAL_SUFFIX = "-internal"
 
 SAFETY_NOTE = ("Test voltages are the shop's defaults; the applicable product safety standard, the "
@@ -249,26 +248,3 @@ def write_quote(q: Quote, out_dir: str | Path, blocked: list | None = None) -> l
         temps[2].write_bytes(internal_pdf)
         temps[3].write_text(internal_html, encoding="utf-8")
     return order
-
-
-def demo_quotes(designs: dict, cat, out_dir, echo=print, quantities=DEMO_QUANTITIES) -> dict:
-    """Quote every demo part at 100 / 500 / 2500 into ``out_dir``; failed designs are skipped (said so).
-
-    designs: part -> (spec_path, Spec, Design), as ``specgen.demo.run_demo`` builds it.
-    Returns part -> Quote for the parts quoted.
-    """
-    out = Path(out_dir)
-    out.mkdir(parents=True, exist_ok=True)
-    quotes = {}
-    for part, (_path, spec, d) in designs.items():
-        if d.failed:
-            echo(f"{part:8} quote skipped: the design has failed checks ({', '.join(c.code for c in d.failed)})")
-            continue
-        q = build_quote(spec, d, cat, quantities)
-        write_quote(q, out)
-        quotes[part] = q
-        prices = "  ".join(f"{b.quantity:,} pcs {money(b.unit_price)}" for b in q.breaks)
-        echo(f"{part:8} quote {q.currency} each: {prices}{'  (budgetary)' if q.budgetary else ''}")
-    if quotes:
-        echo(f"quotes written to {out}/ (the customer's copy, and an -internal copy with the build-up)")
-    return quotes

@@ -1,4 +1,4 @@
-"""The shop-floor work order: context builder, issue flow, and the demo's work orders.
+"""The shop-floor work order: context builder and issue flow.
 
 ``build_context`` turns a Design (plus the catalogue entries it names, for pins, tape thicknesses and
 cure data) into plain dicts and strings for ``templates/workorder.html``; it computes no physics: every
@@ -13,13 +13,13 @@ WeasyPrint is imported only when a PDF is rendered (through ``specgen.documents.
 from __future__ import annotations
 
 import datetime as _dt
-import math
 import re
 import sys
 import time
 from dataclasses import dataclass, field
 from pathlib import Path
 
+from .. import present
 from ..errors import DesignFailed, SpecError
 
 UNCONTROLLED = "Printed copies are uncontrolled: check the revision before use"
@@ -40,111 +40,34 @@ CSS_PAPER = {"A4": "A4", "Letter": "letter"}
 MAX_QTY = 1_000_000
 MAX_LOT_CHARS = 40
 _NUMBER_RE = re.compile(r"[A-Za-z0-9][A-Za-z0-9._-]{0,59}")
-_PREFIXES = {-9: "n", -6: "µ", -3: "m", 0: "", 3: "k", 6: "M", 9: "G"}
 
 
-# ------------------------------------------------------------------------------------------------ formatting
-# One set of helpers for everything printed; the tests use the same ones to build expected strings.
-
-def sig(x: float, digits: int = 4) -> str:
-    """``x`` to ``digits`` significant figures, trailing zeros kept (21.42, 0.07018, 7.500, 843.0)."""
-    if x == 0 or not math.isfinite(x):
-        return "0" if x == 0 else str(x)
-    decimals = max(0, digits - 1 - int(math.floor(math.log10(abs(x)))))
-    text = f"{x:.{decimals}f}"
-    # rounding may carry into a new digit (9.9996 -> 10.000): drop the extra decimal
-    if decimals > 0 and len(text.replace("-", "").replace(".", "").lstrip("0")) > digits:
-        text = f"{x:.{decimals - 1}f}"
-    return text
-
-
-def fmt_eng(value: float | None, unit: str, digits: int = 4) -> str:
-    """An SI value with an engineering prefix: 0.07018 ohm -> '70.18 mΩ', 4.748e-5 H -> '47.48 µH'."""
-    if value is None:
-        return "—"
-    if value == 0:
-        return f"0 {unit}"
-    exp = int(math.floor(math.log10(abs(value)) / 3.0)) * 3
-    exp = max(-9, min(9, exp))
-    scaled = value / 10.0 ** exp
-    text = sig(scaled, digits)
-    if abs(float(text)) >= 1000 and exp < 9:
-        exp += 3
-        text = sig(value / 10.0 ** exp, digits)
-    return f"{text} {_PREFIXES[exp]}{unit}"
+# One formatter for every screen and document (specgen.present); the names below are what the
+# template context and the tests use.
+fmt_eng = present.si
+fmt_test_volt = present.test_volts
+fmt_seconds = present.seconds
+fmt_ma = present.milliamps
+fmt_ratio = present.ratio
+fmt_mm = present.mm
+fmt_m = present.metres
+fmt_mass = present.mass
+fmt_litre = present.litres
+fmt_count = present.count
+fmt_temp = present.temp_c
+sig = present.sig
 
 
 def fmt_ohm(value: float | None) -> str:
-    return fmt_eng(value, "Ω")
+    return present.si(value, "Ω")
 
 
 def fmt_henry(value: float | None) -> str:
-    return fmt_eng(value, "H")
+    return present.si(value, "H")
 
 
 def fmt_volt(value: float | None) -> str:
-    return fmt_eng(value, "V")
-
-
-def fmt_test_volt(value: float) -> str:
-    """A test voltage as the test station's dial reads it: '3600 V'."""
-    return f"{value:.0f} V"
-
-
-def fmt_seconds(value: float) -> str:
-    if value >= 3600 and abs(value / 3600 - round(value / 3600)) < 1e-9:
-        return f"{value / 3600:g} h"
-    if value >= 60 and abs(value / 60 - round(value / 60)) < 1e-9 and value >= 600:
-        return f"{value / 60:g} min"
-    return f"{value:g} s"
-
-
-def fmt_ma(value_a: float) -> str:
-    return f"{value_a * 1e3:g} mA"
-
-
-def fmt_ratio(value: float) -> str:
-    return f"{sig(value, 4)} : 1"
-
-
-def fmt_mm(value_m: float) -> str:
-    mm = value_m * 1e3
-    if mm < 1:
-        return f"{mm:.2f} mm"
-    if mm < 10:
-        return f"{mm:.1f} mm"
-    return f"{mm:.0f} mm"
-
-
-def fmt_m(value_m: float) -> str:
-    if value_m < 10:
-        return f"{value_m:.2f} m"
-    if value_m < 1000:
-        return f"{value_m:.1f} m"
-    return f"{value_m:,.0f} m"
-
-
-def fmt_mass(value_kg: float | None) -> str:
-    if value_kg is None:
-        return ""
-    if value_kg < 1.0:
-        return f"{sig(value_kg * 1e3, 4)} g"
-    return f"{sig(value_kg, 4)} kg"
-
-
-def fmt_litre(value_l: float) -> str:
-    return f"{sig(value_l * 1e3, 3)} ml" if value_l < 1.0 else f"{sig(value_l, 3)} l"
-
-
-def fmt_count(n: float, unit: str) -> str:
-    n = int(round(n))
-    names = {"pcs": ("piece", "pieces"), "sets": ("set", "sets"), "pairs": ("pair", "pairs")}
-    one, many = names.get(unit, (unit, unit))
-    return f"{n:,} {one if n == 1 else many}"
-
-
-def fmt_temp(value_c: float) -> str:
-    return f"{value_c:g} °C"
+    return present.si(value, "V")
 
 
 def direction_text(direction: str, toroid: bool) -> str:
@@ -700,67 +623,3 @@ def issue_work_order(spec_path, *, qty, due=None, lot=None, out_dir=".", draft=F
     design = run_design(spec, cat)
     return issue_from_design(spec_path, spec, design, cat, qty=qty, due=due, lot=lot, out_dir=out_dir,
                              draft=draft, register_path=register_path, number=number, by=by, warn=warn)
-
-
-def demo_workorders(designs, out_dir, register_path=None, echo=print, *, cat=None) -> list:
-    """One work order per demo part (qty 50, lot DEMO-<part>) into ``out_dir``.
-
-    designs: part -> (spec_path, Spec, Design). The register is ``register_path`` or
-    ``specgen-register.sqlite`` in ``out_dir``. ``cat``: the catalogue the designs used (default: the
-    shipped one). Returns the Issued records; a part whose design fails is reported and skipped.
-    """
-    from ..catalog.loader import load_catalog
-
-    out = Path(out_dir)
-    out.mkdir(parents=True, exist_ok=True)
-    cat = cat or load_catalog(None)
-    reg = Path(register_path) if register_path else out / "specgen-register.sqlite"
-    done = []
-    notes = []
-    for part, (spec_path, spec, design) in sorted(designs.items()):
-        try:
-            issued = issue_from_design(spec_path, spec, design, cat, qty=50, lot=f"DEMO-{part}", out_dir=out,
-                                       register_path=reg, draft=spec.status != "released",
-                                       warn=lambda m, p=part: notes.append(f"{p}: {m}"))
-        except DesignFailed as err:
-            echo(f"{part:8} work order refused: {err}")
-            continue
-        done.append(issued)
-        echo(f"{part:8} work order {issued.number}  {issued.pdf}  ({issued.seconds:.1f} s)")
-    for n in notes:
-        echo(f"  note {n}")
-    return done
-
-
-def bench_one(spec_path, runs: int = 3) -> tuple[float, float]:
-    """For bench/run.py: (whole issue, WeasyPrint alone on the same HTML) in seconds, best of ``runs``.
-
-    Both in this process after a warm-up, so the one-off WeasyPrint import counts in neither. The whole
-    issue is what `specgen workorder` does after start-up: load, design, register number, drawings,
-    template, render and the atomic write of both files.
-    """
-    import tempfile
-
-    from .. import api
-    from ..catalog.loader import load_catalog
-    from ..design.spec import load_spec
-    from .render import html_to_pdf
-
-    cat = load_catalog(None)
-    whole, bare = [], []
-    with tempfile.TemporaryDirectory() as tmp:
-        for i in range(runs + 1):
-            t = time.perf_counter()
-            spec = load_spec(spec_path)
-            design = api.run_design(spec, cat)
-            issued = issue_from_design(spec_path, spec, design, cat, qty=10, out_dir=tmp,
-                                       register_path=Path(tmp) / "reg.sqlite", warn=lambda m: None)
-            t_whole = time.perf_counter() - t
-            html = issued.html.read_text(encoding="utf-8")
-            t = time.perf_counter()
-            html_to_pdf(html)
-            t_bare = time.perf_counter() - t
-            if i:                       # the first round is the warm-up
-                whole.append(t_whole)
-                bare.append(t_bare)
-    return min(whole), min(bare)

@@ -1,0 +1,224 @@
+"""The demo run: the whole job on the shipped demo shop (Brindle Hollow Coil Works), into one folder.
+
+  designs/     every part's calculation as the terminal shows it, and as JSON
+  workorders/  a work order per part (PDF + HTML), numbered by a register in that folder
+  quotes/      a quote per part at 100 / 500 / 2500 pieces
+  changes/     a change summary between two revisions of BH-2210 held in a scratch git repository
+  search/      the design search on the demo requirements (ranked candidates)
+
+Demo code only: the document modules know nothing of it.
+"""
+
+from __future__ import annotations
+
+import dataclasses
+import json
+import os
+import re
+import shutil
+import subprocess
+import tempfile
+from decimal import ROUND_HALF_UP, Decimal
+from pathlib import Path
+
+from ..api import demo_specs, run_design
+from ..atomic import write_atomic
+from ..catalog.loader import load_catalog
+from ..design.spec import load_spec
+from ..errors import DesignFailed
+from ..quote import build_quote, money
+
+#: The quantity breaks of the demo quotes.
+DEMO_QUANTITIES = (100, 500, 2500)
+
+
+def run_demo(out: Path, catalog=None, echo=print) -> dict:
+    out = Path(out)
+    out.mkdir(parents=True, exist_ok=True)
+    cat = load_catalog(catalog)
+    from ..report import design_report
+
+    echo("== designs")
+    (out / "designs").mkdir(exist_ok=True)
+    designs = {}
+    for path in demo_specs():
+        spec = load_spec(path)
+        d = run_design(spec, cat)
+        designs[spec.part] = (path, spec, d)
+        write_atomic(out / "designs" / f"{spec.part}.txt", design_report(d) + "\n")
+        write_atomic(out / "designs" / f"{spec.part}.json", json.dumps(d.to_dict(), indent=2, ensure_ascii=False) + "\n")
+        echo(f"{spec.part:8} {d.title[:56]:56} {'FAIL' if d.failed else 'ok':4} {len(d.warnings)} warning(s), "
+             f"hot spot {d.hot_spot_c:.0f} °C")
+
+    echo("== work orders")
+    (out / "workorders").mkdir(exist_ok=True)
+    demo_workorders(designs, out / "workorders", out / "workorders" / "specgen-register.sqlite", echo, cat=cat)
+
+    echo("== quotes")
+    (out / "quotes").mkdir(exist_ok=True)
+    demo_quotes(designs, cat, out / "quotes", echo)
+
+    echo("== change summary")
+    (out / "changes").mkdir(exist_ok=True)
+    demo_change_summary(out / "changes", cat, echo)
+
+    echo("== design search")
+    from .. import search as lib
+
+    (out / "search").mkdir(exist_ok=True)
+    for req_path in sorted(Path(__file__).resolve().parent.glob("REQ-*.yaml")):
+        req = lib.load_requirement(req_path)
+        result = lib.search(req, cat, top=5, sort="cost", per_core=2, part=req.part)
+        write_atomic(out / "search" / f"{req_path.stem}.txt", lib.result_text(result, cat.shop.currency) + "\n")
+        write_atomic(out / "search" / f"{req_path.stem}.json",
+                     json.dumps(lib.result_json(result, cat.shop.currency), indent=2, ensure_ascii=False,
+                                default=str) + "\n")
+        if result.top:
+            best = result.top[0].design
+            echo(f"{req_path.stem:8} best of {len(result.top)}: {best.core.id}, {best.losses.total_w:.2f} W, "
+                 f"hot spot {best.hot_spot_c:.0f} °C, material {cat.shop.currency} "
+                 f"{result.top[0].cost.quantize(Decimal('0.01'), ROUND_HALF_UP)}")
+        else:
+            echo(f"{req_path.stem:8} nothing in the catalogue fits (reasons in search/{req_path.stem}.txt)")
+    echo(f"all of it in {out}/")
+    return designs
+
+
+def demo_workorders(designs, out_dir, register_path=None, echo=print, *, cat=None) -> list:
+    """One work order per demo part (qty 50, lot DEMO-<part>) into ``out_dir``.
+
+    designs: part -> (spec_path, Spec, Design). The register is ``register_path`` or
+    ``specgen-register.sqlite`` in ``out_dir``. ``cat``: the catalogue the designs used (default: the
+    shipped one). Returns the Issued records; a part whose design fails is reported and skipped.
+    """
+    from ..catalog.loader import load_catalog
+    from ..documents.workorder import issue_from_design
+
+    out = Path(out_dir)
+    out.mkdir(parents=True, exist_ok=True)
+    cat = cat or load_catalog(None)
+    reg = Path(register_path) if register_path else out / "specgen-register.sqlite"
+    done = []
+    notes = []
+    for part, (spec_path, spec, design) in sorted(designs.items()):
+        try:
+            issued = issue_from_design(spec_path, spec, design, cat, qty=50, lot=f"DEMO-{part}", out_dir=out,
+                                       register_path=reg, draft=spec.status != "released",
+                                       warn=lambda m, p=part: notes.append(f"{p}: {m}"))
+        except DesignFailed as err:
+            echo(f"{part:8} work order refused: {err}")
+            continue
+        done.append(issued)
+        echo(f"{part:8} work order {issued.number}  {issued.pdf}  ({issued.seconds:.1f} s)")
+    for n in notes:
+        echo(f"  note {n}")
+    return done
+
+
+def demo_quotes(designs: dict, cat, out_dir, echo=print, quantities=DEMO_QUANTITIES) -> dict:
+    """Quote every demo part at 100 / 500 / 2500 into ``out_dir``; failed designs are skipped (said so).
+
+    designs: part -> (spec_path, Spec, Design), as ``specgen.demo.run_demo`` builds it.
+    Returns part -> Quote for the parts quoted.
+    """
+    from ..documents.quote_doc import write_quote
+
+    out = Path(out_dir)
+    out.mkdir(parents=True, exist_ok=True)
+    quotes = {}
+    for part, (_path, spec, d) in designs.items():
+        if d.failed:
+            echo(f"{part:8} quote skipped: the design has failed checks ({', '.join(c.code for c in d.failed)})")
+            continue
+        q = build_quote(spec, d, cat, quantities)
+        write_quote(q, out)
+        quotes[part] = q
+        prices = "  ".join(f"{b.quantity:,} pcs {money(b.unit_price)}" for b in q.breaks)
+        echo(f"{part:8} quote {q.currency} each: {prices}{'  (budgetary)' if q.budgetary else ''}")
+    if quotes:
+        echo(f"quotes written to {out}/ (the customer's copy, and an -internal copy with the build-up)")
+    return quotes
+
+
+# ----------------------------------------------------------------------------------------------
+# The demo's change summary
+
+def _git(repo: Path, *args: str) -> None:
+    env = {k: v for k, v in os.environ.items() if k not in ("GIT_DIR", "GIT_WORK_TREE", "GIT_INDEX_FILE")}
+    env.update(LC_ALL="C", GIT_TERMINAL_PROMPT="0", GIT_CONFIG_NOSYSTEM="1",
+               GIT_CONFIG_GLOBAL=os.devnull)
+    # identity and settings for this throwaway repository only, never the user's config
+    cmd = ["git", "-c", "user.name=Brindle Hollow Demo", "-c", "user.email=demo@brindle-hollow.invalid",
+           "-c", "commit.gpgsign=false", "-c", "tag.gpgsign=false", "-c", "init.defaultBranch=main",
+           *args]
+    proc = subprocess.run(cmd, cwd=repo, capture_output=True, env=env, timeout=60)
+    if proc.returncode != 0:
+        raise RuntimeError(f"git {args[0]} failed in the demo repository: "
+                           f"{proc.stderr.decode('utf-8', 'replace').strip()}")
+
+
+def _add_turns(text: str, winding: str, turns: int) -> str:
+    """Insert ``turns: N`` after the ``name:`` line of one winding (a text edit, like a person's)."""
+    m = re.search(rf"^(\s*)- name: {re.escape(winding)}[ \t]*(#.*)?\r?\n", text, flags=re.M)
+    if m is None:
+        raise ValueError(f"winding {winding} not found")
+    indent = m.group(1) + "  "
+    line = f"{indent}turns: {turns}               # fixed: one more turn than rev B calculated\n"
+    return text[:m.end()] + line + text[m.end():]
+
+
+def demo_change_summary(out_dir, cat, echo=print):
+    """Write the demo's change summary of BH-2210 rev B -> rev C into ``out_dir``.
+
+    A throwaway git repository gets BH-2210 as shipped (rev B), then rev C: the next draft, one
+    more primary turn fixed with ``turns:``, released with ``specgen.lifecycle.release_spec``. The
+    summary compares the two commits. Returns the PDF path,
+    or None (with a message) when git is not installed.
+    """
+    from ..atomic import write_atomic
+    from ..diff import compare_refs, load_ref, summary_text
+    from ..documents.change_doc import write_change_pdf
+    from ..lifecycle import release_spec
+    from ..revision import start_next_draft_file
+
+    if shutil.which("git") is None:
+        echo("change summary skipped: git is not installed")
+        return None
+    if cat is None:
+        from ..catalog.loader import load_catalog
+
+        cat = load_catalog(None)
+    source = next(p for p in demo_specs() if p.name == "BH-2210.yaml")
+    out_dir = Path(out_dir)
+    out_dir.mkdir(parents=True, exist_ok=True)
+    repo = Path(tempfile.mkdtemp(prefix="specgen-demo-git-"))
+    try:
+        spec_path = repo / source.name
+        shutil.copyfile(source, spec_path)
+        _git(repo, "init", "-q")
+        _git(repo, "add", "--", spec_path.name)
+        _git(repo, "commit", "-q", "-m", "BH-2210 rev B as shipped")
+        primary = next(w for w in load_ref(str(spec_path), cat).design.windings
+                       if w.role == "primary")
+        start_next_draft_file(spec_path)                        # revision C, draft
+        spec_path.write_text(_add_turns(spec_path.read_text(encoding="utf-8"), primary.name,
+                                        primary.turns + 1), encoding="utf-8")
+        release_spec(spec_path, by="T. Vance", date="2026-12-07", cat=cat,
+                     note=f"{primary.turns + 1} primary turns: lower flux at the top of the bus range")
+        _git(repo, "commit", "-q", "-a", "-m", "BH-2210 rev C")
+        summary = compare_refs(f"{spec_path}@HEAD~1", f"{spec_path}@HEAD", cat)
+        # the throwaway repository is gone after this: the document names each side by its revision
+        summary = dataclasses.replace(
+            summary,
+            old=dataclasses.replace(summary.old, name=source.name),
+            new=dataclasses.replace(summary.new, name=source.name))
+        stem = f"{summary.new.part}.change-{summary.old.revision}-{summary.new.revision}"
+        pdf = out_dir / f"{stem}.pdf"
+        write_change_pdf(summary, pdf, paper=cat.shop.documents.paper)
+        write_atomic(out_dir / f"{stem}.txt", summary_text(summary) + "\n")
+        echo(f"change summary {summary.new.part} rev {summary.old.revision} -> "
+             f"{summary.new.revision}: {len(summary.inputs)} input(s), "
+             f"{len(summary.results)} result(s) changed -> {pdf}")
+        return pdf
+    finally:
+        shutil.rmtree(repo, ignore_errors=True)
