@@ -1,82 +1,41 @@
-"""The command line: thin wrappers over the library (specgen.api and friends), nothing else.
+"""The command line: thin wrappers over the library (``import specgen`` and the modules it names).
 
 Exit codes: 0 success, 1 a design check failed (or verify found a mismatch), 2 bad input.
 A user's mistake is one line on stderr, never a traceback.
+
+``main`` first offers the arguments to the typer-free quick path (``specgen.commands.quick``: the
+plain forms of `specgen design`); everything else, help included, goes to the Typer app in
+``specgen.commands.root``, imported only then.
 """
 
 from __future__ import annotations
 
-import importlib
 import sys
-from pathlib import Path
-
-import typer
-
-from . import __version__
-from .commands._common import guarded, print_json
-from .commands.options import CatalogOpt, JsonOpt
-from .errors import SpecError
-
-# rich_markup_mode=None: plain help, so the quick commands do not import rich (~50 ms)
-app = typer.Typer(name="specgen", no_args_is_help=True, add_completion=False, pretty_exceptions_enable=False,
-                  rich_markup_mode=None,
-                  help="Specs, calculations, work orders and quotes for custom wound magnetics.")
+from typing import Any
 
 
-def _version(value: bool):
-    if value:
-        typer.echo(f"specgen {__version__}")
-        raise typer.Exit()
+def __getattr__(name: str) -> Any:
+    """``specgen.cli.app``: the Typer app, built on first use (tests and plugins import it)."""
+    if name == "app":
+        from .commands.root import app
 
-
-@app.callback()
-def _root(version: bool = typer.Option(False, "--version", callback=_version, is_eager=True,
-                                       help="Print the version and exit.")):
-    """specgen: one YAML spec per part + the shop's catalogue -> design, work orders, quotes, change summaries."""
-
-
-# ------------------------------------------------------------------------------------------------ design
-
-@app.command("design")
-@guarded
-def design_cmd(spec: Path = typer.Argument(..., metavar="SPEC.yaml"), catalog: Path | None = CatalogOpt,
-               as_json: bool = JsonOpt):
-    """Run the whole calculation for one part and print it (exit 1 if a check fails)."""
-    from . import run_design
-    from .report import design_report
-
-    d = run_design(spec, catalog)
-    if as_json:
-        print_json(d.to_dict())
-    else:
-        typer.echo(design_report(d))
-    if d.failed:
-        raise typer.Exit(1)
-
-
-@app.command("demo")
-@guarded
-def demo_cmd(out: Path = typer.Option(Path("specgen-demo"), "--out", metavar="DIR",
-                                      help="Where to write the demo's documents."),
-             catalog: Path | None = CatalogOpt):
-    """Run the main job on the shipped demo shop: designs, work orders, quotes, a change summary."""
-    from .demo import run_demo
-
-    run_demo(out, catalog, echo=typer.echo)
-
-
-# commands that live in their own modules (catalogue, work orders, register, quotes, revisions, search)
-for _name in ("catalog", "orders", "workorder", "quote", "revision_cmds", "search"):
-    _mod = importlib.import_module(f"specgen.commands.{_name}")
-    if hasattr(_mod, "register"):
-        _mod.register(app)
-    elif hasattr(_mod, "app"):
-        app.add_typer(_mod.app)
+        return app
+    raise AttributeError(name)
 
 
 def main(argv: list | None = None) -> None:
     """Run the CLI; a usage mistake is one line too (click's own report spans three)."""
+    from .commands.quick import run_quick
+
+    args = list(sys.argv[1:] if argv is None else argv)
+    code = run_quick(args)
+    if code is not None:
+        sys.exit(code)
     import click
+    import typer
+
+    from .commands.root import app
+    from .errors import SpecError
 
     try:
         code = app(args=argv, standalone_mode=False)

@@ -70,7 +70,6 @@ import json
 import math
 import os
 import re
-import subprocess
 import sys
 import unicodedata
 from collections.abc import Mapping, Sequence
@@ -78,11 +77,13 @@ from collections.abc import Set as AbstractSet
 from dataclasses import dataclass
 from decimal import Decimal
 from pathlib import Path
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
 from . import revision_letters as _letters
-from .atomic import write_atomic
 from .errors import SpecError
+
+if TYPE_CHECKING:      # subprocess and the atomic writer load only when git runs or a file is written
+    import subprocess
 
 # ----------------------------------------------------------------------------------------------
 # Revision letters
@@ -774,6 +775,8 @@ def _read_spec(path: str | os.PathLike) -> str:
 
 
 def _write_text(path: str | os.PathLike, text: str) -> None:
+    from .atomic import write_atomic
+
     write_atomic(path, text.encode("utf-8"))
 
 
@@ -820,6 +823,8 @@ def start_next_draft_file(path: str | os.PathLike) -> str:
 
 def _git(args: Sequence[str], cwd: str | os.PathLike, what: str | None = None
          ) -> subprocess.CompletedProcess:
+    import subprocess
+
     env = dict(os.environ, LC_ALL="C", GIT_TERMINAL_PROMPT="0")
     try:
         return subprocess.run(["git", *args], cwd=cwd, capture_output=True, env=env,

@@ -191,8 +191,6 @@ class _ByKey:
     dict form (the design and search modules read ``shop.hipot["basic_v"]``); new code uses the
     attributes."""
 
-    __slots__ = ()
-
     def __getitem__(self, key: str) -> Any:
         if key not in self.__dataclass_fields__:  # type: ignore[attr-defined]
             raise KeyError(key)
@@ -203,7 +201,7 @@ class _ByKey:
         return default if value is None else value
 
 
-@dataclass(frozen=True, slots=True)
+@dataclass(frozen=True)
 class CurrentDensities(_ByKey):
     """Design current density [A/m^2] per cooling case (``natural`` is required; the others fall back to it)."""
 
@@ -216,7 +214,7 @@ class CurrentDensities(_ByKey):
         return self.natural if value is None else float(value)
 
 
-@dataclass(frozen=True, slots=True)
+@dataclass(frozen=True)
 class HipotFigures(_ByKey):
     """Dielectric (hipot) test figures: type-test voltages per insulation rating, durations, trip."""
 
@@ -230,13 +228,13 @@ class HipotFigures(_ByKey):
     trip_current_a: float
 
 
-@dataclass(frozen=True, slots=True)
+@dataclass(frozen=True)
 class InsulationResistanceFigures(_ByKey):
     voltage_v: float                  # d.c. test voltage
     minimum_ohm: float
 
 
-@dataclass(frozen=True, slots=True)
+@dataclass(frozen=True)
 class Tolerances(_ByKey):
     """Test limits as fractions of the nominal (0.1 = +-10 %)."""
 
@@ -246,7 +244,7 @@ class Tolerances(_ByKey):
     open_circuit_voltage: float
 
 
-@dataclass(frozen=True, slots=True)
+@dataclass(frozen=True)
 class LaborFigures:
     """The quote's time model (shop.yaml ``labor``): winder speeds, factors, times in seconds.
 
