@@ -57,8 +57,9 @@ def load_catalog(folder: PathLike | None = None) -> Catalog:
 def run_design(spec: Spec | PathLike, catalog: Catalog | PathLike | None = None) -> Design:
     """Run the whole calculation for one part and fingerprint it (``spec``: a Spec or a path)."""
     from .api import run_design as _run
+    from .catalog.models import Catalog as _Catalog
 
-    cat = catalog if _is_catalog(catalog) else load_catalog(catalog)  # type: ignore[arg-type]
+    cat = catalog if isinstance(catalog, _Catalog) else load_catalog(catalog)
     return _run(spec if not isinstance(spec, (str, os.PathLike)) else load_spec(spec), cat)
 
 
@@ -123,10 +124,6 @@ def open_register(path: PathLike, *, create: bool = True) -> Register:
     from .register import Register as _Register
 
     return _Register.open(path, create=create)
-
-
-def _is_catalog(obj: object) -> bool:
-    return obj is not None and hasattr(obj, "shop") and hasattr(obj, "cores")
 
 
 __all__ = ["__version__", "load_spec", "load_catalog", "run_design", "release_gate", "issue_work_order",

@@ -337,7 +337,7 @@ def result_changes(old_d, new_d, old_cost: Any = None, new_cost: Any = None) -> 
     for key in keys:
         ov, ou = old.get(key, (None, None))
         nv, nu = new.get(key, (None, None))
-        unit = nu or ou
+        unit = nu or ou or "text"
         ot, nt = fmt(ov, ou or unit), fmt(nv, nu or unit)
         if ot != nt:
             out.append(ResultChange(group=key[0], quantity=key[1], old=ov, new=nv, unit=unit,
@@ -383,15 +383,18 @@ def compare(old: Loaded, new: Loaded, costs: CostFunction | None | str = "defaul
     never stops the summary and no figure is made up in its place.
     """
     note = ""
-    if costs == "default":
+    pricing: CostFunction | None = None
+    if isinstance(costs, str):          # "default"
         try:
-            costs = quote_costs(lot)
+            pricing = quote_costs(lot)
         except (ImportError, AttributeError):
-            costs, note = None, "unit cost not compared: this version has no quote module"
+            note = "unit cost not compared: this version has no quote module"
+    else:
+        pricing = costs
     old_cost = new_cost = None
-    if costs is not None:
+    if pricing is not None:
         try:
-            old_cost, new_cost = costs(old), costs(new)
+            old_cost, new_cost = pricing(old), pricing(new)
         except (SpecError, DesignFailed) as err:
             old_cost = new_cost = None
             note = f"unit cost not compared: {err}"

@@ -12,7 +12,7 @@ from __future__ import annotations
 import os
 from collections.abc import Iterable
 from pathlib import Path
-from typing import Any
+from typing import TYPE_CHECKING, Any, overload
 
 import yaml
 
@@ -37,7 +37,10 @@ class LList(list):
 
 
 # libyaml's parser when present (10x faster); our constructors run on either
-_Base = getattr(yaml, "CSafeLoader", yaml.SafeLoader)
+if TYPE_CHECKING:
+    _Base = yaml.SafeLoader
+else:
+    _Base = getattr(yaml, "CSafeLoader", yaml.SafeLoader)
 
 
 class _Loader(_Base):
@@ -255,7 +258,7 @@ class Reader:
 
     def integer(self, key: str, default: Any = _MISSING, *, minimum: int | None = None,
                 maximum: int | None = None) -> int:
-        return self.number(key, default, minimum=minimum, maximum=maximum, integer=True)
+        return self.number(key, default, minimum=minimum, maximum=maximum, integer=True)  # type: ignore[return-value]
 
     def text(self, key: str, default: Any = _MISSING, *, max_len: int = 2000) -> str:
         value = self.raw(key, default)
@@ -300,6 +303,14 @@ class Reader:
         if not out.is_finite() or out < 0:
             raise self.error(f"expected an amount of zero or more, got '{value}'", key)
         return out
+
+    # typing only: without a default the answer is a Reader (a missing key raises); with a
+    # default (None in practice) the default may come back
+    @overload
+    def mapping(self, key: str) -> Reader: ...
+
+    @overload
+    def mapping(self, key: str, default: None) -> Reader | None: ...
 
     def mapping(self, key: str, default: Any = _MISSING) -> Reader | None:
         value = self.raw(key, default)

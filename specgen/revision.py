@@ -450,7 +450,10 @@ class _Doc:
         self.data = parse_yaml(self.body, name)    # located errors, duplicate keys rejected
         if not isinstance(self.data, Mapping):
             raise SpecError("a spec is a mapping of keys at the top level", file=name)
-        self.root = yaml.compose(self.body, Loader=yaml.SafeLoader)
+        root = yaml.compose(self.body, Loader=yaml.SafeLoader)
+        if root is None:        # parse_yaml above already refused an empty document
+            raise SpecError("a spec is a mapping of keys at the top level", file=name)
+        self.root: Any = root
         self.keys: dict[str, tuple[Any, Any]] = {}
         for key_node, value_node in self.root.value:
             if isinstance(key_node, yaml.ScalarNode):
@@ -502,7 +505,9 @@ class _Doc:
 
         import yaml
 
-        maps, offsets, dashes = Counter(), Counter(), Counter()
+        maps: Counter[int] = Counter()
+        offsets: Counter[int] = Counter()
+        dashes: Counter[int] = Counter()
         stack, seen = [self.root], set()
         while stack:
             node = stack.pop()

@@ -10,8 +10,10 @@ from __future__ import annotations
 
 import os
 import re
+from collections.abc import Callable
 from decimal import Decimal
 from pathlib import Path
+from typing import Any
 
 from ..errors import SpecError
 from ..loading import Reader, load_yaml
@@ -227,7 +229,7 @@ def _core(r: Reader) -> Core:
         dims["ring_fraction"] = d.number("ring_fraction", 1.0, minimum=0.1, maximum=1.0)
     d.done()
     _check_core_dims(shape, dims, d)
-    stacks = ()
+    stacks: tuple[float, ...] = ()
     if shape == "EI" or r.has("stacks"):
         raw_stacks = r.list_of("stacks")
         if not raw_stacks:
@@ -534,7 +536,7 @@ def _shop_documents(r: Reader) -> ShopDocuments:
     return ShopDocuments(paper=match, address=party, terms=_quote_terms(r.mapping("quote_terms", None)))
 
 
-_BUILDERS = {"wires": _wire, "cores": _core, "bobbins": _bobbin, "materials": _material,
+_BUILDERS: dict[str, Callable[[Reader], Any]] = {"wires": _wire, "cores": _core, "bobbins": _bobbin, "materials": _material,
              "tapes": _tape, "sleevings": _sleeving, "varnishes": _varnish, "customers": _customer}
 
 
@@ -549,7 +551,7 @@ def _read_dir(root: Path, problems: list | None):
     files = sorted(list(root.glob("*.yaml")) + list(root.glob("*.yml")))
     if not files:
         raise SpecError("holds no .yaml files; is this a catalogue folder?", file=str(root))
-    tables = {k: {} for k in _BUILDERS}
+    tables: dict[str, dict[str, Any]] = {k: {} for k in _BUILDERS}
     locations: dict = {}
     shop = None
     for path in files:
@@ -692,13 +694,14 @@ def _cache_key(path: Path) -> str | None:
     return h.hexdigest()[:32]
 
 
-def _cache_read(key: str | None):
-    if key is None:
+def _cache_read(key: str | None) -> Catalog | None:
+    folder = _cache_dir()
+    if key is None or folder is None:
         return None
     import pickle
 
     try:
-        with open(_cache_dir() / f"catalog-{key}.pickle", "rb") as fh:
+        with open(folder / f"catalog-{key}.pickle", "rb") as fh:
             obj = pickle.load(fh)
         return obj if isinstance(obj, Catalog) else None
     except Exception:       # a missing, stale or unreadable cache is simply rebuilt
@@ -706,12 +709,12 @@ def _cache_read(key: str | None):
 
 
 def _cache_write(key: str | None, cat: Catalog) -> None:
-    if key is None:
+    folder = _cache_dir()
+    if key is None or folder is None:
         return
     import pickle
 
     try:
-        folder = _cache_dir()
         folder.mkdir(parents=True, exist_ok=True)
         for old in folder.glob("catalog-*.pickle"):
             if old.stat().st_mtime < __import__("time").time() - 7 * 86400:

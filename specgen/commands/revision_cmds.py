@@ -68,7 +68,7 @@ def register(app) -> None:
         else:
             for r in results:
                 typer.echo(r.line(), err=r.outcome == "error")
-            counts = {}
+            counts: dict[str, int] = {}
             for r in results:
                 counts[r.outcome] = counts.get(r.outcome, 0) + 1
             typer.echo(f"{len(results)} spec(s): " + ", ".join(f"{n} {k}" for k, n in sorted(counts.items())))

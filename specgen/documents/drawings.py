@@ -145,6 +145,8 @@ def pin_diagram(pins: list, rows: int, coils: list, dots: dict, *, leads: bool =
     mid = 14.0 if cross else 4.0
     bottom_y = top_y + top_band + mid + bottom_band if rows == 2 else None
     legend_y = (bottom_y + 14.0) if bottom_y is not None else top_y + top_band + 6.0
+    # pins of the second row exist only when there are two rows: the second row's y is then set
+    second_y = bottom_y if bottom_y is not None else top_y
     height = legend_y + 14.0
 
     body = []
@@ -157,7 +159,7 @@ def pin_diagram(pins: list, rows: int, coils: list, dots: dict, *, leads: bool =
     for p in pins:
         row, _col = layout[p]
         x = pin_x(p)
-        y = top_y if row == 0 else bottom_y
+        y = top_y if row == 0 else second_y
         on = p in used
         if leads:
             body.append(f'<rect x="{_n(x - 5)}" y="{_n(y - 3)}" width="10" height="6" rx="1" fill="#fff" '
@@ -176,7 +178,7 @@ def pin_diagram(pins: list, rows: int, coils: list, dots: dict, *, leads: bool =
         colour = COPPER[c.colour_index % len(COPPER)]
         if p.row_a == p.row_b:
             row = p.row_a
-            y_pin = top_y if row == 0 else bottom_y
+            y_pin = top_y if row == 0 else second_y
             sign = 1 if row == 0 else -1
             yc = y_pin + sign * (8.0 + p.level * level_h)
             xa, xb = p.a[0], p.b[0]
@@ -192,8 +194,8 @@ def pin_diagram(pins: list, rows: int, coils: list, dots: dict, *, leads: bool =
                            cls="coil-turns"))
             end_points = {c.start: (p.a[0], yc), c.finish: (p.b[0], yc)}
         else:
-            ya = top_y + 4 if p.row_a == 0 else bottom_y - 4
-            yb = top_y + 4 if p.row_b == 0 else bottom_y - 4
+            ya = top_y + 4 if p.row_a == 0 else second_y - 4
+            yb = top_y + 4 if p.row_b == 0 else second_y - 4
             a, b = (p.a[0], ya), (p.b[0], yb)
             body.append(_coil_path(a, b, colour, bumps_per_mm=0.28, up=True))
             body.append(_t((a[0] + b[0]) / 2 + 4, (a[1] + b[1]) / 2, f"{c.label}  {c.turns} t", 3.4, "start",

@@ -65,7 +65,7 @@ def make_fetcher(log: list | None = None):
     Refused URLs are appended to ``log`` (tests read it) and rendering goes on without them.
     """
     from weasyprint import URLFetcher
-    from weasyprint.urls import URLFetcherResponse  # type: ignore[attr-defined]
+    from weasyprint.urls import URLFetcherResponse  # type: ignore[attr-defined,unused-ignore]
 
     class _Fetcher(URLFetcher):
         def fetch(self, url, headers=None):

@@ -77,7 +77,7 @@ def parse_thermal_class(designation: object) -> int:
         class_letter(designation)
         return int(designation)
     if not isinstance(designation, str) and hasattr(designation, "__float__"):   # numpy scalars
-        return parse_thermal_class(float(designation))  # type: ignore[arg-type]
+        return parse_thermal_class(float(designation))  # type: ignore[arg-type,unused-ignore]
     m = _DESIGNATION.match(str(designation))
     if not m or not (m.group(1) or m.group(2)):
         raise ValueError(f"'{designation}' is not an IEC 60085 thermal class ({listing()})")
