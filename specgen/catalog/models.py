@@ -7,6 +7,7 @@ so a fingerprint can cover exactly the catalogue entries a design used.
 from __future__ import annotations
 
 import math
+from collections.abc import Iterator, Mapping
 from dataclasses import dataclass, field
 from decimal import Decimal
 from typing import Any
@@ -186,19 +187,22 @@ class Varnish:
 # The shop's figures, typed and range-checked when the catalogue loads (catalog.loader._shop)
 
 
-class _ByKey:
-    """Read-only ``figures["key"]`` access to the fields, for callers written against the old
-    dict form (the design and search modules read ``shop.hipot["basic_v"]``); new code uses the
-    attributes."""
+class _ByKey(Mapping[str, Any]):
+    """Read-only mapping access to the fields (those set), for callers written against the dict form
+    (``shop.hipot["basic_v"]``, the kernel's ``current_density_a_m2(table, cooling)``); new code reads
+    the attributes."""
 
     def __getitem__(self, key: str) -> Any:
-        if key not in self.__dataclass_fields__:  # type: ignore[attr-defined]
+        value = getattr(self, key) if key in self.__dataclass_fields__ else None  # type: ignore[attr-defined]
+        if value is None:
             raise KeyError(key)
-        return getattr(self, key)
+        return value
 
-    def get(self, key: str, default: Any = None) -> Any:
-        value = getattr(self, key, None) if key in self.__dataclass_fields__ else None  # type: ignore[attr-defined]
-        return default if value is None else value
+    def __iter__(self) -> Iterator[str]:
+        return (k for k in self.__dataclass_fields__ if getattr(self, k) is not None)  # type: ignore[attr-defined]
+
+    def __len__(self) -> int:
+        return sum(1 for _ in self)
 
 
 @dataclass(frozen=True)
@@ -210,8 +214,7 @@ class CurrentDensities(_ByKey):
     potted: float | None = None
 
     def for_cooling(self, cooling: str) -> float:
-        value = getattr(self, cooling, None) if cooling in self.__dataclass_fields__ else None
-        return self.natural if value is None else float(value)
+        return float(self.get(cooling, self.natural))
 
 
 @dataclass(frozen=True)
