@@ -488,7 +488,7 @@ def _customer(r: Reader) -> Party:
 
 
 def _buy_breaks(r: Reader, key: str, dimension: str | None) -> tuple:
-    out = []
+    out: list[BuyBreak] = []
     for item in r.items(key, []):
         threshold = item.quantity("from", dimension) if dimension else item.number("from", minimum=1)
         discount = _pct(item, "discount")
