@@ -25,7 +25,7 @@ import math
 import subprocess
 import sys
 from pathlib import Path
-from types import SimpleNamespace
+from dataclasses import fields, replace
 
 import numpy as np
 import pytest
@@ -40,8 +40,10 @@ from specgen.design.spec import load_spec_text
 from specgen.physics import dowell
 from specgen.physics import wire as wiremod
 from specgen.physics.layers import layer_fr
+from specgen.search import steps
+from specgen.search.records import FormerKind, FormerRows, OptionRows, SectionRows, WireKind
 
-DEMO = Path(S.__file__).resolve().parent / "demo"
+DEMO = Path(S.__file__).resolve().parent.parent / "demo"
 REQS = sorted(DEMO.glob("REQ-*.yaml"))
 
 
@@ -214,7 +216,7 @@ def test_five_kva_outgrows_every_stocked_lamination_by_mcLyman(cat):
         assert ap < need, c.id
     req = S.parse_requirement(__import__("yaml").safe_load(FIVE_KVA), "REQ-5K.yaml")
     sr = S.search(req, cat)
-    assert not sr.top and sr.stats["kept"] == 0
+    assert not sr.top and sr.stats.kept == 0
 
 
 def test_a_family_evaluated_but_failing_says_why(cat):
@@ -229,19 +231,21 @@ def test_a_family_evaluated_but_failing_says_why(cat):
 
 @pytest.mark.parametrize("req", ["REQ-1042.yaml", "REQ-3305.yaml"])
 def test_vectorised_rows_equal_the_same_function_row_by_row(cat, req):
-    ctx, *_ = S.prepare(S.load_requirement(DEMO / req), cat)
+    prep = S.prepare(S.load_requirement(DEMO / req), cat)
+    ctx = prep.context
     rng = np.random.default_rng(7)
-    n = ctx.rows_ci.size
+    n = prep.rows.size
     pick = np.sort(rng.choice(n, size=min(40, n), replace=False))
-    ci, oi = ctx.rows_ci[pick], [o[pick] for o in ctx.rows_oi]
+    ci, oi = prep.rows.core_index[pick], [o[pick] for o in prep.rows.option_index]
     whole = S.evaluate_rows(ctx, ci, oi)
-    assert (whole["flags_slack"] == 0).any() and (whole["flags"] != 0).any()   # both kinds of row
+    assert (whole.flags_slack == 0).any() and (whole.flags != 0).any()   # both kinds of row
     for k in range(pick.size):
         one = S.evaluate_rows(ctx, ci[k:k + 1], [o[k:k + 1] for o in oi])
-        for key, v in whole.items():
-            a, b = float(v[k]), float(one[key][0])
-            if math.isfinite(a) or math.isfinite(b):
-                assert a == pytest.approx(b, rel=1e-9, abs=1e-12), (key, k)
+        for f in fields(whole):
+            va, vb = np.ravel(getattr(whole, f.name)[..., k]), np.ravel(getattr(one, f.name)[..., 0])
+            for a, b in zip(va.tolist(), vb.tolist()):
+                if math.isfinite(a) or math.isfinite(b):
+                    assert a == pytest.approx(b, rel=1e-9, abs=1e-12), (f.name, k)
 
 
 def _former(kind, rng):
@@ -268,87 +272,89 @@ def test_vectorised_section_build_equals_the_engines_wind_section(seed, kind, fo
     margin = rng.uniform(0, 4e-3) if kind != "toroid" else 0.0
     tape = rng.uniform(0, 0.2e-3)
     ref = wind_section(fm, turns, pitch, lh, start, margin, tape, foil)
-    code = {"rect": 0, "round": 1, "toroid": 2}[kind]
     arr = lambda x: np.array([x], dtype=float)
-    fmv = {"kind": np.array([code], dtype=np.int8), "tube_w": arr(fm.tube_width_m), "tube_d": arr(fm.tube_depth_m),
-           "breadth": arr(fm.breadth_m), "od": arr(fm.od_m), "id": arr(fm.id_m), "core_h": arr(fm.core_height_m)}
+    fmv = FormerRows(kind=np.array([FormerKind.of(kind)], dtype=np.int16), tube_width_m=arr(fm.tube_width_m),
+                     tube_depth_m=arr(fm.tube_depth_m), breadth_m=arr(fm.breadth_m), od_m=arr(fm.od_m),
+                     id_m=arr(fm.id_m), core_height_m=arr(fm.core_height_m))
     got = S.wind_section_vec(fmv, arr(turns), arr(pitch), arr(lh), arr(start), arr(margin), arr(tape),
                              np.array([foil]))
-    assert bool(got["ok"][0]) == (ref is not None)
+    assert bool(got.ok[0]) == (ref is not None)
     if ref is None:
         return
-    assert got["cap"][0] == ref.turns_per_layer and got["layers"][0] == len(ref.layers)
-    assert got["last"][0] == ref.layers[-1].turns
-    assert got["length"][0] == pytest.approx(ref.copper_length_m, rel=1e-9)
-    assert got["end"][0] == pytest.approx(ref.end_build_m, rel=1e-9)
-    assert got["usable"][0] == pytest.approx(ref.usable_breadth_m, rel=1e-9)
+    assert got.turns_per_layer[0] == ref.turns_per_layer and got.layers[0] == len(ref.layers)
+    assert got.last_turns[0] == ref.layers[-1].turns
+    assert got.length_m[0] == pytest.approx(ref.copper_length_m, rel=1e-9)
+    assert got.end_build_m[0] == pytest.approx(ref.end_build_m, rel=1e-9)
+    assert got.usable_m[0] == pytest.approx(ref.usable_breadth_m, rel=1e-9)
 
 
 @pytest.mark.parametrize("req", ["REQ-1042.yaml", "REQ-3305.yaml"])
 def test_vector_build_of_the_engines_turns_gives_the_engines_lengths_and_dcr(cat, searched, req):
     sr = searched[Path(req).stem]
-    ctx, *_ = S.prepare(sr.requirement, cat)
+    ctx = S.prepare(sr.requirement, cat).context
     for c in sr.top[:3]:
         d = c.design
         ci = np.array([ctx.choices.index(c.choice)])
-        opts = [S._gather(ctx.opt_tables[g], np.array([ctx.options[g].index(o)]))
+        opts = [ctx.option_tables[g].take(np.array([ctx.options[g].index(o)]))
                 for g, o in zip(ctx.groups, c.options)]
         turns = [np.array([float(w.turns)]) for w in d.windings]
-        build = S._build_rows(ctx, ci, opts, turns)
-        assert build["height"][0] == pytest.approx(d.build.height_m, rel=1e-9)
-        for w, sec, opt in zip(d.windings, build["secs"], opts):
-            length = sec["length"][0] + 2 * cat.shop.lead_length_m
+        build = S.build_rows(ctx, ci, opts, turns)
+        assert build.height_m[0] == pytest.approx(d.build.height_m, rel=1e-9)
+        for w, sec, opt in zip(d.windings, build.sections, opts):
+            length = sec.length_m[0] + 2 * cat.shop.lead_length_m
             assert length == pytest.approx(w.length_m, rel=1e-9)
-            dcr = float(S._resistance(opt, np.array([length]), 20.0)[0])
+            dcr = float(steps.resistance_ohm(opt, np.array([length]), 20.0)[0])
             assert dcr == pytest.approx(w.dcr_20c_ohm, rel=1e-9)
-            assert sec["layers"][0] == w.layers and sec["cap"][0] == w.turns_per_layer
+            assert sec.layers[0] == w.layers and sec.turns_per_layer[0] == w.turns_per_layer
 
 
 def test_vector_magnetics_equal_the_engines_for_the_listed_chokes(cat, searched):
     sr = searched["REQ-3305"]
-    ctx, *_ = S.prepare(sr.requirement, cat)
+    ctx = S.prepare(sr.requirement, cat).context
     for c in sr.top:
         d = c.design
         i = ctx.choices.index(c.choice)
-        mag = S.choke_magnetics(ctx, np.array([i]), np.array([d.hot_spot_c]))
-        assert mag["turns"][0] == d.windings[0].turns
-        assert mag["gap"][0] == pytest.approx(d.inductor.gap_m or 0.0, abs=1e-12)
-        assert mag["l"][0] == pytest.approx(d.inductor.inductance_at_full_bias_h, rel=1e-9)
-        assert mag["b_max"][0] == pytest.approx(d.b_peak_max_t, rel=1e-9)
-        assert mag["pv"][0] == pytest.approx(d.losses.core_loss_density_w_m3, rel=1e-9)
+        mag = S.choke_magnetics(ctx, ctx.choke, np.array([i]), np.array([d.hot_spot_c]))
+        assert mag.turns[0] == d.windings[0].turns
+        assert mag.gap_m[0] == pytest.approx(d.inductor.gap_m or 0.0, abs=1e-12)
+        assert mag.inductance_h[0] == pytest.approx(d.inductor.inductance_at_full_bias_h, rel=1e-9)
+        assert mag.b_max_t[0] == pytest.approx(d.b_peak_max_t, rel=1e-9)
+        assert mag.core_loss_w_m3[0] == pytest.approx(d.losses.core_loss_density_w_m3, rel=1e-9)
 
 
 def test_vector_flux_and_core_loss_equal_the_engines_for_the_listed_transformers(cat, searched):
     sr = searched["REQ-1042"]
-    ctx, *_ = S.prepare(sr.requirement, cat)
+    ctx = S.prepare(sr.requirement, cat).context
     for c in sr.top:
         d = c.design
         i = ctx.choices.index(c.choice)
         assert ctx.np0[i] == d.windings[0].turns       # at 50 Hz the engine keeps the Faraday turns
-        mi = ctx.ct["mat"][[i]]
-        pv = S._core_loss_vec(ctx, mi, np.array([d.b_peak_t]), "sine")[0]
+        mi = ctx.cores.material[[i]]
+        pv = ctx.materials.core_loss_w_m3(mi, np.array([d.b_peak_t]), 50.0, "sine", 0.5)[0]
         assert pv == pytest.approx(d.losses.core_loss_density_w_m3, rel=1e-9)
 
 
 def test_elementwise_mirrors_of_the_engine_helpers(cat):
     req = S.load_requirement(DEMO / "REQ-3305.yaml")
-    ctx, *_ = S.prepare(req, cat)
-    ns = S._engine_ns(req)
+    ctx = S.prepare(req, cat).context
+    spec = S.requirement_spec(req)
     temps = np.linspace(-40.0, 900.0, 23)
-    for mi, mat in enumerate(ctx.mat_objs):
-        got = S.b_sat_vec(ctx.mats["b25"][mi], ctx.mats["b100"][mi], temps)
-        lim = S.flux_limit_vec(ctx, np.full(temps.size, mi), temps)
+    for mi, mat in enumerate(ctx.materials.materials):
+        idx = np.full(temps.size, mi)
+        got = ctx.materials.b_sat_t(idx, temps)
+        lim = ctx.flux_limit_t(idx, temps)
         for t, g, l in zip(temps, got, lim):
             assert g == pytest.approx(engine.b_sat_at_t(mat, float(t)), rel=1e-12)
-            assert l == pytest.approx(engine._flux_limit(ns, cat, mat, float(t))[0], rel=1e-12)
+            assert l == pytest.approx(engine._flux_limit(spec, cat, mat, float(t))[0], rel=1e-12)
     for cooling in ("natural", "forced", "potted"):
-        req2 = S.Requirement(**{**req.__dict__, "cooling": cooling})
-        ctx2, *_ = S.prepare(req2, cat)
-        ns2 = S._engine_ns(req2)
+        req2 = replace(req, cooling=cooling)
+        ctx2 = S.prepare(req2, cat).context
+        spec2 = S.requirement_spec(req2)
+        parts = replace(ctx2.choices[-1].parts, surface_m2=0.004)
         powers = np.geomspace(1e-3, 1e5, 17)
-        hot, rise = S.thermal_state_vec(ctx2, powers, np.full(powers.size, 0.004))
+        hot, rise = ctx2.thermal.state(powers, np.full(powers.size, 0.004))
         for p, h, r in zip(powers, hot, rise):
-            ref = engine.thermal_state(float(p), SimpleNamespace(surface_m2=0.004), ns2, cat)
+            ref = engine.thermal_state(float(p), parts, spec2, cat)
             assert h == pytest.approx(ref.hot_c, rel=1e-12) and r == pytest.approx(ref.rise_k, rel=1e-12)
 
 
@@ -368,15 +374,19 @@ def test_closed_form_section_fr_is_the_mean_of_the_layer_form(layers, delta, sta
     b_max = max(abs(4 * faces[k] * faces[k + 1]) / step ** 2 for k in range(layers))
     opt, sec = _one_foil(delta, layers)
     got = S.section_fr_vec(opt, sec, np.array([1.0]), np.array([start]), np.array([start + amp]),
-                           (np.array([1.0]), np.array([1.0])))[0]
+                           steps.harmonics("sine"))[0]
     assert abs(got - mean) <= (1e-9 + 1e-14 * b_max) * abs(mean)
 
 
 def _one_foil(delta, layers):
     """An option/section pair whose Delta is exactly ``delta`` at a skin depth of 1 (foil, full width)."""
-    opt = {"kind": np.array([3], dtype=np.int8), "k_sub": np.array([1.0]), "strands": np.array([1.0]),
-           "d": np.array([0.0]), "d_over": np.array([0.0]), "width": np.array([1.0]), "thick": np.array([delta])}
-    sec = {"layers": np.array([float(layers)]), "usable": np.array([1.0]), "cap": np.array([1.0])}
+    one, zero = np.array([1.0]), np.array([0.0])
+    opt = OptionRows(kind=np.array([WireKind.FOIL], dtype=np.int16), pitch_m=one, layer_height_m=one,
+                     foil=np.array([True]), copper_area_m2=one, strand_diameter_m=zero, strand_overall_m=zero,
+                     litz_sublayers=one, thickness_m=np.array([delta]), width_m=one, class_c=one, price_per_kg=one,
+                     mass_per_m_kg=one, strands=one, copper=np.array([True]))
+    sec = SectionRows(ok=np.array([True]), turns_per_layer=one, layers=np.array([float(layers)]), last_turns=one,
+                      end_build_m=one, length_m=one, usable_m=one)
     return opt, sec
 
 
@@ -386,7 +396,7 @@ def test_section_fr_from_zero_mmf_is_dowells_m_layer_factor(m, delta):
     """Dowell, Proc. IEE 113(8), 1966: a plain m-layer winding portion from zero MMF."""
     opt, sec = _one_foil(delta, m)
     got = S.section_fr_vec(opt, sec, np.array([1.0]), np.array([0.0]), np.array([3.7]),
-                           (np.array([1.0]), np.array([1.0])))[0]
+                           steps.harmonics("sine"))[0]
     assert got == pytest.approx(dowell.dowell_fr(delta, m), rel=1e-9)
 
 
@@ -397,7 +407,7 @@ def test_section_fr_from_zero_mmf_is_dowells_m_layer_factor(m, delta):
 def test_pareto_indices_by_the_definition(pts):
     cost = np.array([p[0] for p in pts], dtype=float)
     loss = np.array([p[1] for p in pts], dtype=float)
-    got = {(cost[i], loss[i]) for i in S._pareto_indices(cost, loss)}
+    got = {(cost[i], loss[i]) for i in S.pareto_indices(cost, loss)}
     want = {(c, l) for c, l in zip(cost, loss)
             if not any(c2 <= c and l2 <= l and (c2, l2) != (c, l) for c2, l2 in zip(cost, loss))}
     assert got == want
@@ -417,13 +427,13 @@ def test_pruning_keeps_the_best_of_every_sort_key(cat):
     """Dropping dominated wire options must not change the best row by cost or by loss (the full product,
     evaluated without pruning, is the reference)."""
     req = S.load_requirement(DEMO / "REQ-1042.yaml")
-    full_ctx, *_ = S.prepare(req, cat, prune=False)
-    pr_ctx, *_ = S.prepare(req, cat, prune=True)
-    assert pr_ctx.rows_ci.size < full_ctx.rows_ci.size
-    full, pr = S.run_vector_stage(full_ctx), S.run_vector_stage(pr_ctx)
+    full_prep = S.prepare(req, cat, prune=False)
+    pr_prep = S.prepare(req, cat, prune=True)
+    assert pr_prep.rows.size < full_prep.rows.size
+    full, pr = S.run_vector_stage(full_prep).result, S.run_vector_stage(pr_prep).result
     for key in ("cost", "total_w"):
-        f = full[key][full["flags"] == 0].min()
-        p = pr[key][pr["flags"] == 0].min()
+        f = getattr(full, key)[full.flags == 0].min()
+        p = getattr(pr, key)[pr.flags == 0].min()
         assert p == pytest.approx(f, rel=1e-3)
 
 
@@ -458,7 +468,7 @@ def test_bad_requirement_is_one_located_line_exit_2(tmp_path, text, where, what)
 
 
 @pytest.mark.parametrize("args, what", [(["--sort", "price"], "--sort"), (["--top", "0"], "--top"),
-                                        (["--pick", "2"], "--pick")])
+                                        (["--pick", "2"], "--pick"), (["--part", "BH 9"], "--part")])
 def test_bad_options_are_one_line_exit_2(args, what):
     r = _specgen("search", str(DEMO / "REQ-3305.yaml"), *args)
     lines = [l for l in r.stderr.splitlines() if l.strip()]
