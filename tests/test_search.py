@@ -24,8 +24,8 @@ import json
 import math
 import subprocess
 import sys
-from pathlib import Path
 from dataclasses import fields, replace
+from pathlib import Path
 
 import numpy as np
 import pytest

@@ -14,7 +14,7 @@ from typing import TYPE_CHECKING
 
 import numpy as np
 
-from ..catalog.models import Bobbin, Catalog, Core, Tape, Wire
+from ..catalog.models import Bobbin, Catalog, Core, Sleeving, Tape, Wire
 from ..errors import SpecError
 from ..physics import faraday, geometry, sizing
 from ..physics import wire as wiremod
@@ -97,7 +97,7 @@ def _pick_tape(cat: Catalog, cls: int, breadth_m: float | None, prefer: str) -> 
     'thin' (layer tape): the cheapest within 20 % of the thinnest. 'strong' (between windings and the outer
     wrap): the cheapest film tape (at least 50 kV/mm, at most 0.1 mm) holding ``WRAP_BREAKDOWN_V`` per wrap,
     else the one holding the most."""
-    tapes = [t for t in cat.tapes.values() if not _is_margin_tape(t)]
+    tapes: list[Tape] = [t for t in cat.tapes.values() if not _is_margin_tape(t)]
     ok = [t for t in tapes if t.thermal_class_c >= cls] or sorted(tapes, key=lambda t: -t.thermal_class_c)[:3]
     if prefer == "strong":
         films = [t for t in ok if t.thickness_m <= 0.1e-3 and t.dielectric_strength_v_m >= 50e6] or ok
@@ -153,7 +153,7 @@ def insulation_plan(req: Requirement, cat: Catalog, bobbin: Bobbin | None) -> In
 
 def sleeving_for(cat: Catalog, cls: int, diameter_m: float) -> str | None:
     """The narrowest sleeving of the class whose bore takes the wire with 10 % to spare (else the widest)."""
-    ok = [s for s in cat.sleevings.values() if s.thermal_class_c >= cls]
+    ok: list[Sleeving] = [s for s in cat.sleevings.values() if s.thermal_class_c >= cls]
     if not ok:
         return None
     fit = [s for s in ok if s.bore_m >= 1.1 * diameter_m]

@@ -293,7 +293,7 @@ def eval_choke(ctx: SearchContext, ci: IntArray, oi: list[IntArray], mag: ChokeM
     rows = len(ci)
     opts = [ctx.option_tables[0].take(oi[0])]
     n = mag.turns
-    t_start = np.broadcast_to(np.asarray(t_start, dtype=float), (rows,)).copy()
+    start = np.broadcast_to(np.asarray(t_start, dtype=float), (rows,)).copy()
     build = build_rows(ctx, ci, opts, [n])
     sec = build.sections[0]
     length = sec.length_m + 2.0 * ctx.lead_m
@@ -301,7 +301,7 @@ def eval_choke(ctx: SearchContext, ci: IntArray, oi: list[IntArray], mag: ChokeM
     fr = np.ones(rows)
     live = np.flatnonzero(build.fits_slack & core_alone_ok(ctx, core_w, c.surface_m2[ci]))
     if live.size:
-        delta = skin_depth_m(req.frequency_hz, t_start)
+        delta = skin_depth_m(req.frequency_hz, start)
         fr[live] = section_fr_vec(opts[0].take(live), sec.take(live), delta[live], np.zeros(live.size),
                                   n[live] * ch.i_rms, ctx.harmonics)
 
@@ -309,7 +309,7 @@ def eval_choke(ctx: SearchContext, ci: IntArray, oi: list[IntArray], mag: ChokeM
         r = resistance_ohm(opts[0], length, hot)
         return np.asarray(ch.i_dc ** 2 * r + ch.i_ac ** 2 * r * fr)
 
-    th = thermal_loop(ctx, copper, core_w, c.surface_m2[ci], t_start.copy())
+    th = thermal_loop(ctx, copper, core_w, c.surface_m2[ci], start)
     bsat = ctx.materials.b_sat_t(c.material[ci], th.hot_c)
     sat = flag(mag.b_max_t > bsat, Fail.SAT) | flag(n > MAX_TURNS, Fail.FIT)
     tl = tally(ctx, ci, opts, build, th.hot_c, th.rise_k, sat)

@@ -79,7 +79,8 @@ REASON_GROUPS: tuple[tuple[str, Fail], ...] = (
 
 def flag(cond: Any, bit: Fail) -> IntArray:
     """``bit`` where ``cond`` holds, else 0 (an int64 array)."""
-    return np.where(cond, np.int64(bit), np.int64(0)).astype(np.int64)
+    out: IntArray = np.where(cond, np.int64(bit), np.int64(0)).astype(np.int64)
+    return out
 
 
 # ------------------------------------------------------------------------------------------------ row arrays

@@ -68,7 +68,7 @@ def _wind_bobbin(fm: FormerRows, bob: IntArray, turns: FloatArray, pitch: FloatA
     tw, td = fm.tube_width_m[bob], fm.tube_depth_m[bob]
 
     def mlt(c: FloatArray) -> FloatArray:
-        return np.where(rect, geometry.mlt_rect_m(tw, td, c), geometry.mlt_round_m(tw, c))
+        return np.asarray(np.where(rect, geometry.mlt_rect_m(tw, td, c), geometry.mlt_round_m(tw, c)), dtype=np.float64)
 
     out.length_m[bob] = capc * (layers - 1.0) * mlt(c_mean) + last * mlt(c_last)
     out.end_build_m[bob] = s0 + layers * h + (layers - 1.0) * lt
@@ -198,12 +198,12 @@ def resistance_ohm(opt: OptionRows, length_m: FloatArray, temp_c: FloatArray | f
         t = np.broadcast_to(np.asarray(temp_c, dtype=float), r.shape)
         r = r.copy()
         r[al] = np.asarray(wiremod.resistance_per_m_ohm(opt.copper_area_m2[al], t[al], "aluminium")) * length_m[al]
-    return np.asarray(r, dtype=float)
+    return np.asarray(r, dtype=np.float64)
 
 
 def skin_depth_m(freq_hz: float, temp_c: FloatArray | float) -> FloatArray:
     """Skin depth in copper at temp_c [m]."""
-    return np.asarray(wiremod.skin_depth_m(freq_hz, wiremod.resistivity_ohm_m(temp_c)), dtype=float)
+    return np.asarray(wiremod.skin_depth_m(freq_hz, wiremod.resistivity_ohm_m(temp_c)), dtype=np.float64)
 
 
 @dataclass(frozen=True, slots=True)
@@ -225,7 +225,7 @@ class MaterialRows:
 
     def b_sat_t(self, mi: IntArray, temp_c: FloatArray | float) -> FloatArray:
         """B_sat at temperature: the same physics function the engine calls."""
-        return np.asarray(thermal.b_sat_at_temp_t(self.b_sat_25c_t[mi], self.b_sat_100c_t[mi], temp_c), dtype=float)
+        return np.asarray(thermal.b_sat_at_temp_t(self.b_sat_25c_t[mi], self.b_sat_100c_t[mi], temp_c), dtype=np.float64)
 
     def flux_limit_t(self, mi: IntArray, temp_c: FloatArray | float, fraction: float,
                      given_t: float | None) -> FloatArray:
