@@ -66,7 +66,7 @@ from .records import Fail, FormerKind, RowResult, VectorStage, WireKind
 from .report import Progress, result_json, result_text
 from .requirement import KINDS, RATINGS, ChokeDuty, Limits, Requirement, ReqWinding, load_requirement, parse_requirement
 from .rows import Prepared, SearchStats, nondominated, prepare, run_vector_stage, total_rows
-from .steps import section_fr_vec, wind_section_vec
+from .steps import section_ac_factor_rows, wind_section_rows
 
 __all__ = [
     "KINDS", "RATINGS", "SORTS", "Candidate", "ChokeDuty", "CoreChoice", "FamilyFailure", "Fail", "FormerKind",
@@ -75,5 +75,5 @@ __all__ = [
     "choke_magnetics", "core_choices", "draft_spec_text", "eval_choke", "eval_transformer", "evaluate_rows",
     "insulation_plan", "load_requirement", "material_cost", "nondominated", "outline_m", "parse_requirement",
     "pareto_indices", "prepare", "requirement_spec", "result_json", "result_text", "run_candidate",
-    "run_vector_stage", "search", "section_fr_vec", "total_rows", "wind_section_vec", "wire_options",
+    "run_vector_stage", "search", "section_ac_factor_rows", "total_rows", "wind_section_rows", "wire_options",
 ]

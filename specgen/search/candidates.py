@@ -15,29 +15,27 @@ from typing import TYPE_CHECKING
 import numpy as np
 
 from ..catalog.models import Bobbin, Catalog, Core, Sleeving, Tape, Wire
+from ..design import kernel as K
 from ..errors import SpecError
 from ..physics import faraday, geometry, sizing
 from ..physics import wire as wiremod
-from .records import FloatArray, FormerKind, OptionRows, WireKind
+from .records import FloatArray, FormerKind, OptionRows
 from .requirement import Requirement
 
 if TYPE_CHECKING:
-    from ..design.engine import _Parts
+    from ..design.kinds.inductor import Currents
     from ..design.spec import Spec
+    from ..design.state import Parts
 
 # wire options: total copper area within [I / (J_HIGH J), I / (J_LOW J)], J the shop's current density
 J_LOW = 1.0 / 3.0
 J_HIGH = 1.5
-MAX_STRANDS_ROUND = 8      # strands in hand of round wire (the engine's own limit for auto)
-MAX_BUNDLES_LITZ = 6       # Litz bundles in parallel (the engine's own limit for auto)
-MAX_STRANDS_TIW = 4
 SINGLE_WIRE_MAX_M = 1.2e-3  # above this a single wire winds badly; strands in hand then (shop labor's
                             # heavy_wire_above when it gives one; 1.2 mm common practice)
 AP_KU = 0.5                # generous window utilisation for the area-product screen (common practice
                            # reaches 0.3-0.4 on a bobbin): the screen only drops cores clearly too small
 WRAP_BREAKDOWN_V = 5000.0  # a wrap between windings should hold 5 kV, so two or three wraps pass a 3 kV
                            # reinforced test with margin (common practice, from memory)
-FIRST_GUESS_RISE_K = 40.0  # the engine's first guess of the winding's rise before its thermal loop
 
 
 @dataclass(frozen=True, slots=True)
@@ -62,7 +60,7 @@ class CoreChoice:
     core: Core
     stack_m: float | None
     bobbin: Bobbin | None
-    parts: _Parts
+    parts: Parts
     mass_kg: float                  # core mass per unit
     family: str
     plan: InsulationPlan
@@ -176,7 +174,8 @@ def _bobbins(cat: Catalog, core: Core, stack: float | None) -> list[Bobbin | Non
 def core_choices(req: Requirement, cat: Catalog) -> list[CoreChoice]:
     """Every core x stack x bobbin in stock, resolved by the engine (EI: each stocked stack with the
     single-section bobbin made for it; split bobbins only where no single-section one fits)."""
-    from ..design.engine import _core_result, _resolve_core
+    from ..design.flux import b_sat_hot_t
+    from ..design.resolve import core_result, resolve_core
     from .draft import requirement_spec
 
     base = requirement_spec(req)
@@ -187,10 +186,10 @@ def core_choices(req: Requirement, cat: Catalog) -> list[CoreChoice]:
             for bob in _bobbins(cat, core, stack):
                 spec = replace(base, core_id=core.id, stack_m=stack, bobbin_id=bob.id if bob else None)
                 try:
-                    parts = _resolve_core(spec, cat)
+                    parts = resolve_core(spec, cat)
                 except (SpecError, ValueError):
                     continue
-                mass = _core_result(spec, cat, parts, req.ambient_c).mass_kg
+                mass = core_result(spec, cat, parts, b_sat_hot_t(parts.material, req.ambient_c)).mass_kg
                 out.append(CoreChoice(core=core, stack_m=stack, bobbin=bob, parts=parts, mass_kg=mass,
                                       family=f"{core.shape} / {core.material}",
                                       plan=insulation_plan(req, cat, bob)))
@@ -198,13 +197,13 @@ def core_choices(req: Requirement, cat: Catalog) -> list[CoreChoice]:
 
 
 def first_guess_hot_c(req: Requirement, cat: Catalog) -> float:
-    """The engine's first-guess hot spot: ambient + its first-guess rise + the shop's hot-spot margin."""
-    return req.ambient_c + FIRST_GUESS_RISE_K + cat.shop.hotspot_margin_k
+    """Where the engine's temperature loop starts (``kernel.first_guess_thermal``)."""
+    return K.first_guess_thermal(req.ambient_c, cat.shop.hotspot_margin_k).hot_c
 
 
 def current_density_a_m2(req: Requirement, cat: Catalog) -> float:
-    shop = cat.shop
-    return float(shop.current_density_a_m2.get(req.cooling, shop.current_density_a_m2["natural"]))
+    """The shop's current density for the requirement's cooling (``kernel.current_density_a_m2``)."""
+    return K.current_density_a_m2(cat.shop.current_density_a_m2, req.cooling)
 
 
 def area_product_needed_m4(req: Requirement, cat: Catalog, choices: list[CoreChoice]) -> FloatArray:
@@ -212,16 +211,15 @@ def area_product_needed_m4(req: Requirement, cat: Catalog, choices: list[CoreCho
     utilisation ``AP_KU``, current density ``J_HIGH`` x the shop's, and the material's flux limit at the
     first-guess hot spot. Transformer: Ap = Pt / (Kf Ku B f J). Choke: McLyman's energy form
     Ap = L I_pk I_rms / (B Ku J), i.e. area_product_m4 with Pt / (Kf f) = L I_pk I_rms."""
-    from ..design.engine import _flux_limit
-
-    spec = replace_core(req, choices[0]) if choices else None
-    hot = first_guess_hot_c(req, cat)
-    b0 = np.array([_flux_limit(spec, cat, cat.materials[c.core.material], hot)[0] for c in choices]) \
-        if spec is not None else np.zeros(0)
+    mats = [cat.materials[c.core.material] for c in choices]
+    b0 = np.asarray(K.flux_limit_t(np.array([m.b_sat_25c_t for m in mats]), np.array([m.b_sat_100c_t for m in mats]),
+                                   first_guess_hot_c(req, cat), cat.shop.flux_limit_fraction,
+                                   np.array([m.b_design_t if m.b_design_t is not None else np.nan for m in mats]),
+                                   req.flux_limit_t), dtype=np.float64)
     j = J_HIGH * current_density_a_m2(req, cat)
     if req.choke is not None:
-        c = req.choke
-        return np.asarray(sizing.area_product_m4(c.inductance_h * c.peak_a * c.rms_a, 1.0, AP_KU, b0, 1.0, j))
+        c = choke_currents(req)
+        return np.asarray(sizing.area_product_m4(c.target_h * c.i_pk * c.i_rms, 1.0, AP_KU, b0, 1.0, j))
     pt = sizing.transformer_apparent_power_w([w.voltage_v * w.load_current_a for w in req.loads],
                                              req.efficiency_guess)
     if req.waveform == "unipolar":
@@ -239,6 +237,16 @@ def replace_core(req: Requirement, choice: CoreChoice) -> Spec:
 
     return replace(requirement_spec(req), core_id=choice.core.id, stack_m=choice.stack_m,
                    bobbin_id=choice.bobbin.id if choice.bobbin else None)
+
+
+def choke_currents(req: Requirement) -> Currents:
+    """A choke's currents as the engine takes them (``design.kinds.inductor.currents`` of the requirement's spec)."""
+    from ..design.kinds.inductor import currents
+    from .draft import requirement_spec
+
+    spec = requirement_spec(req)
+    assert spec.inductor is not None
+    return currents(spec.inductor, req.frequency_hz)
 
 
 def option_groups(req: Requirement) -> list[int]:
@@ -281,14 +289,11 @@ def wire_options(cat: Catalog, current_a: float, density_a_m2: float, freq_hz: f
     where a single round wire would be thicker than two skin depths; triple-insulated wire when
     ``allow_tiw``; foil and strip no thicker than two skin depths.
     """
-    from ..design.engine import _skin_depth_m
-    from ..design.transformer import WIRE_CHOICE_TEMP_C
-
     i = max(current_a, 1e-6)
     lo, hi = i / (J_HIGH * density_a_m2), i / (J_LOW * density_a_m2)
     target = i / density_a_m2
-    delta = _skin_depth_m(freq_hz, WIRE_CHOICE_TEMP_C) if skin_limited else math.inf
-    limit = 2.0 * delta
+    delta = float(K.skin_depth_m(freq_hz, K.WIRE_CHOICE_TEMP_C)) if skin_limited else math.inf
+    limit = K.STRAND_MAX_SKIN_DEPTHS * delta
     single_d = math.sqrt(4.0 * target / math.pi)
     strands_needed = single_d > min(limit, heavy_m)
     out: list[WireOption] = []
@@ -302,44 +307,29 @@ def wire_options(cat: Catalog, current_a: float, density_a_m2: float, freq_hz: f
 
     for w in sorted(cat.wires.values(), key=lambda w: (w.kind, w.copper_area_m2, w.id)):
         if w.kind == "round" and w.strand_diameter_m <= limit:
-            add(w, MAX_STRANDS_ROUND, strands_needed)
+            add(w, K.MAX_STRANDS_ROUND, strands_needed)
         elif w.kind == "tiw" and allow_tiw and w.strand_diameter_m <= limit:
-            add(w, MAX_STRANDS_TIW, strands_needed)
-        elif w.kind == "litz" and skin_limited and single_d > limit and w.strand_diameter_m <= delta / 2.0:
-            add(w, MAX_BUNDLES_LITZ, True)
+            add(w, K.MAX_STRANDS_TIW, strands_needed)
+        elif (w.kind == "litz" and skin_limited and single_d > limit
+              and w.strand_diameter_m <= K.LITZ_STRAND_MAX_SKIN_DEPTHS * delta):
+            add(w, K.MAX_BUNDLES_LITZ, True)
         elif w.kind in ("foil", "strip") and w.thickness_m <= limit:
             add(w, 2 if w.kind == "strip" else 1, strands_needed)
     return out
 
 
 def option_rows(options: list[WireOption], cat: Catalog) -> OptionRows:
-    """Arrays over one winding's wire options (what the vectorised model reads)."""
-    from ..design.engine import _pitch_and_height
-
-    n = len(options)
-    z = np.zeros
-    t = OptionRows(kind=np.zeros(n, dtype=np.int16), pitch_m=z(n), layer_height_m=z(n), foil=np.zeros(n, dtype=bool),
-                   copper_area_m2=z(n), strand_diameter_m=z(n), strand_overall_m=z(n), litz_sublayers=z(n),
-                   thickness_m=z(n), width_m=z(n), class_c=z(n), price_per_kg=z(n), mass_per_m_kg=z(n),
-                   strands=z(n), copper=np.ones(n, dtype=bool))
+    """Arrays over one winding's wire options (what the vectorised model reads): the kernel's wire geometry,
+    and the class, price with the shop's wire scrap, and mass per metre."""
     scrap = 1.0 + float(cat.shop.scrap_wire)
-    for j, o in enumerate(options):
-        w = o.wire
-        t.pitch_m[j], t.layer_height_m[j], t.foil[j] = _pitch_and_height(w, o.strands)
-        t.kind[j] = WireKind.of(w.kind)
-        area = w.copper_area_m2 * o.strands
-        t.copper_area_m2[j] = area
-        t.strand_diameter_m[j] = w.strand_diameter_m
-        t.strand_overall_m[j] = w.strand_overall_m or w.overall_diameter_m
-        # a layer of Litz bundles is about sqrt(strands) layers of strands (the engine's approximation)
-        t.litz_sublayers[j] = max(1, int(round(math.sqrt(w.strands)))) if w.kind == "litz" else 1
-        t.thickness_m[j], t.width_m[j] = w.thickness_m, w.width_m
-        t.class_c[j] = w.thermal_class_c
-        t.price_per_kg[j] = float(w.price_per_kg) * scrap
-        t.mass_per_m_kg[j] = wiremod.mass_per_m_kg(area, w.conductor)
-        t.strands[j] = o.strands
-        t.copper[j] = w.conductor == "copper"
-    return t
+    geos = [K.wire_geometry(o.wire, o.strands) for o in options]
+    return OptionRows(
+        geometry=K.stack_wires(geos),
+        class_c=np.array([o.wire.thermal_class_c for o in options], dtype=np.float64),
+        price_per_kg=np.array([float(o.wire.price_per_kg) * scrap for o in options], dtype=np.float64),
+        mass_per_m_kg=np.array([wiremod.mass_per_m_kg(g.copper_area_m2, o.wire.conductor)
+                                for g, o in zip(geos, options)], dtype=np.float64),
+        copper=np.array([o.wire.conductor == "copper" for o in options], dtype=bool))
 
 
 # ------------------------------------------------------------------------------------------------ outline

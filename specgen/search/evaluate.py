@@ -8,20 +8,19 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from ..design.spec import MAX_TURNS
+from ..design import kernel as K
+from ..design.kinds.transformer import LOSS_LIMITED_ABOVE_HZ
 from ..physics import faraday
 from .candidates import outline_m
 from .context import SearchContext, choke_magnetics, winding_margin
 from .records import BoolArray, BuildRows, ChokeMagnetics, Fail, FloatArray, IntArray, OptionRows, RowResult, flag
-from .steps import resistance_ohm, section_fr_vec, skin_depth_m, wind_section_vec
+from .steps import resistance_ohm, section_ac_factor_rows, skin_depth_m, wind_section_rows
 
 FIT_SLACK = 0.03           # the vector stage keeps rows within 3 % of fitting / 3 K of a limit for the
 TEMP_SLACK_K = 3.0         # engine to decide (its model is the finer one)
-SETTLED_K = 0.02           # the engine's thermal loop stops when the hot spot moves less than this
-THERMAL_STEPS = 60         # ... or after this many steps (the engine's own count)
-DROP_PASSES = 12           # passes of the secondary-turns compensation (the engine's own count)
-SCAN_ABOVE_HZ = 1000.0     # the engine scans primary turns for the least loss above this frequency
-SCAN_MAX_RATIO = 3.0       # ... up to this multiple of the Faraday turns
+DROP_PASSES = 12           # passes of the secondary-turns compensation (the engine's own count, unnamed there)
+SCAN_MAX_RATIO = 3.0       # the engine scans primary turns up to this multiple of the Faraday turns (unnamed there)
+SATURATION_SLACK = 1.0005  # the engine's saturation check allows this much over the limit (unnamed there)
 
 
 def option_rows_of(ctx: SearchContext, oi: list[IntArray]) -> list[OptionRows]:
@@ -41,8 +40,7 @@ def build_rows(ctx: SearchContext, ci: IntArray, opts: list[OptionRows], turns: 
     secs = []
     last = len(opts) - 1
     for j, (opt, n) in enumerate(zip(opts, turns)):
-        sec = wind_section_vec(fm, n, opt.pitch_m, opt.layer_height_m, h, winding_margin(ctx, j, opt, margin), lt,
-                               opt.foil, limit)
+        sec = wind_section_rows(fm, n, opt, h, winding_margin(ctx, j, opt, margin), lt, limit)
         ok &= sec.ok
         h = sec.end_build_m + (wrap if j == last else wt)
         secs.append(sec)
@@ -127,18 +125,18 @@ def thermal_loop(ctx: SearchContext, copper: Callable[[FloatArray], FloatArray],
                  surface: FloatArray, hot: FloatArray,
                  extra: Callable[[FloatArray, BoolArray], None] | None = None) -> Settled:
     """The engine's thermal loop, row by row: the hot spot from the loss, the loss again at that hot spot,
-    until a row's hot spot moves less than ``SETTLED_K`` (that row then stops, as the engine stops a design).
+    until a row's hot spot moves less than ``THERMAL_SETTLED_K`` (that row then stops, as the engine stops a design).
     ``copper(hot)`` gives every row's copper loss; ``extra(total_w, active)`` updates state between steps."""
     hot = np.array(hot, dtype=float)
     rows = hot.size
     cu = copper(hot)
     rise = np.zeros(rows)
     active = np.ones(rows, dtype=bool)
-    for _ in range(THERMAL_STEPS):
+    for _ in range(K.THERMAL_MAX_PASSES):
         new, new_rise = ctx.thermal.state(cu + core_w, surface)
         if extra is not None:
             extra(cu + core_w, active)
-        settled = np.abs(new - hot) < SETTLED_K
+        settled = np.abs(new - hot) < K.THERMAL_SETTLED_K
         hot = np.where(active, new, hot)
         rise = np.where(active, new_rise, rise)
         cu = np.where(active, copper(hot), cu)
@@ -151,25 +149,28 @@ def thermal_loop(ctx: SearchContext, copper: Callable[[FloatArray], FloatArray],
 # ------------------------------------------------------------------------------------------------ transformer
 
 def eval_transformer(ctx: SearchContext, ci: IntArray, oi: list[IntArray], np_: FloatArray,
-                     t_start: FloatArray | float) -> RowResult:
+                     t_start: FloatArray | float, eta_start: FloatArray | float | None = None) -> RowResult:
     """One pass of the transformer model over rows at primary turns ``np_``; secondary turns and the AC
-    factor at ``t_start`` (per row), then the thermal loop. Rows whose primary alone cannot be wound, or
-    already outgrows the window, are marked not fitting and skip the rest."""
+    factor at ``t_start`` and the efficiency ``eta_start`` (per row; default the requirement's guess), then
+    the thermal loop. Rows whose primary alone cannot be wound, or already outgrows the window, are marked
+    not fitting and skip the rest."""
     rows = len(ci)
     g0 = ctx.groups[0]
     first = build_rows(ctx, ci, [ctx.option_tables[g0].take(oi[g0])], [np_])
     sec = first.sections[0]
     avail = ctx.cores.available_m[ci]
-    alive = sec.ok & (sec.end_build_m * ctx.bulge <= avail * (1.0 + FIT_SLACK) + 1e-12) & (np_ <= MAX_TURNS)
+    alive = sec.ok & (sec.end_build_m * ctx.bulge <= avail * (1.0 + FIT_SLACK) + 1e-12) & (np_ <= K.MAX_TURNS)
     t_start = np.broadcast_to(np.asarray(t_start, dtype=float), (rows,))
+    eta = np.broadcast_to(np.asarray(ctx.req.efficiency_guess if eta_start is None else eta_start, dtype=float),
+                          (rows,))
     if alive.all():
-        return _transformer_rows(ctx, ci, oi, np_, t_start)
+        return _transformer_rows(ctx, ci, oi, np_, t_start, eta)
     fill = np.where(sec.ok, sec.end_build_m * ctx.bulge / np.maximum(avail, 1e-12), np.inf)
     out = RowResult.unevaluated(rows, len(ctx.req.windings), ctx.core_flags[ci] | Fail.FIT, fill,
                                 np.asarray(np_, dtype=float).copy())
     a = np.flatnonzero(alive)
     if a.size:
-        out.put(a, _transformer_rows(ctx, ci[a], [o[a] for o in oi], np_[a], t_start[a]))
+        out.put(a, _transformer_rows(ctx, ci[a], [o[a] for o in oi], np_[a], t_start[a], eta[a]))
     return out
 
 
@@ -189,16 +190,16 @@ def _secondary_turns(ctx: SearchContext, ci: IntArray, opts: list[OptionRows], n
         lengths = [s.length_m[todo] + 2.0 * ctx.lead_m for s in build.sections]
         tt = [t[todo] for t in turns]
         np_t, ts = np_[todo], t_start[todo]
-        rp = resistance_ohm(opts[0].take(todo), lengths[0], ts)
+        rp = resistance_ohm(opts[0], lengths[0], ts, todo)
         # the primary carries every load's current referred through its ratio: its drop is shared (engine)
         i_ref = sum(windings[j].load_current_a * tt[j] / np_t for j in loads)
         v_prim = ctx.vp - i_ref * rp
         changed = np.zeros(todo.size, dtype=bool)
         for j in loads:
             w = windings[j]
-            rs = resistance_ohm(opts[j].take(todo), lengths[j], ts)
+            rs = resistance_ohm(opts[j], lengths[j], ts, todo)
             v_loaded = tt[j] / np_t * v_prim - w.load_current_a * rs
-            need = ok_t & (v_loaded < w.voltage_v - 1e-9) & (tt[j] <= MAX_TURNS)
+            need = ok_t & (v_loaded < w.voltage_v - 1e-9) & (tt[j] <= K.MAX_TURNS)
             add = np.maximum(1.0, np.ceil((w.voltage_v - v_loaded) / (v_prim / np_t) - 1e-9))
             tt[j] = np.where(need, tt[j] + add, tt[j])
             changed |= need
@@ -217,26 +218,27 @@ def _secondary_turns(ctx: SearchContext, ci: IntArray, opts: list[OptionRows], n
     return turns, build
 
 
-def _section_frs(ctx: SearchContext, opts: list[OptionRows], build: BuildRows, turns: list[FloatArray],
-                 ip: FloatArray, live: IntArray, delta: FloatArray) -> list[FloatArray]:
+def _section_frs(ctx: SearchContext, ci: IntArray, opts: list[OptionRows], build: BuildRows,
+                 turns: list[FloatArray], ip: FloatArray, live: IntArray, delta: FloatArray) -> list[FloatArray]:
     """Each winding's AC factor from the MMF across the build (primary +, loads -), only on ``live`` rows."""
     rows = ip.size
     mmf = np.zeros(rows)
     frs = []
+    fm = ctx.cores.former.take(ci[live])
+    lt = ctx.cores.layer_tape_m[ci[live]]
     for j, (w, opt, sec) in enumerate(zip(ctx.req.windings, opts, build.sections)):
-        cur = ip if w.role == "primary" else w.load_current_a
-        f_end = mmf + (1.0 if w.role == "primary" else -1.0) * turns[j] * cur
+        cur = ip if w.role == "primary" else np.full(rows, -w.load_current_a)
         fr = np.ones(rows)
         if live.size:
-            fr[live] = section_fr_vec(opt.take(live), sec.take(live), delta[live], mmf[live], f_end[live],
-                                      ctx.harmonics)
+            fr[live] = section_ac_factor_rows(opt.take(live), fm, sec.take(live), turns[j][live], lt, delta[live],
+                                              mmf[live], cur[live], ctx.harmonics)
         frs.append(fr)
-        mmf = f_end
+        mmf = mmf + turns[j] * cur
     return frs
 
 
 def _transformer_rows(ctx: SearchContext, ci: IntArray, oi: list[IntArray], np_: FloatArray,
-                      t_start: FloatArray) -> RowResult:
+                      t_start: FloatArray, eta: FloatArray) -> RowResult:
     req, c = ctx.req, ctx.cores
     f = req.frequency_hz
     rows = len(ci)
@@ -246,12 +248,12 @@ def _transformer_rows(ctx: SearchContext, ci: IntArray, oi: list[IntArray], np_:
     imag = ctx.magnetizing_a(np.asarray(faraday.magnetizing_inductance_h(np_, ae, c.le_m[ci], c.mu_working[ci])))
     turns, build = _secondary_turns(ctx, ci, opts, np_, t_start)
     lengths = [s.length_m + 2.0 * ctx.lead_m for s in build.sections]
-    ip = np.hypot(ctx.p_out / req.efficiency_guess / ctx.vp, imag)
+    ip = np.hypot(ctx.p_out / eta / ctx.vp, imag)
     b_pk = np.asarray(faraday.b_peak_t(ctx.vp, f, np_, ae, req.waveform, req.duty))
     core_w = ctx.materials.core_loss_w_m3(mi, b_pk, f, req.waveform, req.duty) * c.ve_m3[ci]
     # the AC factor only where it can matter: rows that fit and that the core loss alone does not overheat
     live = np.flatnonzero(build.fits_slack & core_alone_ok(ctx, core_w, surface))
-    frs = _section_frs(ctx, opts, build, turns, ip, live, skin_depth_m(f, t_start))
+    frs = _section_frs(ctx, ci, opts, build, turns, ip, live, skin_depth_m(f, t_start))
     b_pk_max = np.asarray(faraday.b_peak_t(ctx.vp_max, f, np_, ae, req.waveform, req.duty))
     primary_a = [ip]
 
@@ -268,12 +270,12 @@ def _transformer_rows(ctx: SearchContext, ci: IntArray, oi: list[IntArray], np_:
 
     th = thermal_loop(ctx, copper, core_w, surface, t_start.copy(), efficiency)
     limit = ctx.swing_t(ctx.flux_limit_t(mi, th.hot_c), mi)
-    sat = flag(b_pk_max > limit * 1.0005, Fail.SAT)
+    sat = flag(b_pk_max > limit * SATURATION_SLACK, Fail.SAT)
     if req.waveform == "unipolar":
         bsat = ctx.materials.b_sat_t(mi, th.hot_c)
         sat |= flag(b_pk_max + ctx.materials.b_r_t[mi] > bsat, Fail.SAT)
     for t in turns:       # the engine refuses more turns than it winds
-        sat |= flag(t > MAX_TURNS, Fail.FIT)
+        sat |= flag(t > K.MAX_TURNS, Fail.FIT)
     tl = tally(ctx, ci, opts, build, th.hot_c, th.rise_k, sat)
     return RowResult(flags=tl.flags, flags_slack=tl.flags_slack, total_w=th.copper_w + core_w, copper_w=th.copper_w,
                      core_w=core_w, hot_c=th.hot_c, rise_k=th.rise_k, fill=build.fill, mass_kg=tl.mass_kg,
@@ -300,18 +302,20 @@ def eval_choke(ctx: SearchContext, ci: IntArray, oi: list[IntArray], mag: ChokeM
     core_w = mag.core_loss_w_m3 * c.ve_m3[ci]
     fr = np.ones(rows)
     live = np.flatnonzero(build.fits_slack & core_alone_ok(ctx, core_w, c.surface_m2[ci]))
+    cur = ch.currents
     if live.size:
         delta = skin_depth_m(req.frequency_hz, start)
-        fr[live] = section_fr_vec(opts[0].take(live), sec.take(live), delta[live], np.zeros(live.size),
-                                  n[live] * ch.i_rms, ctx.harmonics)
+        fr[live] = section_ac_factor_rows(opts[0].take(live), c.former.take(ci[live]), sec.take(live), n[live],
+                                          c.layer_tape_m[ci[live]], delta[live], np.zeros(live.size), cur.i_rms,
+                                          ctx.harmonics)
 
     def copper(hot: FloatArray) -> FloatArray:
-        r = resistance_ohm(opts[0], length, hot)
-        return np.asarray(ch.i_dc ** 2 * r + ch.i_ac ** 2 * r * fr)
+        return np.asarray(K.copper_loss_w(resistance_ohm(opts[0], length, hot), fr, cur.i_ac, cur.i_dc),
+                          dtype=np.float64)
 
     th = thermal_loop(ctx, copper, core_w, c.surface_m2[ci], start)
     bsat = ctx.materials.b_sat_t(c.material[ci], th.hot_c)
-    sat = flag(mag.b_max_t > bsat, Fail.SAT) | flag(n > MAX_TURNS, Fail.FIT)
+    sat = flag(mag.b_max_t > bsat, Fail.SAT) | flag(n > K.MAX_TURNS, Fail.FIT)
     tl = tally(ctx, ci, opts, build, th.hot_c, th.rise_k, sat)
     return RowResult(flags=tl.flags, flags_slack=tl.flags_slack, total_w=th.copper_w + core_w, copper_w=th.copper_w,
                      core_w=core_w, hot_c=th.hot_c, rise_k=th.rise_k, fill=build.fill, mass_kg=tl.mass_kg,
@@ -344,7 +348,7 @@ def evaluate_rows(ctx: SearchContext, ci: IntArray, oi: list[IntArray], second_p
     t0 = ctx.t0_hot_c
     if ctx.choke is None:
         res = eval_transformer(ctx, ci, oi, ctx.np0[ci], t0)
-        if ctx.req.frequency_hz >= SCAN_ABOVE_HZ:
+        if ctx.req.frequency_hz >= LOSS_LIMITED_ABOVE_HZ:
             n1 = _least_loss_turns(ctx, ci, res)
             again = np.flatnonzero(((res.flags_slack & Fail.FIT) == 0) & (n1 > res.primary_turns))
             if again.size:
@@ -354,8 +358,10 @@ def evaluate_rows(ctx: SearchContext, ci: IntArray, oi: list[IntArray], second_p
         if second_pass:
             near = np.flatnonzero(res.flags_slack == 0)
             if near.size:
+                # as the engine's last pass: the settled hot spot, and the efficiency of the loss before it
+                eta = ctx.p_out / (ctx.p_out + res.total_w[near])
                 sub = eval_transformer(ctx, ci[near], [o[near] for o in oi], res.primary_turns[near],
-                                       res.hot_c[near])
+                                       res.hot_c[near], eta)
                 res.merge(near, sub, np.ones(near.size, dtype=bool))
         return res
     res = eval_choke(ctx, ci, oi, ctx.choke.mag0.take(ci), t0)

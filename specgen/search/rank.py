@@ -16,7 +16,7 @@ from ..errors import SpecError
 from .candidates import AP_KU, J_HIGH, CoreChoice
 from .confirm import SORT_KEYS, SORTS, Candidate, VectorNumbers, run_candidate
 from .context import SearchContext
-from .records import REASON_GROUPS, BoolArray, Fail, FloatArray, IntArray, RowResult, VectorStage
+from .records import REASON_GROUPS, BoolArray, Fail, FloatArray, FormerKind, IntArray, RowResult, VectorStage
 from .requirement import Requirement
 from .rows import Prepared, Screened, SearchStats, prepare, run_vector_stage
 
@@ -69,7 +69,7 @@ def cap_per_core(cands: list[Candidate], per_core: int) -> list[Candidate]:
 def _offsets(ctx: SearchContext, vs: VectorStage, evaluated: dict[int, Candidate], what: str) -> FloatArray:
     """Per core choice: engine value minus vector value of ``what`` (median over its engine runs); for a
     core not yet run, the median over the run cores of the same kind (bobbin or toroid), else 0."""
-    toroid = ctx.cores.former.toroid
+    toroid = ctx.cores.former.kind == FormerKind.TOROID
     off = np.zeros(len(ctx.choices))
     values = getattr(vs.result, what)
     per: dict[int, list[float]] = {}

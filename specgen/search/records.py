@@ -2,48 +2,49 @@
 
 A row is one candidate (a core choice and one wire option per winding). The vector stage works on
 numpy arrays over rows; these frozen records name every array instead of string-keyed dicts, and the
-kind codes are ``IntEnum`` per domain with values that never coincide across domains (a former's code
-can never be mistaken for a wire's).
+kind codes are an ``IntEnum`` per domain, each kept in its own typed field (a former's kind and a wire's
+kind never share a key). Their values are the kernel's codes, which the kernel's arrays carry.
 """
 
 from __future__ import annotations
 
-from dataclasses import dataclass, fields
+from dataclasses import dataclass, fields, is_dataclass
 from enum import IntEnum, IntFlag
 from typing import Any, TypeVar
 
 import numpy as np
 from numpy.typing import NDArray
 
+from ..design import kernel as K
+
 FloatArray = NDArray[np.float64]
 IntArray = NDArray[np.int64]
 BoolArray = NDArray[np.bool_]
-CodeArray = NDArray[np.int16]
+CodeArray = NDArray[np.int8]
 
 
 class FormerKind(IntEnum):
-    """What the winding is laid on (the engine's ``Former.kind``)."""
-    RECT = 101         # rectangular bobbin tube
-    ROUND = 102        # round bobbin tube
-    TOROID = 103       # no bobbin: the toroid itself
+    """What the winding is laid on; the values are the kernel's codes (``kernel.FORMER_CODE``)."""
+    RECT = K.FORMER_CODE["rect"]        # rectangular bobbin tube
+    ROUND = K.FORMER_CODE["round"]      # round bobbin tube
+    TOROID = K.FORMER_CODE["toroid"]    # no bobbin: the toroid itself
 
     @classmethod
     def of(cls, name: str) -> FormerKind:
-        return {"rect": cls.RECT, "round": cls.ROUND, "toroid": cls.TOROID}[name]
+        return cls(K.FORMER_CODE[name])
 
 
 class WireKind(IntEnum):
-    """The catalogue's wire kinds (``Wire.kind``)."""
-    ROUND = 201
-    LITZ = 202
-    TIW = 203          # triple-insulated
-    FOIL = 204
-    STRIP = 205
+    """The catalogue's wire kinds; the values are the kernel's codes (``kernel.WIRE_CODE``)."""
+    ROUND = K.WIRE_CODE["round"]
+    LITZ = K.WIRE_CODE["litz"]
+    TIW = K.WIRE_CODE["tiw"]            # triple-insulated
+    FOIL = K.WIRE_CODE["foil"]
+    STRIP = K.WIRE_CODE["strip"]
 
     @classmethod
     def of(cls, name: str) -> WireKind:
-        return {"round": cls.ROUND, "litz": cls.LITZ, "tiw": cls.TIW, "foil": cls.FOIL, "strip": cls.STRIP}.get(
-            name, cls.ROUND)
+        return cls(K.WIRE_CODE.get(name, K.WIRE_CODE["round"]))
 
 
 class Fail(IntFlag):
@@ -89,8 +90,12 @@ R = TypeVar("R", bound="RowArrays")
 
 
 def _take(value: Any, idx: Any) -> Any:
+    if isinstance(value, np.ndarray):
+        return value[..., idx]
     if isinstance(value, RowArrays):
         return value.take(idx)
+    if is_dataclass(value) and not isinstance(value, type):      # the kernel's records of arrays
+        return type(value)(**{f.name: _take(getattr(value, f.name), idx) for f in fields(value)})
     if isinstance(value, tuple):
         return tuple(_take(v, idx) for v in value)
     if isinstance(value, np.ndarray):
@@ -99,8 +104,13 @@ def _take(value: Any, idx: Any) -> Any:
 
 
 def _put(value: Any, idx: Any, sub: Any) -> None:
-    if isinstance(value, RowArrays):
+    if isinstance(value, np.ndarray):
+        value[..., idx] = sub
+    elif isinstance(value, RowArrays):
         value.put(idx, sub)
+    elif is_dataclass(value) and not isinstance(value, type):
+        for f in fields(value):
+            _put(getattr(value, f.name), idx, getattr(sub, f.name))
     elif isinstance(value, tuple):
         for v, s in zip(value, sub):
             _put(v, idx, s)
@@ -122,43 +132,22 @@ class RowArrays:
 
 
 @dataclass(frozen=True, slots=True)
-class FormerRows(RowArrays):
-    """The former under each row's winding [m] (the engine's ``Former``, one per row)."""
-    kind: CodeArray          # FormerKind
-    tube_width_m: FloatArray
-    tube_depth_m: FloatArray
-    breadth_m: FloatArray
-    od_m: FloatArray         # toroid, over its coating
-    id_m: FloatArray
-    core_height_m: FloatArray
-
-    @property
-    def toroid(self) -> BoolArray:
-        return np.asarray(self.kind == FormerKind.TOROID)
-
-
-@dataclass(frozen=True, slots=True)
 class OptionRows(RowArrays):
-    """One winding's wire option per row (or per option of a winding's option table)."""
-    kind: CodeArray          # WireKind
-    pitch_m: FloatArray      # along the layer, per turn (strands in hand side by side)
-    layer_height_m: FloatArray
-    foil: BoolArray          # one turn per layer, as wide as the wire
-    copper_area_m2: FloatArray   # all strands in hand
-    strand_diameter_m: FloatArray
-    strand_overall_m: FloatArray
-    litz_sublayers: FloatArray   # strand layers per bundle layer (Litz), else 1
-    thickness_m: FloatArray
-    width_m: FloatArray
+    """One winding's wire option per row (or per option of a winding's option table): the kernel's wire
+    geometry, and what the search adds for class, cost and mass."""
+    geometry: K.WireGeometry     # arrays; kind in WireKind codes
     class_c: FloatArray
     price_per_kg: FloatArray     # x (1 + the shop's wire scrap)
     mass_per_m_kg: FloatArray
-    strands: FloatArray
     copper: BoolArray            # copper (else aluminium)
 
     @property
+    def kind(self) -> CodeArray:
+        return np.asarray(self.geometry.kind)
+
+    @property
     def size(self) -> int:
-        return int(self.kind.shape[0])
+        return int(np.asarray(self.geometry.kind).shape[0])
 
 
 @dataclass(frozen=True, slots=True)
@@ -171,11 +160,7 @@ class SectionRows(RowArrays):
     end_build_m: FloatArray  # build after the last layer
     length_m: FloatArray     # copper, without leads
     usable_m: FloatArray     # usable breadth, or the first layer's circumference (toroid)
-
-    @classmethod
-    def empty(cls, n: int) -> SectionRows:
-        z = np.zeros
-        return cls(np.zeros(n, dtype=bool), z(n), z(n), z(n), z(n), z(n), z(n))
+    start_m: FloatArray      # build where the section starts
 
 
 @dataclass(frozen=True, slots=True)

@@ -5,7 +5,6 @@ Every mistake is a located ``SpecError`` (file, line and key path; one line, exi
 
 from __future__ import annotations
 
-import math
 from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Any
@@ -58,24 +57,6 @@ class ChokeDuty:
     current_dc_a: float
     ripple_a: float                 # peak to peak
     current_peak_a: float | None
-
-    @property
-    def ripple_rms_a(self) -> float:
-        """RMS of a triangular ripple of ``ripple_a`` peak to peak: I_pp / sqrt(12)."""
-        return self.ripple_a / math.sqrt(12.0)
-
-    @property
-    def operating_peak_a(self) -> float:
-        return self.current_dc_a + self.ripple_a / 2.0
-
-    @property
-    def peak_a(self) -> float:
-        """The largest current the core must not saturate at (the given peak, or the operating peak)."""
-        return max(self.current_peak_a or 0.0, self.operating_peak_a)
-
-    @property
-    def rms_a(self) -> float:
-        return math.hypot(self.current_dc_a, self.ripple_rms_a)
 
 
 @dataclass(frozen=True, slots=True)

@@ -10,12 +10,13 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from ..catalog.models import Catalog
-from ..design.spec import MAX_TURNS
+from ..design import kernel as K
 from ..physics import faraday
 from .candidates import (
     CoreChoice,
     WireOption,
     area_product_needed_m4,
+    choke_currents,
     core_choices,
     current_density_a_m2,
     heavy_wire_m,
@@ -26,7 +27,7 @@ from .context import SearchContext, winding_margin
 from .evaluate import FIT_SLACK, evaluate_rows
 from .records import BoolArray, FloatArray, IntArray, RowResult, VectorStage
 from .requirement import Requirement
-from .steps import resistance_ohm, section_fr_vec, skin_depth_m, wind_section_vec
+from .steps import resistance_ohm, section_ac_factor_rows, skin_depth_m, wind_section_rows
 
 CHUNK_ROWS = 65536
 ROWS_PER_CORE_MAX = 2000
@@ -92,11 +93,9 @@ def _options(req: Requirement, cat: Catalog, groups: list[int]) -> list[list[Wir
     density = current_density_a_m2(req, cat)
     heavy = heavy_wire_m(cat)
     if req.choke is not None:
-        from ..design.inductor import RIPPLE_SKIN_FRACTION
-
-        c = req.choke
-        skin = c.current_dc_a <= 0 or c.ripple_rms_a / c.current_dc_a > RIPPLE_SKIN_FRACTION
-        return [wire_options(cat, c.rms_a, density, req.frequency_hz, skin_limited=skin, allow_tiw=False,
+        c = choke_currents(req)
+        skin = c.i_dc <= 0 or c.i_ac / c.i_dc > K.RIPPLE_SKIN_FRACTION
+        return [wire_options(cat, c.i_rms, density, req.frequency_hz, skin_limited=skin, allow_tiw=False,
                              heavy_m=heavy)]
     options = []
     done: set[int] = set()
@@ -177,7 +176,7 @@ def _winding_alone(ctx: SearchContext, g: int, cores: IntArray, opt_idx: IntArra
     count = ctx.groups.count(g)
     t0 = ctx.t0_hot_c
     if ctx.choke is not None:
-        cur = np.full(ci.size, ctx.choke.i_rms)
+        cur = np.full(ci.size, ctx.choke.currents.i_rms)
         turns = ctx.choke.mag0.turns[ci]
     else:
         np_ = ctx.np0[ci]
@@ -191,16 +190,18 @@ def _winding_alone(ctx: SearchContext, g: int, cores: IntArray, opt_idx: IntArra
             turns = np.maximum(1.0, np.ceil(np_ * w.voltage_v / ctx.vp - 1e-9))
     avail = c.available_m[ci]
     limit = (avail * (1.0 + FIT_SLACK) + 1e-12) / ctx.bulge
-    sec = wind_section_vec(c.former.take(ci), turns, opt.pitch_m, opt.layer_height_m, np.zeros(ci.size),
-                           winding_margin(ctx, j, opt, c.margin_m[ci]), c.layer_tape_m[ci], opt.foil, limit)
+    fm = c.former.take(ci)
+    sec = wind_section_rows(fm, turns, opt, np.zeros(ci.size), winding_margin(ctx, j, opt, c.margin_m[ci]),
+                            c.layer_tape_m[ci], limit)
     length = sec.length_m + 2.0 * ctx.lead_m
-    fr = section_fr_vec(opt, sec, skin_depth_m(req.frequency_hz, t0), np.zeros(ci.size), turns * cur, ctx.harmonics)
+    fr = section_ac_factor_rows(opt, fm, sec, turns, c.layer_tape_m[ci], skin_depth_m(req.frequency_hz, t0),
+                                np.zeros(ci.size), cur, ctx.harmonics)
     r = resistance_ohm(opt, length, t0)
     if ctx.choke is not None:
-        loss = ctx.choke.i_dc ** 2 * r + ctx.choke.i_ac ** 2 * r * fr
+        loss = np.asarray(K.copper_loss_w(r, fr, ctx.choke.currents.i_ac, ctx.choke.currents.i_dc), dtype=np.float64)
     else:
-        loss = cur * cur * r * fr
-    fits = sec.ok & (sec.end_build_m <= limit) & (turns <= MAX_TURNS)
+        loss = np.asarray(K.copper_loss_w(r, fr, cur), dtype=np.float64)
+    fits = sec.ok & (sec.end_build_m <= limit) & (turns <= K.MAX_TURNS)
     return _Alone(np.where(sec.ok, sec.end_build_m, np.inf), loss * count,
                   opt.mass_per_m_kg * length * opt.price_per_kg * count, opt.class_c, fits)
 
