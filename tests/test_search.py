@@ -538,6 +538,8 @@ BAD = [
     ("kind: transformer\noperating: {frequency: 50 Hz}\nwindings:\n  - {name: P, role: primary, voltage: 230 V}\n",
      ":3:", "windings"),
     ("kind: transformer\n  bad: [\n", ":", "YAML"),
+    ("part: BH 9\nkind: inductor\noperating: {frequency: 100 kHz}\ninductor: {inductance: 47 uH, current: 8 A}\n",
+     ":1:", "part"),
 ]
 
 

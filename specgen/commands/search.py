@@ -86,13 +86,10 @@ def register(app) -> None:
 
 
 def _check_part(part: str) -> None:
-    """--part names the draft's files: the spec parser's own part-number rule, checked before the search runs."""
-    from ..design.spec import _PART_RE
-    from ..errors import SpecError
+    """--part names the draft's files: the one part-number rule, checked before the search runs."""
+    from ..part_numbers import check_part_number
 
-    if not _PART_RE.match(part):
-        raise SpecError(f"part number '{part}' may hold letters, digits, '.', '_' and '-' only (it names the files "
-                        f"written for it)", path="--part")
+    check_part_number(part, path="--part")
 
 
 def _refuse_existing(path: Path) -> None:

@@ -129,14 +129,16 @@ def _text(r: Reader, key: str) -> str | None:
 
 
 def _validate_part(r: Reader) -> str | None:
-    """The part number the draft will carry: the spec parser's own rule, reported here, at the requirement."""
-    from ..design.spec import _PART_RE
+    """The part number the draft will carry: the one part-number rule, reported here, at the requirement."""
+    from ..part_numbers import part_number_problem
 
-    part = r.text("part", None, max_len=60)
-    if part is not None and not _PART_RE.match(part.strip()):
-        raise r.error(f"part number '{part}' may hold letters, digits, '.', '_' and '-' only (it names the files "
-                      f"written for it)", "part")
-    return part.strip() if part is not None else None
+    if not r.has("part"):
+        return None
+    part = r.raw("part")
+    problem = part_number_problem(part)
+    if problem is not None:
+        raise r.error(problem, "part")
+    return str(part).strip()
 
 
 @dataclass(frozen=True, slots=True)
@@ -155,7 +157,6 @@ class _Operating:
 
 def _operating(r: Reader, kind: str) -> _Operating:
     from ..design.spec import COOLING, WAVEFORMS, _insulation_class
-    from ..physics_classes import IEC_60085
 
     op = r.mapping("operating")
     assert op is not None          # required key: Reader.mapping raises when it is missing
@@ -172,7 +173,7 @@ def _operating(r: Reader, kind: str) -> _Operating:
     if not -60.0 <= ambient <= 200.0:
         raise op.error(f"ambient {ambient:g} degC is outside -60..200 degC", "ambient")
     cooling = op.choice("cooling", COOLING, "natural")
-    cls = _insulation_class(op, op.raw("insulation_class", 130), IEC_60085)
+    cls = _insulation_class(op, op.raw("insulation_class", 130))
     max_rise = op.quantity("max_rise", "temperature_difference", None)
     if max_rise is not None and max_rise <= 0:
         raise op.error("max_rise must be above zero", "max_rise")
