@@ -8,27 +8,23 @@ shop's cores and wires can do it, and at what loss, temperature, size and materi
    (``AP_KU``), the highest current density considered (``J_HIGH`` x the shop's) and the flux limit is
    set aside as "too small a window"; so is a bobbin with too few pins. Nothing else is evaluated for it.
 2. Vectorised evaluation: one numpy row per (core choice, wire option of every winding), evaluated with
-   the design engine's own functions applied to arrays (faraday, wire, geometry MLT, layers/dowell,
-   coreloss, thermal; the engine's ``_resolve_core``, ``_pitch_and_height`` and ``_magnetizing``; its
-   ``thermal_state``, ``b_sat_at_t`` and ``_flux_limit`` mirrored elementwise in ``steps`` and tested against it), so
-   the vector code is the scalar code applied elementwise. Where it follows the
-   engine exactly (tested against it to 1e-9): core parameters and former; primary turns from Faraday's
-   law at the flux limit of the first-guess hot spot; the layer build (turns per layer, layers, layer and
-   winding tapes, each layer's own MLT - a closed-form sum on a bobbin, where the MLT is affine in the
-   build, a layer loop on a toroid); copper length and DCR; B_peak and the core loss density; the
-   McLyman rise and hot spot; flux limit, class and fit checks.
-   Simplified, for screening and ranking only:
-   - the AC factor of a winding is the engine's layer form (``physics.layers.layer_fr``) averaged over
-     layers of equal MMF step at the full-layer porosity, unweighted by layer length (the engine takes
-     each layer's own porosity and weights by its length), at the first-guess temperature;
-   - secondary turns are compensated for the resistive drop at the first-guess temperature only, and
-     the thermal loop then iterates resistance and efficiency (the engine re-derives turns and AC factor
-     at every step);
+   the design kernel's array-capable steps (``specgen.design.kernel``: flux limit and swing, Faraday turns,
+   magnetizing current, the section winding, DCR, skin depth, core loss, temperature rise with its cooling
+   table, choke turns and gap) and the engine's own core resolution and choke currents; the search writes
+   no formula of its own. Where it is the engine's calculation (tested against the engine winding by
+   winding): core parameters and former; the layer build (turns per layer, layers, each layer's own MLT);
+   copper length and DCR; each section's AC factor (every layer's own factor at its own turns and MMF,
+   weighted by its copper length: a closed-form sum over the full layers of a bobbin, layer by layer on a
+   toroid); core loss; the rise and hot spot; flux limit, class and fit checks. Given the engine's primary
+   turns, hot spot and efficiency it gives the engine's turns, AC factors and losses.
+   Where it differs, for screening and ranking only:
+   - one pass at the engine's first-guess temperature and efficiency, then one more at the hot spot and
+     efficiency that pass settled at (the engine re-derives turns and AC factor at every thermal step);
+   - secondary turns are compensated for the resistive drop only (the engine adds the leakage reactance
+     of a sine drive in quadrature);
    - above 1 kHz the engine scans the primary turns up to 3 n0 for the least loss; the vector stage
      evaluates n0 and one analytic optimum N = n0 (beta P_core / (2 P_cu))^(1/(beta + 2)) (core loss
-     ~ N^-beta, copper loss ~ N^2);
-   - chokes: turns and gap at the first-guess temperature, the gap by a vectorised bisection of the
-     same ``gap.inductance_gapped_h`` (the engine's scalar solver scans then bisects).
+     ~ N^-beta, copper loss ~ N^2).
    Rows: for a transformer, each winding's options are first evaluated alone on each core (height from
    the tube, copper loss, cost, class) and an option no better than another of the same winding in all
    four is dropped (``prune_options``): it could only make every design it enters worse. Only where a
