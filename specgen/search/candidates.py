@@ -19,7 +19,7 @@ from ..design import kernel as K
 from ..errors import SpecError
 from ..physics import faraday, geometry, sizing
 from ..physics import wire as wiremod
-from .records import FloatArray, FormerKind, OptionRows
+from .records import FloatArray, OptionRows
 from .requirement import Requirement
 
 if TYPE_CHECKING:
@@ -364,6 +364,3 @@ def outline_m(core: Core, stack_m: float | None, bulged_build_m: float | FloatAr
     stacked = -np.sort(-np.stack(arr), axis=0)
     return stacked[0], stacked[1], stacked[2]
 
-
-def former_kind(choice: CoreChoice) -> FormerKind:
-    return FormerKind.of(choice.parts.former.kind)

@@ -10,6 +10,7 @@ import numpy as np
 
 from ..catalog.models import Catalog
 from ..design import kernel as K
+from ..design.build import tape_factor
 from ..physics import gap as gapmod
 from ..physics import permeability
 from .candidates import CoreChoice, WireOption, first_guess_hot_c, option_rows, outline_m, replace_core
@@ -83,7 +84,7 @@ def core_rows(choices: list[CoreChoice], cat: Catalog, mindex: dict[str, int]) -
         ct.mass_kg[i] = c.mass_kg
         ct.bobbin_class_c[i] = c.bobbin.thermal_class_c if c.bobbin is not None else 1e9
         toroid = f.kind == "toroid"
-        tf = 2.0 if toroid else 1.0     # the engine's tape factor: half-lapped tape on a toroid
+        tf = tape_factor(f)             # the engine's: tape half-lapped on a toroid
         ct.layer_tape_m[i] = c.plan.layer_tape_m * tf
         ct.winding_tape_m[i] = c.plan.winding_tape_m * tf
         ct.outer_wrap_m[i] = c.plan.outer_wrap_m * tf

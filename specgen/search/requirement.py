@@ -102,12 +102,6 @@ class Requirement:
         return sum(w.voltage_v * w.load_current_a for w in self.loads)
 
     @property
-    def duty_of_choke(self) -> ChokeDuty:
-        if self.choke is None:
-            raise ValueError(f"{self.id} is not a choke requirement")
-        return self.choke
-
-    @property
     def core_waveform(self) -> str:
         """The flux waveform of the engine's core loss: a choke's DC + ripple is modelled as sine here."""
         return self.waveform if self.kind == "transformer" else "sine"
