@@ -1,4 +1,4 @@
-"""Benchmark of the design search (issue 9), called by bench/run.py as ``bench()``.
+"""Benchmark of the design search, called by bench/run.py as ``bench()``.
 
 Two figures:
 - candidates per second of the vectorised stage over the full shipped catalogue: every core x stack x
