@@ -38,7 +38,7 @@ from hypothesis import strategies as st
 
 from specgen import search as S
 from specgen.catalog.loader import load_catalog
-from specgen.design import engine
+from specgen.design import flux
 from specgen.design import kernel as K
 from specgen.design.build import Former, wind_section
 from specgen.design.spec import load_spec_text
@@ -468,7 +468,9 @@ def test_vector_flux_and_core_loss_equal_the_engines_for_the_listed_transformers
         assert pv == pytest.approx(d.losses.core_loss_density_w_m3, rel=1e-9)
 
 
-def test_elementwise_mirrors_of_the_engine_helpers(cat):
+def test_row_flux_limit_and_thermal_state_equal_the_engines(cat):
+    """The rows' B_sat, flux limit and thermal state against the engine's own scalar calls (``design.flux``
+    and the ``kernel.thermal_state`` its temperature loop takes), for every material and cooling."""
     req = S.load_requirement(DEMO / "REQ-3305.yaml")
     ctx = S.prepare(req, cat).context
     spec = S.requirement_spec(req)
@@ -478,17 +480,16 @@ def test_elementwise_mirrors_of_the_engine_helpers(cat):
         got = ctx.materials.b_sat_t(idx, temps)
         lim = ctx.flux_limit_t(idx, temps)
         for t, g, l in zip(temps, got, lim):
-            assert g == pytest.approx(engine.b_sat_at_t(mat, float(t)), rel=1e-12)
-            assert l == pytest.approx(engine._flux_limit(spec, cat, mat, float(t))[0], rel=1e-12)
+            assert g == pytest.approx(flux.b_sat_hot_t(mat, float(t)), rel=1e-12)
+            assert l == pytest.approx(flux.flux_limit(spec, cat, mat, float(t)).value_t, rel=1e-12)
     for cooling in ("natural", "forced", "potted"):
         req2 = replace(req, cooling=cooling)
         ctx2 = S.prepare(req2, cat).context
         spec2 = S.requirement_spec(req2)
-        parts = replace(ctx2.choices[-1].parts, surface_m2=0.004)
         powers = np.geomspace(1e-3, 1e5, 17)
         hot, rise = ctx2.thermal.state(powers, np.full(powers.size, 0.004))
         for p, h, r in zip(powers, hot, rise):
-            ref = engine.thermal_state(float(p), parts, spec2, cat)
+            ref = K.thermal_state(float(p), 0.004, spec2.cooling, spec2.ambient_c, cat.shop.hotspot_margin_k)
             assert h == pytest.approx(ref.hot_c, rel=1e-12) and r == pytest.approx(ref.rise_k, rel=1e-12)
 
 
