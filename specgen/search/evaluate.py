@@ -13,7 +13,18 @@ from ..design.kinds.transformer import LOSS_LIMITED_ABOVE_HZ
 from ..physics import faraday
 from .candidates import outline_m
 from .context import SearchContext, choke_magnetics, winding_margin
-from .records import BoolArray, BuildRows, ChokeMagnetics, Fail, FloatArray, IntArray, OptionRows, RowResult, flag
+from .records import (
+    BoolArray,
+    BuildRows,
+    ChokeMagnetics,
+    Fail,
+    FloatArray,
+    IntArray,
+    OptionRows,
+    RowResult,
+    SectionRows,
+    flag,
+)
 from .steps import resistance_ohm, section_ac_factor_rows, skin_depth_m, wind_section_rows
 
 FIT_SLACK = 0.03           # the vector stage keeps rows within 3 % of fitting / 3 K of a limit for the
@@ -28,8 +39,10 @@ def option_rows_of(ctx: SearchContext, oi: list[IntArray]) -> list[OptionRows]:
     return [ctx.option_tables[g].take(oi[g]) for g in ctx.groups]
 
 
-def build_rows(ctx: SearchContext, ci: IntArray, opts: list[OptionRows], turns: list[FloatArray]) -> BuildRows:
-    """Lay out every winding in build order (one section each), as the engine's ``_lay_out``."""
+def build_rows(ctx: SearchContext, ci: IntArray, opts: list[OptionRows], turns: list[FloatArray],
+               first: SectionRows | None = None) -> BuildRows:
+    """Lay out every winding in build order (one section each), as the engine's ``lay_out``. ``first``: the
+    first winding's section when it is already laid (it starts on the former whatever follows it)."""
     c = ctx.cores
     fm = c.former.take(ci)
     avail = c.available_m[ci]
@@ -40,7 +53,10 @@ def build_rows(ctx: SearchContext, ci: IntArray, opts: list[OptionRows], turns: 
     secs = []
     last = len(opts) - 1
     for j, (opt, n) in enumerate(zip(opts, turns)):
-        sec = wind_section_rows(fm, n, opt, h, winding_margin(ctx, j, opt, margin), lt, limit)
+        if j == 0 and first is not None:
+            sec = first
+        else:
+            sec = wind_section_rows(fm, n, opt, h, winding_margin(ctx, j, opt, margin), lt, limit)
         ok &= sec.ok
         h = sec.end_build_m + (wrap if j == last else wt)
         secs.append(sec)
@@ -164,18 +180,18 @@ def eval_transformer(ctx: SearchContext, ci: IntArray, oi: list[IntArray], np_: 
     eta = np.broadcast_to(np.asarray(ctx.req.efficiency_guess if eta_start is None else eta_start, dtype=float),
                           (rows,))
     if alive.all():
-        return _transformer_rows(ctx, ci, oi, np_, t_start, eta)
+        return _transformer_rows(ctx, ci, oi, np_, t_start, eta, sec)
     fill = np.where(sec.ok, sec.end_build_m * ctx.bulge / np.maximum(avail, 1e-12), np.inf)
     out = RowResult.unevaluated(rows, len(ctx.req.windings), ctx.core_flags[ci] | Fail.FIT, fill,
                                 np.asarray(np_, dtype=float).copy())
     a = np.flatnonzero(alive)
     if a.size:
-        out.put(a, _transformer_rows(ctx, ci[a], [o[a] for o in oi], np_[a], t_start[a], eta[a]))
+        out.put(a, _transformer_rows(ctx, ci[a], [o[a] for o in oi], np_[a], t_start[a], eta[a], sec.take(a)))
     return out
 
 
 def _secondary_turns(ctx: SearchContext, ci: IntArray, opts: list[OptionRows], np_: FloatArray,
-                     t_start: FloatArray) -> tuple[list[FloatArray], BuildRows]:
+                     t_start: FloatArray, primary: SectionRows) -> tuple[list[FloatArray], BuildRows]:
     """Secondary turns raised for the resistive drop at full load, as the engine (up to ``DROP_PASSES``
     passes; only the rows that changed are laid out again); matched windings take the larger count."""
     windings = ctx.req.windings
@@ -183,7 +199,7 @@ def _secondary_turns(ctx: SearchContext, ci: IntArray, opts: list[OptionRows], n
     turns = [np_.copy() if w.role == "primary" else np.maximum(1.0, np.ceil(np_ * w.voltage_v / ctx.vp - 1e-9))
              for w in windings]
     by_name = {w.name: j for j, w in enumerate(windings)}
-    build = build_rows(ctx, ci, opts, turns)
+    build = build_rows(ctx, ci, opts, turns, primary)
     todo = np.arange(len(ci))
     for _ in range(DROP_PASSES):
         ok_t = build.ok[todo]
@@ -214,7 +230,8 @@ def _secondary_turns(ctx: SearchContext, ci: IntArray, opts: list[OptionRows], n
         todo = todo[changed]
         if not todo.size:
             break
-        build.put(todo, build_rows(ctx, ci[todo], [o.take(todo) for o in opts], [t[todo] for t in turns]))
+        build.put(todo, build_rows(ctx, ci[todo], [o.take(todo) for o in opts], [t[todo] for t in turns],
+                                   build.sections[0].take(todo)))
     return turns, build
 
 
@@ -238,7 +255,7 @@ def _section_frs(ctx: SearchContext, ci: IntArray, opts: list[OptionRows], build
 
 
 def _transformer_rows(ctx: SearchContext, ci: IntArray, oi: list[IntArray], np_: FloatArray,
-                      t_start: FloatArray, eta: FloatArray) -> RowResult:
+                      t_start: FloatArray, eta: FloatArray, primary: SectionRows) -> RowResult:
     req, c = ctx.req, ctx.cores
     f = req.frequency_hz
     rows = len(ci)
@@ -246,7 +263,7 @@ def _transformer_rows(ctx: SearchContext, ci: IntArray, oi: list[IntArray], np_:
     t_start = np.array(t_start, dtype=float)
     ae, mi, surface = c.ae_m2[ci], c.material[ci], c.surface_m2[ci]
     imag = ctx.magnetizing_a(np.asarray(faraday.magnetizing_inductance_h(np_, ae, c.le_m[ci], c.mu_working[ci])))
-    turns, build = _secondary_turns(ctx, ci, opts, np_, t_start)
+    turns, build = _secondary_turns(ctx, ci, opts, np_, t_start, primary)
     lengths = [s.length_m + 2.0 * ctx.lead_m for s in build.sections]
     ip = np.hypot(ctx.p_out / eta / ctx.vp, imag)
     b_pk = np.asarray(faraday.b_peak_t(ctx.vp, f, np_, ae, req.waveform, req.duty))
