@@ -304,6 +304,30 @@ class Reader:
             raise self.error(f"expected an amount of zero or more, got '{value}'", key)
         return out
 
+    def percent(self, key: str, default: Any = _MISSING, *, maximum: float = 1.0) -> float:
+        """A fraction written '3 %' (or a plain number 0.03), zero or more, at most ``maximum``."""
+        value = self.raw(key, default)
+        if value is default and default is not _MISSING:
+            return float(value)
+        text = str(value).strip()
+        try:
+            out = float(text[:-1]) / 100.0 if text.endswith("%") else float(text)
+        except ValueError:
+            raise self.error(f"expected a percentage like '3 %', got '{value}'", key) from None
+        if not (0.0 <= out <= maximum):
+            raise self.error(f"expected a percentage from 0 % to {maximum * 100:g} %, got '{value}'", key)
+        return out
+
+    def tolerance_pair(self, key: str, default: tuple[float, float] | None) -> tuple[float, float] | None:
+        """A tolerance band ``{minus: 0 %, plus: 3 %}`` as fractions (minus, plus), each 0..50 %."""
+        if not self.has(key):
+            self.raw(key, None)
+            return default
+        sub = self.mapping(key)
+        pair = (sub.percent("minus", maximum=0.5), sub.percent("plus", maximum=0.5))
+        sub.done()
+        return pair
+
     # typing only: without a default the answer is a Reader (a missing key raises); with a
     # default (None in practice) the default may come back
     @overload

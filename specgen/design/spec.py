@@ -71,6 +71,7 @@ class Winding:
     margin_m: float | None           # creepage margin each side (None: the insulation default)
     lead_sleeving: str | None
     match: str | None = None         # wind the same turns as this winding (series/parallel pairs)
+    voltage_tolerance: tuple[float, float] | None = None   # (minus, plus) fractions; None: the shop's
     line: int | None = None
     path: str = ""
 
@@ -171,7 +172,8 @@ def _winding(r: Reader, kind: str) -> Winding:
         start=_pin(r, "start"), finish=_pin(r, "finish"),
         direction=r.choice("direction", ("cw", "ccw"), "cw"), sections=sections, section_pins=spins,
         turns=turns, margin_m=r.quantity("margin", "length", None, allow_zero=True),
-        lead_sleeving=r.text("lead_sleeving", None), match=r.text("match", None), line=r.line, path=r.path,
+        lead_sleeving=r.text("lead_sleeving", None), match=r.text("match", None),
+        voltage_tolerance=r.tolerance_pair("voltage_tolerance", None), line=r.line, path=r.path,
     )
     r.done()
     if w.start == w.finish:
@@ -289,12 +291,18 @@ def _check_windings(r: Reader, kind: str, windings: tuple[Winding, ...], wreader
                     raise wr.error(f"a {w.role} winding needs its voltage at full load", "voltage")
                 if w.current_a is None and w.va is None:
                     raise wr.error(f"a {w.role} winding needs its current (or va)", "current")
+            if w.voltage_tolerance is not None and w.role not in ("secondary", "auxiliary"):
+                raise wr.error(f"a {w.role} winding has no output voltage to hold: voltage_tolerance is for "
+                               f"secondary and auxiliary windings", "voltage_tolerance")
             if w.role == "main":
                 raise wr.error("role 'main' is for inductors; a transformer's windings are primary, "
                                "secondary, auxiliary or shield", "role")
     else:
         if len(windings) != 1:
             raise r.error("an inductor here has exactly one winding (split it with sections: N)", "windings")
+        if windings[0].voltage_tolerance is not None:
+            raise wreaders[0].error("an inductor has no output voltage to hold: voltage_tolerance is for a "
+                                    "transformer's secondary and auxiliary windings", "voltage_tolerance")
 
     for w, wr in zip(windings, wreaders):
         if w.match is not None:
