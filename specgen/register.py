@@ -42,11 +42,9 @@ application or to a newer specgen is refused with a clear message and is not mod
 from __future__ import annotations
 
 import contextlib
-import csv
 import dataclasses
 import datetime as _dt
 import getpass
-import io
 import os
 import random
 import sqlite3
@@ -693,12 +691,12 @@ class Register:
 
 
 def orders_csv(orders: Iterable[Order]) -> str:
-    """Orders as CSV text (header row, files joined with '; ')."""
-    buffer = io.StringIO()
-    writer = csv.writer(buffer, lineterminator="\n")
-    writer.writerow(CSV_COLUMNS)
+    """Orders as CSV text (header row, files joined with '; '), cells safe for spreadsheets."""
+    from specgen.csvsafe import csv_text
+
+    rows = []
     for order in orders:
         row = order.to_dict()
         row["files"] = "; ".join(order.files)
-        writer.writerow(["" if row[c] is None else row[c] for c in CSV_COLUMNS])
-    return buffer.getvalue()
+        rows.append([row[c] for c in CSV_COLUMNS])
+    return csv_text(CSV_COLUMNS, rows)
