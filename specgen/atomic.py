@@ -11,9 +11,9 @@ Every output (work-order PDF and HTML, CSV exports, a rewritten spec) goes throu
 
 A process killed outright (SIGKILL, power loss) cannot clean up after itself: it leaves the old
 target untouched plus at most one temporary file per output, named ``.<target name>.<pid>.<random>.tmp``
-(see :data:`TEMP_GLOB`). The next write of the same target removes such leftovers once they are
+(see :data:`TEMP_GLOB`). The next write into the same folder removes such leftovers once they are
 stale: their writer process is gone and they are older than :data:`STALE_AFTER_S` (the age guards a
-writer on another machine sharing the folder). :func:`clean_stale_temps` does the same for a folder.
+writer on another machine sharing the folder). :func:`clean_stale_temps` does it on demand.
 
 Problems of the user's environment (a missing folder, no write permission, a full disk, a
 read-only filesystem) become :class:`specgen.errors.SpecError` ``"cannot write: <reason>"`` with
@@ -31,7 +31,6 @@ from __future__ import annotations
 
 import contextlib
 import errno
-import glob
 import os
 import tempfile
 import time
@@ -112,12 +111,17 @@ def _is_stale(temp: Path, now: float, older_than_s: float) -> bool:
     return age >= 24 * 3600.0    # an older name without its writer's pid: only when a day old
 
 
+_cleaned_folders: set[str] = set()
+
+
 def _clean_stale_for(target: Path) -> None:
-    """Remove leftovers of earlier killed writes of this same target (cheap: one small glob)."""
-    now = time.time()
-    for candidate in target.parent.glob(f".{glob.escape(target.name)}.*{_TEMP_SUFFIX}"):
-        if _is_stale(candidate, now, STALE_AFTER_S):
-            _remove_quietly(candidate)
+    """Remove leftovers of earlier killed writes in the target's folder (once per folder and process:
+    a batch writing hundreds of orders into one folder scans it once)."""
+    key = os.path.abspath(target.parent)
+    if key in _cleaned_folders:
+        return
+    _cleaned_folders.add(key)
+    clean_stale_temps(target.parent)
 
 
 def _make_folders(folder: Path) -> list[Path]:

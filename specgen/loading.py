@@ -166,7 +166,7 @@ def limit_for(what: str) -> int:
 
 
 def _too_big(size: int, what: str, limit: int) -> str:
-    return f"is {size / 1e6:.1f} MB; a {what} is at most {limit / (1024 * 1024):g} MB"
+    return f"is {size:,} bytes ({size / 1e6:.2f} MB); a {what} is at most {limit:,} bytes"
 
 
 def _check_regular(st: os.stat_result, what: str, name: str, limit: int) -> None:

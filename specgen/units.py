@@ -258,6 +258,8 @@ def _in_range(value: float, dim: Dimension, whole: str) -> float:
     what = dim.human[dim.human.index(" ") + 1:]
     if not math.isfinite(value):
         raise UnitError(f"expected a finite {what}, got '{whole}'")
+    if value != 0.0 and abs(value) < 1e-30:      # below any meaning (and on its way to underflow)
+        raise UnitError(f"'{whole}' is too small to mean anything; write 0 if zero is meant")
     if dim.vector == (0, 0, 0, 0, 1) and dim.si_unit == "degC":
         if value > dim.largest:
             raise UnitError(f"'{whole}' is outside the range of {dim.human} here ({dim.range_text})")

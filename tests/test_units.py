@@ -120,7 +120,7 @@ def test_refused_forms_are_unit_errors(text, fragment):
     ("1e308 K", "temperature_difference"),
 ])
 def test_values_outside_the_physical_range_are_refused(text, dimension):
-    with pytest.raises(units.UnitError, match="outside the range|finite|absolute zero"):
+    with pytest.raises(units.UnitError, match="outside the range|finite|absolute zero|too small to mean"):
         units.parse(text, dimension)
 
 
@@ -181,3 +181,10 @@ def pint_si_temp(text: str) -> float:
 def test_temperature_mistakes(text, fragment):
     with pytest.raises(units.UnitError, match=fragment):
         units.parse(text, "temperature")
+
+
+def test_a_temperature_too_small_to_mean_anything_is_refused():
+    """degC has no smallest magnitude of its own; 4e-299 degC is an underflow in waiting, not a reading."""
+    with pytest.raises(units.UnitError, match="too small"):
+        units.parse("4e-299 degC", "temperature")
+    assert units.parse("0.001 degC", "temperature") == 0.001
