@@ -245,3 +245,17 @@ def test_terminal_control_characters_never_reach_the_terminal(tmp_path, capsys):
     code, lines = run(["design", str(spec)], capsys)
     assert code == 2 and len(lines) == 1
     assert "\x1b" not in lines[0] and "\x07" not in lines[0] and "\\x1b]0;owned\\x07" in lines[0]
+
+
+def test_verify_of_a_folder_skips_a_fifo_named_like_a_spec(tmp_path):
+    """A FIFO named x.yaml in a folder given to verify used to block the scan forever."""
+    import os
+    import subprocess
+    import sys
+
+    shutil.copyfile(DEMO / "BH-1042.yaml", tmp_path / "BH-1042.yaml")
+    os.mkfifo(tmp_path / "x.yaml")
+    r = subprocess.run([sys.executable, "-m", "specgen.cli", "verify", str(tmp_path)], capture_output=True,
+                       text=True, timeout=120)
+    assert r.returncode == 0, r.stderr
+    assert "1 spec(s)" in r.stdout
