@@ -113,7 +113,8 @@ _LONG: dict[str, str] = {
 # no prefix: a unit of its own
 _PLAIN: dict[str, tuple[Fraction | float, _Vec]] = {
     "min": (60.0, (0, 0, 1, 0, 0)), "minute": (60.0, (0, 0, 1, 0, 0)), "h": (3600.0, (0, 0, 1, 0, 0)),
-    "hour": (3600.0, (0, 0, 1, 0, 0)), "in": (Fraction("0.0254"), (1, 0, 0, 0, 0)), "inch": (Fraction("0.0254"), (1, 0, 0, 0, 0)),
+    "hour": (3600.0, (0, 0, 1, 0, 0)), "d": (86400.0, (0, 0, 1, 0, 0)), "day": (86400.0, (0, 0, 1, 0, 0)),
+    "week": (604800.0, (0, 0, 1, 0, 0)), "in": (Fraction("0.0254"), (1, 0, 0, 0, 0)), "inch": (Fraction("0.0254"), (1, 0, 0, 0, 0)),
     "K": (1.0, (0, 0, 0, 0, 1)), "kelvin": (1.0, (0, 0, 0, 0, 1)),
 }
 # temperature scales with an offset: only on their own ("40 degC"), never inside a compound unit.
@@ -139,6 +140,8 @@ def unit_named(name: str) -> tuple[Fraction | float, _Vec] | None:
         return _PREFIXABLE[_LONG[name]]
     if name.endswith("s") and name[:-1] in _LONG:          # plurals of long names: "volts"
         return _PREFIXABLE[_LONG[name[:-1]]]
+    if name.endswith("s") and len(name) > 3 and name[:-1] in _PLAIN:     # "hours", "days", "weeks"
+        return _PLAIN[name[:-1]]
     if len(name) > 1 and name[0] in _PREFIXES and name[1:] in _PREFIXABLE:
         factor, vec = _PREFIXABLE[name[1:]]
         return _PREFIXES[name[0]] * factor, vec

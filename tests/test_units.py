@@ -52,7 +52,7 @@ def test_every_unit_name_agrees_with_pint(name):
     ("1.2 kVA", "apparent_power"), ("2 h", "time"), ("90 min", "time"), ("-5 V", "voltage"), ("+5 V", "voltage"),
     (".5 mm", "length"), ("5. mm", "length"), ("5e-3 m", "length"), ("5E+2 Hz", "frequency"), ("230V", "voltage"),
     ("12 mm^2", "area"), ("8 cm^3", "volume"), ("800 A/m", "field"), ("2 A / mm^2", "current_density"),
-    ("0.1 W/cm^3", "power_density"),
+    ("0.1 W/cm^3", "power_density"), ("5 weeks", "time"), ("30 days", "time"), ("3 hours", "time"), ("1 d", "time"),
 ])
 def test_accepted_forms_agree_with_pint(text, dimension):
     assert units.parse(text, dimension) == pytest.approx(pint_si(text, dimension), rel=1e-12)
