@@ -114,7 +114,8 @@ _LONG: dict[str, str] = {
 _PLAIN: dict[str, tuple[Fraction | float, _Vec]] = {
     "min": (60.0, (0, 0, 1, 0, 0)), "minute": (60.0, (0, 0, 1, 0, 0)), "h": (3600.0, (0, 0, 1, 0, 0)),
     "hour": (3600.0, (0, 0, 1, 0, 0)), "d": (86400.0, (0, 0, 1, 0, 0)), "day": (86400.0, (0, 0, 1, 0, 0)),
-    "week": (604800.0, (0, 0, 1, 0, 0)), "in": (Fraction("0.0254"), (1, 0, 0, 0, 0)), "inch": (Fraction("0.0254"), (1, 0, 0, 0, 0)),
+    "week": (604800.0, (0, 0, 1, 0, 0)),
+    "in": (Fraction("0.0254"), (1, 0, 0, 0, 0)), "inch": (Fraction("0.0254"), (1, 0, 0, 0, 0)),
     "K": (1.0, (0, 0, 0, 0, 1)), "kelvin": (1.0, (0, 0, 0, 0, 1)),
 }
 # temperature scales with an offset: only on their own ("40 degC"), never inside a compound unit.
