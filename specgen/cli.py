@@ -34,10 +34,9 @@ def main(argv: list | None = None) -> None:
     import click
     import typer
 
+    from .commands._common import pipe_safe_output
     from .commands.root import app
     from .errors import SpecError
-
-    from .commands._common import pipe_safe_output
 
     with pipe_safe_output():     # a closed pipe never changes the exit code (see commands/_common.py)
         try:

@@ -259,3 +259,21 @@ def test_verify_of_a_folder_skips_a_fifo_named_like_a_spec(tmp_path):
                        text=True, timeout=120)
     assert r.returncode == 0, r.stderr
     assert "1 spec(s)" in r.stdout
+
+
+def test_design_keeps_its_failing_exit_code_when_its_reader_goes_away(tmp_path):
+    """The quick path of `specgen design` (no typer) used to map a broken pipe to 0 too."""
+    import subprocess
+    import sys
+
+    spec = tmp_path / "runaway.yaml"
+    spec.write_text((DEMO / "BH-3305.yaml").read_text().replace("ripple: 2.4 A", "ripple: 100 A"))
+    for extra in ([], ["--json"]):
+        p = subprocess.Popen([sys.executable, "-m", "specgen.cli", "design", str(spec), *extra],
+                             stdout=subprocess.PIPE, stderr=subprocess.PIPE)
+        p.stdout.close()
+        err = p.stderr.read().decode()
+        p.wait(timeout=120)
+        p.stderr.close()
+        assert p.returncode == 1, (extra, p.returncode, err)
+        assert "Traceback" not in err and "BrokenPipe" not in err, err
