@@ -82,19 +82,20 @@ windings:                    # list order is the build order unless build_order 
 # build_order: [P, S]        # winding order from the tube out; sections as P.1, P.2
 
 insulation:                  # tapes, margins, sleeving, varnish and the required insulation
-  layer_tape: {tape: TAPE-PET25-30MM, layers: 1}    # between layers of one winding
-  winding_tape: {tape: TAPE-PET50-25MM, layers: 2}  # between windings
-  outer_wrap: {tape: TAPE-PET50-25MM, layers: 2}    # over the last winding
+  layer_tape: {tape: TAPE-PET25-35MM, layers: 1}    # between layers: at least as wide as the copper
+  winding_tape: {tape: TAPE-PET25-35MM, layers: 2}  # between windings: flange to flange across a barrier
+  outer_wrap: {tape: TAPE-PET25-35MM, layers: 2}    # over the last winding
   margin: 2 mm               # creepage margin each side of every winding (0 for none)
   margin_tape: TAPE-MARGIN-2MM   # the tape that builds the margins
   sleeving: SLV-GLSIL-1.0    # on every lead
   varnish: VAR-PEI-F         # dip varnish (leave out for none)
   barriers:                  # insulation the hipot tests check
     - between: [P, S]        # two windings, 'all' (every winding tied together) or 'core'
-      rating: basic          # functional | basic | supplementary | double | reinforced
-      working_voltage: 253 V # the highest voltage across this insulation in service
+      grade: basic           # functional | basic | supplementary | double | reinforced
+      working_voltage: 253 V # the highest rms voltage across this insulation in service
+      # peak_voltage: 400 V  # the working peak, where it is not sqrt(2) x rms
     - between: [all, core]
-      rating: basic
+      grade: basic
       working_voltage: 253 V
 
 notes: >                     # for the winding bench and the test station, printed on the work order

@@ -253,7 +253,7 @@ def test_flatten_inputs_names_windings_and_keeps_list_order(cat):
     flat = diff.flatten_inputs(spec.data)
     assert flat["windings[P].voltage"] == "200 V"
     assert flat["build_order"] == ["P.1", "S", "P.2"]
-    assert flat["insulation.barriers[0].rating"] == "reinforced"
+    assert flat["insulation.barriers[0].grade"] == "reinforced"
     assert not any(k.startswith(("history", "revision", "status")) for k in flat)
 
 

@@ -84,8 +84,8 @@ BREAKS_BY_COUNT = ((500, Decimal("0.05")), (2500, Decimal("0.10")))        # pie
 LAMINATION_PER_KG = Decimal("3.00")                       # EI-125, price_unit kg
 BOBBIN = Decimal("1.12")                                  # BOB-EI125-32
 WIRE_PER_KG = {"AWG27-G2": Decimal("15.83"), "CU-1.12-G2": Decimal("15.08")}
-TAPE = {"TAPE-PET25-30MM": (Decimal("0.030"), Decimal("1.80")),     # (width m, price per m2)
-        "TAPE-PET50-25MM": (Decimal("0.025"), Decimal("2.40")),
+TAPE = {"TAPE-PET25-44MM": (Decimal("0.044"), Decimal("1.80")),     # (width m, price per m2)
+        "TAPE-PET50-44.5MM": (Decimal("0.0445"), Decimal("2.40")),
         "TAPE-MARGIN-2MM": (Decimal("0.002"), Decimal("3.20"))}
 SLEEVING_PER_M = {"SLV-GLSIL-1.0": Decimal("0.35")}
 VARNISH_PER_L = {"VAR-PEI-F": Decimal("9.50")}

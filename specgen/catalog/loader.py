@@ -30,6 +30,7 @@ from .models import (
     HipotFigures,
     InsulationResistanceFigures,
     LaborFigures,
+    InsulationBasis,
     Material,
     Party,
     QuoteTerms,
@@ -250,6 +251,7 @@ def _core(r: Reader) -> Core:
         stacking_factor=r.number("stacking_factor", 1.0, minimum=0.3, maximum=1.0),
         pieces=r.integer("pieces", 1, minimum=1, maximum=4), gappable=r.boolean("gappable", False),
         coating_m=r.quantity("coating", "length", 0.0, allow_zero=True),
+        coating_voltage_v=r.quantity("coating_voltage", "voltage", None),
         override=override, mass_kg=r.quantity("mass", "mass", None), raw=_plain(r.data),
     )
     r.done()
@@ -303,6 +305,10 @@ def _bobbin(r: Reader) -> Bobbin:
         sections=r.integer("sections", 1, minimum=1, maximum=4), thermal_class_c=_thermal_class(r),
         price=r.decimal("price"), source=r.text("source"), stack_m=r.quantity("stack", "length", None, maximum=MAX_DIMENSION_M),
         clips=r.integer("clips", 0, minimum=0, maximum=8), raw=_plain(r.data),
+        pin_row_spacing_m=r.quantity("pin_row_spacing", "length", None),
+        pin_size_m=r.quantity("pin_size", "length", None),
+        core_creepage_m=r.quantity("core_creepage", "length", None),
+        wall_voltage_v=r.quantity("wall_voltage", "voltage", None),
     )
     r.done()
     return b
@@ -444,6 +450,7 @@ def _shop(r: Reader) -> Shop:
     if margin >= 1:
         raise r.error(f"a margin of {(margin * 100).normalize():f} % leaves no price (cost / (1 - margin)); "
                       "it must be below 100 %", "margin")
+    insulation = _insulation_basis(r.mapping("insulation")) if r.has("insulation") else None
     shop = Shop(
         name=r.text("name"), currency=r.text("currency", "USD"), labor_rate=r.decimal("labor_rate"),
         overhead=_pct(r, "overhead"), margin=margin,
@@ -457,10 +464,53 @@ def _shop(r: Reader) -> Shop:
         voltage_tolerance=r.tolerance_pair("voltage_tolerance", (0.0, 0.03)) or (0.0, 0.03),
         tolerances=tolerances, labor=labor,
         source=r.text("source"), register_path=r.text("register", None), documents=documents,
-        raw={k: v for k, v in _plain(r.data).items() if k not in DOCUMENT_KEYS},
+        raw={k: v for k, v in _plain(r.data).items() if k not in DOCUMENT_KEYS}, insulation=insulation,
     )
     r.done()
     return shop
+
+
+def _material_group(text: str) -> str:
+    from ..standards.insulation import MaterialGroup
+
+    for g in MaterialGroup:
+        if text.strip().lower() == g.value.lower():
+            return g.value
+    raise ValueError(f"expected a material group I, II, IIIa or IIIb, got '{text}'")
+
+
+def _insulation_basis(r: Reader | None) -> InsulationBasis | None:
+    """shop.insulation: the defaults every part's barriers are coordinated with, checked against the tables."""
+    if r is None:
+        return None
+    from ..standards import insulation as ins
+
+    cat_raw = r.raw("overvoltage_category", "II")
+    try:
+        category = ins.rated_impulse_voltage_v(230.0, cat_raw).category
+    except ValueError as err:
+        raise r.error(str(err), "overvoltage_category") from None
+    pd = r.integer("pollution_degree", 2, minimum=1, maximum=3)
+    if r.has("cti") == r.has("material_group"):
+        raise r.error("give the material group (I, II, IIIa, IIIb) or the CTI of the bobbins and tapes, not both")
+    try:
+        group = (ins.material_group_from_cti(r.number("cti")).group.value if r.has("cti")
+                 else _material_group(r.text("material_group")))
+    except ValueError as err:
+        raise r.error(str(err), "cti" if r.has("cti") else "material_group") from None
+    altitude = r.quantity("altitude", "length", 2000.0, allow_zero=True)
+    mains = r.quantity("mains_voltage", "voltage", 230.0)
+    try:
+        ins.altitude_correction_factor(altitude)
+        ins.rated_impulse_voltage_v(mains, category)
+    except ValueError as err:
+        raise r.error(str(err), "mains_voltage" if "mains" in str(err) else "altitude") from None
+    basis = InsulationBasis(
+        standard=r.text("standard", "IEC 60664-1:2007 tables (IEC 62368-1, IEC 61558-1 equivalent)", max_len=200),
+        overvoltage_category=category, pollution_degree=pd, material_group=group, altitude_m=altitude,
+        mains_v=mains, hipot_step_v=r.quantity("hipot_step", "voltage", 50.0))
+    r.done()
+    return basis
 
 
 # ---------------------------------------------------------------------------------------------- documents

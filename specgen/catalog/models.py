@@ -114,6 +114,7 @@ class Core:
     pieces: int = 1                # parts per set (2 halves; laminations counted in the design)
     gappable: bool = False         # the shop can grind the centre leg or shim this set
     coating_m: float = 0.0         # toroid: coating or core-box wall on each face
+    coating_voltage_v: float | None = None   # toroid: the coating's rated electric strength (None: not insulation)
     override: dict = field(default_factory=dict)   # measured ae_m2, le_m, ve_m3 replacing the computed ones
     mass_kg: float | None = None
     raw: dict = field(default_factory=dict, compare=False, repr=False)
@@ -141,6 +142,10 @@ class Bobbin:
     source: str
     stack_m: float | None = None   # EI: the stack it is moulded for
     clips: int = 0                 # clips or clamps per set (pulled with the bobbin)
+    pin_row_spacing_m: float | None = None   # centre to centre of the two pin rows (None: not on file)
+    pin_size_m: float | None = None          # a pin's width across, for the gap between pins
+    core_creepage_m: float | None = None     # moulded path from the winding space over the flange to the core
+    wall_voltage_v: float | None = None      # electric strength of the tube wall and flanges (a.c. rms)
     raw: dict = field(default_factory=dict, compare=False, repr=False)
 
 
@@ -296,6 +301,20 @@ class Shop:
     raw: dict = field(default_factory=dict, compare=False, repr=False)
     # documents and commercial terms (see ShopDocuments): printed, never part of a design or its fingerprint
     documents: ShopDocuments = field(default_factory=lambda: ShopDocuments())
+    insulation: InsulationBasis | None = None   # defaults for insulation coordination (shop.yaml insulation:)
+
+
+@dataclass(frozen=True)
+class InsulationBasis:
+    """The shop's defaults for coordinating a part's insulation barriers (IEC 60664-1 terms)."""
+
+    standard: str                  # the table set, as printed: "IEC 60664-1:2007 (IEC 62368-1, IEC 61558-1)"
+    overvoltage_category: int      # 1..4
+    pollution_degree: int          # 1..3
+    material_group: str            # I | II | IIIa | IIIb (from the CTI of bobbins and tapes)
+    altitude_m: float
+    mains_v: float                 # nominal line-to-neutral mains voltage the parts are energised from
+    hipot_step_v: float            # the test set's voltage step
 
 
 @dataclass(frozen=True)

@@ -14,16 +14,13 @@ KU_WARN_BOBBIN = 0.40        # window utilisation a bobbin winder reaches withou
 KU_WARN_TOROID = 0.35
 MIN_TURNS_PER_LAYER = 3      # fewer turns per layer than this winds badly (common practice)
 CLASS_WARN_K = 5.0           # hot spot within this of the class limit: warn
-REINFORCED_TAPE_LAYERS = 3   # thin-sheet reinforced insulation: 3 layers, any two pass the test (common practice,
-                             # from memory of IEC 61558-1 / IEC 62368-1; the applicable standard decides)
 
 
 def run_checks(state: DesignState) -> list[Check]:
     """The checks every kind shares, in this order: loss-model range, fit and window fill, temperatures and
-    classes, current density and skin depth, turns per layer, insulation barriers (the kind's flux checks
-    come before them, its own after)."""
-    return (_loss_model(state) + _fit(state) + _temperature(state) + _current(state) + _layers(state)
-            + _insulation(state))
+    classes, current density and skin depth, turns per layer (the kind's flux checks come before
+    them, the insulation coordination and the kind's own after)."""
+    return _loss_model(state) + _fit(state) + _temperature(state) + _current(state) + _layers(state)
 
 
 def _loss_model(state: DesignState) -> list[Check]:
@@ -97,7 +94,7 @@ def _temperature(state: DesignState) -> list[Check]:
             parts_classes.append((f"tape {t.tape}", cat.tapes[t.tape].thermal_class_c))
     if spec.varnish:
         parts_classes.append((f"varnish {spec.varnish}", cat.varnishes[spec.varnish].thermal_class_c))
-    for sid in {spec.sleeving, *[w.lead_sleeving for w in windings]} - {None}:
+    for sid in {spec.sleeving, *[w.lead_sleeving for w in windings]} - {None, ""}:
         parts_classes.append((f"sleeving {sid}", cat.sleevings[sid].thermal_class_c))
     for name, c in dict(parts_classes).items():     # a tape used twice is checked once
         if c < temp.hot_c:
@@ -148,21 +145,4 @@ def _layers(state: DesignState) -> list[Check]:
                                  f"winding {w.name}: the last layer holds {last.turns} of {last.turns_capacity} turns; "
                                  f"spread it across the breadth so the next winding lies flat"))
                 break
-    return out
-
-
-def _insulation(state: DesignState) -> list[Check]:
-    spec, states = state.spec, state.states
-    out: list[Check] = []
-    tape_layers = spec.winding_tape.layers if spec.winding_tape else 0
-    for b in spec.barriers:
-        if b.rating in ("reinforced", "double") and b.b != "core":
-            # "S1+S2": windings tied for the test; triple-insulated wire on every winding of one side counts
-            sides = [[n for n in side.split("+") if n in states] for side in (b.a, b.b)]
-            tiw = any(side and all(states[n].wire.kind == "tiw" for n in side) for side in sides)
-            if not tiw and tape_layers < REINFORCED_TAPE_LAYERS:
-                out.append(Check("fail", "insulation",
-                                 f"{b.rating} insulation between {b.a} and {b.b} needs triple-insulated wire or "
-                                 f"at least {REINFORCED_TAPE_LAYERS} layers of tape between windings (common "
-                                 f"practice); the spec has {tape_layers}"))
     return out

@@ -24,6 +24,7 @@ from . import kernel as K
 from .build import copper_lengths_m, winding_fr
 from .checks import run_checks
 from .flux import b_sat_hot_t
+from .insulation import coordinate
 from .kinds import PartKind, kind_for
 from .resolve import catalog_ids, check_pins, check_references, core_result, resolve_core, spec_error
 from .result import Build, Design, Losses, Section, WindingResult
@@ -165,9 +166,10 @@ def finish(spec: Spec, cat: Catalog, parts: Parts, kind: PartKind, ev: Evaluatio
     core = core_result(spec, cat, parts, b_sat)
     state = DesignState(spec=spec, cat=cat, parts=parts, windings=tuple(windings), states=ev.windings, built=ev.built,
                         build=build, losses=losses, temp=temp, summary=summary)
-    checks = kind.flux_checks(state) + run_checks(state) + list(summary.checks)
+    insulation, insulation_checks = coordinate(state)
+    checks = kind.flux_checks(state) + run_checks(state) + insulation_checks + list(summary.checks)
     checks.sort(key=lambda c: _LEVEL_ORDER[c.level])
-    tests = test_plan(state, kind.test_limits(state))
+    tests = test_plan(state, kind.test_limits(state), insulation)
     materials = materials_per_unit(state, core)
     s = summary
     return Design(
@@ -182,5 +184,5 @@ def finish(spec: Spec, cat: Catalog, parts: Parts, kind: PartKind, ev: Evaluatio
         temperature_rise_k=temp.rise_k, efficiency=s.efficiency, regulation_pct=s.regulation_pct,
         output_power_w=s.output_power_w, checks=tuple(checks), tests=tests, materials=tuple(materials),
         inductor=s.inductor, catalog_ids=catalog_ids(spec, parts, windings), iterations=iterations,
-        notes=spec.notes, history=spec.history,
+        notes=spec.notes, history=spec.history, insulation=insulation,
     )

@@ -102,7 +102,10 @@ def resolve_core(spec: Spec, cat: Catalog) -> Parts:
     if core.is_toroid:
         if spec.bobbin_id:
             raise spec_error(spec, f"{core.id} is a toroid; toroids are wound without a bobbin", "core", "bobbin")
-        c = core.coating_m
+    elif getattr(spec, "core_wrap", None) is not None:     # the search's stand-in spec has no insulation
+        raise spec_error(spec, f"{core.id} is wound on a bobbin; a core wrap is for a toroid", "insulation", "core_wrap")
+    if core.is_toroid:
+        c = core.coating_m + _core_wrap_m(spec, cat)
         former = Former(kind="toroid", od_m=dims["od"] + 2 * c, id_m=dims["id"] - 2 * c,
                         core_height_m=dims["height"] + 2 * c)
         hole_min = max(TOROID_MIN_HOLE_M, TOROID_MIN_HOLE_FRACTION * former.id_m)
@@ -117,6 +120,16 @@ def resolve_core(spec: Spec, cat: Catalog) -> Parts:
                         height_m=bobbin.height_m)
         breadth = geometry.window_breadth_m(core.shape, dims)
     return Parts(core, material, bobbin, stack, former, ae, le, ve, amin, wa, source, breadth, surface)
+
+
+def _core_wrap_m(spec: Spec, cat: Catalog) -> float:
+    """Radial build of the toroid's core wrap on each face: half-lapped, so two thicknesses a layer."""
+    wrap = getattr(spec, "core_wrap", None)     # the search's stand-in spec may not carry one
+    if wrap is None:
+        return 0.0
+    tape = _tape(spec, cat, wrap.tape, "insulation", "core_wrap", "tape")
+    assert tape is not None
+    return 2.0 * tape.thickness_m * wrap.layers
 
 
 def resolve_bobbin(spec: Spec, cat: Catalog, core: Core, stack: float | None) -> Bobbin:
@@ -162,16 +175,18 @@ def check_pins(spec: Spec, parts: Parts) -> None:
             if pin not in pins:
                 raise spec_error(spec, f"tie pin '{pin}' is not on bobbin {bobbin.id} "
                                        f"(pins {_pin_range(bobbin.pins)})", "windings", i, "section_pins")
-    if bobbin is not None:
-        used: dict[str, tuple[str, str]] = {}
-        for i, w in enumerate(spec.windings):
-            for key, pin in (("start", w.start), ("finish", w.finish)):
-                if pin is None:
-                    continue
-                if pin in used and used[pin][0] != w.name:
-                    raise spec_error(spec, f"pin '{pin}' is already used by winding {used[pin][0]}",
-                                     "windings", i, key)
-                used[pin] = (w.name, key)
+    used: dict[str, str] = {}
+    for i, w in enumerate(spec.windings):
+        keyed = [("start", w.start), ("finish", w.finish)] + [("section_pins", p) for p in w.section_pins]
+        for key, pin in keyed:
+            if pin is None:
+                continue
+            if pin in used and used[pin] != w.name:
+                what = "lead" if bobbin is None else "pin"
+                raise spec_error(spec, f"{what} '{pin}' is already used by winding {used[pin]}: two windings "
+                                       f"on one {what} would join them (across any barrier between them)",
+                                 "windings", i, key)
+            used[pin] = w.name
 
 
 def _tape(spec: Spec, cat: Catalog, tape_id: str | None, *keys: str | int) -> Tape | None:
@@ -235,6 +250,8 @@ def catalog_ids(spec: Spec, parts: Parts, windings: Iterable[WindingResult]) -> 
     for t in (spec.layer_tape, spec.winding_tape, spec.outer_wrap):
         if t is not None:
             ids.append(t.tape)
+    if spec.core_wrap is not None:
+        ids.append(spec.core_wrap.tape)
     ids += [x for x in (spec.margin_tape, spec.sleeving, spec.varnish) if x]
     ids += [w.lead_sleeving for w in ws if w.lead_sleeving]
     seen: list[str] = []

@@ -147,6 +147,62 @@ class HipotTest:
     routine_duration_s: float
     trip_current_a: float
     basis: str
+    connection: str = ""             # the pins to short together and where to apply the voltage
+
+
+@dataclass(frozen=True)
+class BarrierResult:
+    """One insulation barrier coordinated (IEC 60664-1) and compared with what the build provides.
+
+    Required figures are None for functional insulation (no safety requirement); available figures are None
+    where the barrier has no such path (a toroid's core wrap has laps, not margins) or the catalogue lacks it.
+    """
+    between: tuple[str, str]
+    grade: str
+    working_voltage_v: float         # rms
+    peak_voltage_v: float
+    mains_connected: bool
+    clearance_required_mm: float | None
+    clearance_available_mm: float | None
+    creepage_required_mm: float | None
+    creepage_available_mm: float | None
+    solid_required: str
+    solid_provided: str
+    ok: bool
+    path: str                        # where the available distances were measured
+    message: str                     # the one sentence the check carries
+    type_test_v: float               # hipot for this grade, rounded up to the test set's step
+    routine_test_v: float
+    hipot_rule: str
+    rows: str                        # the table rows the requirements came from
+    checked: bool = True             # False: the catalogue lacks a figure the check needs (a warning)
+
+
+@dataclass(frozen=True)
+class InsulationResult:
+    standard: str
+    overvoltage_category: str        # I..IV
+    pollution_degree: int
+    material_group: str
+    altitude_m: float
+    mains_v: float
+    impulse_v: float                 # rated impulse voltage from the mains and the category
+    barriers: tuple[BarrierResult, ...]
+    note: str                        # verify against the standard; the applicable standard decides
+
+    def to_dict(self) -> dict[str, Any]:
+        return {
+            "basis": {"standard": self.standard, "overvoltage_category": self.overvoltage_category,
+                      "pollution_degree": self.pollution_degree, "material_group": self.material_group,
+                      "altitude_m": self.altitude_m},
+            "barriers": [{
+                "between": list(b.between), "grade": b.grade, "working_voltage_v": b.working_voltage_v,
+                "peak_voltage_v": b.peak_voltage_v, "clearance_required_mm": b.clearance_required_mm,
+                "clearance_available_mm": b.clearance_available_mm, "creepage_required_mm": b.creepage_required_mm,
+                "creepage_available_mm": b.creepage_available_mm, "solid_required": b.solid_required,
+                "solid_provided": b.solid_provided, "ok": b.ok,
+            } for b in self.barriers],
+        }
 
 
 @dataclass(frozen=True)
@@ -248,6 +304,7 @@ class Design:
     notes: str = ""
     history: tuple[Any, ...] = ()
     fingerprint: str = ""
+    insulation: InsulationResult | None = None
 
     @property
     def failed(self) -> list[Check]:
@@ -322,6 +379,8 @@ class Design:
             "materials": [asdict(m) for m in self.materials],
             "catalog_ids": list(self.catalog_ids),
         }
+        if self.insulation is not None:
+            out["insulation"] = self.insulation.to_dict()
         if self.inductor is not None:
             i = self.inductor
             out.update({

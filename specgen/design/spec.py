@@ -34,6 +34,7 @@ STATUSES = ("draft", "released", "obsolete")
 COOLING = ("natural", "forced", "potted")
 RATINGS = ("functional", "basic", "supplementary", "double", "reinforced")
 _VOLTAGE_SPAN = 4.0      # voltage_max / nominal and nominal / voltage_min at most this
+MAX_WORKING_V = 1000.0   # the low-voltage range of IEC 60664-1's tables as this tool uses them
 
 
 @dataclass(frozen=True)
@@ -47,9 +48,15 @@ class Barrier:
     """The insulation required between two windings, or a winding and the core."""
     a: str               # winding name
     b: str               # winding name or 'core'
-    rating: str          # functional | basic | supplementary | double | reinforced
-    working_voltage_v: float
+    rating: str          # the grade: functional | basic | supplementary | double | reinforced
+    working_voltage_v: float                  # rms
     line: int | None = None
+    peak_voltage_v: float | None = None       # working peak where it differs from sqrt(2) x rms
+    index: int = 0                            # place in insulation.barriers, to locate errors
+
+    @property
+    def grade(self) -> str:
+        return self.rating
 
 
 @dataclass(frozen=True)
@@ -124,6 +131,8 @@ class Spec:
     inductor: InductorReq | None
     notes: str
     history: tuple[dict[str, str], ...]
+    core_wrap: TapeUse | None = None          # toroid: tape wrapped on the core under the first winding
+    insulation_basis: dict[str, Any] = field(default_factory=dict)   # this part's own mains voltage, OVC, PD
     data: Any = field(compare=False, repr=False, default_factory=dict)   # the parsed YAML, for fingerprints
 
     def winding(self, name: str) -> Winding:
@@ -182,6 +191,14 @@ def _winding(r: Reader, kind: str) -> Winding:
     r.done()
     if w.start == w.finish:
         raise r.error(f"starts and finishes on the same pin '{w.start}'", "finish")
+    chain = [w.start, *spins, w.finish]
+    for k in range(sections):
+        if chain[k] is not None and chain[k] == chain[k + 1]:
+            raise r.error(f"section {k + 1} would start and finish on pin '{chain[k]}'",
+                          "section_pins" if spins else "finish")
+    if len(set(chain)) != len(chain):
+        raise r.error(f"a pin appears twice among start, section_pins and finish ({', '.join(map(str, chain))})",
+                      "section_pins")
     if w.voltage_min_v and w.voltage_max_v and w.voltage_min_v > w.voltage_max_v:
         raise r.error("voltage_min is above voltage_max", "voltage_min")
     if w.voltage_v and w.voltage_max_v and w.voltage_max_v < w.voltage_v:
@@ -234,13 +251,16 @@ def parse_spec(data: Any, name: str) -> Spec:
     _check_windings(r, kind, windings, wreaders)
     order = _build_order(r, windings)
     ins = r.mapping("insulation", None)
-    layer_tape = winding_tape = outer_wrap = None
+    layer_tape = winding_tape = outer_wrap = core_wrap = None
     margin_m = 0.0
     margin_tape = sleeving = varnish = None
     barriers: tuple[Barrier, ...] = ()
+    basis: dict[str, Any] = {}
     if ins is not None:
         layer_tape, winding_tape = _tape_use(ins, "layer_tape"), _tape_use(ins, "winding_tape")
         outer_wrap = _tape_use(ins, "outer_wrap")
+        core_wrap = _tape_use(ins, "core_wrap")
+        basis = _insulation_basis(ins)
         margin_m = ins.quantity("margin", "length", 0.0, allow_zero=True)
         margin_tape, sleeving = ins.text("margin_tape", None), ins.text("sleeving", None)
         varnish, barriers = ins.text("varnish", None), _barriers(ins, names)
@@ -269,7 +289,8 @@ def parse_spec(data: Any, name: str) -> Spec:
         frequency_hz=freq, waveform=waveform, duty=duty, ambient_c=ambient, cooling=cooling,
         insulation_class_c=cls, flux_limit_t=flux_limit_t, efficiency_guess=efficiency_guess,
         layer_tape=layer_tape, winding_tape=winding_tape, outer_wrap=outer_wrap, margin_m=margin_m,
-        margin_tape=margin_tape, sleeving=sleeving, varnish=varnish, barriers=barriers,
+        margin_tape=margin_tape, sleeving=sleeving, varnish=varnish, barriers=barriers, core_wrap=core_wrap,
+        insulation_basis=basis,
     )
     core.done(("gap", "gap_arrangement"))
     r.done()
@@ -285,6 +306,8 @@ def _check_windings(r: Reader, kind: str, windings: tuple[Winding, ...], wreader
     """Names unique, the roles a kind needs, matched pairs that can match."""
     names = [w.name for w in windings]
     for i, w in enumerate(windings):
+        if (problem := winding_name_problem(w.name)) is not None:
+            raise wreaders[i].error(problem, "name")
         if names.index(w.name) != i:
             raise wreaders[i].error(f"a second winding named '{w.name}'", "name")
         if w.name.lower() == "core":
@@ -323,6 +346,26 @@ def _check_windings(r: Reader, kind: str, windings: tuple[Winding, ...], wreader
                 raise wr.error(f"'{w.match}' names no other winding", "match")
             if other.role != w.role or other.voltage_v != w.voltage_v:
                 raise wr.error(f"only a winding of the same role and voltage can match {w.match}", "match")
+
+
+RESERVED_NAMES = ("all", "core")
+
+
+def winding_name_problem(name: str) -> str | None:
+    """Why a winding name cannot be used, or None: the name must read back unchanged in ``between``,
+    ``build_order`` (``P.1``) and tied sides (``S1+S2``)."""
+    if not name.strip():
+        return "a winding needs a name"
+    if any(ord(c) < 32 or ord(c) == 127 for c in name):
+        return f"winding name {name!r} carries a control character"
+    if any(c.isspace() for c in name):
+        return f"winding name {name!r} carries a space; use letters, digits, '-' or '_'"
+    for c in ".+,:[]{}#":
+        if c in name:
+            return f"winding name '{name}' carries '{c}', which the spec uses between names (P.1, S1+S2)"
+    if name.lower() in RESERVED_NAMES:
+        return f"'{name}' is reserved ('all' windings, the 'core') and cannot name a winding"
+    return None
 
 
 def _insulation_class(r: Reader, value: object, table: object = None) -> int:
@@ -368,8 +411,26 @@ def _build_order(r: Reader, windings: tuple[Winding, ...]) -> tuple[tuple[str, i
     return tuple(order)
 
 
+def _insulation_basis(ins: Reader) -> dict[str, Any]:
+    """This part's departures from the shop's insulation defaults: the mains it is used on, its overvoltage
+    category and pollution degree (the customer's drawing or the product standard says)."""
+    out: dict[str, Any] = {}
+    if ins.has("mains_voltage"):
+        out["mains_v"] = ins.quantity("mains_voltage", "voltage")
+        if not 0.0 < out["mains_v"] <= 600.0:
+            raise ins.error("mains voltage line to neutral must be above 0 and at most 600 V", "mains_voltage")
+    if ins.has("overvoltage_category"):
+        cat = str(ins.raw("overvoltage_category")).strip().upper()
+        if cat not in ("I", "II", "III", "IV"):
+            raise ins.error(f"expected I, II, III or IV, got '{cat}'", "overvoltage_category")
+        out["overvoltage_category"] = ("I", "II", "III", "IV").index(cat) + 1
+    if ins.has("pollution_degree"):
+        out["pollution_degree"] = ins.integer("pollution_degree", minimum=1, maximum=3)
+    return out
+
+
 def _barriers(ins: Reader, names: list[str]) -> tuple[Barrier, ...]:
-    out = []
+    out: list[Barrier] = []
     for b in ins.items("barriers", []):
         between = b.list_of("between")
         if len(between) != 2:
@@ -382,8 +443,20 @@ def _barriers(ins: Reader, names: list[str]) -> tuple[Barrier, ...]:
                                   f"'all' or 'core')", "between")
         if a == c:
             raise b.error("a barrier is between two different things", "between")
-        out.append(Barrier(a=a, b=c, rating=b.choice("rating", RATINGS),
-                           working_voltage_v=b.quantity("working_voltage", "voltage"), line=b.line))
+        if b.has("grade") == b.has("rating"):
+            raise b.error("give the barrier's grade (functional, basic, supplementary, reinforced, double)", "grade")
+        key = "grade" if b.has("grade") else "rating"
+        grade = b.choice(key, RATINGS)
+        wv = b.quantity("working_voltage", "voltage")
+        if not 0.0 < wv <= MAX_WORKING_V:
+            raise b.error(f"working voltage {wv:g} V is outside what these insulation tables cover "
+                          f"(above 0 up to {MAX_WORKING_V:g} V rms)", "working_voltage")
+        peak = b.quantity("peak_voltage", "voltage", None)
+        if peak is not None and not wv * (1 - 1e-9) <= peak <= MAX_WORKING_V * 2.0:
+            raise b.error(f"peak voltage {peak:g} V must be at least the working voltage {wv:g} V rms and at most "
+                          f"{MAX_WORKING_V * 2:g} V", "peak_voltage")
+        out.append(Barrier(a=a, b=c, rating=grade, working_voltage_v=wv, line=b.line, peak_voltage_v=peak,
+                           index=len(out)))
         b.done()
     return tuple(out)
 

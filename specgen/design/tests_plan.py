@@ -11,7 +11,10 @@ import math
 from collections.abc import Mapping
 
 from ..physics import wire as wiremod
-from .result import CoreResult, HipotTest, Limit, MaterialLine, TestPlan
+from ..standards import insulation as ins
+from .insulation import hipot_connection, side_names
+from .resolve import spec_error
+from .result import CoreResult, HipotTest, InsulationResult, Limit, MaterialLine, TestPlan
 from .spec import Barrier, Spec
 from .state import DesignState, KindTests
 
@@ -19,22 +22,20 @@ TAPE_OVERLAP_M = 0.015          # each wrap of tape overlaps its start by ~15 mm
 TOROID_TAPE_OVERLAP = 0.5       # toroid tape laid half-lapped (common practice)
 
 
-def hipot_voltage_v(rating: str, working_v: float, hipot: Mapping[str, float]) -> tuple[float, str]:
-    """Type-test voltage (a.c. rms, 60 s) for an insulation rating at a working voltage.
+def hipot_voltage_v(rating: str, working_v: float, hipot: Mapping[str, float], *, mains_connected: bool = True,
+                    step_v: float = 50.0) -> tuple[float, float, str]:
+    """Type-test and routine voltages (a.c. rms) for an insulation grade at a working voltage, with the rule.
 
-    The shop's table figures (1500 V basic, 3000 V reinforced up to 250 V working, from memory of IEC 62368-1)
-    with the common-practice '2 U + 1000 V' for basic above that, doubled for reinforced.
+    The grade's rule is ``standards.insulation.hipot_test_voltage_v`` (2 U + 1000 V, at least 1500 V on mains;
+    reinforced and double twice that, at least 3000 V; routine 120 % for 1 s; rounded up to the test set's
+    step). Functional insulation has no safety test: the shop's functional voltage.
     """
-    two_u = 2.0 * working_v + 1000.0
     if rating == "functional":
-        return hipot["functional_v"], "functional insulation: shop default"
-    if rating in ("basic", "supplementary"):
-        v = max(hipot["basic_v"] if rating == "basic" else hipot["supplementary_v"], two_u)
-        return v, (f"{rating}: max(shop {hipot['basic_v']:.0f} V, 2 x {working_v:.0f} V + 1000 V) "
-                   f"(common practice, from memory)")
-    v = max(hipot["reinforced_v"], 2.0 * two_u)
-    return v, (f"{rating}: max(shop {hipot['reinforced_v']:.0f} V, 2 x (2 x {working_v:.0f} V + 1000 V)) "
-               f"(common practice, from memory)")
+        v = ins.round_up_to_step_v(hipot["functional_v"], step_v)
+        return v, ins.round_up_to_step_v(v * hipot["routine_factor"], step_v), "functional insulation: shop default"
+    grade = ins.Grade.REINFORCED if rating == "double" else ins.Grade(rating)
+    h = ins.hipot_test_voltage_v(grade, working_v, mains_connected=mains_connected, step_v=step_v)
+    return h.type_test_v, h.routine_v, f"{rating}: {h.rule} ({h.source})"
 
 
 def _barriers(spec: Spec) -> list[Barrier]:
@@ -55,7 +56,7 @@ def _barriers(spec: Spec) -> list[Barrier]:
     return out
 
 
-def test_plan(state: DesignState, kind: KindTests) -> TestPlan:
+def test_plan(state: DesignState, kind: KindTests, insulation: InsulationResult | None = None) -> TestPlan:
     """DCR of every winding at 20 degC and the hipot of every barrier (common), with the kind's own limits."""
     spec, windings, shop = state.spec, state.windings, state.cat.shop
     tol = shop.tolerances
@@ -64,14 +65,28 @@ def test_plan(state: DesignState, kind: KindTests) -> TestPlan:
                       condition=f"pins {w.start}-{w.finish}, at 20 °C")
                 for w in windings if w.finish)
     hp = shop.hipot
+    step = shop.insulation.hipot_step_v if shop.insulation else 50.0
+    coordinated = {r.between: r for r in insulation.barriers} if insulation else {}
     hipot = []
     for b in _barriers(spec):
-        v, basis = hipot_voltage_v(b.rating, b.working_voltage_v, hp)
+        r = coordinated.get((b.a, b.b))
+        if r is not None:
+            type_v, routine_v, basis = r.type_test_v, r.routine_test_v, f"{b.rating}: {r.hipot_rule}"
+        else:
+            names = side_names(spec, b.a) + side_names(spec, b.b)
+            mains = any(w.role == "primary" for w in spec.windings if w.name in names)
+            try:
+                type_v, routine_v, basis = hipot_voltage_v(b.rating, b.working_voltage_v, hp, mains_connected=mains,
+                                                           step_v=step)
+            except ValueError as err:
+                raise spec_error(spec, f"{err}: the default barrier {b.a} - {b.b} takes the windings' "
+                                       f"{b.working_voltage_v:g} V; check the voltages or declare the barriers",
+                                 "windings") from None
         hipot.append(HipotTest(between=f"{b.a} - {b.b}", a=b.a, b=b.b, rating=b.rating,
-                               working_voltage_v=b.working_voltage_v, type_voltage_v=v,
-                               type_duration_s=hp["type_duration_s"], routine_voltage_v=v * hp["routine_factor"],
+                               working_voltage_v=b.working_voltage_v, type_voltage_v=type_v,
+                               type_duration_s=hp["type_duration_s"], routine_voltage_v=routine_v,
                                routine_duration_s=hp["routine_duration_s"], trip_current_a=hp["trip_current_a"],
-                               basis=basis))
+                               basis=basis, connection=hipot_connection(spec, b.a, b.b)))
     ir = shop.insulation_resistance
     return TestPlan(dcr=dcr, ratio=kind.ratio, open_circuit=kind.open_circuit, inductance=kind.inductance,
                     polarity=kind.polarity, hipot=tuple(hipot), insulation_resistance_v=ir["voltage_v"],

@@ -1,0 +1,405 @@
+"""Insulation coordination of every barrier the spec declares, against what the build provides.
+
+For each barrier (two sides: windings, ``all`` or ``core``) the requirement comes from
+``standards.insulation.coordinate_barrier`` (IEC 60664-1 tables: rated impulse voltage from the shop's mains
+voltage and overvoltage category, clearance, creepage never less than the clearance, thin-sheet solid
+insulation, hipot). What the build provides is measured here, once:
+
+- between windings on a bobbin: the creepage path from one winding's end turn out to the flange, round the
+  edge of the barrier tape and back to the other winding's end turn: for each side the smaller of its margin
+  and the barrier tape's overhang past its copper, ``min(m, (min(w, B) - b) / 2)`` with tape width w,
+  bobbin breadth B and the copper's breadth b (a tape running flange to flange gives the whole margin).
+  The same path is taken as the clearance (the tape seals the direct line; the air path follows the margin).
+  The pins: the gap between the nearest pins of the two sides (row spacing or pitch, less a pin's width);
+- solid insulation between windings: the tape layers wound between them, each layer's breakdown
+  (thickness x dielectric strength) against the grade's type-test voltage: one layer passing for basic;
+  for supplementary and reinforced two layers each passing, or three of which any two together pass
+  (IEC 62368-1 5.4.4.6, from memory). Triple-insulated wire on one side counts as the solid insulation;
+- leads: every lead of the barrier's windings sleeved with a sleeving whose breakdown reaches the test voltage;
+- to the core on a toroid: the core wrap (half-lapped tape, so two thicknesses a layer; creepage along the laps,
+  half the tape width a layer) or a coating with a rated electric strength; nothing under the first winding fails;
+- to the core on a bobbin: the winding's margin plus the bobbin's moulded path over the flange and the rated
+  strength of its wall, both from the catalogue (missing figures fail: the bobbin must be measured).
+
+Also here: whether the barrier, layer and wrap tapes cover what they must (``tape-width``), and split
+two-chamber bobbins, which this build model does not lay out chamber by chamber yet (refused, not mis-built).
+
+Figures from the standards are recalled from memory (see ``standards.insulation``); the applicable product
+safety standard, the customer's drawing, local codes and licensed practice decide.
+"""
+
+from __future__ import annotations
+
+import math
+from collections.abc import Sequence
+from dataclasses import dataclass, replace
+
+from ..catalog.models import InsulationBasis, Tape
+from ..standards import insulation as ins
+from .resolve import spec_error
+from .result import BarrierResult, Check, InsulationResult
+from .spec import Barrier, Spec, Winding
+from .state import BuiltSection, DesignState
+
+_CATEGORY = ("I", "II", "III", "IV")
+TOROID_WRAP_LAP = 0.5        # core wrap and winding tapes on a toroid are half-lapped (common practice)
+
+
+@dataclass(frozen=True, slots=True)
+class _Provided:
+    creepage_mm: float | None
+    clearance_mm: float | None
+    path: str
+    solid_ok: bool
+    solid: str
+    problems: tuple[str, ...] = ()
+    unknown: tuple[str, ...] = ()       # what the catalogue lacks to check (a warning: measure it)
+
+
+def side_names(spec: Spec, side: str) -> list[str]:
+    """The windings one side of a barrier names: 'all', 'core' (none), or names joined by '+'."""
+    if side.strip() in ("all", "all windings"):
+        return [w.name for w in spec.windings]
+    if side.strip() == "core":
+        return []
+    return [n.strip() for n in side.split("+")]
+
+
+def winding_pins(w: Winding) -> list[str]:
+    return [p for p in (w.start, *w.section_pins, w.finish) if p]
+
+
+def hipot_connection(spec: Spec, a: str, b: str) -> str:
+    """Which pins to short together and where to apply the test voltage, in words for the test station."""
+    groups = []
+    for side in (a, b):
+        pins = [p for n in side_names(spec, side) for p in winding_pins(spec.winding(n))]
+        if pins:
+            groups.append("short " + "-".join(pins))
+    where = "apply between them and the core" if "core" in (a.strip(), b.strip()) else "apply between"
+    others = [p for w in spec.windings if w.name not in {*side_names(spec, a), *side_names(spec, b)}
+              for p in winding_pins(w)]
+    tail = f"; tie {'-'.join(others)} to the return" if others else ""
+    return "; ".join(groups) + f"; {where}{tail}"
+
+
+def _grade(rating: str) -> ins.Grade:
+    # double insulation (basic + supplementary) is dimensioned as reinforced (IEC 60664-1 5.1.6, from memory)
+    return ins.Grade.REINFORCED if rating == "double" else ins.Grade(rating)
+
+
+def _mains_connected(spec: Spec, names: Sequence[str]) -> bool:
+    return any(spec.winding(n).role == "primary" for n in names)
+
+
+def _layers_pass(breakdowns: list[float], test_v: float, solid: ins.SolidInsulationRequirement) -> bool:
+    each = sum(1 for v in breakdowns if v >= test_v)
+    if each >= solid.layers_each_passing:
+        return True
+    n = solid.layers_any_two_passing
+    weakest = sorted(breakdowns)
+    return n is not None and len(breakdowns) >= n and weakest[0] + weakest[1] >= test_v
+
+
+def _tape_layers(state: DesignState, tapes: Sequence[tuple[str, int]], factor: int = 1) -> tuple[list[float], str]:
+    cat = state.cat
+    out: list[float] = []
+    words = []
+    for tid, layers in tapes:
+        t: Tape = cat.tapes[tid]
+        bd = t.thickness_m * t.dielectric_strength_v_m
+        out += [bd] * (layers * factor)
+        words.append(f"{layers * factor} x {tid} ({bd / 1e3:.1f} kV each)")
+    return out, " + ".join(words) if words else "nothing"
+
+
+def _edge_mm(sec: BuiltSection, tape_width_m: float | None, breadth_m: float) -> float:
+    """One side's share of the creepage path: its margin, or the barrier tape's overhang past its copper."""
+    if tape_width_m is None:
+        return 0.0
+    overhang = max(0.0, (min(tape_width_m, breadth_m) - sec.build.usable_breadth_m) / 2.0)
+    return min(sec.margin_m, overhang) * 1e3
+
+
+def _pin_gap_mm(state: DesignState, a: list[str], b: list[str]) -> tuple[float | None, str]:
+    bob = state.parts.bobbin
+    if bob is None:
+        return None, ""
+    if bob.pin_size_m is None or (bob.pin_rows > 1 and bob.pin_row_spacing_m is None):
+        return None, f"bobbin {bob.id} has no pin row spacing or pin size on file"
+    pa = [p for n in a for p in winding_pins(state.spec.winding(n))]
+    pb = [p for n in b for p in winding_pins(state.spec.winding(n))]
+    per_row = math.ceil(len(bob.pins) / bob.pin_rows)
+    best = math.inf
+    for x in pa:
+        for y in pb:
+            i, j = bob.pins.index(x), bob.pins.index(y)
+            if i // per_row == j // per_row:
+                gap = abs(i - j) * bob.pin_pitch_m - bob.pin_size_m
+            else:
+                gap = (bob.pin_row_spacing_m or 0.0) - bob.pin_size_m
+            best = min(best, gap)
+    return best * 1e3, f"pins {bob.pin_pitch_m * 1e3:g} mm pitch"
+
+
+def _sleeving_ok(state: DesignState, names: Sequence[str], test_v: float) -> tuple[bool, str]:
+    spec, cat = state.spec, state.cat
+    weakest: tuple[float, str] | None = None
+    for n in names:
+        sid = spec.winding(n).lead_sleeving or spec.sleeving
+        if not sid:
+            return False, f"the leads of {n} are not sleeved"
+        bd = cat.sleevings[sid].breakdown_v
+        if weakest is None or bd < weakest[0]:
+            weakest = (bd, sid)
+    if weakest is None:
+        return True, ""
+    if weakest[0] < test_v:
+        return False, f"lead sleeving {weakest[1]} breaks down at {weakest[0] / 1e3:g} kV, below the {test_v:.0f} V test"
+    return True, f"leads in {weakest[1]} ({weakest[0] / 1e3:g} kV)"
+
+
+def _between_windings(state: DesignState, a: list[str], b: list[str], coord: ins.BarrierCoordination) -> _Provided:
+    cat, built = state.cat, state.built
+    test_v = coord.hipot.type_test_v
+    tiw = [side for side in (a, b) if side and all(state.states[n].wire.kind == "tiw" for n in side)]
+    sleeve_ok, sleeve_words = _sleeving_ok(state, a + b, test_v)
+    pins_mm, pins_words = _pin_gap_mm(state, a, b)
+    problems: list[str] = []
+    if state.parts.former.kind == "toroid":
+        # windings over one another on the ring: the winding tapes between them, half-lapped
+        secs = built.sections
+        worst: tuple[float, list[float], str] | None = None
+        for i, lo in enumerate(secs):
+            for j in range(i + 1, len(secs)):
+                hi = secs[j]
+                if not ((lo.winding in a and hi.winding in b) or (lo.winding in b and hi.winding in a)):
+                    continue
+                tapes = [(s.tape_after, s.tape_after_layers) for s in secs[i:j] if s.tape_after]
+                bds, words = _tape_layers(state, tapes, factor=2)
+                lap = sum(cat.tapes[t].width_m * TOROID_WRAP_LAP * n for t, n in tapes) * 1e3
+                if worst is None or lap < worst[0]:
+                    worst = (lap, bds, words)
+        lap_mm, bds, words = worst if worst else (0.0, [], "nothing")
+        solid_ok = bool(tiw) or _layers_pass(bds, test_v, coord.solid)
+        return _Provided(lap_mm, lap_mm, "along the laps of the half-lapped tape between the windings",
+                         solid_ok and sleeve_ok, words + (f"; {sleeve_words}" if sleeve_words else ""),
+                         tuple([] if sleeve_ok else [sleeve_words]))
+    breadth = state.parts.former.breadth_m
+    secs = built.sections
+    worst_creep: tuple[float, str] | None = None
+    worst_solid: tuple[bool, str] | None = None
+    for i, lo in enumerate(secs):
+        for j in range(i + 1, len(secs)):
+            hi = secs[j]
+            if not ((lo.winding in a and hi.winding in b) or (lo.winding in b and hi.winding in a)):
+                continue
+            over = cat.tapes[lo.tape_after].width_m if lo.tape_after else None
+            under = cat.tapes[secs[j - 1].tape_after].width_m if secs[j - 1].tape_after else None
+            e1, e2 = _edge_mm(lo, over, breadth), _edge_mm(hi, under, breadth)
+            tape_w = (over or 0.0) * 1e3
+            desc = (f"{e1:.2f} + {e2:.2f} mm round the edge of the {tape_w:g} mm tape over {lo.winding}"
+                    f" on the {breadth * 1e3:g} mm breadth")
+            if worst_creep is None or e1 + e2 < worst_creep[0]:
+                worst_creep = (e1 + e2, desc)
+            tapes = [(s.tape_after, s.tape_after_layers) for s in secs[i:j] if s.tape_after]
+            bds, words = _tape_layers(state, tapes)
+            ok = bool(tiw) or _layers_pass(bds, test_v, coord.solid)
+            if worst_solid is None or not ok:
+                worst_solid = (ok, words)
+    creep_mm, path = worst_creep if worst_creep else (None, "the windings are not next to each other in the build")
+    solid_ok, solid_words = worst_solid if worst_solid else (True, "")
+    if tiw:
+        solid_words = f"triple-insulated wire on {'+'.join(tiw[0])}" + (f"; tape {solid_words}" if solid_words else "")
+        creep_mm = None if creep_mm is None else creep_mm
+    if pins_mm is not None:
+        path += f"; {pins_mm:.2f} mm between the nearest pins ({pins_words})"
+        creep_mm = pins_mm if creep_mm is None else min(creep_mm, pins_mm)
+    unknown = (f"{pins_words}: the pin gap is not checked, measure it",) if pins_mm is None and pins_words else ()
+    if not sleeve_ok:
+        problems.append(sleeve_words)
+    return _Provided(creep_mm, creep_mm, path, solid_ok and sleeve_ok and not problems,
+                     solid_words + (f"; {sleeve_words}" if sleeve_ok and sleeve_words else ""), tuple(problems),
+                     unknown)
+
+
+def _to_core(state: DesignState, names: list[str], coord: ins.BarrierCoordination) -> _Provided:
+    spec, cat, parts = state.spec, state.cat, state.parts
+    test_v = coord.hipot.type_test_v
+    if parts.former.kind == "toroid":
+        core = parts.core
+        if spec.core_wrap is not None:
+            tape = cat.tapes[spec.core_wrap.tape]
+            bds, words = _tape_layers(state, [(tape.id, spec.core_wrap.layers)], factor=2)
+            lap = tape.width_m * TOROID_WRAP_LAP * spec.core_wrap.layers * 1e3
+            return _Provided(lap, lap, f"along the laps of the core wrap ({spec.core_wrap.layers} half-lapped "
+                                       f"layers of {tape.width_m * 1e3:g} mm tape)",
+                             _layers_pass(bds, test_v, coord.solid), f"core wrap: {words}")
+        if core.coating_voltage_v is not None:
+            ok = core.coating_voltage_v >= test_v
+            return _Provided(None, None, "the core is enclosed in its coating (no surface path to bare steel)", ok,
+                             f"core coating rated {core.coating_voltage_v / 1e3:g} kV")
+        return _Provided(None, None, "nothing under the first winding", False, "nothing",
+                         (f"nothing insulates the first winding from core {core.id}: add a core wrap "
+                          f"(insulation.core_wrap) or use a core with a rated coating",))
+    bob = parts.bobbin
+    assert bob is not None
+    if bob.core_creepage_m is None or bob.wall_voltage_v is None:
+        return _Provided(None, None, "", True, "the bobbin wall (strength not on file)",
+                         unknown=(f"bobbin {bob.id} has no core_creepage or wall_voltage on file: the path over the "
+                                  f"flange and the wall are not checked; measure them before relying on them",))
+    margin = min((s.margin_m for s in state.built.sections if s.winding in names), default=0.0)
+    creep = (margin + bob.core_creepage_m) * 1e3
+    return _Provided(creep, creep, f"{margin * 1e3:g} mm margin + {bob.core_creepage_m * 1e3:g} mm over the flange "
+                                   f"of {bob.id}", bob.wall_voltage_v >= test_v,
+                     f"bobbin wall rated {bob.wall_voltage_v / 1e3:g} kV")
+
+
+def _one(state: DesignState, basis: InsulationBasis, b: Barrier) -> BarrierResult:
+    spec = state.spec
+    a_names, b_names = side_names(spec, b.a), side_names(spec, b.b)
+    peak = b.peak_voltage_v if b.peak_voltage_v is not None else math.sqrt(2.0) * b.working_voltage_v
+    mains = _mains_connected(spec, a_names + b_names)
+    functional = b.rating == "functional"
+    try:
+        coord = ins.coordinate_barrier(
+            grade=ins.Grade.BASIC if functional else _grade(b.rating), working_v_rms=b.working_voltage_v,
+            mains_v=basis.mains_v, overvoltage_category=basis.overvoltage_category,
+            pollution_degree=basis.pollution_degree, material_group=basis.material_group,
+            altitude_m=basis.altitude_m, working_v_peak=peak, mains_connected=mains, step_v=basis.hipot_step_v)
+    except ValueError as err:
+        raise spec_error(spec, str(err), "insulation", "barriers", b.index) from None
+    to_core = "core" in (b.a.strip(), b.b.strip())
+    prov = _to_core(state, a_names or b_names, coord) if to_core else _between_windings(state, a_names, b_names,
+                                                                                     coord)
+    label = f"{b.a} to {b.b} {b.rating}"
+    if functional:
+        shop = state.cat.shop.hipot
+        type_v = ins.round_up_to_step_v(shop["functional_v"], basis.hipot_step_v)
+        routine = ins.round_up_to_step_v(type_v * shop["routine_factor"], basis.hipot_step_v)
+        return BarrierResult(
+            between=(b.a, b.b), grade=b.rating, working_voltage_v=b.working_voltage_v, peak_voltage_v=peak,
+            mains_connected=mains, clearance_required_mm=None, clearance_available_mm=prov.clearance_mm,
+            creepage_required_mm=None, creepage_available_mm=prov.creepage_mm, solid_required="none (functional)",
+            solid_provided=prov.solid, ok=True, path=prov.path,
+            message=f"{label}: no safety distances required; tested at the shop's functional {type_v:.0f} V",
+            type_test_v=type_v, routine_test_v=routine, hipot_rule="functional insulation: shop default",
+            rows="")
+    clear_req, creep_req = coord.clearance.clearance_mm, coord.creepage_mm
+    problems = list(prov.problems)
+    if prov.creepage_mm is not None and prov.creepage_mm + 1e-9 < creep_req:
+        problems.append(f"creepage needs {creep_req:.2f} mm, the build gives {prov.path}")
+    if prov.clearance_mm is not None and prov.clearance_mm + 1e-9 < clear_req:
+        problems.append(f"clearance needs {clear_req:.2f} mm, the build gives {prov.clearance_mm:.2f} mm")
+    if not prov.solid_ok and not prov.problems:
+        problems.append(f"solid insulation needs {coord.solid.rule} at {coord.hipot.type_test_v:.0f} V; "
+                        f"the build has {prov.solid}")
+    ok = not problems
+    if ok and prov.unknown:
+        message = f"{label} at {b.working_voltage_v:g} V: " + "; ".join(prov.unknown)
+    elif ok:
+        given = "" if prov.creepage_mm is None else f", {prov.creepage_mm:.2f} mm given"
+        message = (f"{label} at {b.working_voltage_v:g} V: clearance {clear_req:.2f} mm and creepage "
+                   f"{creep_req:.2f} mm needed{given}; solid: {prov.solid}")
+    else:
+        message = f"{label} at {b.working_voltage_v:g} V: " + "; ".join(problems)
+    return BarrierResult(
+        between=(b.a, b.b), grade=b.rating, working_voltage_v=b.working_voltage_v, peak_voltage_v=peak,
+        mains_connected=mains, clearance_required_mm=clear_req, clearance_available_mm=prov.clearance_mm,
+        creepage_required_mm=creep_req, creepage_available_mm=prov.creepage_mm, solid_required=coord.solid.rule,
+        solid_provided=prov.solid, ok=ok, path=prov.path, message=message, type_test_v=coord.hipot.type_test_v,
+        routine_test_v=coord.hipot.routine_v, hipot_rule=coord.hipot.rule, checked=not prov.unknown,
+        rows=f"impulse {coord.impulse.row}; clearance {coord.clearance.row}; creepage {coord.creepage.row}")
+
+
+def coordinate(state: DesignState) -> tuple[InsulationResult | None, list[Check]]:
+    """Every declared barrier coordinated and compared with the build, and the tape and chamber checks."""
+    checks = _tape_cover(state) + _split_bobbin(state)
+    basis = state.cat.shop.insulation
+    if basis is not None and state.spec.insulation_basis:
+        basis = replace(basis, **state.spec.insulation_basis)
+    if not state.spec.barriers:
+        return None, checks
+    if basis is None:
+        checks.append(Check("warn", "insulation", "the shop file has no insulation defaults (shop.insulation): "
+                                                  "the barriers are not coordinated"))
+        return None, checks
+    barriers = tuple(_one(state, basis, b) for b in state.spec.barriers)
+    checks += [Check(("pass" if r.checked else "warn") if r.ok else "fail", "insulation", r.message)
+               for r in barriers]
+    impulse = ins.rated_impulse_voltage_v(basis.mains_v, basis.overvoltage_category)
+    result = InsulationResult(
+        standard=basis.standard, overvoltage_category=_CATEGORY[basis.overvoltage_category - 1],
+        pollution_degree=basis.pollution_degree, material_group=basis.material_group, altitude_m=basis.altitude_m,
+        mains_v=basis.mains_v, impulse_v=impulse.impulse_v, barriers=barriers, note=ins.verify_note())
+    return result, checks
+
+
+def _tape_cover(state: DesignState) -> list[Check]:
+    """Layer tape over the copper it separates; winding tapes and the outer wrap flange to flange."""
+    spec, cat, former = state.spec, state.cat, state.parts.former
+    if former.kind == "toroid":
+        return []
+    out: list[Check] = []
+    breadth = former.breadth_m
+    barrier_below = _barrier_interfaces(spec, state.built.sections)
+    for s in state.built.sections:
+        sb = s.build
+        if spec.layer_tape is not None and len(sb.layers) > 1:
+            w = cat.tapes[spec.layer_tape.tape].width_m
+            if w + 1e-9 < sb.usable_breadth_m:
+                out.append(Check("fail", "tape-width",
+                                 f"layer tape {spec.layer_tape.tape} is {w * 1e3:g} mm wide but winding {s.winding} "
+                                 f"lays {sb.usable_breadth_m * 1e3:.1f} mm of copper: a tape as wide as the "
+                                 f"copper (or two widths overlapped) is needed"))
+        if s.tape_after and s is state.built.sections[-1]:
+            w = cat.tapes[s.tape_after].width_m
+            if w + 1e-9 < sb.usable_breadth_m:
+                out.append(Check("fail", "tape-width",
+                                 f"outer wrap {s.tape_after} is {w * 1e3:g} mm wide but winding {s.winding} lays "
+                                 f"{sb.usable_breadth_m * 1e3:.1f} mm of copper: it must cover the copper"))
+        elif s.tape_after and (s.winding, s.index) in barrier_below:
+            w = cat.tapes[s.tape_after].width_m
+            if w + 1e-9 < breadth:
+                out.append(Check("fail", "tape-width",
+                                 f"tape {s.tape_after} over {s.winding} is {w * 1e3:g} mm wide on a "
+                                 f"{breadth * 1e3:g} mm breadth: as a {barrier_below[(s.winding, s.index)]} barrier "
+                                 f"it must run flange to flange over the margins"))
+        elif s.tape_after:
+            w = cat.tapes[s.tape_after].width_m
+            if w + 1e-9 < sb.usable_breadth_m:
+                out.append(Check("fail", "tape-width",
+                                 f"tape {s.tape_after} over {s.winding} is {w * 1e3:g} mm wide but covers "
+                                 f"{sb.usable_breadth_m * 1e3:.1f} mm of copper"))
+    return _unique(out)
+
+
+def _barrier_interfaces(spec: Spec, sections: Sequence[BuiltSection]) -> dict[tuple[str, int], str]:
+    """Sections whose tape above is a safety barrier: the next section is on the other side of a declared
+    barrier that is more than functional. Maps (winding, section) to the barrier's grade."""
+    out: dict[tuple[str, int], str] = {}
+    for lo, hi in zip(sections, sections[1:]):
+        for b in spec.barriers:
+            if b.rating == "functional" or "core" in (b.a.strip(), b.b.strip()):
+                continue
+            a, c = side_names(spec, b.a), side_names(spec, b.b)
+            if (lo.winding in a and hi.winding in c) or (lo.winding in c and hi.winding in a):
+                out[(lo.winding, lo.index)] = b.rating
+    return out
+
+
+def _unique(checks: list[Check]) -> list[Check]:
+    seen: list[Check] = []
+    for c in checks:
+        if c not in seen:
+            seen.append(c)
+    return seen
+
+
+def _split_bobbin(state: DesignState) -> list[Check]:
+    bob = state.parts.bobbin
+    if bob is None or bob.sections < 2:
+        return []
+    return [Check("fail", "split-bobbin",
+                  f"bobbin {bob.id} has {bob.sections} chambers; this build lays every winding in one chamber's "
+                  f"breadth: choose the single-chamber bobbin (chamber assignment is not modelled yet)")]
