@@ -129,7 +129,7 @@ def _core_wrap_m(spec: Spec, cat: Catalog) -> float:
         return 0.0
     tape = _tape(spec, cat, wrap.tape, "insulation", "core_wrap", "tape")
     assert tape is not None
-    return 2.0 * tape.thickness_m * wrap.layers
+    return 2.0 * float(tape.thickness_m) * int(wrap.layers)
 
 
 def resolve_bobbin(spec: Spec, cat: Catalog, core: Core, stack: float | None) -> Bobbin:
