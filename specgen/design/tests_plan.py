@@ -71,7 +71,8 @@ def test_plan(state: DesignState, kind: KindTests, insulation: InsulationResult 
     for b in _barriers(spec):
         r = coordinated.get((b.a, b.b))
         if r is not None:
-            type_v, routine_v, basis = r.type_test_v, r.routine_test_v, f"{b.rating}: {r.hipot_rule}"
+            rule = r.hipot_rule if r.hipot_rule.startswith(("reinforced", "functional")) else f"{b.rating}: {r.hipot_rule}"
+            type_v, routine_v, basis = r.type_test_v, r.routine_test_v, rule
         else:
             names = side_names(spec, b.a) + side_names(spec, b.b)
             mains = any(w.role == "primary" for w in spec.windings if w.name in names)

@@ -58,6 +58,26 @@ fmt_temp = present.temp_c
 sig = present.sig
 
 
+def _insulation_rows(d: object) -> dict[str, object] | None:
+    """The Design's insulation coordination as printed: one row per barrier, the basis in one line."""
+    ins = getattr(d, "insulation", None)
+    if ins is None:
+        return None
+
+    def mm(x: float | None) -> str:
+        return "—" if x is None else f"{x:.2f} mm"
+
+    rows = [{"between": f"{b.between[0]} – {b.between[1]}", "grade": b.grade,
+             "working": f"{b.working_voltage_v:g} V rms, {b.peak_voltage_v:.0f} V peak",
+             "clearance": f"{mm(b.clearance_required_mm)} / {mm(b.clearance_available_mm)}",
+             "creepage": f"{mm(b.creepage_required_mm)} / {mm(b.creepage_available_mm)}",
+             "solid": b.solid_provided, "ok": "pass" if b.ok else "FAIL", "path": b.path} for b in ins.barriers]
+    basis = (f"{ins.standard}; mains {ins.mains_v:g} V, overvoltage category {ins.overvoltage_category} "
+             f"({ins.impulse_v:.0f} V impulse), pollution degree {ins.pollution_degree}, material group "
+             f"{ins.material_group}, up to {ins.altitude_m:g} m")
+    return {"rows": rows, "basis": basis, "note": ins.note}
+
+
 def fmt_ohm(value: float | None) -> str:
     return present.si(value, "Ω")
 
@@ -445,7 +465,7 @@ def build_context(design, cat, *, number: str, qty: int, due: str | None = None,
     hipot = [{"between": h.between, "rating": h.rating, "working": fmt_test_volt(h.working_voltage_v),
               "type_v": fmt_test_volt(h.type_voltage_v), "type_s": fmt_seconds(h.type_duration_s),
               "routine_v": fmt_test_volt(h.routine_voltage_v), "routine_s": fmt_seconds(h.routine_duration_s),
-              "trip": fmt_ma(h.trip_current_a), "basis": h.basis} for h in t.hipot]
+              "trip": fmt_ma(h.trip_current_a), "basis": h.basis, "connection": h.connection} for h in t.hipot]
     columns = ["S/N"] + [f"DCR {l.item}" for l in t.dcr] + [f"ratio {l.item}" for l in t.ratio]
     if t.inductance:
         columns.append(f"L {t.inductance[0].item}")
@@ -472,6 +492,7 @@ def build_context(design, cat, *, number: str, qty: int, due: str | None = None,
         "caution": list(HIPOT_CAUTION), "standards_note": STANDARDS_NOTE, "notes": (d.notes or "").strip(),
         "history": history, "warnings": [c.message for c in d.warnings], "toroid": toroid,
         "pin_word": pin_word, "paper": CSS_PAPER[shop.documents.paper], "side_margin_mm": SIDE_MARGIN_MM,
+        "insulation": _insulation_rows(d),
     }
     ctx.update(_drawings(d, cat))
     return ctx
