@@ -52,6 +52,7 @@ class InsulationPlan:
     margin_m: float
     margin_tape: str | None
     varnish: str | None
+    core_wrap: str | None = None      # toroid insulated from its core: one half-lapped wrap of this tape
 
 
 @dataclass(frozen=True, slots=True)
@@ -143,15 +144,20 @@ def insulation_plan(req: Requirement, cat: Catalog, bobbin: Bobbin | None) -> In
             margin = best_w
     varn = sorted((v for v in cat.varnishes.values() if v.thermal_class_c >= cls),
                   key=lambda v: (v.price_per_litre, v.id))
-    return InsulationPlan(layer_tape=layer.id, layer_tape_m=layer.thickness_m, winding_tape=strong.id,
+    # a toroid insulated from its core: one half-lapped wrap of the strong tape on the core (the engine
+    # fails a barrier to the core with nothing under the first winding)
+    core_wrap = strong.id if bobbin is None and req.to_core not in (None, "functional") else None
+    return InsulationPlan(core_wrap=core_wrap, layer_tape=layer.id, layer_tape_m=layer.thickness_m, winding_tape=strong.id,
                           winding_tape_layers=layers, winding_tape_m=strong.thickness_m * layers,
                           outer_wrap=strong.id, outer_wrap_layers=2, outer_wrap_m=strong.thickness_m * 2,
                           margin_m=margin, margin_tape=margin_tape, varnish=varn[0].id if varn else None)
 
 
-def sleeving_for(cat: Catalog, cls: int, diameter_m: float) -> str | None:
-    """The narrowest sleeving of the class whose bore takes the wire with 10 % to spare (else the widest)."""
+def sleeving_for(cat: Catalog, cls: int, diameter_m: float, test_v: float = 0.0) -> str | None:
+    """The narrowest sleeving of the class whose bore takes the wire with 10 % to spare (else the widest),
+    among those whose breakdown holds the barrier's type-test voltage ``test_v`` where any does."""
     ok: list[Sleeving] = [s for s in cat.sleevings.values() if s.thermal_class_c >= cls]
+    ok = [s for s in ok if s.breakdown_v >= test_v] or ok
     if not ok:
         return None
     fit = [s for s in ok if s.bore_m >= 1.1 * diameter_m]
@@ -176,6 +182,7 @@ def core_choices(req: Requirement, cat: Catalog) -> list[CoreChoice]:
     single-section bobbin made for it; split bobbins only where no single-section one fits)."""
     from ..design.flux import b_sat_hot_t
     from ..design.resolve import core_result, resolve_core
+    from ..design.spec import TapeUse
     from .draft import requirement_spec
 
     base = requirement_spec(req)
@@ -184,15 +191,17 @@ def core_choices(req: Requirement, cat: Catalog) -> list[CoreChoice]:
         stacks: list[float | None] = list(core.stacks_m) if core.shape == "EI" else [None]
         for stack in stacks:
             for bob in _bobbins(cat, core, stack):
-                spec = replace(base, core_id=core.id, stack_m=stack, bobbin_id=bob.id if bob else None)
+                plan = insulation_plan(req, cat, bob)
+                wrap = TapeUse(plan.core_wrap, 1) if plan.core_wrap and core.is_toroid else None
+                spec = replace(base, core_id=core.id, stack_m=stack, bobbin_id=bob.id if bob else None,
+                               core_wrap=wrap)
                 try:
                     parts = resolve_core(spec, cat)
                 except (SpecError, ValueError):
                     continue
                 mass = core_result(spec, cat, parts, b_sat_hot_t(parts.material, req.ambient_c)).mass_kg
                 out.append(CoreChoice(core=core, stack_m=stack, bobbin=bob, parts=parts, mass_kg=mass,
-                                      family=f"{core.shape} / {core.material}",
-                                      plan=insulation_plan(req, cat, bob)))
+                                      family=f"{core.shape} / {core.material}", plan=plan))
     return out
 
 

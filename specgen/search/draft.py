@@ -126,6 +126,8 @@ def requirement_spec(req: Requirement) -> Spec:
 def _insulation_lines(req: Requirement, cat: Catalog, choice: CoreChoice, options: list[WireOption]) -> list[str]:
     plan = choice.plan
     lines = ["insulation:", f"  layer_tape: {{tape: {plan.layer_tape}, layers: 1}}"]
+    if plan.core_wrap and choice.bobbin is None:
+        lines.append(f"  core_wrap: {{tape: {plan.core_wrap}, layers: 1}}   # half-lapped on the core")
     if req.kind == "transformer":
         lines.append(f"  winding_tape: {{tape: {plan.winding_tape}, layers: {plan.winding_tape_layers}}}")
     lines.append(f"  outer_wrap: {{tape: {plan.outer_wrap}, layers: {plan.outer_wrap_layers}}}")
@@ -134,7 +136,12 @@ def _insulation_lines(req: Requirement, cat: Catalog, choice: CoreChoice, option
         if plan.margin_tape:
             lines.append(f"  margin_tape: {plan.margin_tape}")
     diam = max((o.wire.overall_diameter_m or o.wire.overall_thickness_m or 0.0 for o in options), default=0.0)
-    slv = sleeving_for(cat, req.insulation_class_c, diam)
+    test_v = 0.0
+    if req.kind == "transformer" and req.rating != "functional" and req.working_voltage_v:
+        from ..design.tests_plan import hipot_voltage_v
+
+        test_v = hipot_voltage_v(req.rating, req.working_voltage_v, cat.shop.hipot)[0]
+    slv = sleeving_for(cat, req.insulation_class_c, diam, test_v)
     if slv:
         lines.append(f"  sleeving: {slv}")
     if plan.varnish:
