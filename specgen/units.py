@@ -60,6 +60,7 @@ DIMENSIONS: dict[str, Dimension] = {
     "frequency": _d((0, 0, -1, 0, 0), "Hz", "a frequency", "'50 Hz'", 1e-3, 1e9, "1 mHz to 1 GHz"),
     "time": _d((0, 0, 1, 0, 0), "s", "a time", "'5 us'", 1e-12, 1e8, "1 ps to 1e8 s"),
     "length": _d((1, 0, 0, 0, 0), "m", "a length", "'0.5 mm'", 1e-9, 100.0, "1 nm to 100 m"),
+    "altitude": _d((1, 0, 0, 0, 0), "m", "an altitude", "'2000 m'", 1e-3, 1e4, "1 mm to 10 km"),
     "area": _d((2, 0, 0, 0, 0), "m**2", "an area", "'12 mm^2'", 1e-18, 100.0, "1e-12 mm^2 to 100 m^2"),
     "volume": _d((3, 0, 0, 0, 0), "m**3", "a volume", "'8 cm^3'", 1e-27, 100.0, "1e-18 mm^3 to 100 m^3"),
     "mass": _d((0, 1, 0, 0, 0), "kg", "a mass", "'120 g'", 1e-9, 1e5, "1 ug to 100 t"),

@@ -498,7 +498,7 @@ def _insulation_basis(r: Reader | None) -> InsulationBasis | None:
                  else _material_group(r.text("material_group")))
     except ValueError as err:
         raise r.error(str(err), "cti" if r.has("cti") else "material_group") from None
-    altitude = r.quantity("altitude", "length", 2000.0, allow_zero=True)
+    altitude = r.quantity("altitude", "altitude", 2000.0, allow_zero=True)
     mains = r.quantity("mains_voltage", "voltage", 230.0)
     try:
         ins.altitude_correction_factor(altitude)
