@@ -84,7 +84,7 @@ def design_report(d: Design) -> str:
     out.append(_table(["name", "role", "turns", "wire", "layers", "t/layer", "length m", "DCR 20°C Ω",
                        f"DCR {d.hot_spot_c:.0f}°C Ω", "I A", "J A/mm²", "Fr", "pins", "dot"], rows,
                       "llrlrrrrrrrrll"))
-    volts = [w for w in d.windings if w.open_circuit_v]
+    volts = [w for w in d.windings if w.open_circuit_v and w.voltage_v is not None]
     if volts:
         out.append("")
         out.append("  " + "; ".join(f"{w.name}: {w.voltage_v:.3f} V at full load, {w.open_circuit_v:.3f} V open "
