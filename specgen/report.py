@@ -2,6 +2,8 @@
 
 from __future__ import annotations
 
+from typing import Any
+
 from . import present
 from .design.result import Design
 from .standards.thermal_classes import class_label
@@ -72,6 +74,8 @@ def design_report(d: Design) -> str:
             ["current", f"{i.current_dc_a:g} A, ripple {i.ripple_a:g} A p-p, peak {i.current_peak_a:g} A; "
                         f"ΔB {i.delta_b_t * 1e3:.1f} mT"],
         ]
+    if d.current_transformer is not None:
+        core_rows += _ct_rows(d.current_transformer)
     out.append(_table(["", ""], core_rows, "ll"))
     out.append("")
     out.append("Windings (build order by section, see the work order)")
@@ -117,3 +121,15 @@ def design_report(d: Design) -> str:
     for ch in d.checks:
         out.append(f"  {mark[ch.level]:4}  {ch.code:16} {ch.message}")
     return "\n".join(out)
+
+
+def _ct_rows(ct: Any) -> list[list[str]]:
+    """A current transformer's own figures (the Design's ``current_transformer``)."""
+    return [
+        ["ratio", f"{ct.primary_turns}:{ct.secondary_turns}, {ct.primary_current_a:g} A -> "
+                  f"{ct.secondary_current_a:.4g} A (range to {ct.primary_current_max_a:g} A)"],
+        ["burden", f"{ct.burden_ohm:g} ohm + winding {ct.winding_resistance_ohm:.3g} ohm: "
+                   f"V_s {ct.secondary_voltage_v:.3g} V; knee burden {ct.knee_burden_ohm:.4g} ohm"],
+        ["accuracy", f"ratio error {ct.ratio_error_pct:+.4f} %, phase {ct.phase_error_deg * 60:+.2f} min at rated; "
+                     f"{ct.ratio_error_max_pct:+.4f} %, {ct.phase_error_max_deg * 60:+.2f} min at the top"],
+    ]

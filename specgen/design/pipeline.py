@@ -213,5 +213,5 @@ def finish(spec: Spec, cat: Catalog, parts: Parts, kind: PartKind, ev: Evaluatio
         temperature_rise_k=temp.rise_k, efficiency=s.efficiency, regulation_pct=s.regulation_pct,
         output_power_w=s.output_power_w, checks=tuple(checks), tests=tests, materials=tuple(materials),
         inductor=s.inductor, catalog_ids=catalog_ids(spec, parts, windings), iterations=iterations,
-        notes=spec.notes, history=spec.history,
+        notes=spec.notes, history=spec.history, current_transformer=s.current_transformer,
     )
