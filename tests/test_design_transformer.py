@@ -62,7 +62,8 @@ def _check(d, code):
 
 def test_every_demo_part_is_present():
     # the demo shop's five transformers and inductors, and one part of each newer kind
-    assert set(DEMOS) == {"BH-1042", "BH-2210", "BH-3305", "BH-4120", "BH-5018", "BH-6100"}
+    assert set(DEMOS) == {"BH-1042", "BH-2210", "BH-3305", "BH-4120", "BH-5018", "BH-6100",
+                          "BH-7065"}
 
 
 # ------------------------------------------------------------------------------------------ Faraday

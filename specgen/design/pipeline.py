@@ -214,4 +214,5 @@ def finish(spec: Spec, cat: Catalog, parts: Parts, kind: PartKind, ev: Evaluatio
         output_power_w=s.output_power_w, checks=tuple(checks), tests=tests, materials=tuple(materials),
         inductor=s.inductor, catalog_ids=catalog_ids(spec, parts, windings), iterations=iterations,
         notes=spec.notes, history=spec.history, current_transformer=s.current_transformer,
+        flyback=s.flyback,
     )

@@ -231,6 +231,39 @@ class CurrentTransformerResult:
 
 
 @dataclass(frozen=True)
+class FlybackWinding:
+    """One flyback winding's currents at the lowest input and full load."""
+    name: str
+    turns: int
+    peak_current_a: float
+    rms_current_a: float
+    dc_current_a: float              # the primary: its average input current; an output: its load current
+    output_voltage_v: float | None   # an output's voltage from whole turns (None for the primary)
+
+
+@dataclass(frozen=True)
+class FlybackResult:
+    """A flyback's own figures (kind: flyback)."""
+    mode: str                        # dcm | ccm at the lowest input, full load
+    mode_at_high_line: str
+    inductance_h: float              # L_p as built
+    gap_m: float
+    duty_max: float                  # at the lowest input
+    duty_min: float                  # at the highest input
+    reflected_voltage_v: float       # from whole turns
+    input_power_w: float
+    output_power_w: float
+    efficiency_estimate: float
+    b_peak_t: float                  # worst line, full load
+    delta_b_t: float
+    leakage_inductance_h: float      # referred to the primary, secondaries shorted
+    clamp_energy_j: float            # 1/2 L_lk I_pk^2 per cycle
+    clamp_power_w: float             # that energy x f (an RCD clamp dissipates more: x V_c / (V_c - V_R))
+    switch_voltage_v: float          # V_in max + V_R, before the leakage spike
+    windings: tuple[FlybackWinding, ...]
+
+
+@dataclass(frozen=True)
 class Design:
     part: str
     title: str
@@ -273,6 +306,7 @@ class Design:
     history: tuple[Any, ...] = ()
     fingerprint: str = ""
     current_transformer: CurrentTransformerResult | None = None
+    flyback: FlybackResult | None = None
 
     @property
     def failed(self) -> list[Check]:
@@ -372,7 +406,23 @@ class Design:
                 "phase_error_max_deg": ct.phase_error_max_deg, "knee_burden_ohm": ct.knee_burden_ohm,
                 "core_loss_current_a": ct.core_loss_current_a, "current_shape": ct.current_shape,
             })
+        if self.flyback is not None:
+            out.update(_flyback_dict(self.flyback))
+            per = {w.name: w for w in self.flyback.windings}
+            for w in out["windings"]:
+                fw = per[w["name"]]
+                w.update({"peak_current_a": fw.peak_current_a, "rms_current_a": fw.rms_current_a,
+                          "dc_current_a": fw.dc_current_a, "output_voltage_v": fw.output_voltage_v})
         return out
+
+
+def _flyback_dict(fb: FlybackResult) -> dict[str, Any]:
+    return {"mode": fb.mode, "mode_at_high_line": fb.mode_at_high_line, "inductance_h": fb.inductance_h,
+            "gap_mm": fb.gap_m * 1e3, "duty_max": fb.duty_max, "duty_min": fb.duty_min,
+            "reflected_voltage_v": fb.reflected_voltage_v, "input_power_w": fb.input_power_w,
+            "efficiency_estimate": fb.efficiency_estimate, "delta_b_t": fb.delta_b_t,
+            "leakage_inductance_h": fb.leakage_inductance_h, "clamp_energy_j": fb.clamp_energy_j,
+            "clamp_power_w": fb.clamp_power_w, "switch_voltage_v": fb.switch_voltage_v}
 
 
 def _tests_dict(tests: TestPlan) -> dict[str, Any]:

@@ -21,14 +21,17 @@ from __future__ import annotations
 
 import os
 from dataclasses import dataclass, field
-from typing import Any, cast
+from typing import TYPE_CHECKING, Any, cast
 
 from ..errors import SpecError
 from ..loading import Reader, first_unsafe_char, load_yaml, parse_yaml
 from .limits import MAX_TURNS
 from .vocab import Cooling, Waveform
 
-KINDS = ("transformer", "inductor", "current_transformer")
+if TYPE_CHECKING:
+    from .flyback_spec import FlybackReq
+
+KINDS = ("transformer", "inductor", "current_transformer", "flyback")
 ROLES = ("primary", "secondary", "auxiliary", "shield", "main")
 WAVEFORMS = ("sine", "square", "unipolar")
 STATUSES = ("draft", "released", "obsolete")
@@ -140,6 +143,7 @@ class Spec:
     history: tuple[dict[str, str], ...]
     data: Any = field(compare=False, repr=False, default_factory=dict)   # the parsed YAML, for fingerprints
     current_transformer: CurrentTransformerReq | None = None
+    flyback: FlybackReq | None = None
 
     def winding(self, name: str) -> Winding:
         for w in self.windings:
@@ -267,6 +271,7 @@ def parse_spec(data: Any, name: str) -> Spec:
     elif r.has("inductor"):
         raise r.error(f"'inductor' is not used by kind {kind}: only an inductor has an 'inductor' section", "inductor")
     ct = _current_transformer_section(r, core, op, kind, windings, wreaders)
+    fb = _flyback_section(r, core, op, kind, windings, wreaders)
 
     stack = core.quantity("stack", "length", None)
     from ..part_numbers import part_number_problem
@@ -280,7 +285,7 @@ def parse_spec(data: Any, name: str) -> Spec:
         status=r.choice("status", STATUSES, "draft"), customer=r.text("customer", "", max_len=200),
         kind=kind, core_id=core.text("id"), stack_m=stack,
         core_count=core.integer("count", 1, minimum=1, maximum=8), bobbin_id=core.text("bobbin", None),
-        windings=windings, build_order=order, inductor=inductor, current_transformer=ct,
+        windings=windings, build_order=order, inductor=inductor, current_transformer=ct, flyback=fb,
         notes=r.text("notes", "", max_len=5000), history=_history(r), data=data,
         frequency_hz=freq, waveform=waveform, duty=duty, ambient_c=ambient, cooling=cooling,
         insulation_class_c=cls, flux_limit_t=flux_limit_t, efficiency_guess=efficiency_guess,
@@ -445,6 +450,21 @@ def _current_transformer_section(r: Reader, core: Reader, op: Reader, kind: str,
 
     refuse_unused(op, UNUSED_OPERATING_KEYS)
     return parse_current_transformer(_section(r, "current_transformer"), windings, wreaders)
+
+
+def _flyback_section(r: Reader, core: Reader, op: Reader, kind: str, windings: tuple[Winding, ...],
+                     wreaders: list[Reader]) -> FlybackReq | None:
+    """The ``flyback`` section (only that kind has one; its gap is found from L_p, not given)."""
+    if kind != "flyback":
+        if r.has("flyback"):
+            raise r.error(f"'flyback' is not used by kind {kind}", "flyback")
+        return None
+    if core.has("gap"):
+        raise core.error("'gap' is not used by kind flyback: the gap is found from the primary inductance", "gap")
+    from .flyback_spec import UNUSED_OPERATING_KEYS, parse_flyback, refuse_unused
+
+    refuse_unused(op, UNUSED_OPERATING_KEYS)
+    return parse_flyback(_section(r, "flyback"), core, windings, wreaders)
 
 
 def _history(r: Reader) -> tuple[dict[str, str], ...]:

@@ -102,16 +102,24 @@ def ratings(design) -> list[Rating]:
         out += _ct_ratings(ct, freq)
     ocv = {lim.item: lim for lim in d.tests.open_circuit}
     for w in d.windings:
-        if ct is not None or w.role not in ("secondary", "auxiliary") or not w.voltage_v:
+        if ct is not None or d.flyback is not None or w.role not in ("secondary", "auxiliary") or not w.voltage_v:
             continue
         value = f"{_num(w.voltage_v, 'V')} at {_num(w.current_a, 'A')} (full load)"
         lim = ocv.get(w.name)
         if lim is not None and lim.low is not None and lim.high is not None:
             value += f"; {_num(lim.low, 'V')} to {_num(lim.high, 'V')} (no load)"
         out.append(Rating(f"Output {w.name}", value, "at rated input"))
-    if d.output_power_w and d.kind not in ("inductor", "current_transformer"):
+    if d.output_power_w and d.kind not in ("inductor", "current_transformer", "flyback"):
         out.append(Rating("Rated output", _num(d.output_power_w, "VA"), f"continuous, ambient up to {d.ambient_c:g} °C"))
-    if d.inductor is not None:
+    if d.flyback is not None:
+        fb = d.flyback
+        for fw in fb.windings:
+            if fw.output_voltage_v is not None:
+                out.append(Rating(f"Output {fw.name}", f"{_num(fw.output_voltage_v, 'V')} at {_num(fw.dc_current_a, 'A')} "
+                                                       f"DC", "rectified, from the turns ratio, full load"))
+        out.append(Rating("Primary inductance", f"{fmt_henry(fb.inductance_h)}", f"{freq} switching, "
+                                                                            f"{fb.mode.upper()} at the lowest input"))
+    if d.inductor is not None and d.flyback is None:
         ind = d.inductor
         out.append(Rating("Rated current", f"{_num(ind.current_dc_a, 'A')} DC",
                           f"{_num(ind.ripple_a, 'A')} peak-to-peak ripple at {freq}" if ind.ripple_a else ""))
