@@ -5,7 +5,8 @@ Why: for every class, dataclasses writes the source of each method it adds and c
 and the ~50 records a design loads (the catalogue, the spec, the design's state and result) spent a
 large share of `specgen design`'s start-up doing that. Here the comparison, hash and repr are three
 shared functions reading the class's field names, so only ``__init__`` and the frozen
-``__setattr__``/``__delattr__`` are still compiled per class.
+``__setattr__``/``__delattr__`` are still compiled per class. A class without a docstring gets its
+name as one (dataclasses would build one from ``inspect.signature``).
 
 They behave as the generated ones do (Python 3.10-3.12 dataclasses): equal only to an instance of the
 very same class with equal compared fields, in field order; the hash of those fields (fields with
@@ -52,6 +53,9 @@ def _repr(self: Any) -> str:
 
 def _finish(cls: T, slots: bool) -> T:
     own = set(cls.__dict__)
+    if not cls.__doc__:
+        # dataclasses would write one from inspect.signature (a seventh of what is left of its cost)
+        cls.__doc__ = cls.__name__
     made: Any = dataclasses.dataclass(frozen=True, eq=False, repr=False, slots=slots)(cls)
     fields = dataclasses.fields(made)
     made._record_compare = tuple(f.name for f in fields if f.compare)
