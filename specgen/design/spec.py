@@ -233,7 +233,7 @@ def parse_spec(data: Any, name: str) -> Spec:
     op = _section(r, "operating")
     waveform = cast(Waveform, op.choice("waveform", WAVEFORMS, "sine"))
     ins_class = op.raw("insulation_class", 130)
-    cls = _insulation_class(op, ins_class)
+    cls = insulation_class(op, ins_class)
     freq = op.quantity("frequency", "frequency")
     if freq > 50e6:
         raise op.error("frequency above 50 MHz is outside what this tool models", "frequency")
@@ -347,8 +347,8 @@ def _check_windings(r: Reader, kind: str, windings: tuple[Winding, ...], wreader
                 raise wr.error(f"only a winding of the same role and voltage can match {w.match}", "match")
 
 
-def _insulation_class(r: Reader, value: object, table: object = None) -> int:
-    """The IEC 60085 class limit [degC] of ``value`` (``table`` is ignored; kept for old callers)."""
+def insulation_class(r: Reader, value: object) -> int:
+    """The IEC 60085 class limit [degC] of ``value``, a mistake located at ``insulation_class`` under ``r``."""
     from ..standards.thermal_classes import parse_thermal_class
 
     try:
