@@ -157,7 +157,6 @@ class _Progress:
             sys.stderr.write("\n")
 
 
-# long: numbering in row order, hand-out and collection share one register and one worker pool
 def issue_batch(csv_path, *, out_dir=".", register_path=None, workers: int | None = None, catalog_dir=None,
                 by=None, progress: bool | None = None, echo=print) -> BatchResult:
     from ..api import run_design
