@@ -323,6 +323,7 @@ class Design:
                 return w
         raise KeyError(name)
 
+    # long: the JSON document key by key, in the order it is read
     def to_dict(self) -> dict[str, Any]:
         """The stable JSON (``specgen design --json``); shop units appear only in key names."""
         c = self.core
