@@ -130,7 +130,7 @@ def issue_batch(csv_path, *, out_dir=".", register_path=None, workers: int | Non
     from ..api import run_design
     from ..catalog.loader import load_catalog
     from ..design.spec import load_spec
-    from ..register import Register, default_register_path
+    from ..register import Register, locate_register
     from .workorder import check_number, preflight, render_work_order_html
 
     t0 = time.perf_counter()
@@ -172,10 +172,11 @@ def issue_batch(csv_path, *, out_dir=".", register_path=None, workers: int | Non
             continue
         ready.append((row, spec_path, spec, design, qty, due, lot))
 
-    reg_path = default_register_path(csv_path, register_path, shop_setting=cat.shop.register_path)
+    where = locate_register(csv_path, register_path, shop_setting=cat.shop.register_path,
+                            catalog_dir=cat.root) if ready else None
     bar = _Progress(len(ready), sys.stderr.isatty() if progress is None else progress)
     result = BatchResult(rows=rows, seconds=0.0, workers=workers)
-    with (Register.open(reg_path) if ready else contextlib.nullcontext()) as reg:
+    with (Register.open(where.target) if where is not None else contextlib.nullcontext()) as reg:
         # 2. numbers in row order (no row ready: the register is not even opened, so nothing is created)
         for row, _spec_path, _spec, design, qty, due, lot in ready:
             fmt = cat.shop.work_order_format.replace("{part}", design.part)
@@ -210,7 +211,7 @@ def issue_batch(csv_path, *, out_dir=".", register_path=None, workers: int | Non
                     except Exception as exc:  # the worker's failure is this row's failure, not the batch's
                         _void(reg, row, f"render failed: {str(exc).splitlines()[0] if str(exc) else type(exc).__name__}")
                     else:
-                        reg.attach_files(row.number, [str(pdf), str(htm)])
+                        reg.attach_files(row.number, [str(pdf.resolve()), str(htm.resolve())])
                         row.pdf = pdf
                         result.issued.append(row)
                     bar.step()
@@ -224,8 +225,8 @@ def issue_batch(csv_path, *, out_dir=".", register_path=None, workers: int | Non
             echo(f"FAILED  {row.error}")
         else:
             echo(f"issued  {row.number}  {row.spec} x {row.qty}  {row.pdf}")
-    echo(f"{len(result.issued)} issued, {len(result.failed)} failed, {result.seconds:.1f} s on {workers} worker(s); "
-         f"register {reg_path}")
+    echo(f"{len(result.issued)} issued, {len(result.failed)} failed, {result.seconds:.1f} s on {workers} worker(s)"
+         + (f"; register {where.shown} ({where.found_by})" if where is not None else ""))
     return result
 
 

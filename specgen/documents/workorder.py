@@ -536,9 +536,10 @@ class Issued:
     number: str
     pdf: Path
     html: Path
-    register: Path
+    register: str                 # the register's address (a file path or a postgresql:// URL, shown)
     warnings: list = field(default_factory=list)
     seconds: float = 0.0
+    register_found_by: str = ""   # how that register was found (see specgen.register.location)
 
 
 def preflight(spec_path, spec, design, cat, *, qty, due=None, lot=None, draft=False) -> tuple:
@@ -570,9 +571,11 @@ def preflight(spec_path, spec, design, cat, *, qty, due=None, lot=None, draft=Fa
 
 
 def issue_from_design(spec_path, spec, design, cat, *, qty, due=None, lot=None, out_dir=".", draft=False,
-                      register_path=None, number=None, by=None, warn=None) -> Issued:
-    """Issue one work order for an already computed design (the CLI and the demo come through here)."""
-    from ..register import Register, default_register_path
+                      register_path=None, number=None, by=None, warn=None, quote=None) -> Issued:
+    """Issue one work order for an already computed design (the CLI and the demo come through here).
+
+    ``quote``: the register number of the quote this order fulfils (checked: same part, not void)."""
+    from ..register import Register, locate_register
     from .render import write_pdf_and_html
 
     t0 = time.perf_counter()
@@ -586,11 +589,11 @@ def issue_from_design(spec_path, spec, design, cat, *, qty, due=None, lot=None, 
         out.mkdir(parents=True, exist_ok=True)
     except OSError as err:
         raise SpecError(f"cannot create the output folder: {err.strerror or err}", file=str(out)) from None
-    reg_path = default_register_path(spec_path, register_path, shop_setting=cat.shop.register_path)
+    where = locate_register(spec_path, register_path, shop_setting=cat.shop.register_path, catalog_dir=cat.root)
     fmt = cat.shop.work_order_format.replace("{part}", design.part)
-    with Register.open(reg_path) as reg:
+    with Register.open(where.target) as reg:
         with reg.issuing(design.part, design.revision, design.fingerprint or "-", qty, lot, due,
-                         issued_by=by, fmt=fmt, number=number) as num:
+                         issued_by=by, fmt=fmt, number=number, quote=quote, draft=draft) as num:
             check_number(num)
             order = reg.get(num)
             html = render_work_order_html(design, cat, number=num, qty=qty, due=due, lot=lot,
@@ -598,17 +601,17 @@ def issue_from_design(spec_path, spec, design, cat, *, qty, due=None, lot=None, 
             pdf_path, html_path = out / f"{num}.pdf", out / f"{num}.html"
             blocked: list = []
             write_pdf_and_html(html, pdf_path, html_path, blocked)
-        reg.attach_files(num, [str(pdf_path), str(html_path)])
+        reg.attach_files(num, [str(pdf_path.resolve()), str(html_path.resolve())])  # the same from any folder
         if draft:
             # a draft copy is traceable but never built for production: listed as void with the reason
             reg.void(num, "draft copy: not for production")
     for url in blocked:
         warn(f"the renderer was refused {url[:80]}")
-    return Issued(num, pdf_path, html_path, reg_path, warnings, time.perf_counter() - t0)
+    return Issued(num, pdf_path, html_path, where.shown, warnings, time.perf_counter() - t0, where.found_by)
 
 
 def issue_work_order(spec_path, *, qty, due=None, lot=None, out_dir=".", draft=False, register_path=None,
-                     number=None, by=None, catalog_dir=None, warn=None) -> Issued:
+                     number=None, by=None, catalog_dir=None, warn=None, quote=None) -> Issued:
     """``specgen workorder``: options checked first, then load, design, refuse or issue."""
     from ..api import run_design
     from ..catalog.loader import load_catalog
@@ -622,4 +625,73 @@ def issue_work_order(spec_path, *, qty, due=None, lot=None, out_dir=".", draft=F
     spec = load_spec(spec_path)
     design = run_design(spec, cat)
     return issue_from_design(spec_path, spec, design, cat, qty=qty, due=due, lot=lot, out_dir=out_dir,
+<<<<<<< HEAD
                              draft=draft, register_path=register_path, number=number, by=by, warn=warn)
+=======
+                             draft=draft, register_path=register_path, number=number, by=by, warn=warn,
+                             quote=quote)
+
+
+def demo_workorders(designs, out_dir, register_path=None, echo=print, *, cat=None) -> list:
+    """One work order per demo part (qty 50, lot DEMO-<part>) into ``out_dir``.
+
+    designs: part -> (spec_path, Spec, Design). The register is ``register_path`` or
+    ``specgen-register.sqlite`` in ``out_dir``. ``cat``: the catalogue the designs used (default: the
+    shipped one). Returns the Issued records; a part whose design fails is reported and skipped.
+    """
+    from ..catalog.loader import load_catalog
+
+    out = Path(out_dir)
+    out.mkdir(parents=True, exist_ok=True)
+    cat = cat or load_catalog(None)
+    reg = Path(register_path) if register_path else out / "specgen-register.sqlite"
+    done = []
+    notes = []
+    for part, (spec_path, spec, design) in sorted(designs.items()):
+        try:
+            issued = issue_from_design(spec_path, spec, design, cat, qty=50, lot=f"DEMO-{part}", out_dir=out,
+                                       register_path=reg, draft=spec.status != "released",
+                                       warn=lambda m, p=part: notes.append(f"{p}: {m}"))
+        except DesignFailed as err:
+            echo(f"{part:8} work order refused: {err}")
+            continue
+        done.append(issued)
+        echo(f"{part:8} work order {issued.number}  {issued.pdf}  ({issued.seconds:.1f} s)")
+    for n in notes:
+        echo(f"  note {n}")
+    return done
+
+
+def bench_one(spec_path, runs: int = 3) -> tuple[float, float]:
+    """For bench/run.py: (whole issue, WeasyPrint alone on the same HTML) in seconds, best of ``runs``.
+
+    Both in this process after a warm-up, so the one-off WeasyPrint import counts in neither. The whole
+    issue is what `specgen workorder` does after start-up: load, design, register number, drawings,
+    template, render and the atomic write of both files.
+    """
+    import tempfile
+
+    from .. import api
+    from ..catalog.loader import load_catalog
+    from ..design.spec import load_spec
+    from .render import html_to_pdf
+
+    cat = load_catalog(None)
+    whole, bare = [], []
+    with tempfile.TemporaryDirectory() as tmp:
+        for i in range(runs + 1):
+            t = time.perf_counter()
+            spec = load_spec(spec_path)
+            design = api.run_design(spec, cat)
+            issued = issue_from_design(spec_path, spec, design, cat, qty=10, out_dir=tmp,
+                                       register_path=Path(tmp) / "reg.sqlite", warn=lambda m: None)
+            t_whole = time.perf_counter() - t
+            html = issued.html.read_text(encoding="utf-8")
+            t = time.perf_counter()
+            html_to_pdf(html)
+            t_bare = time.perf_counter() - t
+            if i:                       # the first round is the warm-up
+                whole.append(t_whole)
+                bare.append(t_bare)
+    return min(whole), min(bare)
+>>>>>>> 3428d44 (Work orders, batches, quotes and the orders commands find the shop's one register; quotes take register numbers and are never overwritten; orders list shows quotes; set/--correct, stale, upgrade; files recorded with absolute paths)

@@ -57,6 +57,7 @@ class SqliteBackend:
         self._busy_timeout_s = busy_timeout_s
         self.read_only = read_only
         self._hook = hook
+        self._create = True
 
     # --- opening --------------------------------------------------------------------------------
 
@@ -72,7 +73,7 @@ class SqliteBackend:
         if not exists and (read_only or not create):
             raise SpecError("no register here (issue a work order first, or pass --register)", file=where)
         size = path.stat().st_size if exists else 0
-        if exists and size == 0 and read_only:
+        if exists and size == 0 and (read_only or not create):
             raise SpecError("no register here: the file is empty (issue a work order to start it)", file=where)
         if size > 0:
             try:
@@ -93,6 +94,7 @@ class SqliteBackend:
             raise SpecError(f"cannot open register: {err}", file=where) from None
         backend = cls(path, connection, retries=retries, busy_timeout_s=busy_timeout_s, read_only=read_only,
                       hook=hook)
+        backend._create = create
         try:
             backend._retrying(backend._prepare)
         except BaseException:
@@ -135,7 +137,7 @@ class SqliteBackend:
         try:
             state = self._inspect()
             empty = self._refuse_unless_ours(*state)
-            if empty and self.read_only:
+            if empty and (self.read_only or not self._create):
                 raise SpecError("no register here: the file is an empty database", file=self.where)
             if not empty:
                 check = db.execute("PRAGMA quick_check").fetchall()
