@@ -377,39 +377,48 @@ class Register:
 
     # --- unfinished numbers -------------------------------------------------------------------
 
-    def stale(self, *, uncheckable_after_s: float = STALE_UNCHECKABLE_S) -> list[StaleNumber]:
+    def stale(self, *, uncheckable_after_s: float = STALE_UNCHECKABLE_S,
+              voidable_only: bool = False) -> list[StaleNumber]:
         """Every ``issued`` work order and quote with no files, with its issuing process's state.
 
         ``voidable`` is true when that process is gone, or cannot be checked and the number is older
-        than ``uncheckable_after_s``."""
+        than ``uncheckable_after_s``. ``voidable_only`` leaves out, in the query, numbers that cannot
+        be voidable (taken on another machine within the bound): the sweep before each issue."""
         now = now_utc()
+        host = model.this_host()
+        cutoff = iso(now - _dt.timedelta(seconds=uncheckable_after_s))
+        narrow = " AND (issuer_host = ? OR issuer_host IS NULL OR issued_at <= ?)" if voidable_only else ""
+        params = (host, cutoff) if voidable_only else ()
 
         def work(db: Any) -> list[tuple]:
-            rows = []
+            found = []
             for kind, label in ((ORDERS, "order"), (QUOTES, "quote")):
                 for row in db.execute(
                         f"SELECT number, part, issued_at, issued_by, issuer_host, issuer_pid FROM {kind.table} t "
-                        f"WHERE state = 'issued' AND NOT EXISTS "
-                        f"(SELECT 1 FROM {kind.files} f WHERE f.number = t.number) ORDER BY issued_at, number"
-                ).fetchall():
-                    rows.append((label, *row))
-            return rows
+                        f"WHERE state = 'issued'{narrow} AND NOT EXISTS "
+                        f"(SELECT 1 FROM {kind.files} f WHERE f.number = t.number) ORDER BY issued_at, number",
+                        params).fetchall():
+                    found.append((label, *row))
+            return found
 
         out = []
-        for label, number, part, issued_at, issued_by, host, pid in self._backend.read(work):
+        processes: dict[tuple[str | None, int | None], str] = {}  # many numbers share one process
+        for label, number, part, issued_at, issued_by, issuer_host, pid in self._backend.read(work):
             age = (now - _dt.datetime.fromisoformat(issued_at)).total_seconds()
-            process = model.process_state(host, pid)
+            key = (issuer_host, pid)
+            if key not in processes:
+                processes[key] = model.process_state(issuer_host, pid)
+            process = processes[key]
             voidable = process == "gone" or (process == "unknown" and age > uncheckable_after_s)
-            out.append(StaleNumber(label, number, part, issued_at, issued_by, max(age, 0.0), process, voidable))
+            if voidable or not voidable_only:
+                out.append(StaleNumber(label, number, part, issued_at, issued_by, max(age, 0.0), process, voidable))
         return out
 
     def void_stale(self, *, uncheckable_after_s: float = STALE_UNCHECKABLE_S, by: str | None = None,
                    reason: str | None = None) -> list[str]:
         """Void every voidable stale number (see :meth:`stale`) with a reason; returns the numbers."""
         voided = []
-        for item in self.stale(uncheckable_after_s=uncheckable_after_s):
-            if not item.voidable:
-                continue
+        for item in self.stale(uncheckable_after_s=uncheckable_after_s, voidable_only=True):
             why = reason or (f"issue never finished: no files recorded and its process ({item.process}) "
                              f"took the number at {item.issued_at}")
             kind = ORDERS if item.record == "order" else QUOTES

@@ -101,7 +101,7 @@ def locate_register(start: str | os.PathLike | None = None, explicit: str | os.P
             return RegisterLocation(setting, f"register: in {base / 'shop.yaml'}")
         target = Path(os.path.expanduser(setting))
         if not target.is_absolute():
-            target = base.resolve() / target
+            target = Path(os.path.normpath(base.resolve() / target))
         return RegisterLocation(str(target), f"register: in {base / 'shop.yaml'}")
     found = shop_root(start, catalog_dir)
     if found is None:

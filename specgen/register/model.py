@@ -7,6 +7,7 @@ the state machine of work orders and quotes, and the checks on what a caller pas
 from __future__ import annotations
 
 import dataclasses
+import functools
 import datetime as _dt
 import getpass
 import os
@@ -149,6 +150,7 @@ def _read_first_line(path: str) -> str:
         return ""
 
 
+@functools.lru_cache(maxsize=1)
 def this_host() -> str:
     """Where a process id means something: the host name, this boot and this PID namespace.
 
