@@ -8,12 +8,12 @@ from __future__ import annotations
 import os
 from dataclasses import replace
 from pathlib import Path
+from typing import Any
 
 from .catalog.loader import load_catalog
 from .catalog.models import Catalog
 from .design.result import Design
 from .design.spec import Spec, load_spec, load_spec_text
-
 
 #: The shop figures the design reads: they change the part (turns, wire, build, test limits and
 #: voltages). Everything else in shop.yaml (name, currency, rates, margin, labor times, number
@@ -30,7 +30,7 @@ def _is_paperwork_key(key: object) -> bool:
     return name == "source" or name == "price" or name.startswith("price_")
 
 
-def _part_content(value):
+def _part_content(value: Any) -> Any:
     """``value`` without paperwork keys, at any depth (a material's loss figures carry their own ``source``)."""
     if isinstance(value, dict):
         return {k: _part_content(v) for k, v in value.items() if not _is_paperwork_key(k)}

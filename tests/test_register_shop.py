@@ -179,7 +179,8 @@ def test_stale_numbers_are_voided_only_when_their_process_is_gone_or_they_are_ol
         child.communicate(timeout=30)
     with Register.open(target, read_only=True) as reg:
         (gone,) = [o.number for o in reg.list() if o.number not in (mine, old_remote, new_remote)]
-    pretend_remote = f"UPDATE orders SET issuer_host = 'bench-pc/00000000/pid:[1]' WHERE number IN ('{old_remote}', '{new_remote}')"
+    pretend_remote = (f"UPDATE orders SET issuer_host = 'bench-pc/00000000/pid:[1]' "
+                      f"WHERE number IN ('{old_remote}', '{new_remote}')")
     if target.startswith("postgresql://"):
         import psycopg
 
@@ -237,8 +238,8 @@ def test_quotes_are_numbered_never_reused_and_cited_by_work_orders(target):
 
 
 def test_issuing_a_quote_twice_writes_two_files_and_never_overwrites(tmp_path):
-    from specgen.commands import quote as _  # noqa: F401  (the command module must import cleanly)
     from specgen.cli import app
+    from specgen.commands import quote as _  # noqa: F401  (the command module must import cleanly)
 
     reg = str(tmp_path / "shop-register.sqlite")
     spec = str(DEMO / "BH-5018.yaml")

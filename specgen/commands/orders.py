@@ -9,8 +9,9 @@ where-used, export, stale without --void) open it read-only: they never create, 
 from __future__ import annotations
 
 import json
-from collections.abc import Callable
+from collections.abc import Callable, Sequence
 from pathlib import Path
+from typing import Any
 
 import typer
 
@@ -38,15 +39,15 @@ _REGISTER_HELP = ("The register, a file or a postgresql:// URL (default: $SPECGE
 _CATALOG_HELP = "Catalogue folder whose shop.yaml may name the register (default: $SPECGEN_CATALOG, else the shipped one)."
 
 
-def _register_opt() -> str | None:
+def _register_opt() -> Any:
     return typer.Option(None, "--register", metavar="PATH|URL", help=_REGISTER_HELP)
 
 
-def _catalog_opt() -> Path | None:
+def _catalog_opt() -> Any:
     return typer.Option(None, "--catalog", envvar="SPECGEN_CATALOG", metavar="DIR", help=_CATALOG_HELP)
 
 
-def _verbose_opt() -> bool:
+def _verbose_opt() -> Any:
     return typer.Option(False, "--verbose", "-v", help="Say which register was used and how it was found.")
 
 
@@ -72,7 +73,7 @@ def _run(action: Callable[[], None]) -> None:
         raise typer.Exit(2) from None
 
 
-def _table(headers: tuple[str, ...], rows: list[tuple[str, ...]]) -> list[str]:
+def _table(headers: tuple[str, ...], rows: Sequence[tuple[str, ...]]) -> list[str]:
     widths = [max(len(h), *(len(r[i]) for r in rows)) if rows else len(h) for i, h in enumerate(headers)]
     lines = ["  ".join(h.ljust(w) for h, w in zip(headers, widths)).rstrip()]
     lines += ["  ".join(c.ljust(w) for c, w in zip(row, widths)).rstrip() for row in rows]

@@ -34,11 +34,13 @@ when, why, change or correction); nothing is edited in place, so the history is 
 
 from __future__ import annotations
 
+import builtins
 import contextlib
 import csv
 import datetime as _dt
 import io
 import os
+import time
 from collections.abc import Callable, Iterable, Iterator
 from pathlib import Path
 from typing import Any
@@ -70,6 +72,11 @@ from .postgres import is_url
 _hook: Callable[[str], None] | None = None
 
 
+#: An open register sweeps for unfinished numbers before its first allocation and then at most this
+#: often (a batch takes hundreds of numbers in a row; one sweep before them is enough).
+SWEEP_INTERVAL_S = 60.0
+
+
 def _call_hook(stage: str) -> None:
     if _hook is not None:
         _hook(stage)
@@ -99,12 +106,13 @@ class Register:
     def __init__(self, backend: Any, location: str):
         self._backend = backend
         self.location = location
+        self._last_sweep = float("-inf")  # monotonic time of the last sweep for unfinished numbers
         self.path = Path(location) if not is_url(location) else None
 
     # --- opening ------------------------------------------------------------------------------
 
     @classmethod
-    def open(cls, target: str | os.PathLike, *, create: bool = True, read_only: bool = False,
+    def open(cls, target: str | os.PathLike[str], *, create: bool = True, read_only: bool = False,
              retries: int = 12, busy_timeout_s: float = 2.0, lock_timeout_s: float = 60.0) -> Register:
         """Open the register at ``target``: an SQLite file path or a ``postgresql://`` URL.
 
@@ -197,7 +205,8 @@ class Register:
         issued_at = iso(moment)
         year = moment.astimezone(_dt.timezone.utc).year
         scope = kind.scope_prefix + (str(year) if "{year" in fmt else "all")
-        self.void_stale(by=by)
+        if time.monotonic() - self._last_sweep > SWEEP_INTERVAL_S:
+            self.void_stale(by=by)
 
         def work(db: Any) -> str:
             if values.get("quote"):
@@ -232,10 +241,10 @@ class Register:
             db.execute(f"INSERT INTO {kind.events} (number, event_no, at, from_state, to_state, why, by_whom, kind) "
                        "VALUES (?, 1, ?, NULL, 'issued', NULL, ?, 'change')", (chosen, issued_at, by))
             _call_hook("allocate:in-transaction")
-            return chosen
+            return str(chosen)
 
         try:
-            chosen = self._backend.write(work)
+            chosen = str(self._backend.write(work))
         except self._backend.IntegrityError:
             # only reachable for an ERP number inserted by another process at the same moment
             raise self._error(f"{kind.name} number {number} is already in the register; an ERP number "
@@ -285,14 +294,14 @@ class Register:
                 self._set_state(kind, number, "void", f"render failed: {detail}", by=None, correction=False)
             raise
 
-    def attach_files(self, number: str, paths: Iterable[str | os.PathLike]) -> None:
+    def attach_files(self, number: str, paths: Iterable[str | os.PathLike[str]]) -> None:
         """Record the output files of an order (kept in order; a path given twice is kept once)."""
         self._attach(ORDERS, number, paths)
 
-    def attach_quote_files(self, number: str, paths: Iterable[str | os.PathLike]) -> None:
+    def attach_quote_files(self, number: str, paths: Iterable[str | os.PathLike[str]]) -> None:
         self._attach(QUOTES, number, paths)
 
-    def _attach(self, kind: _Kind, number: str, paths: Iterable[str | os.PathLike]) -> None:
+    def _attach(self, kind: _Kind, number: str, paths: Iterable[str | os.PathLike[str]]) -> None:
         wanted = [os.fspath(p) for p in paths]
 
         def work(db: Any) -> None:
@@ -378,7 +387,7 @@ class Register:
     # --- unfinished numbers -------------------------------------------------------------------
 
     def stale(self, *, uncheckable_after_s: float = STALE_UNCHECKABLE_S,
-              voidable_only: bool = False) -> list[StaleNumber]:
+              voidable_only: bool = False) -> builtins.list[StaleNumber]:
         """Every ``issued`` work order and quote with no files, with its issuing process's state.
 
         ``voidable`` is true when that process is gone, or cannot be checked and the number is older
@@ -390,7 +399,7 @@ class Register:
         narrow = " AND (issuer_host = ? OR issuer_host IS NULL OR issued_at <= ?)" if voidable_only else ""
         params = (host, cutoff) if voidable_only else ()
 
-        def work(db: Any) -> list[tuple]:
+        def work(db: Any) -> builtins.list[tuple[Any, ...]]:
             found = []
             for kind, label in ((ORDERS, "order"), (QUOTES, "quote")):
                 for row in db.execute(
@@ -415,25 +424,53 @@ class Register:
         return out
 
     def void_stale(self, *, uncheckable_after_s: float = STALE_UNCHECKABLE_S, by: str | None = None,
-                   reason: str | None = None) -> list[str]:
-        """Void every voidable stale number (see :meth:`stale`) with a reason; returns the numbers."""
+                   reason: str | None = None) -> builtins.list[str]:
+        """Void every voidable stale number (see :meth:`stale`) with a reason; returns the numbers.
+
+        Checked per issuing process, not per number: one grouped query, one liveness check for each
+        process that left unfinished numbers, then the numbers of the processes found gone."""
+        self._last_sweep = time.monotonic()
+        now = now_utc()
+        cutoff = iso(now - _dt.timedelta(seconds=uncheckable_after_s))
+
+        def groups(db: Any) -> builtins.list[tuple[Any, ...]]:
+            found = []
+            for kind in (ORDERS, QUOTES):
+                found += [(kind, *row) for row in db.execute(
+                    f"SELECT issuer_host, issuer_pid, MIN(issued_at) FROM {kind.table} t WHERE state = 'issued' "
+                    f"AND NOT EXISTS (SELECT 1 FROM {kind.files} f WHERE f.number = t.number) "
+                    "GROUP BY issuer_host, issuer_pid").fetchall()]
+            return found
+
         voided = []
-        for item in self.stale(uncheckable_after_s=uncheckable_after_s, voidable_only=True):
-            why = reason or (f"issue never finished: no files recorded and its process ({item.process}) "
-                             f"took the number at {item.issued_at}")
-            kind = ORDERS if item.record == "order" else QUOTES
-            try:
-                self._void_if_still_unfinished(kind, item.number, why, by)
-            except SpecError:  # someone attached files or moved it meanwhile
+        for kind, host, pid, oldest in self._backend.read(groups):
+            process = model.process_state(host, pid)
+            if process == "running" or (process == "unknown" and oldest > cutoff):
                 continue
-            voided.append(item.number)
+            same = "issuer_host = ?" if host is not None else "issuer_host IS NULL"
+            who = "issuer_pid = ?" if pid is not None else "issuer_pid IS NULL"
+            params = tuple(v for v in (host, pid) if v is not None)
+            if process == "unknown":
+                who += " AND issued_at <= ?"
+                params += (cutoff,)
+            numbers = self._backend.read(lambda db, k=kind, s=same, w=who, p=params: db.execute(
+                f"SELECT number, issued_at FROM {k.table} t WHERE state = 'issued' AND {s} AND {w} AND NOT EXISTS "
+                f"(SELECT 1 FROM {k.files} f WHERE f.number = t.number) ORDER BY number", p).fetchall())
+            for number, issued_at in numbers:
+                why = reason or (f"issue never finished: no files recorded and its process ({process}) "
+                                 f"took the number at {issued_at}")
+                try:
+                    self._void_if_still_unfinished(kind, number, why, by)
+                except SpecError:  # someone attached files or moved it meanwhile
+                    continue
+                voided.append(number)
         return voided
 
     def _void_if_still_unfinished(self, kind: _Kind, number: str, why: str, by: str | None) -> None:
         self._set_state(kind, number, "void", why, by=by or "specgen", correction=False, unfinished_only=True)
 
     def void_unfinished(self, older_than_s: float = 3600.0,
-                        reason: str = "issue never finished (no output files recorded)") -> list[str]:
+                        reason: str = "issue never finished (no output files recorded)") -> builtins.list[str]:
         """Void ``issued`` work orders with no files older than ``older_than_s``, whatever their
         process (the planner's explicit clean-up; :meth:`void_stale` is the automatic one)."""
         cutoff = iso(now_utc() - _dt.timedelta(seconds=older_than_s))
@@ -451,14 +488,14 @@ class Register:
 
     # --- reading ------------------------------------------------------------------------------
 
-    def _records(self, kind: _Kind, where: str, params: tuple) -> list[Any]:
+    def _records(self, kind: _Kind, where: str, params: tuple[Any, ...]) -> builtins.list[Any]:
         extra = ", t.quote" if kind is ORDERS else ""
         columns = ", ".join(f"t.{c.strip()}" for c in kind.columns.split(","))
 
-        def work(db: Any) -> list[Any]:
+        def work(db: Any) -> tuple[builtins.list[Any], dict[str, builtins.list[str]]]:
             rows = db.execute(f"SELECT {columns}{extra} FROM {kind.table} t {where} ORDER BY t.issued_at, t.number",
                               params).fetchall()
-            files: dict[str, list[str]] = {}
+            files: dict[str, builtins.list[str]] = {}
             if rows:
                 for number, path in db.execute(
                         f"SELECT f.number, f.path FROM {kind.files} f JOIN {kind.table} t ON t.number = f.number "
@@ -467,29 +504,32 @@ class Register:
             return rows, files
 
         rows, files = self._backend.read(work)
-        out = []
+        out: builtins.list[Any] = []
         for row in rows:
+            found = tuple(files.get(row[0], ()))
             if kind is ORDERS:
-                out.append(Order(*row[:11], files=tuple(files.get(row[0], ())), quote=row[11]))
+                out.append(Order(*row[:11], files=found, quote=row[11]))  # type: ignore[misc]
             else:
-                out.append(QuoteEntry(*row, files=tuple(files.get(row[0], ()))))
+                out.append(QuoteEntry(*row, files=found))  # type: ignore[misc]  # the query's columns, in order
         return out
 
     def get(self, number: str) -> Order:
         found = self._records(ORDERS, "WHERE t.number = ?", (number,))
         if not found:
             raise self._error(f"no work order {number} in the register")
-        return found[0]
+        order: Order = found[0]
+        return order
 
     def get_quote(self, number: str) -> QuoteEntry:
         found = self._records(QUOTES, "WHERE t.number = ?", (number,))
         if not found:
             raise self._error(f"no quote {number} in the register")
-        return found[0]
+        entry: QuoteEntry = found[0]
+        return entry
 
     @staticmethod
     def _filters(kind: _Kind, part: str | None, revision: str | None, state: str | None,
-                 since: object) -> tuple[str, tuple]:
+                 since: object) -> tuple[str, tuple[Any, ...]]:
         clauses, params = [], []
         if part is not None:
             clauses.append("t.part = ?")
@@ -507,37 +547,37 @@ class Register:
         return ("WHERE " + " AND ".join(clauses)) if clauses else "", tuple(params)
 
     def list(self, part: str | None = None, revision: str | None = None, state: str | None = None,
-             since: object = None) -> list[Order]:
+             since: object = None) -> builtins.list[Order]:
         """Work orders matching every filter given, oldest first. ``since``: a date or ISO timestamp."""
         return self._records(ORDERS, *self._filters(ORDERS, part, revision, state, since))
 
     def list_quotes(self, part: str | None = None, revision: str | None = None, state: str | None = None,
-                    since: object = None) -> list[QuoteEntry]:
+                    since: object = None) -> builtins.list[QuoteEntry]:
         """Quotes matching every filter given, oldest first."""
         return self._records(QUOTES, *self._filters(QUOTES, part, revision, state, since))
 
-    def where_used(self, part: str, revision: str | None = None, *, include_void: bool = False) -> list[Order]:
+    def where_used(self, part: str, revision: str | None = None, *, include_void: bool = False) -> builtins.list[Order]:
         """Traceability: the work orders (and so the lots) built from ``part`` (one revision or
         all), oldest first. Void orders were never built and are left out unless asked for."""
         orders = self.list(part=part, revision=revision)
         return orders if include_void else [o for o in orders if o.state != "void"]
 
-    def history(self, number: str) -> list[Event]:
+    def history(self, number: str) -> builtins.list[Event]:
         """Every state change of a work order, oldest first."""
         return self._history(ORDERS, number)
 
-    def quote_history(self, number: str) -> list[Event]:
+    def quote_history(self, number: str) -> builtins.list[Event]:
         return self._history(QUOTES, number)
 
-    def _history(self, kind: _Kind, number: str) -> list[Event]:
-        def work(db: Any) -> list[tuple]:
+    def _history(self, kind: _Kind, number: str) -> builtins.list[Event]:
+        def work(db: Any) -> builtins.list[tuple[Any, ...]]:
             self._state_of(db, kind, number)  # a clear error for an unknown number
-            return db.execute(f"SELECT number, at, from_state, to_state, why, by_whom, kind FROM {kind.events} "
-                              "WHERE number = ? ORDER BY event_no", (number,)).fetchall()
+            return builtins.list(db.execute(f"SELECT number, at, from_state, to_state, why, by_whom, kind FROM "
+                                            f"{kind.events} WHERE number = ? ORDER BY event_no", (number,)).fetchall())
 
         return [Event(*row) for row in self._backend.read(work)]
 
-    def export_csv(self, path: str | os.PathLike) -> int:
+    def export_csv(self, path: str | os.PathLike[str]) -> int:
         """Write every work order to a CSV file (atomically); returns the number of rows."""
         from specgen.atomic import write_atomic
 

@@ -56,7 +56,7 @@ def _shipped_catalog() -> Path:
     return shipped_catalog_dir().resolve()
 
 
-def shop_root(start: str | os.PathLike | None = None, catalog_dir: str | os.PathLike | None = None
+def shop_root(start: str | os.PathLike[str] | None = None, catalog_dir: str | os.PathLike[str] | None = None
               ) -> tuple[Path, str] | None:
     """(the shop's root folder, how it was recognised), or None.
 
@@ -80,8 +80,8 @@ def shop_root(start: str | os.PathLike | None = None, catalog_dir: str | os.Path
     return None
 
 
-def locate_register(start: str | os.PathLike | None = None, explicit: str | os.PathLike | None = None, *,
-                    shop_setting: str | None = None, catalog_dir: str | os.PathLike | None = None,
+def locate_register(start: str | os.PathLike[str] | None = None, explicit: str | os.PathLike[str] | None = None, *,
+                    shop_setting: str | None = None, catalog_dir: str | os.PathLike[str] | None = None,
                     environ: Mapping[str, str] | None = None) -> RegisterLocation:
     """The register every command uses (module docstring for the order).
 
@@ -113,7 +113,7 @@ def locate_register(start: str | os.PathLike | None = None, explicit: str | os.P
     return RegisterLocation(str(root / REGISTER_FILENAME), f"default: {how}")
 
 
-def shop_register_setting(catalog_dir: str | os.PathLike | None = None) -> tuple[str | None, Path]:
+def shop_register_setting(catalog_dir: str | os.PathLike[str] | None = None) -> tuple[str | None, Path]:
     """(the ``register:`` value of the shop file, the catalogue folder) without loading the catalogue.
 
     For the ``orders`` commands, which need nothing else from it; a shop file they cannot read
@@ -132,8 +132,8 @@ def shop_register_setting(catalog_dir: str | os.PathLike | None = None) -> tuple
     return (str(value) if value not in (None, "") else None), folder
 
 
-def default_register_path(spec_path: str | os.PathLike | None = None, explicit: str | os.PathLike | None = None, *,
-                          shop_setting: str | None = None, catalog_dir: str | os.PathLike | None = None,
+def default_register_path(spec_path: str | os.PathLike[str] | None = None, explicit: str | os.PathLike[str] | None = None, *,
+                          shop_setting: str | None = None, catalog_dir: str | os.PathLike[str] | None = None,
                           environ: Mapping[str, str] | None = None) -> str:
     """The register's address alone (see :func:`locate_register`)."""
     return locate_register(spec_path, explicit, shop_setting=shop_setting, catalog_dir=catalog_dir,

@@ -7,8 +7,8 @@ the state machine of work orders and quotes, and the checks on what a caller pas
 from __future__ import annotations
 
 import dataclasses
-import functools
 import datetime as _dt
+import functools
 import getpass
 import os
 import socket

@@ -22,7 +22,7 @@ Committed: each statement sees what was committed before it began).
 from __future__ import annotations
 
 import re
-from collections.abc import Callable
+from collections.abc import Callable, Iterator
 from typing import Any, TypeVar
 
 from specgen.errors import SpecError
@@ -45,7 +45,7 @@ def shown(url: str) -> str:
     return re.sub(r"(://[^:/@?]*):[^@/?]*@", r"\1:***@", url)
 
 
-def _psycopg():
+def _psycopg() -> Any:
     try:
         import psycopg
     except ImportError:
@@ -175,17 +175,17 @@ class _Cursor:
     def __init__(self, cur: Any):
         self._cur = cur
 
-    def execute(self, sql: str, params: tuple = ()) -> _Cursor:
+    def execute(self, sql: str, params: tuple[Any, ...] = ()) -> _Cursor:
         self._cur.execute(sql.replace("%", "%%").replace("?", "%s"), params)
         return self
 
     def fetchone(self) -> Any:
         return self._cur.fetchone()
 
-    def fetchall(self) -> list:
-        return self._cur.fetchall()
+    def fetchall(self) -> list[Any]:
+        return list(self._cur.fetchall())
 
-    def __iter__(self):
+    def __iter__(self) -> Iterator[Any]:
         return iter(self._cur.fetchall())
 
 

@@ -21,7 +21,7 @@ import random
 import sqlite3
 import time
 import urllib.parse
-from collections.abc import Callable, Iterator
+from collections.abc import Callable
 from pathlib import Path
 from typing import Any, TypeVar
 
@@ -32,12 +32,13 @@ from .model import one_line
 
 T = TypeVar("T")
 _SQLITE_MAGIC = b"SQLite format 3\x00"
+_SQLITE_BUSY, _SQLITE_LOCKED = 5, 6  # SQLite result codes (sqlite.org/rescode.html)
 
 
 def _is_busy(err: sqlite3.Error) -> bool:
     code = getattr(err, "sqlite_errorcode", None)
     if code is not None:
-        return code & 0xFF in (sqlite3.SQLITE_BUSY, sqlite3.SQLITE_LOCKED)
+        return code & 0xFF in (_SQLITE_BUSY, _SQLITE_LOCKED)
     text = str(err).lower()
     return "locked" in text or "busy" in text
 

@@ -32,8 +32,8 @@ from pathlib import Path
 sys.path.insert(0, str(Path(__file__).resolve().parents[2]))
 
 from specgen import atomic
-from specgen.register import core as register
 from specgen.register import Register
+from specgen.register import core as register
 
 
 def stop(message: str) -> None:
