@@ -400,7 +400,7 @@ def test_pdf_holds_every_break_and_its_json_unit_price(tmp_path):
     assert "revision " + data["revision"] in text
     # the fingerprint identifies the design for the shop: it is on the internal copy, not the customer's
     assert data["fingerprint_short"] not in text
-    _pages, internal = _pdf_text(tmp_path / f"{data['part']}-rev{data['revision']}-quote-internal.pdf")
+    _pages, internal = _pdf_text(pdf.with_name(pdf.stem + "-internal.pdf"))
     assert data["fingerprint"] in internal.replace("\n", "")
 
 
@@ -441,7 +441,8 @@ def test_csv_rows_match_json(tmp_path):
 def test_table_mode_writes_pdf_into_out(tmp_path):
     r = runner.invoke(_app(), ["quote", str(DEMO / "BH-5018.yaml"), "--out", str(tmp_path / "q")])
     assert r.exit_code == 0, r.output
-    assert [p.name for p in (tmp_path / "q").glob("*.pdf")] == [f"Q-{dt.date.today().year}-00001-BH-5018-revA.pdf"]
+    stem = f"Q-{dt.date.today().year}-00001-BH-5018-revA"
+    assert sorted(p.name for p in (tmp_path / "q").glob("*.pdf")) == [f"{stem}-internal.pdf", f"{stem}.pdf"]
     assert "unit price" in r.stdout and "wrote" in r.stdout
 
 

@@ -248,7 +248,7 @@ def test_issuing_a_quote_twice_writes_two_files_and_never_overwrites(tmp_path):
     assert first.exit_code == 0 and second.exit_code == 0, first.output + second.output
     a, b = json.loads(first.stdout), json.loads(second.stdout)
     assert a["number"] != b["number"] and a["register"]["location"] == reg
-    assert len(list((tmp_path / "q").glob("*.pdf"))) == 2
+    assert len(list((tmp_path / "q").glob("Q-*-BH-5018-revA.pdf"))) == 2   # and an -internal copy of each
     # a file already standing under the next number (another register wrote it) is never overwritten
     taken = tmp_path / "q" / f"Q-{YEAR}-00003-BH-5018-revA.pdf"
     taken.write_bytes(b"%PDF- somebody else's quote")
