@@ -45,9 +45,9 @@ from collections.abc import Callable, Iterable, Iterator
 from pathlib import Path
 from typing import Any
 
+import specgen.register.model as model
 from specgen.errors import SpecError
 
-from . import model
 from .model import (
     DEFAULT_NUMBER_FORMAT,
     DEFAULT_QUOTE_FORMAT,

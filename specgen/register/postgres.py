@@ -25,9 +25,8 @@ import re
 from collections.abc import Callable, Iterator
 from typing import Any, TypeVar
 
+import specgen.register.schema as schema
 from specgen.errors import SpecError
-
-from . import schema
 
 T = TypeVar("T")
 

@@ -25,9 +25,9 @@ from collections.abc import Callable
 from pathlib import Path
 from typing import Any, TypeVar
 
+import specgen.register.schema as schema
 from specgen.errors import SpecError
 
-from . import schema
 from .model import one_line
 
 T = TypeVar("T")
