@@ -250,8 +250,6 @@ def write_quote(q: Quote, out_dir: str | Path, blocked: list | None = None, *, s
         temps[2].write_bytes(internal_pdf)
         temps[3].write_text(internal_html, encoding="utf-8")
     return order
-<<<<<<< HEAD
-=======
 
 
 @dataclass(frozen=True)
@@ -286,34 +284,3 @@ def issue_quote(q: Quote, out_dir: str | Path, where, *, by: str | None = None,
             paths = write_quote(issued, out, blocked, stem=stem)
         reg.attach_quote_files(number, [str(p.resolve()) for p in paths])
     return IssuedQuote(issued, tuple(paths), where.shown, where.found_by)
-
-
-def demo_quotes(designs: dict, cat, out_dir, echo=print, quantities=DEMO_QUANTITIES, *, register_path=None) -> dict:
-    """Quote every demo part at 100 / 500 / 2500 into ``out_dir``; failed designs are skipped (said so).
-
-    designs: part -> (spec_path, Spec, Design), as ``specgen.demo.run_demo`` builds it. With
-    ``register_path`` each quote takes a number from that register (files ``<number>-<part>-rev<R>``);
-    without, unregistered copies ``<part>-rev<R>-quote`` are written.
-    Returns part -> Quote for the parts quoted.
-    """
-    from ..register import RegisterLocation
-
-    out = Path(out_dir)
-    out.mkdir(parents=True, exist_ok=True)
-    quotes = {}
-    for part, (_path, spec, d) in designs.items():
-        if d.failed:
-            echo(f"{part:8} quote skipped: the design has failed checks ({', '.join(c.code for c in d.failed)})")
-            continue
-        q = build_quote(spec, d, cat, quantities)
-        if register_path is not None:
-            q = issue_quote(q, out, RegisterLocation(str(register_path), "the demo")).quote
-        else:
-            write_quote(q, out)
-        quotes[part] = q
-        prices = "  ".join(f"{b.quantity:,} pcs {money(b.unit_price)}" for b in q.breaks)
-        echo(f"{part:8} quote {q.reference} {q.currency} each: {prices}{'  (budgetary)' if q.budgetary else ''}")
-    if quotes:
-        echo(f"quotes written to {out}/ (the customer's copy, and an -internal copy with the build-up)")
-    return quotes
->>>>>>> 3428d44 (Work orders, batches, quotes and the orders commands find the shop's one register; quotes take register numbers and are never overwritten; orders list shows quotes; set/--correct, stale, upgrade; files recorded with absolute paths)
