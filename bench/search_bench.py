@@ -1,4 +1,4 @@
-"""Benchmark of the design search (issue 9), called by bench/run.py as ``bench()``.
+"""Benchmark of the design search, called by bench/run.py as ``bench()``.
 
 Two figures:
 - candidates per second of the vectorised stage over the full shipped catalogue: every core x stack x
@@ -23,14 +23,14 @@ PY = sys.executable
 from timing import wall as _wall  # noqa: E402
 
 
-def _rate(ctx, repeats: int = 3) -> tuple:
+def _rate(prep, repeats: int = 3) -> tuple:
     from specgen.search import run_vector_stage, total_rows
 
-    rows = total_rows(ctx)
+    rows = total_rows(prep)
     times = []
     for _ in range(repeats):
         t = time.perf_counter()
-        run_vector_stage(ctx)
+        run_vector_stage(prep)
         times.append(time.perf_counter() - t)
     return rows, statistics.median(times)
 
@@ -46,10 +46,8 @@ def bench() -> dict:
     full_rows = full_time = 0.0
     for path in demos:
         req = load_requirement(path)
-        ctx_full, *_ = prepare(req, cat, screen=False, prune=False)
-        rows, dt = _rate(ctx_full)
-        ctx_search, *_ = prepare(req, cat)
-        srows, sdt = _rate(ctx_search)
+        rows, dt = _rate(prepare(req, cat, screen=False, prune=False))
+        srows, sdt = _rate(prepare(req, cat))
         full_rows += rows
         full_time += dt
         wall = _wall([PY, "-m", "specgen.cli", "search", str(path)])

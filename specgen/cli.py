@@ -34,24 +34,26 @@ def main(argv: list | None = None) -> None:
     import click
     import typer
 
+    from .commands._common import pipe_safe_output
     from .commands.root import app
     from .errors import SpecError
 
-    try:
-        code = app(args=argv, standalone_mode=False)
-    except click.UsageError as err:
-        where = err.ctx.command_path if err.ctx is not None else "specgen"
-        typer.echo(f"{where}: {err.format_message()} (see `{where} --help`)", err=True)
-        sys.exit(2)
-    except click.Abort:
-        typer.echo("interrupted", err=True)
-        sys.exit(130)
-    except click.exceptions.Exit as ex:
-        sys.exit(ex.exit_code)
-    except SpecError as err:      # raised while parsing options, before a command's guard
-        typer.echo(str(err), err=True)
-        sys.exit(2)
-    sys.exit(code if isinstance(code, int) else 0)
+    with pipe_safe_output():     # a closed pipe never changes the exit code (see commands/_common.py)
+        try:
+            code = app(args=argv, standalone_mode=False)
+        except click.UsageError as err:
+            where = err.ctx.command_path if err.ctx is not None else "specgen"
+            typer.echo(f"{where}: {err.format_message()} (see `{where} --help`)", err=True)
+            sys.exit(2)
+        except click.Abort:
+            typer.echo("interrupted", err=True)
+            sys.exit(130)
+        except click.exceptions.Exit as ex:
+            sys.exit(ex.exit_code)
+        except SpecError as err:      # raised while parsing options, before a command's guard
+            typer.echo(str(err), err=True)
+            sys.exit(2)
+        sys.exit(code if isinstance(code, int) else 0)
 
 
 if __name__ == "__main__":

@@ -6,6 +6,8 @@ It carries the file, the line and the key path so the CLI can print exactly one 
 
 from __future__ import annotations
 
+import re
+
 
 class SpecError(Exception):
     """A mistake in something the user gave us (a spec, a catalogue, a command line)."""
@@ -31,8 +33,25 @@ class SpecError(Exception):
 
 def one_line(text: str, limit: int) -> str:
     """A message as exactly one line: control characters shown escaped, long text clipped."""
-    text = text.replace("\r", "\\r").replace("\n", "\\n").replace("\t", "\\t")
+    text = escape_controls(text)
     return text if len(text) <= limit else text[: limit - 1] + "…"
+
+
+# C0 and C1 controls, DEL, and the bidirectional overrides and isolates: a terminal acts on them
+_CONTROLS = re.compile("[\x00-\x1f\x7f-\x9f\u061c\u200e\u200f\u202a-\u202e\u2066-\u2069]")
+_NAMED = {"\n": "\\n", "\r": "\\r", "\t": "\\t"}
+
+
+def escape_controls(text: str, keep_newlines: bool = False) -> str:
+    """``text`` with every character a terminal would act on (ESC, BEL, NUL, CR, bidi overrides) shown
+    as an escape (``\\x1b``) instead; ``keep_newlines`` leaves line feeds and tabs as they are."""
+    def show(m: re.Match) -> str:
+        ch = m.group()
+        if keep_newlines and ch in "\n\t":
+            return ch
+        return _NAMED.get(ch) or (f"\\x{ord(ch):02x}" if ord(ch) < 0x100 else f"\\u{ord(ch):04x}")
+
+    return _CONTROLS.sub(show, text)
 
 
 class DesignFailed(Exception):

@@ -244,6 +244,8 @@ def looks_like_spec(path: Path) -> bool:
     """A YAML file with the top-level keys every spec has (``part:``, ``kind:``, ``core:``) and
     not a search requirement (``requirement:``); read as text, not parsed, so a broken spec is
     still found and reported."""
+    if not Path(path).is_file():        # a FIFO or a device named *.yaml would block or never end
+        return False
     try:
         with open(path, "rb") as fh:
             head = fh.read(1024 * 1024).decode("utf-8", "replace")

@@ -9,9 +9,11 @@ asked for (a typo such as ``voltge``) is reported instead of ignored.
 
 from __future__ import annotations
 
+import math
 import os
+import re
+import stat
 from collections.abc import Iterable
-from pathlib import Path
 from typing import TYPE_CHECKING, Any, overload
 
 import yaml
@@ -19,7 +21,10 @@ import yaml
 from . import units as _units
 from .errors import SpecError
 
-MAX_FILE_BYTES = 4 * 1024 * 1024
+#: The most a spec or a search requirement may hold (the demo parts are about 2 kB).
+SPEC_MAX_BYTES = 1024 * 1024
+#: The most any other file read here may hold (a catalogue file, an orders CSV).
+MAX_FILE_BYTES = 16 * 1024 * 1024
 
 
 class LMap(dict):
@@ -72,11 +77,20 @@ def _construct_mapping(loader: _Loader, node: yaml.MappingNode, deep: bool = Fal
                             file=loader.name, line=key_node.start_mark.line + 1, path=_key_path(path + [key]))
         path.append(key)
         try:
-            out[key] = loader.construct_object(value_node, deep=True)
+            out[key] = _construct_value(loader, value_node, path)
         finally:
             path.pop()
         out.key_lines[key] = key_node.start_mark.line + 1
     return out
+
+
+def _construct_value(loader: _Loader, node: yaml.Node, path: list) -> Any:
+    """A value; one PyYAML cannot build (a date '2026-13-45', an integer of 5,000 digits) is a located error."""
+    try:
+        return loader.construct_object(node, deep=True)
+    except (ValueError, OverflowError) as exc:
+        raise SpecError(f"cannot read this value ({str(exc).split(';')[0]}); quote it to keep it as text",
+                        file=loader.name, line=node.start_mark.line + 1, path=_key_path(path)) from None
 
 
 def _construct_sequence(loader: _Loader, node: yaml.SequenceNode, deep: bool = False) -> LList:
@@ -85,7 +99,7 @@ def _construct_sequence(loader: _Loader, node: yaml.SequenceNode, deep: bool = F
     for i, child in enumerate(node.value):
         path.append(i)
         try:
-            items.append(loader.construct_object(child, deep=True))
+            items.append(_construct_value(loader, child, path))
         finally:
             path.pop()
     out = LList(items)
@@ -94,30 +108,76 @@ def _construct_sequence(loader: _Loader, node: yaml.SequenceNode, deep: bool = F
     return out
 
 
+def _construct_int(loader: _Loader, node: yaml.ScalarNode) -> int:
+    """An integer; one of more than 30 digits is refused here (printing it would fail past 4,300 digits)."""
+    value = yaml.constructor.SafeConstructor.construct_yaml_int(loader, node)
+    if abs(value) >= 10 ** 30:
+        raise SpecError("a number of more than 30 digits", file=loader.name, line=node.start_mark.line + 1,
+                        path=_key_path(loader.__dict__.get("key_path", [])) or None)
+    return value
+
+
+_Loader.add_constructor("tag:yaml.org,2002:int", _construct_int)
 _Loader.add_constructor(yaml.resolver.BaseResolver.DEFAULT_MAPPING_TAG, _construct_mapping)
 _Loader.add_constructor(yaml.resolver.BaseResolver.DEFAULT_SEQUENCE_TAG, _construct_sequence)
 
 
-def read_text(path: str | os.PathLike, what: str = "file") -> str:
-    """Read a UTF-8 text file, turning every way it can be wrong into a SpecError."""
-    p = Path(path)
+def read_text(path: str | os.PathLike, what: str = "file", limit: int | None = None) -> str:
+    """Read a UTF-8 text file, turning every way it can be wrong into a SpecError.
+
+    Only a regular file is read (a device such as /dev/zero, a FIFO or a socket is refused before it
+    is opened, so nothing blocks or grows without bound), and at most ``limit`` bytes of it: by default
+    :data:`SPEC_MAX_BYTES` for a spec or a requirement, :data:`MAX_FILE_BYTES` for anything else.
+    """
     name = str(path)
-    if p.is_dir():
-        raise SpecError(f"is a folder, expected a {what}", file=name)
+    limit = limit if limit is not None else limit_for(what)
     try:
-        size = p.stat().st_size
+        st = os.stat(path)
     except FileNotFoundError:
         raise SpecError(f"no such {what}", file=name) from None
     except OSError as exc:
-        raise SpecError(f"cannot read: {exc.strerror}", file=name) from None
-    if size > MAX_FILE_BYTES:
-        raise SpecError(f"is {size / 1e6:.1f} MB; a spec or catalogue file is at most "
-                        f"{MAX_FILE_BYTES // (1024 * 1024)} MB", file=name)
+        raise SpecError(f"cannot read: {exc.strerror or exc}", file=name) from None
+    _check_regular(st, what, name, limit)
     try:
-        raw = p.read_bytes()
+        fd = os.open(path, os.O_RDONLY | getattr(os, "O_NONBLOCK", 0) | getattr(os, "O_NOCTTY", 0))
     except OSError as exc:
-        raise SpecError(f"cannot read: {exc.strerror}", file=name) from None
-    return decode_text(raw, name)
+        raise SpecError(f"cannot read: {exc.strerror or exc}", file=name) from None
+    try:
+        _check_regular(os.fstat(fd), what, name, limit)     # the same file, not one swapped in meanwhile
+        chunks, total = [], 0
+        while total <= limit:
+            chunk = os.read(fd, min(1 << 20, limit + 1 - total))
+            if not chunk:
+                break
+            chunks.append(chunk)
+            total += len(chunk)
+    except OSError as exc:
+        raise SpecError(f"cannot read: {exc.strerror or exc}", file=name) from None
+    finally:
+        os.close(fd)
+    if total > limit:                                           # it grew while being read
+        raise SpecError(_too_big(total, what, limit), file=name)
+    return decode_text(b"".join(chunks), name)
+
+
+def limit_for(what: str) -> int:
+    """The size limit of a file by what it is: a spec or requirement is small, a catalogue file larger."""
+    return SPEC_MAX_BYTES if ("spec" in what or "requirement" in what) else MAX_FILE_BYTES
+
+
+def _too_big(size: int, what: str, limit: int) -> str:
+    return f"is {size:,} bytes ({size / 1e6:.2f} MB); a {what} is at most {limit:,} bytes"
+
+
+def _check_regular(st: os.stat_result, what: str, name: str, limit: int) -> None:
+    if stat.S_ISDIR(st.st_mode):
+        raise SpecError(f"is a folder, expected a {what}", file=name)
+    if not stat.S_ISREG(st.st_mode):
+        kind = ("a pipe" if stat.S_ISFIFO(st.st_mode) else "a socket" if stat.S_ISSOCK(st.st_mode)
+                else "a device")
+        raise SpecError(f"is {kind}, not a regular file; expected a {what}", file=name)
+    if st.st_size > limit:
+        raise SpecError(_too_big(st.st_size, what, limit), file=name)
 
 
 def decode_text(raw: bytes, name: str) -> str:
@@ -154,6 +214,8 @@ def parse_yaml(text: str, name: str) -> Any:
         raise SpecError(f"YAML: {exc}", file=name) from None
     except RecursionError:
         raise SpecError("YAML nested too deeply", file=name) from None
+    except (ValueError, OverflowError) as exc:     # a top-level scalar PyYAML cannot build
+        raise SpecError(f"YAML: cannot read the value ({str(exc).split(';')[0]})", file=name) from None
     finally:
         loader.dispose()
 
@@ -167,6 +229,7 @@ def load_yaml(path: str | os.PathLike, what: str = "YAML file") -> Any:
 
 
 _MISSING = object()
+_PLAIN_NUMBER = re.compile(r"[+-]?(?:[0-9]+(?:\.[0-9]*)?|\.[0-9]+)(?:[eE][+-]?[0-9]+)?")
 
 
 class Reader:
@@ -202,6 +265,17 @@ class Reader:
         path = self._key_path(key) if key is not None else (self.path or None)
         return SpecError(message, file=self.file, line=self.line_of(key), path=path)
 
+    def _required(self, key: str) -> SpecError:
+        """'is required', naming a present key that looks like a misspelling of it."""
+        if key in self.data:
+            return self.error("is required (it is empty here)", key)
+        near = _nearest(str(key), [str(k) for k in self.data if isinstance(k, str)])
+        if near is None:
+            return self.error("is required", key)
+        line = (getattr(self.data, "key_lines", None) or {}).get(near, self.line)
+        return SpecError(f"is required; did you mean it by '{near}' (line {line})?", file=self.file, line=line,
+                         path=self._key_path(key))
+
     def has(self, key: str) -> bool:
         return key in self.data and self.data[key] is not None
 
@@ -209,7 +283,7 @@ class Reader:
         self._seen.add(key)
         if key not in self.data or self.data[key] is None:
             if default is _MISSING:
-                raise self.error("is required", key)
+                raise self._required(key)
             return default
         return self.data[key]
 
@@ -240,16 +314,18 @@ class Reader:
             return value
         if isinstance(value, bool) or not isinstance(value, (int, float)):
             if isinstance(value, str):
-                try:
-                    value = float(value) if not integer else int(value)
-                except ValueError:
-                    raise self.error(f"expected a plain number, got '{value}'", key) from None
+                # the same strict number as in a quantity: ASCII digits, no '1_000', no '٣', no 'nan'
+                if not _PLAIN_NUMBER.fullmatch(value.strip()):
+                    raise self.error(f"expected a plain number, got '{value}'", key)
+                value = float(value)
             else:
                 raise self.error(f"expected a plain number, got {_describe(value)}", key)
-        if integer and (not float(value).is_integer()):
-            raise self.error(f"expected a whole number, got {value}", key)
-        if value != value or value in (float("inf"), float("-inf")):
+        if isinstance(value, float) and not math.isfinite(value):
             raise self.error(f"expected a finite number, got {value}", key)
+        if integer and isinstance(value, float) and not value.is_integer():
+            raise self.error(f"expected a whole number, got {value}", key)
+        if abs(value) > 1e300:      # YAML reads 400 digits as an int; float() of it would overflow
+            raise self.error("is far too large a number", key)
         if minimum is not None and value < minimum:
             raise self.error(f"must be at least {minimum:g}, got {value}", key)
         if maximum is not None and value > maximum:
@@ -269,6 +345,12 @@ class Reader:
         text = str(value)
         if len(text) > max_len:
             raise self.error(f"is {len(text):,} characters long; at most {max_len:,} are allowed", key)
+        if not text.strip() and default != "":
+            # an empty id or name is never meant: 'sleeving: ""' would otherwise name no catalogue item
+            raise self.error("is empty; give a value or leave the key out" if default is None else "is empty", key)
+        bad = first_unsafe_char(text, multiline=max_len > 200)
+        if bad is not None:
+            raise self.error(f"holds the control character {bad}; plain text only", key)
         return text
 
     def choice(self, key: str, choices: Iterable[str], default: Any = _MISSING) -> str:
@@ -303,6 +385,30 @@ class Reader:
         if not out.is_finite() or out < 0:
             raise self.error(f"expected an amount of zero or more, got '{value}'", key)
         return out
+
+    def percent(self, key: str, default: Any = _MISSING, *, maximum: float = 1.0) -> float:
+        """A fraction written '3 %' (or a plain number 0.03), zero or more, at most ``maximum``."""
+        value = self.raw(key, default)
+        if value is default and default is not _MISSING:
+            return float(value)
+        text = str(value).strip()
+        try:
+            out = float(text[:-1]) / 100.0 if text.endswith("%") else float(text)
+        except ValueError:
+            raise self.error(f"expected a percentage like '3 %', got '{value}'", key) from None
+        if not (0.0 <= out <= maximum):
+            raise self.error(f"expected a percentage from 0 % to {maximum * 100:g} %, got '{value}'", key)
+        return out
+
+    def tolerance_pair(self, key: str, default: tuple[float, float] | None) -> tuple[float, float] | None:
+        """A tolerance band ``{minus: 0 %, plus: 3 %}`` as fractions (minus, plus), each 0..50 %."""
+        if not self.has(key):
+            self.raw(key, None)
+            return default
+        sub = self.mapping(key)
+        pair = (sub.percent("minus", maximum=0.5), sub.percent("plus", maximum=0.5))
+        sub.done()
+        return pair
 
     # typing only: without a default the answer is a Reader (a missing key raises); with a
     # default (None in practice) the default may come back
@@ -360,6 +466,22 @@ class Reader:
 
 def _describe(value: Any) -> str:
     return _units._describe(value)
+
+
+# C0 and C1 control characters, DEL, and the bidirectional overrides and isolates (they reorder what a
+# terminal or a PDF shows); line feed and tab are in the second set only
+_UNSAFE_ONE_LINE = re.compile("[\x00-\x1f\x7f-\x9f\u061c\u200e\u200f\u202a-\u202e\u2066-\u2069]")
+_UNSAFE_MULTILINE = re.compile("[\x00-\x08\x0b-\x1f\x7f-\x9f\u061c\u200e\u200f\u202a-\u202e\u2066-\u2069]")
+
+
+def first_unsafe_char(text: str, multiline: bool = False) -> str | None:
+    """The first character of ``text`` a terminal would act on rather than show (as ``U+001B``), or None.
+
+    C0 and C1 control characters (ESC, BEL, NUL, CR, ...), DEL and the bidirectional controls are
+    unsafe; a line feed and a tab are allowed only where the text may span lines (notes).
+    """
+    m = (_UNSAFE_MULTILINE if multiline else _UNSAFE_ONE_LINE).search(text)
+    return f"U+{ord(m.group()):04X}" if m else None
 
 
 def _nearest(word: str, candidates: list) -> str | None:

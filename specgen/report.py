@@ -88,7 +88,9 @@ def design_report(d: Design) -> str:
     if volts:
         out.append("")
         out.append("  " + "; ".join(f"{w.name}: {w.voltage_v:.3f} V at full load, {w.open_circuit_v:.3f} V open "
-                                    f"circuit" for w in volts))
+                                    f"circuit" + (f" ({w.voltage_asked_v:g} V asked, {w.voltage_error_pct:+.1f} %)"
+                                                  if w.voltage_asked_v and w.voltage_error_pct is not None else "")
+                                    for w in volts))
     out.append("")
     b = d.build
     out.append("Build and fill")

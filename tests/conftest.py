@@ -80,3 +80,18 @@ def pytest_terminal_summary(terminalreporter):
     if count:
         terminalreporter.write_line(f"{count} PostgreSQL register tests skipped: no PostgreSQL server on this "
                                     "machine (tools/sysdeps.sh installs it)")
+
+
+# Modules whose tests render PDFs, start processes, kill them or fuzz: all their tests are marked slow,
+# so `pytest -m "not slow"` runs the physics, engine, units, loading and catalogue tests alone in seconds.
+SLOW_MODULES = {
+    "test_batch", "test_kill", "test_fuzz", "test_workorder", "test_quote", "test_register", "test_diff",
+    "test_release", "test_revision", "test_safe_render", "test_drawings", "test_search", "test_new",
+    "test_bad_inputs", "test_cli_design", "test_csvsafe", "test_spec_errors",
+}
+
+
+def pytest_collection_modifyitems(config, items):
+    for item in items:
+        if item.module is not None and item.module.__name__.rsplit(".", 1)[-1] in SLOW_MODULES:
+            item.add_marker(pytest.mark.slow)

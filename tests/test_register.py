@@ -542,13 +542,19 @@ def test_write_atomic_replaces_and_keeps_mode(tmp_path):
     assert sorted(p.name for p in tmp_path.iterdir()) == ["fresh.bin", "latin.txt", "quote.csv"]
 
 
-def test_write_atomic_through_a_symlink_keeps_the_link(tmp_path):
-    real = tmp_path / "real.txt"
+def test_write_atomic_refuses_a_symlink_at_the_target(tmp_path):
+    """A link planted where an output goes (out/WO-1.pdf -> a file elsewhere) is never written through."""
+    real = tmp_path / "elsewhere.txt"
     real.write_text("old")
-    link = tmp_path / "link.txt"
+    out = tmp_path / "out"
+    out.mkdir()
+    link = out / "WO-1.pdf"
     link.symlink_to(real)
-    write_atomic(link, "new")
-    assert link.is_symlink() and real.read_text() == "new"
+    for write in (lambda: write_atomic(link, "new"), lambda: atomic_paths(link).__enter__()):
+        with pytest.raises(SpecError, match="cannot write: it is a symbolic link"):
+            write()
+    assert link.is_symlink() and real.read_text() == "old"
+    assert sorted(p.name for p in out.iterdir()) == ["WO-1.pdf"]
 
 
 def test_write_atomic_errors_are_one_line_spec_errors(tmp_path):

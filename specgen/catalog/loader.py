@@ -454,6 +454,7 @@ def _shop(r: Reader) -> Shop:
         flux_limit_fraction=r.number("flux_limit_fraction", 0.8, minimum=0.3, maximum=1.0),
         hotspot_margin_k=r.quantity("hotspot_margin", "temperature_difference", 10.0, allow_zero=True, maximum=100.0),
         work_order_format=fmt, hipot=hipot, insulation_resistance=insulation_resistance,
+        voltage_tolerance=r.tolerance_pair("voltage_tolerance", (0.0, 0.03)) or (0.0, 0.03),
         tolerances=tolerances, labor=labor,
         source=r.text("source"), register_path=r.text("register", None), documents=documents,
         raw={k: v for k, v in _plain(r.data).items() if k not in DOCUMENT_KEYS},

@@ -291,6 +291,8 @@ class Shop:
     labor: LaborFigures            # the quote's time model
     source: str
     register_path: str | None = None   # the work-order register, if the shop keeps one fixed place
+    # an output winding's voltage band at full load, fractions (minus, plus) of the voltage asked
+    voltage_tolerance: tuple[float, float] = (0.0, 0.03)
     raw: dict = field(default_factory=dict, compare=False, repr=False)
     # documents and commercial terms (see ShopDocuments): printed, never part of a design or its fingerprint
     documents: ShopDocuments = field(default_factory=lambda: ShopDocuments())

@@ -11,14 +11,13 @@ CsvOpt = typer.Option(False, "--csv", help="Print the result as CSV.")
 
 
 def print_csv(rows: list[dict]) -> None:
-    """Rows of one shape as CSV on stdout (a list value joined with '; ')."""
-    import csv
+    """Rows of one shape as CSV on stdout (a list value joined with '; '), cells safe for spreadsheets."""
     import sys
+
+    from ..csvsafe import csv_text
 
     if not rows:
         return
-    writer = csv.DictWriter(sys.stdout, fieldnames=list(rows[0].keys()), lineterminator="\n")
-    writer.writeheader()
-    for row in rows:
-        writer.writerow({k: "; ".join(map(str, v)) if isinstance(v, list) else ("" if v is None else v)
-                         for k, v in row.items()})
+    header = list(rows[0].keys())
+    sys.stdout.write(csv_text(header, [{k: "; ".join(map(str, v)) if isinstance(v, list) else v
+                                        for k, v in row.items()} for row in rows]))

@@ -13,8 +13,6 @@ and exit 2. Drafts are quoted as budgetary (see ``specgen.quote``).
 
 from __future__ import annotations
 
-import csv
-import io
 from pathlib import Path
 
 import typer
@@ -91,11 +89,9 @@ def register(app) -> None:
             data["register"] = register_info
             print_json(data)
         elif as_csv:
-            buf = io.StringIO()
-            writer = csv.DictWriter(buf, fieldnames=CSV_FIELDS, lineterminator="\n")
-            writer.writeheader()
-            writer.writerows(quote_csv_rows(q))
-            typer.echo(buf.getvalue(), nl=False)
+            from ..csvsafe import csv_text
+
+            typer.echo(csv_text(CSV_FIELDS, quote_csv_rows(q)), nl=False)
         else:
             typer.echo(quote_table(q))
         for path in written:

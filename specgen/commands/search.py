@@ -52,6 +52,8 @@ def register(app) -> None:
             raise SpecError(f"--pick must be at least 1, got {pick}", path="--pick")
         if pick != 1 and write is None:
             raise SpecError("--pick chooses the candidate --write writes; give --write PART.yaml", path="--pick")
+        if part is not None:
+            _check_part(part)
         if write is not None:
             _refuse_existing(write)
         req = lib.load_requirement(requirement)
@@ -81,6 +83,13 @@ def register(app) -> None:
             typer.echo(f"nothing written to {write}: no candidate passes every check", err=True)
         if not result.top:
             raise typer.Exit(1)
+
+
+def _check_part(part: str) -> None:
+    """--part names the draft's files: the one part-number rule, checked before the search runs."""
+    from ..part_numbers import check_part_number
+
+    check_part_number(part, path="--part")
 
 
 def _refuse_existing(path: Path) -> None:

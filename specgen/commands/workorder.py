@@ -77,6 +77,9 @@ def register(app) -> None:
             if result.failed:
                 raise typer.Exit(1)
             return
+        if workers is not None or progress is not None:     # never silently ignored
+            raise SpecError("--workers and --progress go with --batch ORDERS.csv only",
+                            path="--workers" if workers is not None else "--progress")
         if spec is None:
             raise SpecError("give the SPEC.yaml to issue (or --batch ORDERS.csv)", path="SPEC.yaml")
         if qty is None:

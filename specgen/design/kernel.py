@@ -20,6 +20,8 @@ Flux and turns
   gapped_turns_and_gap(target_h, i_peak_a, b_limit_t, ae, le, mu, window_m, fixed_turns)  (N, gap)
   powder_flux_t(turns, current_a, le_m, mu_initial, a, b, c)         B = mu0 mu_i f(H) H
   magnetizing_current_a(v, freq_hz, inductance_h, waveform, duty)    (rms, peak)
+  output_voltage_ok(asked_v, delivered_v, minus, plus)              delivered within asked -minus/+plus
+  secondary_turns_within(np_turns, v_primary, asked_v, drop_fraction, minus, plus)  Ns meeting it, 0: none
 Winding
   pitch_and_height(wire, strands) / wire_geometry(wire, strands) / stack_wires(geometries)   (scalar wire)
   mean_turn_length_m(former_kind, centre_m, ...)                     MLT at a layer's centre line
@@ -89,8 +91,9 @@ __all__ = [
     "FLUX_LIMIT_DESIGN", "FLUX_LIMIT_SHOP", "FLUX_LIMIT_SPEC", "FormerArrays", "Harmonics", "SectionWinding", "WireGeometry",
     "b_sat_t", "copper_loss_w", "core_loss_grouped_w_m3", "core_loss_w_m3", "current_density_a_m2",
     "current_harmonics", "dc_resistance_ohm", "first_guess_thermal", "flux_limit_source", "flux_limit_t", "gap_for_inductance_m",
-    "gapped_turns_and_gap", "hot_spot_c", "layer_ac_factor", "layer_capacity", "layer_centre_m", "layer_delta", "layer_porosity",
-    "magnetizing_current_a", "mean_turn_length_m", "pitch_and_height", "powder_flux_t", "round_gap_down_m",
+    "gapped_turns_and_gap", "hot_spot_c", "layer_ac_factor", "layer_capacity", "layer_centre_m", "layer_delta",
+    "layer_porosity", "magnetizing_current_a", "mean_turn_length_m", "output_voltage_ok", "secondary_turns_within",
+    "pitch_and_height", "powder_flux_t", "round_gap_down_m",
     "section_ac_factor", "skin_depth_m", "stack_wires", "temperature_rise_k", "thermal_state",
     "turns_for_inductance", "turns_for_peak_flux", "turns_for_voltage", "unipolar_swing_t", "whole_turns",
     "wind_section", "wire_geometry",
@@ -704,6 +707,33 @@ def copper_loss_w(dcr_ohm: ArrayLike, fr: ArrayLike, i_ac_rms_a: ArrayLike, i_dc
     """Copper loss I_dc^2 R + I_ac^2 R Fr: the DC part sees the DC resistance, the AC part the AC factor."""
     r = _f(dcr_ohm)
     return _out(_f(i_dc_a) ** 2 * r + _f(i_ac_rms_a) ** 2 * r * _f(fr))
+
+
+# ================================================================================================ output voltage
+
+def output_voltage_ok(asked_v: ArrayLike, delivered_v: ArrayLike, minus: ArrayLike, plus: ArrayLike) -> Any:
+    """Whether a winding delivers its voltage within tolerance: asked (1 - minus) <= delivered <= asked (1 + plus)
+    (a part-per-billion slack for rounding). A bool for scalar input, else a bool array."""
+    v, d = _f(asked_v), _f(delivered_v)
+    ok = (d >= v * (1.0 - _f(minus)) * (1.0 - 1e-9)) & (d <= v * (1.0 + _f(plus)) * (1.0 + 1e-9))
+    return bool(ok) if np.ndim(ok) == 0 else ok
+
+
+def secondary_turns_within(np_turns: ArrayLike, v_primary: ArrayLike, asked_v: ArrayLike, drop_fraction: ArrayLike,
+                           minus: ArrayLike, plus: ArrayLike) -> Arr:
+    """The fewest secondary turns whose full-load voltage meets asked -minus/+plus with ``np_turns`` primary
+    turns, else 0 (no whole turn count does: the volts per turn are too coarse for the band).
+
+    Full load delivers N_s (V_p / N_p)(1 - d), d the fraction of the open-circuit voltage the load drops
+    (resistance and leakage, from an evaluated build), so N_s lies in
+    [asked (1 - minus) / e, asked (1 + plus) / e] with e = (V_p / N_p)(1 - d). The engine and the search both
+    screen primary-turn candidates with it; the engine then confirms each pair on the built window."""
+    e = _f(v_primary) / np.maximum(_f(np_turns), 1.0) * (1.0 - np.clip(_f(drop_fraction), 0.0, 0.9))
+    v = _f(asked_v)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        lo = np.maximum(1.0, np.ceil(v * (1.0 - _f(minus)) / e - 1e-9))
+        hi = np.floor(v * (1.0 + _f(plus)) / e + 1e-9)
+    return _out(np.where((lo <= hi) & np.isfinite(lo) & (e > 0), lo, 0.0))
 
 
 # ================================================================================================ loss and temperature

@@ -93,6 +93,7 @@ def _sections(spec: Spec, built: BuiltWindow, ev: Evaluation[Any], w: Winding) -
 def _winding_result(spec: Spec, st: WindingState, ev: Evaluation[Any], temp: ThermalState, length: float,
                     summary: ElectricalSummary, ref: Winding) -> WindingResult:
     w, wire = st.spec, st.wire
+    asked, tol, err = _output_voltage(w, summary)
     area = wire.copper_area_m2 * st.strands
     dcr_hot = float(K.dc_resistance_ohm(area, length, temp.hot_c, wire.conductor))
     sections = _sections(spec, ev.built, ev, w)
@@ -118,7 +119,18 @@ def _winding_result(spec: Spec, st: WindingState, ev: Evaluation[Any], temp: The
         # dot convention: terminals of the same instantaneous polarity. Wound the same way as the
         # reference winding, the start carries the dot; wound the other way, the finish does.
         dot_pin=(w.start if w.direction == ref.direction or not w.finish else w.finish) or "",
+        voltage_asked_v=asked, voltage_tolerance=tol, voltage_error_pct=err,
     )
+
+
+def _output_voltage(w: Winding, summary: ElectricalSummary
+                    ) -> tuple[float | None, tuple[float, float] | None, float | None]:
+    """An output winding's voltage asked, its tolerance and the full-load voltage's error against it [%]."""
+    tol = summary.voltage_tolerance.get(w.name)
+    got = summary.voltages.get(w.name)
+    if tol is None or not w.voltage_v or got is None:
+        return None, None, None
+    return w.voltage_v, tol, (got - w.voltage_v) / w.voltage_v * 100.0
 
 
 def _build_result(parts: Parts, built: BuiltWindow, ku_num: float, bulge: float) -> Build:

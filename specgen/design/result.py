@@ -82,6 +82,11 @@ class WindingResult:
     lead_sleeving: str | None
     thermal_class_c: int
     dot_pin: str                     # the terminal marked with the polarity dot
+    # an output winding (secondary, auxiliary): the voltage asked, its tolerance (minus, plus fractions) and the
+    # error of the full-load voltage (``voltage_v``) against it; None for other windings
+    voltage_asked_v: float | None = None
+    voltage_tolerance: tuple[float, float] | None = None
+    voltage_error_pct: float | None = None
 
 
 @dataclass(frozen=True)
@@ -288,6 +293,11 @@ class Design:
                 "current_density_a_mm2": w.current_density_a_m2 / 1e6, "fr": w.fr,
                 "copper_loss_w": w.copper_loss_w, "start": w.start, "finish": w.finish,
                 "direction": w.direction, "dot_pin": w.dot_pin, "margin_mm": w.margin_m * 1e3,
+                "voltage_asked_v": w.voltage_asked_v, "voltage_full_load_v": w.voltage_v if w.voltage_asked_v else None,
+                "voltage_open_circuit_v": w.open_circuit_v if w.voltage_asked_v else None,
+                "voltage_error_pct": w.voltage_error_pct,
+                "voltage_tolerance_pct": ([-w.voltage_tolerance[0] * 100.0 or 0.0, w.voltage_tolerance[1] * 100.0]
+                                          if w.voltage_tolerance else None),
                 "sections": [{
                     "index": s.index, "order": s.order, "turns": s.turns, "turns_per_layer": s.turns_per_layer,
                     "layers": [{"turns": l.turns, "mlt_mm": l.mlt_m * 1e3,

@@ -24,7 +24,7 @@ from dataclasses import dataclass, field
 from typing import Any, cast
 
 from ..errors import SpecError
-from ..loading import Reader, load_yaml, parse_yaml
+from ..loading import Reader, first_unsafe_char, load_yaml, parse_yaml
 from .limits import MAX_TURNS
 from .vocab import Cooling, Waveform
 
@@ -33,6 +33,7 @@ WAVEFORMS = ("sine", "square", "unipolar")
 STATUSES = ("draft", "released", "obsolete")
 COOLING = ("natural", "forced", "potted")
 RATINGS = ("functional", "basic", "supplementary", "double", "reinforced")
+_VOLTAGE_SPAN = 4.0      # voltage_max / nominal and nominal / voltage_min at most this
 
 
 @dataclass(frozen=True)
@@ -71,6 +72,7 @@ class Winding:
     margin_m: float | None           # creepage margin each side (None: the insulation default)
     lead_sleeving: str | None
     match: str | None = None         # wind the same turns as this winding (series/parallel pairs)
+    voltage_tolerance: tuple[float, float] | None = None   # (minus, plus) fractions; None: the shop's
     line: int | None = None
     path: str = ""
 
@@ -137,7 +139,10 @@ def _pin(r: Reader, key: str, default: str | None = None) -> str | None:
         return None
     if isinstance(value, (dict, list, bool)):
         raise r.error("expected a pin name like '1' or 'A3'", key)
-    return str(value).strip()
+    text = str(value).strip()
+    if not text or first_unsafe_char(text) is not None:     # printed on the work order and the terminal
+        raise r.error(f"expected a pin name like '1' or 'A3', got {value!r}", key)
+    return text
 
 
 def _tape_use(r: Reader, key: str) -> TapeUse | None:
@@ -171,7 +176,8 @@ def _winding(r: Reader, kind: str) -> Winding:
         start=_pin(r, "start"), finish=_pin(r, "finish"),
         direction=r.choice("direction", ("cw", "ccw"), "cw"), sections=sections, section_pins=spins,
         turns=turns, margin_m=r.quantity("margin", "length", None, allow_zero=True),
-        lead_sleeving=r.text("lead_sleeving", None), match=r.text("match", None), line=r.line, path=r.path,
+        lead_sleeving=r.text("lead_sleeving", None), match=r.text("match", None),
+        voltage_tolerance=r.tolerance_pair("voltage_tolerance", None), line=r.line, path=r.path,
     )
     r.done()
     if w.start == w.finish:
@@ -182,6 +188,14 @@ def _winding(r: Reader, kind: str) -> Winding:
         raise r.error("voltage_max is below the nominal voltage", "voltage_max")
     if w.voltage_v and w.voltage_min_v and w.voltage_min_v > w.voltage_v:
         raise r.error("voltage_min is above the nominal voltage", "voltage_min")
+    # a range wider than 4:1 either side of nominal (a universal 85..265 V input is about 3:1) is almost
+    # always a wrong unit ('215 kV' for '215 V'); the engine would saturate the core by orders of magnitude
+    if w.voltage_v and w.voltage_max_v and w.voltage_max_v > _VOLTAGE_SPAN * w.voltage_v:
+        raise r.error(f"voltage_max is more than {_VOLTAGE_SPAN:g} times the nominal voltage; is its unit right?",
+                      "voltage_max")
+    if w.voltage_v and w.voltage_min_v and w.voltage_min_v * _VOLTAGE_SPAN < w.voltage_v:
+        raise r.error(f"voltage_min is less than 1/{_VOLTAGE_SPAN:g} of the nominal voltage; is its unit right?",
+                      "voltage_min")
     return w
 
 
@@ -289,12 +303,18 @@ def _check_windings(r: Reader, kind: str, windings: tuple[Winding, ...], wreader
                     raise wr.error(f"a {w.role} winding needs its voltage at full load", "voltage")
                 if w.current_a is None and w.va is None:
                     raise wr.error(f"a {w.role} winding needs its current (or va)", "current")
+            if w.voltage_tolerance is not None and w.role not in ("secondary", "auxiliary"):
+                raise wr.error(f"a {w.role} winding has no output voltage to hold: voltage_tolerance is for "
+                               f"secondary and auxiliary windings", "voltage_tolerance")
             if w.role == "main":
                 raise wr.error("role 'main' is for inductors; a transformer's windings are primary, "
                                "secondary, auxiliary or shield", "role")
     else:
         if len(windings) != 1:
             raise r.error("an inductor here has exactly one winding (split it with sections: N)", "windings")
+        if windings[0].voltage_tolerance is not None:
+            raise wreaders[0].error("an inductor has no output voltage to hold: voltage_tolerance is for a "
+                                    "transformer's secondary and auxiliary windings", "voltage_tolerance")
 
     for w, wr in zip(windings, wreaders):
         if w.match is not None:
@@ -398,11 +418,18 @@ def _history(r: Reader) -> tuple[dict[str, str], ...]:
     out = []
     for h in r.items("history", []):
         out.append({
-            "revision": h.text("revision", ""), "date": str(h.raw("date", "")), "by": h.text("by", ""),
+            "revision": h.text("revision", ""), "date": _history_date(h), "by": h.text("by", ""),
             "note": h.text("note", ""), "fingerprint": h.text("fingerprint", ""),
         })
         h.done(("parts",))     # per-key fingerprints written by `specgen release`
     return tuple(out)
+
+
+def _history_date(h: Reader) -> str:
+    value = h.raw("date", "")
+    if isinstance(value, (dict, list, bool)) or first_unsafe_char(str(value)) is not None:
+        raise h.error("expected a date like 2026-10-14", "date")
+    return str(value)
 
 
 def load_spec(path: str | os.PathLike[str]) -> Spec:

@@ -184,6 +184,7 @@ class ElectricalSummary:
     leakage_inductance_h: float | None = None
     voltages: dict[str, float] = field(default_factory=dict)        # loaded (primary: nominal)
     open_circuit: dict[str, float] = field(default_factory=dict)    # at nominal primary, no load
+    voltage_tolerance: dict[str, tuple[float, float]] = field(default_factory=dict)  # output -> (minus, plus)
     efficiency: float | None = None
     regulation_pct: float | None = None
     output_power_w: float | None = None

@@ -13,6 +13,13 @@ path is relative to the CSV file's folder. The run:
 5. prints a summary. Exit 0 when every row was issued, 1 when any row failed.
 
 Workers are recycled after ``TASKS_PER_WORKER`` renders so a long batch does not grow.
+
+A worker dies with the batch: on Linux each asks the kernel for SIGKILL when its parent ends
+(``prctl(PR_SET_PDEATHSIG)``), and everywhere a watchdog thread in the worker exits when its parent is
+gone, so killing the batch never leaves renders running. A worker that dies (out of memory, SIGKILL)
+breaks the pool for every job in flight; those jobs are run again, one at a time, in a fresh worker, so
+only the row whose render kills its worker again is voided, with the reason. The summary is printed
+however the render phase ends.
 """
 
 from __future__ import annotations
@@ -22,9 +29,12 @@ import csv
 import io
 import os
 import resource
+import signal
 import sys
+import threading
 import time
 from concurrent.futures import FIRST_COMPLETED, ProcessPoolExecutor, wait
+from concurrent.futures.process import BrokenProcessPool
 from dataclasses import dataclass, field
 from pathlib import Path
 
@@ -78,8 +88,10 @@ def read_orders(csv_path: Path) -> list:
     if unknown:
         raise SpecError(f"unknown column '{unknown[0]}' (columns: {', '.join(COLUMNS)})", file=str(csv_path), line=1)
     rows = []
+    end_of_previous = reader.line_num
     for values in reader:
-        line = reader.line_num
+        # a quoted cell may span lines: the row is reported at the line it starts on
+        line, end_of_previous = end_of_previous + 1, reader.line_num
         if not any(v.strip() for v in values):
             continue
         cell = dict(zip(names, (v.strip() for v in values)))
@@ -93,6 +105,26 @@ def read_orders(csv_path: Path) -> list:
     if not rows:
         raise SpecError("holds no orders below its header", file=str(csv_path))
     return rows
+
+
+def _die_with_parent(parent_pid: int) -> None:
+    """Worker initializer: this process ends when the batch process that started it ends."""
+    if sys.platform.startswith("linux"):
+        with contextlib.suppress(Exception):
+            import ctypes
+
+            pr_set_pdeathsig = 1
+            ctypes.CDLL(None, use_errno=True).prctl(pr_set_pdeathsig, signal.SIGKILL, 0, 0, 0)
+    if os.getppid() != parent_pid:        # the parent died before the request above was in place
+        os._exit(1)
+
+    def watch() -> None:                  # any platform; also covers a parent that is not the batch itself
+        while True:
+            time.sleep(0.5)
+            if os.getppid() != parent_pid:
+                os._exit(1)
+
+    threading.Thread(target=watch, name="parent-watchdog", daemon=True).start()
 
 
 def _render_job(html: str, pdf_path: str, html_path: str) -> list:
@@ -138,11 +170,9 @@ def issue_batch(csv_path, *, out_dir=".", register_path=None, workers: int | Non
     rows = read_orders(csv_path)
     cat = load_catalog(catalog_dir)
     out = Path(out_dir)
-    try:
-        out.mkdir(parents=True, exist_ok=True)
-    except OSError as err:
-        raise SpecError(f"cannot create the output folder: {err.strerror or err}", file=str(out)) from None
-    if not os.access(out, os.W_OK):
+    if out.exists() and not out.is_dir():
+        raise SpecError("is a file, expected the folder for the work orders", file=str(out), path="--out")
+    if out.is_dir() and not os.access(out, os.W_OK):
         raise SpecError("cannot write into this folder", file=str(out))
     workers = max(1, min(workers or os.cpu_count() or 1, 32))
 
@@ -176,58 +206,128 @@ def issue_batch(csv_path, *, out_dir=".", register_path=None, workers: int | Non
                             catalog_dir=cat.root) if ready else None
     bar = _Progress(len(ready), sys.stderr.isatty() if progress is None else progress)
     result = BatchResult(rows=rows, seconds=0.0, workers=workers)
-    with (Register.open(where.target) if where is not None else contextlib.nullcontext()) as reg:
-        # 2. numbers in row order (no row ready: the register is not even opened, so nothing is created)
-        for row, _spec_path, _spec, design, qty, due, lot in ready:
-            fmt = cat.shop.work_order_format.replace("{part}", design.part)
-            row.number = reg.allocate(design.part, design.revision, design.fingerprint or "-", qty, lot, due,
-                                      issued_by=by, fmt=fmt)
-            check_number(row.number)
-        # 3. render in workers, a bounded number of jobs in flight
-        pending: dict = {}
-        queue = list(ready)
-        with ProcessPoolExecutor(max_workers=workers, max_tasks_per_child=TASKS_PER_WORKER) as pool:
-            while queue or pending:
-                while queue and len(pending) < 2 * workers:
-                    row, spec_path, spec, design, qty, due, lot = queue.pop(0)
-                    order = reg.get(row.number)
-                    try:
-                        html = render_work_order_html(design, cat, number=row.number, qty=qty, due=due,
-                                                      lot=lot, issued=order.issued_at[:10],
-                                                      issued_by=order.issued_by, draft=False)
-                    except Exception as exc:   # a template fault: this row only
-                        _void(reg, row, f"render failed: {exc}")
-                        bar.step()
-                        continue
-                    pdf, htm = out / f"{row.number}.pdf", out / f"{row.number}.html"
-                    pending[pool.submit(_render_job, html, str(pdf), str(htm))] = (row, pdf, htm)
+    try:
+        if ready:
+            # only now, with something to write: a batch refused as a whole leaves no empty folder
+            try:
+                out.mkdir(parents=True, exist_ok=True)
+            except OSError as err:
+                raise SpecError(f"cannot create the output folder: {err.strerror or err}", file=str(out)) from None
+            assert where is not None
+            with Register.open(where.target) as reg:
+                # 2. numbers in row order (no row ready: the register is not even opened, so nothing is created)
+                for row, _spec_path, _spec, design, qty, due, lot in ready:
+                    fmt = cat.shop.work_order_format.replace("{part}", design.part)
+                    row.number = reg.allocate(design.part, design.revision, design.fingerprint or "-", qty, lot,
+                                              due, issued_by=by, fmt=fmt)
+                    check_number(row.number)
+                try:
+                    _render_all(ready, reg, cat, out, workers, bar, result, render_work_order_html)
+                finally:
+                    # whatever stopped the render phase, no row stays 'issued' without its files
+                    for row, *_ in ready:
+                        if row.number and row.pdf is None and row.error is None:
+                            with contextlib.suppress(Exception):
+                                _void(reg, row, "the batch stopped before this row was rendered")
+    finally:
+        bar.close()
+        result.seconds = time.perf_counter() - t0
+        result.peak_rss_main_mb = resource.getrusage(resource.RUSAGE_SELF).ru_maxrss / 1024.0
+        result.peak_rss_worker_mb = resource.getrusage(resource.RUSAGE_CHILDREN).ru_maxrss / 1024.0
+        _summary(rows, result, workers, where, echo)
+    return result
+
+
+def _summary(rows: list, result: BatchResult, workers: int, where, echo) -> None:
+    """5. The summary: one line per row, then the totals (printed however the batch ended)."""
+    for row in rows:
+        if row.error:
+            echo(f"FAILED  {row.error}")
+        elif row.pdf is not None:
+            echo(f"issued  {row.number}  {row.spec} x {row.qty}  {row.pdf}")
+    echo(f"{len(result.issued)} issued, {len(result.failed)} failed, {result.seconds:.1f} s on {workers} worker(s)"
+         + (f"; register {where.shown} ({where.found_by})" if where is not None else ""))
+
+
+def _new_pool(workers: int) -> ProcessPoolExecutor:
+    return ProcessPoolExecutor(max_workers=workers, max_tasks_per_child=TASKS_PER_WORKER,
+                               initializer=_die_with_parent, initargs=(os.getpid(),))
+
+
+def _render_all(ready: list, reg, cat, out: Path, workers: int, bar: _Progress, result: BatchResult,
+                render_html) -> None:
+    """3-4. Render every ready row in worker processes, a bounded number of jobs in flight.
+
+    A pool broken by a dying worker fails every job in flight; those rows are set aside and, once the
+    rest is done, rendered again one at a time in a pool of one worker, where a death is the row's own.
+    """
+    queue, suspects, alone = list(ready), [], False
+    pool = _new_pool(workers)
+    try:
+        while queue or suspects:
+            if not queue:
+                pool.shutdown(wait=True, cancel_futures=True)
+                pool = _new_pool(1)
+                queue, suspects, alone = suspects, [], True
+            pending: dict = {}
+            broken = False
+            while (queue or pending) and not broken:
+                while queue and len(pending) < (1 if alone else 2 * workers):
+                    item = queue.pop(0)
+                    job = _submit(pool, item, reg, cat, out, render_html, bar)
+                    if job is not None:
+                        pending[job[0]] = (item, job[1], job[2])
                 if not pending:
                     continue
                 done, _ = wait(pending, return_when=FIRST_COMPLETED)
                 for fut in done:
-                    row, pdf, htm = pending.pop(fut)
-                    try:
-                        fut.result()
-                    except Exception as exc:  # the worker's failure is this row's failure, not the batch's
-                        _void(reg, row, f"render failed: {str(exc).splitlines()[0] if str(exc) else type(exc).__name__}")
+                    item, pdf, htm = pending.pop(fut)
+                    if isinstance(fut.exception(), BrokenProcessPool):
+                        broken = True
+                        if alone:          # it died again with no other job beside it: the row's own failure
+                            _void(reg, item[0], "render failed: the render worker died (out of memory or killed)")
+                            bar.step()
+                        else:
+                            suspects.append(item)
+                        continue
+                    _finish(fut, item[0], pdf, htm, reg, result, bar)
+            if broken:
+                for fut, (item, pdf, htm) in pending.items():     # in flight when the pool broke
+                    if fut.done() and fut.exception() is None:
+                        _finish(fut, item[0], pdf, htm, reg, result, bar)
                     else:
-                        reg.attach_files(row.number, [str(pdf.resolve()), str(htm.resolve())])
-                        row.pdf = pdf
-                        result.issued.append(row)
-                    bar.step()
-    bar.close()
-    result.seconds = time.perf_counter() - t0
-    result.peak_rss_main_mb = resource.getrusage(resource.RUSAGE_SELF).ru_maxrss / 1024.0
-    result.peak_rss_worker_mb = resource.getrusage(resource.RUSAGE_CHILDREN).ru_maxrss / 1024.0
-    # 5. summary
-    for row in rows:
-        if row.error:
-            echo(f"FAILED  {row.error}")
-        else:
-            echo(f"issued  {row.number}  {row.spec} x {row.qty}  {row.pdf}")
-    echo(f"{len(result.issued)} issued, {len(result.failed)} failed, {result.seconds:.1f} s on {workers} worker(s)"
-         + (f"; register {where.shown} ({where.found_by})" if where is not None else ""))
-    return result
+                        suspects.append(item)
+                pool.shutdown(wait=True, cancel_futures=True)
+                pool = _new_pool(1 if alone else workers)
+    finally:
+        pool.shutdown(wait=True, cancel_futures=True)
+
+
+def _submit(pool, item, reg, cat, out: Path, render_html, bar: _Progress):
+    """Build one row's HTML here and hand the PDF render to a worker: (future, pdf, html) or None."""
+    row, _spec_path, _spec, design, qty, due, lot = item
+    order = reg.get(row.number)
+    try:
+        html = render_html(design, cat, number=row.number, qty=qty, due=due, lot=lot,
+                           issued=order.issued_at[:10], issued_by=order.issued_by, draft=False)
+    except Exception as exc:   # a template fault: this row only
+        _void(reg, row, f"render failed: {exc}")
+        bar.step()
+        return None
+    pdf, htm = out / f"{row.number}.pdf", out / f"{row.number}.html"
+    return pool.submit(_render_job, html, str(pdf), str(htm)), pdf, htm
+
+
+def _finish(fut, row: Row, pdf: Path, htm: Path, reg, result: BatchResult, bar: _Progress) -> None:
+    exc = fut.exception()
+    if exc is not None:     # the worker's failure is this row's failure, not the batch's
+        first = str(exc).splitlines()[0] if str(exc) else type(exc).__name__
+        _void(reg, row, f"render failed: {first}")
+    else:
+        reg.attach_files(row.number, [str(pdf.resolve()), str(htm.resolve())])   # the same from any folder
+        row.pdf = pdf
+        result.issued.append(row)
+    bar.step()
 
 
 def _void(reg, row: Row, reason: str) -> None:

@@ -94,11 +94,14 @@ def html_to_pdf(html: str, blocked: list | None = None) -> bytes:
 
 
 def write_pdf_and_html(html: str, pdf_path: str | os.PathLike, html_path: str | os.PathLike | None,
-                       blocked: list | None = None) -> list:
-    """Render and write both files atomically (both or neither). Returns the written paths."""
+                       blocked: list | None = None, *, make_folders: bool = False) -> list:
+    """Render and write both files atomically (both or neither). Returns the written paths.
+
+    ``make_folders``: create a missing output folder only now, once the PDF is rendered (and remove it
+    again if the write fails), so a refused or failed command leaves no empty folder behind."""
     pdf = html_to_pdf(html, blocked)
     targets = [Path(pdf_path)] + ([Path(html_path)] if html_path else [])
-    with atomic_paths(*targets) as temps:
+    with atomic_paths(*targets, make_folders=make_folders) as temps:
         temps[0].write_bytes(pdf)
         if html_path:
             temps[1].write_text(html, encoding="utf-8")

@@ -585,10 +585,8 @@ def issue_from_design(spec_path, spec, design, cat, *, qty, due=None, lot=None, 
     for w in warnings:
         warn(w)
     out = Path(out_dir)
-    try:
-        out.mkdir(parents=True, exist_ok=True)
-    except OSError as err:
-        raise SpecError(f"cannot create the output folder: {err.strerror or err}", file=str(out)) from None
+    if out.exists() and not out.is_dir():
+        raise SpecError("is a file, expected the folder for the work order", file=str(out), path="--out")
     where = locate_register(spec_path, register_path, shop_setting=cat.shop.register_path, catalog_dir=cat.root)
     fmt = cat.shop.work_order_format.replace("{part}", design.part)
     with Register.open(where.target) as reg:
@@ -600,7 +598,7 @@ def issue_from_design(spec_path, spec, design, cat, *, qty, due=None, lot=None, 
                                           issued=order.issued_at[:10], issued_by=order.issued_by, draft=draft)
             pdf_path, html_path = out / f"{num}.pdf", out / f"{num}.html"
             blocked: list = []
-            write_pdf_and_html(html, pdf_path, html_path, blocked)
+            write_pdf_and_html(html, pdf_path, html_path, blocked, make_folders=True)   # the folder only now
         reg.attach_files(num, [str(pdf_path.resolve()), str(html_path.resolve())])  # the same from any folder
         if draft:
             # a draft copy is traceable but never built for production: listed as void with the reason

@@ -36,9 +36,7 @@ from __future__ import annotations
 
 import builtins
 import contextlib
-import csv
 import datetime as _dt
-import io
 import os
 import time
 from collections.abc import Callable, Iterable, Iterator
@@ -587,12 +585,12 @@ class Register:
 
 
 def orders_csv(orders: Iterable[Order]) -> str:
-    """Orders as CSV text (header row, files joined with '; ')."""
-    buffer = io.StringIO()
-    writer = csv.writer(buffer, lineterminator="\n")
-    writer.writerow(model.CSV_COLUMNS)
+    """Orders as CSV text (header row, files joined with '; '), cells safe for spreadsheets."""
+    from ..csvsafe import csv_text
+
+    rows = []
     for order in orders:
         row = order.to_dict()
         row["files"] = "; ".join(order.files)
-        writer.writerow(["" if row[c] is None else row[c] for c in model.CSV_COLUMNS])
-    return buffer.getvalue()
+        rows.append([row[c] for c in model.CSV_COLUMNS])
+    return csv_text(model.CSV_COLUMNS, rows)

@@ -35,6 +35,9 @@ from ..wires import choose_wire
 
 MAGNETIZING_WARN = 0.35      # magnetizing current above this share of the primary current (common practice)
 MAX_SCAN = 60                # loss-limited search: at most this many primary-turn candidates
+VPT_SCAN_SPAN = 120          # volts-per-turn search: primary turns up to n0 + this (or 3 x n0) for a turn pair
+                             # that meets every output's tolerance (a 3 % band needs about 33 turns to hold
+                             # a whole count; the fit ends it sooner on a small core)
 LOSS_LIMITED_ABOVE_HZ = 1000.0   # above this the core loss, not saturation, sets the turns (common practice)
 MAGNETIZING_L_LOW = 0.7      # open-circuit inductance floor: material permeability varies widely (common practice)
 LEAKAGE_BAND = (0.7, 1.3)    # leakage limits: the build's geometry varies less, but a missed interleave or an
@@ -90,6 +93,7 @@ class TransformerRun:
         if self.p_out <= 0:
             raise spec_error(spec, "the secondaries draw no power; give their currents", "windings")
         self.wires: dict[str, WireChoice] = {}
+        self.search_span: tuple[int, int] = (0, 0)   # primary turns the volts-per-turn search looked at
 
     # -- turns
     def swing_limit(self, limit: FluxLimit) -> FluxLimit:
@@ -130,7 +134,7 @@ class TransformerRun:
             elif w.role == "shield":
                 turns, current = (w.turns or 1), 0.0
             else:
-                turns = w.turns or max(1, math.ceil(np_turns * (w.voltage_v or 0.0) / self.vp - 1e-9))
+                turns = w.turns or max(1, math.ceil(np_turns * self.lowest_v(w) / self.vp - 1e-9))
                 if turns > K.MAX_TURNS:
                     raise too_many_turns(self.spec, turns, f"winding {w.name} at {w.voltage_v:g} V", "windings", i,
                                          "voltage")
@@ -172,7 +176,7 @@ class TransformerRun:
                 x_drop = ratio * i_ref * x_lk * (st.current_a * st.turns) / max(i_ref * np_turns, 1e-12)
                 v_loaded = math.sqrt(max(e * e - x_drop * x_drop, 0.0)) - st.current_a * rs
                 loaded[w.name] = v_loaded
-                want = w.voltage_v or 0.0
+                want = self.lowest_v(w)
                 if w.turns is None and v_loaded < want - 1e-9 and st.turns <= K.MAX_TURNS:
                     volts_per_turn = (vp - i_ref * rp) / np_turns
                     add = max(1, math.ceil((want - v_loaded) / volts_per_turn - 1e-9))
@@ -216,34 +220,82 @@ class TransformerRun:
     def fits(self, ev: Evaluation[TransformerPass]) -> bool:
         return ev.built.ok and ev.built.height_m * self.cat.shop.bulge_factor <= self.parts.former.height_m
 
+    # -- output voltages within their tolerance
+    def tolerance(self, w: Winding) -> tuple[float, float]:
+        """(minus, plus) fractions of the voltage asked: the winding's own, else the shop's."""
+        return w.voltage_tolerance or self.cat.shop.voltage_tolerance
+
+    def lowest_v(self, w: Winding) -> float:
+        return (w.voltage_v or 0.0) * (1.0 - self.tolerance(w)[0])
+
+    def within(self, ev: Evaluation[TransformerPass]) -> bool:
+        """Every output delivers its voltage at full load within its tolerance (``kernel.output_voltage_ok``)."""
+        loaded = ev.detail.loaded_v
+        return all(K.output_voltage_ok(w.voltage_v or 0.0, loaded.get(w.name, 0.0), *self.tolerance(w))
+                   for w in self.loads)
+
+    def candidates(self, ev: Evaluation[TransformerPass], lo: int, hi: int) -> list[int]:
+        """Primary turns in lo..hi for which every output has a whole turn count within its tolerance, by
+        ``kernel.secondary_turns_within`` with each output's load drop as evaluated (fixed counts checked
+        as they are)."""
+        import numpy as np
+        p = ev.detail
+        n = np.arange(lo, hi + 1, dtype=float)
+        ok = np.ones(n.shape, dtype=bool)
+        for w in self.loads:
+            open_v = p.open_v.get(w.name, 0.0)
+            drop = 1.0 - p.loaded_v.get(w.name, 0.0) / open_v if open_v > 0 else 0.0
+            minus, plus = self.tolerance(w)
+            if w.turns:
+                e = self.vp / n * (1.0 - min(max(drop, 0.0), 0.9))
+                ok &= np.asarray(K.output_voltage_ok(w.voltage_v or 0.0, w.turns * e, minus, plus))
+            else:
+                ok &= np.asarray(K.secondary_turns_within(n, self.vp, w.voltage_v or 0.0, drop, minus, plus)) > 0
+        return [int(x) for x in n[ok]]
+
     # -- the KindRun protocol
     def first(self, temp: ThermalState) -> tuple[Evaluation[TransformerPass], int]:
-        """Saturation-limited turns; above 1 kHz raised while the total loss falls; wires for the turns kept."""
+        """Saturation-limited turns n0, then the primary turns that give every output its voltage within its
+        tolerance (the volts-per-turn search), the lowest-loss such count where the core loss sets the turns;
+        the `auto` wires re-sized for the turns kept."""
         eta = self.spec.efficiency_guess
         n0 = self.min_turns(temp)
-        best = self.evaluate(n0, temp, eta)
+        first = self.evaluate(n0, temp, eta)
         passes = 1
-        if not self.prim.turns and self.spec.frequency_hz >= LOSS_LIMITED_ABOVE_HZ and best.built.ok:
-            # integer secondary turns make the loss curve ragged: scan up to 3 x n0 (or until it no longer
-            # fits) and keep the lowest total loss
-            step = max(1, math.ceil(2 * n0 / MAX_SCAN))
-            n = n0
-            while n < 3 * n0:
-                n += step
-                cand = self.evaluate(n, temp, eta)
-                passes += 1
-                if not self.fits(cand):
+        self.search_span = (n0, n0)
+        if self.prim.turns or not first.built.ok:
+            return first, passes
+        loss_scan = self.spec.frequency_hz >= LOSS_LIMITED_ABOVE_HZ
+        if self.within(first) and not loss_scan:
+            return first, passes
+        top = min(K.MAX_TURNS, max(3 * n0, n0 + VPT_SCAN_SPAN))
+        cands = self.candidates(first, n0 + 1, top)
+        if loss_scan and len(cands) > MAX_SCAN:       # integer secondaries make the loss curve ragged: spread
+            cands = [cands[round(i * (len(cands) - 1) / (MAX_SCAN - 1))] for i in range(MAX_SCAN)]
+        good = first if self.within(first) else None
+        lowest = first                                # the lowest loss whatever the voltages (a failed search)
+        for n in cands[:MAX_SCAN]:
+            cand = self.evaluate(n, temp, eta)
+            passes += 1
+            if not self.fits(cand):
+                break
+            self.search_span = (n0, n)
+            if cand.total_w < lowest.total_w - 1e-9:
+                lowest = cand
+            if self.within(cand):
+                if good is None or cand.total_w < good.total_w - 1e-9:
+                    good = cand
+                if not loss_scan:
                     break
-                if cand.total_w < best.total_w - 1e-9:
-                    best = cand
-        # `auto` wire for the turns actually chosen (the scan sized it at its first candidate, where the
-        # magnetizing current is largest); keep the new choice only if the build still fits
+        best = good or lowest
+        # `auto` wire for the turns actually chosen (sized at the first candidate, where the magnetizing current
+        # is largest); kept only if the build still fits and the outputs still meet their tolerance
         if any(w.wire.startswith("auto") for w in self.spec.windings) and best.detail.primary_turns != n0:
             kept = dict(self.wires)
             self.wires.clear()
             again = self.evaluate(best.detail.primary_turns, temp, eta)
             passes += 1
-            if self.fits(again):
+            if self.fits(again) and (self.within(again) or not self.within(best)):
                 best = again
             else:
                 self.wires = kept
@@ -254,6 +306,25 @@ class TransformerRun:
         eta = self.p_out / (self.p_out + previous.total_w) if previous.total_w > 0 else p.eta
         return self.evaluate(p.primary_turns, temp, eta)
 
+    def voltage_check(self, w: Winding, p: TransformerPass) -> Check:
+        """Output voltage: asked, delivered at full load and open circuit, against the winding's tolerance."""
+        asked, tol = w.voltage_v or 0.0, self.tolerance(w)
+        got, oc = p.loaded_v.get(w.name, 0.0), p.open_v.get(w.name, 0.0)
+        said = f"winding {w.name}: {got:.3f} V at full load ({oc:.3f} V open circuit) against {_band(asked, tol)}"
+        if K.output_voltage_ok(asked, got, *tol):
+            return Check("pass", "output-voltage", said)
+        err = (got - asked) / asked * 100.0 if asked else 0.0
+        if w.turns is not None:
+            why = f"its {w.turns} fixed turns miss the band by {err:+.1f} %: change or remove the fixed count"
+        elif self.prim.turns:
+            why = (f"with the primary fixed at {self.prim.turns} turns no whole secondary count lands in the band "
+                   f"({err:+.1f} %): remove the fixed primary turns or widen voltage_tolerance")
+        else:
+            lo, hi = self.search_span
+            why = (f"no primary turns from {lo} to {hi} that fit core {self.spec.core_id} give a whole secondary "
+                   f"count in the band ({err:+.1f} %): widen voltage_tolerance or use a core with a larger window")
+        return Check("fail", "output-voltage", f"{said}; {why}")
+
     def summary(self, ev: Evaluation[TransformerPass], temp: ThermalState) -> ElectricalSummary:
         p = ev.detail
         eff = self.p_out / (self.p_out + ev.total_w)
@@ -262,13 +333,7 @@ class TransformerRun:
             if w.name in p.loaded_v and p.loaded_v[w.name] > 0:
                 reg = (p.open_v[w.name] - p.loaded_v[w.name]) / p.loaded_v[w.name] * 100.0
                 regulation = reg if regulation is None else max(regulation, reg)
-        extra = []
-        for w in self.loads:
-            got = p.loaded_v.get(w.name)
-            if w.turns is not None and got is not None and got < (w.voltage_v or 0.0) * 0.995:
-                extra.append(Check("warn", "output-voltage",
-                                   f"winding {w.name} has fixed turns ({w.turns}) and delivers {got:.3f} V at full "
-                                   f"load, below the {w.voltage_v:g} V asked: add turns or remove the fixed count"))
+        extra = [self.voltage_check(w, p) for w in self.loads]
         primary = ev.windings[self.prim.name]
         if primary.current_a > 0 and p.imag_a / primary.current_a > MAGNETIZING_WARN:
             extra.append(Check("warn", "magnetizing",
@@ -279,8 +344,13 @@ class TransformerRun:
             flux_limit=self.swing_limit(flux_limit(self.spec, self.cat, self.parts.material, temp.hot_c)),
             h_peak_a_m=float(faraday.h_field_a_m(p.primary_turns, p.imag_pk_a, self.parts.le_m)),
             magnetizing_inductance_h=p.lm_h, magnetizing_current_a=p.imag_a, leakage_inductance_h=p.leakage_h,
-            voltages={self.prim.name: self.vp, **p.loaded_v}, open_circuit=dict(p.open_v), efficiency=eff,
+            voltages={self.prim.name: self.vp, **p.loaded_v}, open_circuit=dict(p.open_v),
+            voltage_tolerance={w.name: self.tolerance(w) for w in self.loads}, efficiency=eff,
             regulation_pct=regulation, output_power_w=self.p_out, checks=tuple(extra))
+
+
+def _band(asked: float, tol: tuple[float, float]) -> str:
+    return f"{asked:g} V -{tol[0] * 100:g}/+{tol[1] * 100:g} % ({asked * (1 - tol[0]):.3f}-{asked * (1 + tol[1]):.3f} V)"
 
 
 def _fmt_t(b: float) -> str:

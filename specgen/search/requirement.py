@@ -1,0 +1,317 @@
+"""The requirement file: what the part must do, read into a frozen ``Requirement`` (SI floats, degC).
+
+Every mistake is a located ``SpecError`` (file, line and key path; one line, exit 2).
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+from pathlib import Path
+from typing import Any
+
+from ..errors import SpecError
+from ..loading import Reader, load_yaml
+
+KINDS = ("transformer", "inductor")
+RATINGS = ("functional", "basic", "reinforced")
+
+TOP_KEYS = ("requirement", "part", "title", "customer", "kind", "operating", "windings", "inductor", "insulation",
+            "limits", "notes")
+OPERATING_KEYS = ("frequency", "waveform", "duty", "ambient", "cooling", "insulation_class", "max_rise",
+                  "flux_limit", "efficiency")
+WINDING_KEYS = ("name", "role", "voltage", "voltage_min", "voltage_max", "current", "va", "match")
+INDUCTOR_KEYS = ("inductance", "current", "ripple", "current_peak", "duty")
+DEFAULT_EFFICIENCY = 0.9     # first guess when the requirement gives none (the engine's own default)
+
+
+@dataclass(frozen=True, slots=True)
+class ReqWinding:
+    name: str
+    role: str                       # primary | secondary | auxiliary
+    voltage_v: float
+    voltage_min_v: float | None
+    voltage_max_v: float | None
+    current_a: float | None
+    va: float | None
+    match: str | None
+    text: dict[str, str | None]     # key -> the text as written (copied into the draft spec)
+
+    @property
+    def load_current_a(self) -> float:
+        if self.current_a is not None:
+            return self.current_a
+        return (self.va or 0.0) / self.voltage_v
+
+
+@dataclass(frozen=True, slots=True)
+class Limits:
+    max_mass_kg: float | None = None
+    max_length_m: float | None = None   # largest outline dimension
+    max_width_m: float | None = None    # middle
+    max_height_m: float | None = None   # smallest (seated height)
+
+
+@dataclass(frozen=True, slots=True)
+class ChokeDuty:
+    inductance_h: float
+    current_dc_a: float
+    ripple_a: float                 # peak to peak
+    current_peak_a: float | None
+
+
+@dataclass(frozen=True, slots=True)
+class Requirement:
+    file: str
+    id: str
+    part: str | None
+    title: str
+    customer: str
+    kind: str
+    frequency_hz: float
+    waveform: str
+    duty: float
+    ambient_c: float
+    cooling: str
+    insulation_class_c: int
+    max_rise_k: float | None
+    flux_limit_t: float | None
+    efficiency: float | None
+    windings: tuple[ReqWinding, ...]    # transformer; empty for a choke
+    rating: str                     # between windings: functional | basic | reinforced
+    to_core: str                    # windings to core
+    working_voltage_v: float
+    limits: Limits = Limits()
+    choke: ChokeDuty | None = None
+    text: dict[str, str | None] = field(default_factory=dict)   # operating/inductor texts as written
+    notes: str = ""
+
+    @property
+    def efficiency_guess(self) -> float:
+        return self.efficiency if self.efficiency is not None else DEFAULT_EFFICIENCY
+
+    @property
+    def primary(self) -> ReqWinding:
+        return next(w for w in self.windings if w.role == "primary")
+
+    @property
+    def loads(self) -> list[ReqWinding]:
+        return [w for w in self.windings if w.role != "primary"]
+
+    @property
+    def output_va(self) -> float:
+        return sum(w.voltage_v * w.load_current_a for w in self.loads)
+
+    @property
+    def core_waveform(self) -> str:
+        """The flux waveform of the engine's core loss: a choke's DC + ripple is modelled as sine here."""
+        return self.waveform if self.kind == "transformer" else "sine"
+
+    def summary(self) -> str:
+        f = f"{self.frequency_hz / 1e3:g} kHz" if self.frequency_hz >= 1e3 else f"{self.frequency_hz:g} Hz"
+        if self.choke is not None:
+            c = self.choke
+            return (f"choke {c.inductance_h * 1e6:.4g} µH at {c.current_dc_a:g} A DC, ripple "
+                    f"{c.ripple_a:g} A p-p at {f}")
+        p = self.primary
+        outs = ", ".join(f"{w.voltage_v:g} V {w.load_current_a:.3g} A" for w in self.loads)
+        return f"transformer {p.voltage_v:g} V {f} {self.waveform} -> {outs} ({self.output_va:.4g} VA)"
+
+
+def _text(r: Reader, key: str) -> str | None:
+    v = r.data.get(key)
+    return None if v is None else str(v).strip()
+
+
+def _validate_part(r: Reader) -> str | None:
+    """The part number the draft will carry: the one part-number rule, reported here, at the requirement."""
+    from ..part_numbers import part_number_problem
+
+    if not r.has("part"):
+        return None
+    part = r.raw("part")
+    problem = part_number_problem(part)
+    if problem is not None:
+        raise r.error(problem, "part")
+    return str(part).strip()
+
+
+@dataclass(frozen=True, slots=True)
+class _Operating:
+    frequency_hz: float
+    waveform: str
+    duty: float
+    ambient_c: float
+    cooling: str
+    insulation_class_c: int
+    max_rise_k: float | None
+    flux_limit_t: float | None
+    efficiency: float | None
+    text: dict[str, str | None]
+
+
+def _operating(r: Reader, kind: str) -> _Operating:
+    from ..design.spec import COOLING, WAVEFORMS, _insulation_class
+
+    op = r.mapping("operating")
+    assert op is not None          # required key: Reader.mapping raises when it is missing
+    op.done(OPERATING_KEYS)
+    freq = op.quantity("frequency", "frequency")
+    if not 1.0 <= freq <= 50e6:
+        raise op.error("frequency must lie between 1 Hz and 50 MHz", "frequency")
+    waveform = op.choice("waveform", WAVEFORMS, "sine")
+    if kind == "inductor" and op.has("waveform"):
+        raise op.error("a choke carries DC with a triangular ripple; give the ripple under 'inductor'",
+                       "waveform")
+    duty = op.number("duty", 0.5, minimum=0.01, maximum=0.99)
+    ambient = op.quantity("ambient", "temperature", 25.0)
+    if not -60.0 <= ambient <= 200.0:
+        raise op.error(f"ambient {ambient:g} degC is outside -60..200 degC", "ambient")
+    cooling = op.choice("cooling", COOLING, "natural")
+    cls = _insulation_class(op, op.raw("insulation_class", 130))
+    max_rise = op.quantity("max_rise", "temperature_difference", None)
+    if max_rise is not None and max_rise <= 0:
+        raise op.error("max_rise must be above zero", "max_rise")
+    flux = op.quantity("flux_limit", "flux_density", None)
+    eff = op.number("efficiency", None, minimum=0.3, maximum=0.999)
+    text = {k: _text(op, k) for k in ("frequency", "ambient", "flux_limit", "insulation_class")}
+    op.done()
+    return _Operating(freq, waveform, duty, ambient, cooling, cls, max_rise, flux, eff, text)
+
+
+def _winding(wr: Reader) -> ReqWinding:
+    wr.done(WINDING_KEYS)
+    role = wr.choice("role", ("primary", "secondary", "auxiliary"))
+    w = ReqWinding(
+        name=wr.text("name", max_len=40), role=role, voltage_v=wr.quantity("voltage", "voltage"),
+        voltage_min_v=wr.quantity("voltage_min", "voltage", None),
+        voltage_max_v=wr.quantity("voltage_max", "voltage", None),
+        current_a=wr.quantity("current", "current", None), va=wr.quantity("va", "apparent_power", None),
+        match=wr.text("match", None),
+        text={k: _text(wr, k) for k in ("voltage", "voltage_min", "voltage_max", "current", "va")})
+    wr.done()
+    if w.name.lower() in ("core", "all") or "+" in w.name:
+        raise wr.error("'core', 'all' and names with '+' are reserved for the insulation barriers", "name")
+    if role != "primary" and w.current_a is None and w.va is None:
+        raise wr.error(f"a {role} winding needs its current (or va)", "current")
+    if role == "primary" and (w.current_a is not None or w.va is not None):
+        raise wr.error("the primary current follows from the loads; give the secondaries' currents", "current")
+    if w.voltage_max_v is not None and w.voltage_max_v < w.voltage_v:
+        raise wr.error("voltage_max is below the nominal voltage", "voltage_max")
+    if w.voltage_min_v is not None and w.voltage_min_v > w.voltage_v:
+        raise wr.error("voltage_min is above the nominal voltage", "voltage_min")
+    return w
+
+
+def _windings(r: Reader) -> tuple[ReqWinding, ...]:
+    read: list[tuple[ReqWinding, Reader]] = []
+    for wr in r.items("windings", min_items=2):
+        w = _winding(wr)
+        if any(o.name == w.name for o, _ in read):
+            raise wr.error(f"a second winding named '{w.name}'", "name")
+        read.append((w, wr))
+    prim = [w for w, _ in read if w.role == "primary"]
+    if len(prim) != 1:
+        raise r.error(f"a transformer needs exactly one primary winding, found {len(prim)}", "windings")
+    for w, wr in read:
+        if w.match is None:
+            continue
+        other = next((o for o, _ in read if o.name == w.match), None)
+        if other is None or other is w or other.role != w.role or other.voltage_v != w.voltage_v:
+            raise wr.error(f"'{w.match}' names no other winding of the same role and voltage", "match")
+        if other.match is not None:
+            raise wr.error(f"'{w.match}' itself matches another winding; match every one to the same", "match")
+    if r.has("inductor"):
+        raise r.error("only a choke has an 'inductor' section", "inductor")
+    return tuple(w for w, _ in read)
+
+
+def _choke(r: Reader, duty: float, text: dict[str, str | None]) -> tuple[ChokeDuty, float]:
+    ir = r.mapping("inductor")
+    assert ir is not None
+    ir.done(INDUCTOR_KEYS)
+    choke = ChokeDuty(inductance_h=ir.quantity("inductance", "inductance"),
+                      current_dc_a=ir.quantity("current", "current"),
+                      ripple_a=ir.quantity("ripple", "current", 0.0, allow_zero=True),
+                      current_peak_a=ir.quantity("current_peak", "current", None))
+    duty = ir.number("duty", duty, minimum=0.01, maximum=0.99)
+    if choke.current_peak_a is not None and choke.current_peak_a < choke.current_dc_a:
+        raise ir.error("current_peak is below the DC current", "current_peak")
+    text.update({f"inductor.{k}": _text(ir, k) for k in ("inductance", "current", "ripple", "current_peak")})
+    ir.done()
+    if r.has("windings"):
+        raise r.error("a choke has one winding; the search sizes it (remove 'windings')", "windings")
+    return choke, duty
+
+
+def _insulation(r: Reader, kind: str, windings: tuple[ReqWinding, ...]) -> tuple[str, str, float]:
+    """(rating between windings, rating to the core, working voltage)."""
+    ins = r.mapping("insulation", None)
+    rating, to_core, wv = "functional", None, None
+    if ins is not None:
+        ins.done(("between_windings", "to_core", "working_voltage") if kind == "transformer"
+                 else ("to_core", "working_voltage"))
+        if kind == "transformer":
+            rating = ins.choice("between_windings", RATINGS, "basic")
+        to_core = ins.choice("to_core", ("functional", "basic"), None)
+        wv = ins.quantity("working_voltage", "voltage", None)
+        ins.done()
+    elif kind == "transformer":
+        rating = "basic"
+    if to_core is None:
+        to_core = "functional" if kind == "inductor" or rating == "functional" else "basic"
+    if wv is None:
+        if kind == "transformer":
+            p = next(w for w in windings if w.role == "primary")
+            wv = p.voltage_max_v or p.voltage_v
+        else:
+            wv = 50.0
+    return rating, to_core, wv
+
+
+def _limits(r: Reader) -> Limits:
+    lim = r.mapping("limits", None)
+    if lim is None:
+        return Limits()
+    lim.done(("max_mass", "max_length", "max_width", "max_height"))
+    out = Limits(max_mass_kg=lim.quantity("max_mass", "mass", None),
+                 max_length_m=lim.quantity("max_length", "length", None),
+                 max_width_m=lim.quantity("max_width", "length", None),
+                 max_height_m=lim.quantity("max_height", "length", None))
+    lim.done()
+    return out
+
+
+def parse_requirement(data: Any, name: str) -> Requirement:
+    """The requirement file's mapping -> Requirement; every mistake a located SpecError."""
+    r = Reader(data, name)
+    r.done(TOP_KEYS)             # a typo is named as such before a key it hides is reported missing
+    kind = r.choice("kind", KINDS)
+    op = _operating(r, kind)
+    text = dict(op.text)
+    duty = op.duty
+    windings: tuple[ReqWinding, ...] = ()
+    choke = None
+    if kind == "transformer":
+        windings = _windings(r)
+    else:
+        choke, duty = _choke(r, duty, text)
+    rating, to_core, wv = _insulation(r, kind, windings)
+    limits = _limits(r)
+    req = Requirement(
+        file=name, id=r.text("requirement", Path(name).stem, max_len=60), part=_validate_part(r),
+        title=r.text("title", "", max_len=200), customer=r.text("customer", "", max_len=200), kind=kind,
+        frequency_hz=op.frequency_hz, waveform=op.waveform, duty=duty, ambient_c=op.ambient_c, cooling=op.cooling,
+        insulation_class_c=op.insulation_class_c, max_rise_k=op.max_rise_k, flux_limit_t=op.flux_limit_t,
+        efficiency=op.efficiency, windings=windings, rating=rating, to_core=to_core, working_voltage_v=wv,
+        limits=limits, choke=choke, text=text, notes=r.text("notes", "", max_len=5000))
+    r.done()
+    return req
+
+
+def load_requirement(path: str | Path) -> Requirement:
+    """Read a requirement file (YAML); every mistake is a located SpecError (one line, exit 2)."""
+    data = load_yaml(path, "requirement file")
+    if data is None:
+        raise SpecError("is empty; a requirement needs at least kind, operating and windings (or inductor)",
+                        file=str(path))
+    return parse_requirement(data, str(path))
