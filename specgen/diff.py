@@ -320,6 +320,14 @@ def shop_results(d, costs: Mapping[str, tuple] | None = None) -> dict[tuple[str,
         put(g, "AL", i.al_nh, "nH")
         put(g, "permeability roll-off at full current", i.rolloff_pct, "pct")
         put(g, "B_dc", i.b_dc_t, "T")
+    if getattr(d, "current_transformer", None) is not None:
+        ct = d.current_transformer
+        g = "current transformer"
+        put(g, "secondary turns", ct.secondary_turns, "count")
+        put(g, "burden", ct.burden_ohm, "ohm")
+        put(g, "ratio error", ct.ratio_error_pct, "pct")
+        put(g, "phase displacement", ct.phase_error_deg, "deg")
+        put(g, "knee burden", ct.knee_burden_ohm, "ohm")
     for ch in d.checks:
         put("checks", ch.code, ch.level, "text")
     for quantity, (value, unit) in (costs or {}).items():

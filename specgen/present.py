@@ -187,6 +187,8 @@ def quantity(v: Any, unit: str, digits: int = 4) -> str:
         return percent(v)
     if unit == "frac":
         return fraction_pct(v)
+    if unit == "deg":                      # an angle in degrees, shown in minutes of arc (CT phase displacement)
+        return f"{v * 60:.2f} min"
     if unit == "kg":
         return f"{sig(v * 1e3, digits)} g" if abs(v) < 1 else f"{sig(v, digits)} kg"
     if unit == "l":

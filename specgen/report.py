@@ -2,6 +2,8 @@
 
 from __future__ import annotations
 
+from typing import Any
+
 from . import present
 from .design.result import Design
 from .standards.thermal_classes import class_label
@@ -18,6 +20,8 @@ def freq(hz: float) -> str:
 
 def waveform_text(d: Design) -> str:
     """How the core is driven: a DC choke carries DC with a triangular ripple, not the spec's waveform."""
+    if d.flyback is not None:
+        return f"flyback, {d.flyback.mode.upper()} at the lowest input, duty {d.flyback.duty_max:.2f} to {d.flyback.duty_min:.2f}"
     if d.inductor is not None and d.inductor.b_dc_t > 0:
         return "DC with triangular ripple"
     if d.waveform == "unipolar":
@@ -57,7 +61,7 @@ def design_report(d: Design) -> str:
     if d.leakage_inductance_h:
         lk = d.leakage_inductance_h
         core_rows.append(["leakage", f"{present.si(lk, 'H')} referred to the primary, secondaries shorted"])
-    if d.inductor is not None:
+    if d.inductor is not None and d.flyback is None:
         i = d.inductor
         core_rows += [
             ["inductance", f"{present.si(i.inductance_h, 'H')} built (target {present.si(i.target_h, 'H')}); "
@@ -72,6 +76,10 @@ def design_report(d: Design) -> str:
             ["current", f"{i.current_dc_a:g} A, ripple {i.ripple_a:g} A p-p, peak {i.current_peak_a:g} A; "
                         f"ΔB {i.delta_b_t * 1e3:.1f} mT"],
         ]
+    if d.current_transformer is not None:
+        core_rows += _ct_rows(d.current_transformer)
+    if d.flyback is not None:
+        core_rows += _flyback_rows(d)
     out.append(_table(["", ""], core_rows, "ll"))
     out.append("")
     out.append("Windings (build order by section, see the work order)")
@@ -84,7 +92,7 @@ def design_report(d: Design) -> str:
     out.append(_table(["name", "role", "turns", "wire", "layers", "t/layer", "length m", "DCR 20°C Ω",
                        f"DCR {d.hot_spot_c:.0f}°C Ω", "I A", "J A/mm²", "Fr", "pins", "dot"], rows,
                       "llrlrrrrrrrrll"))
-    volts = [w for w in d.windings if w.open_circuit_v]
+    volts = [w for w in d.windings if w.open_circuit_v and w.voltage_v is not None]
     if volts:
         out.append("")
         out.append("  " + "; ".join(f"{w.name}: {w.voltage_v:.3f} V at full load, {w.open_circuit_v:.3f} V open "
@@ -117,3 +125,34 @@ def design_report(d: Design) -> str:
     for ch in d.checks:
         out.append(f"  {mark[ch.level]:4}  {ch.code:16} {ch.message}")
     return "\n".join(out)
+
+
+def _ct_rows(ct: Any) -> list[list[str]]:
+    """A current transformer's own figures (the Design's ``current_transformer``)."""
+    return [
+        ["ratio", f"{ct.primary_turns}:{ct.secondary_turns}, {ct.primary_current_a:g} A -> "
+                  f"{ct.secondary_current_a:.4g} A (range to {ct.primary_current_max_a:g} A)"],
+        ["burden", f"{ct.burden_ohm:g} ohm + winding {ct.winding_resistance_ohm:.3g} ohm: "
+                   f"V_s {ct.secondary_voltage_v:.3g} V; knee burden {ct.knee_burden_ohm:.4g} ohm"],
+        ["accuracy", f"ratio error {ct.ratio_error_pct:+.4f} %, phase {ct.phase_error_deg * 60:+.2f} min at rated; "
+                     f"{ct.ratio_error_max_pct:+.4f} %, {ct.phase_error_max_deg * 60:+.2f} min at the top"],
+    ]
+
+
+def _flyback_rows(d: Design) -> list[list[str]]:
+    """A flyback's own figures (the Design's ``flyback`` and its gap)."""
+    fb = d.flyback
+    assert fb is not None
+    gap = d.inductor.gap_arrangement if d.inductor is not None else ""
+    return [
+        ["L_p, gap", f"{fb.inductance_h * 1e6:.4g} µH, gap {fb.gap_m * 1e3:.2f} mm ({gap})"],
+        ["reflected, switch", f"V_R {fb.reflected_voltage_v:.4g} V; V_in max + V_R = {fb.switch_voltage_v:.4g} V "
+                              f"before the leakage spike"],
+        ["power", f"{fb.output_power_w:.4g} W out (rectifier drops included), {fb.input_power_w:.4g} W in at "
+                  f"efficiency {fb.efficiency_estimate:g}"],
+        ["flux", f"B_pk {fb.b_peak_t:.3f} T, swing {fb.delta_b_t:.3f} T"],
+        ["clamp", f"{fb.clamp_energy_j * 1e6:.4g} µJ per cycle from the leakage, {fb.clamp_power_w:.3g} W at the "
+                  f"switching frequency"],
+        ["currents", "; ".join(f"{w.name} {w.peak_current_a:.3g} A peak, {w.rms_current_a:.3g} A rms"
+                               for w in fb.windings)],
+    ]

@@ -25,6 +25,8 @@ WINDING = {"name", "role", "turns", "voltage_v", "current_a", "wire", "strands",
 BUILD = {"height_mm", "available_mm", "ku", "fits"}
 LOSSES = {"copper_w", "core_w", "total_w"}
 CHECK = {"level", "code", "message"}
+CURRENT_TRANSFORMER = {"ratio", "burden_ohm", "ratio_error_pct", "phase_error_deg", "knee_burden_ohm"}
+FLYBACK = {"inductance_h", "gap_mm", "mode", "duty_max", "reflected_voltage_v", "delta_b_t", "leakage_inductance_h"}
 INDUCTOR = {"inductance_h", "inductance_at_full_bias_h", "gap_mm", "gap_arrangement", "al_nh", "energy_j",
             "h_dc_a_m", "rolloff_pct"}
 
@@ -54,7 +56,12 @@ def test_json_keys_are_stable(outputs, part):
     data = json.loads(r.stdout)
     assert TOP <= data.keys(), TOP - data.keys()
     assert data["part"] == part
-    assert data["kind"] in ("transformer", "inductor")
+    assert data["kind"] in ("transformer", "inductor", "current_transformer", "flyback")
+    if data["kind"] == "flyback":
+        assert FLYBACK <= data.keys(), FLYBACK - data.keys()
+        assert all(_number(w["peak_current_a"]) and _number(w["rms_current_a"]) for w in data["windings"])
+    if data["kind"] == "current_transformer":
+        assert CURRENT_TRANSFORMER <= data.keys(), CURRENT_TRANSFORMER - data.keys()
     assert CORE <= data["core"].keys()
     assert all(_number(data["core"][k]) for k in CORE - {"id"})
     assert data["windings"]
@@ -75,7 +82,7 @@ def test_json_keys_are_stable(outputs, part):
     if data["kind"] == "inductor":
         assert INDUCTOR <= data.keys(), INDUCTOR - data.keys()
         assert data["efficiency"] is None and data["regulation_pct"] is None
-    else:
+    elif data["kind"] == "transformer":
         assert _number(data["efficiency"]) and 0 < data["efficiency"] < 1
         assert _number(data["regulation_pct"])
     # exit code follows the checks: 1 when any fails, else 0

@@ -130,3 +130,53 @@ def test_output_voltage_ok_is_the_band():
     assert K.output_voltage_ok(13.0, 13.0, 0.0, 0.03) and K.output_voltage_ok(13.0, 13.39, 0.0, 0.03)
     assert not K.output_voltage_ok(13.0, 12.99, 0.0, 0.03) and not K.output_voltage_ok(13.0, 13.4, 0.0, 0.03)
     assert list(K.output_voltage_ok(np.array([6.0, 6.2]), np.array([6.1, 6.1]), 0.0, 0.03)) == [True, False]
+
+
+# -- bounded iterations and sanity: a requirement outside what the core can do ends in a located line
+CT_LIKE = """
+part: BH-T191
+title: current-transformer-like 1:100 into 1 ohm
+kind: transformer
+core: {id: T-NANO-25X16X10}
+operating: {frequency: 50 Hz, waveform: sine, ambient: 25 degC, insulation_class: 130}
+windings:
+  - {name: P, role: primary, voltage: 0.01 V, turns: 1, wire: CU-1.60-G2, start: "1", finish: "2"}
+  - {name: S, role: secondary, voltage: 1 V, current: 1 A, wire: auto, start: "3", finish: "4"}
+"""
+
+OVERFILLED = """
+part: BH-T192
+title: a toroid asked for far more than its hole holds
+kind: transformer
+core: {id: T-GO-60X35X20}
+operating: {frequency: 50 Hz, waveform: sine, ambient: 25 degC, insulation_class: 130}
+windings:
+  - {name: P, role: primary, voltage: 230 V, wire: auto, start: "1", finish: "2"}
+  - {name: S, role: secondary, voltage: 24 V, current: 8 A, wire: auto, start: "3", finish: "4"}
+"""
+
+
+def test_a_load_the_primary_cannot_carry_is_a_located_error_not_a_runaway(cat):
+    # old: the secondary turns ran away to 8.5e16 A and the report printed 'inf W'
+    with pytest.raises(SpecError) as err:
+        design_text(CT_LIKE, "ct.yaml", cat)
+    msg = str(err.value)
+    assert msg.startswith("ct.yaml:") and "windings[0].voltage" in msg and "resistance drop" in msg
+
+
+def test_an_overfilled_toroid_reports_only_finite_physical_numbers(cat):
+    import json
+    import math
+
+    d = design_text(OVERFILLED, "over.yaml", cat)
+    assert d.failed                                    # it does not fit: the fit check fails
+    text = json.dumps(d.to_dict(), allow_nan=False)   # raises on NaN or inf
+    assert d.build.hole_m is not None and d.build.hole_m >= 0.0
+    assert math.isfinite(d.build.fill_fraction)
+    c = _check(d, "S")
+    assert c.level == "fail" and ("not known" in c.message or "V at full load" in c.message)
+    assert "nan" not in text.lower() and "infinity" not in text.lower()
+    from specgen.report import design_report
+
+    report = design_report(d)                         # old: a traceback on the unknown full-load voltage
+    assert "nan" not in report and "inf W" not in report

@@ -127,7 +127,7 @@ def terminal_safe(text: str) -> str:
 
 def print_json(obj) -> None:
     # json escapes C0 controls itself; C1 controls and bidi overrides are escaped here (still valid JSON)
-    text = json.dumps(obj, indent=2, ensure_ascii=False, default=str)
+    text = json.dumps(obj, indent=2, ensure_ascii=False, default=str, allow_nan=False)
     typer.echo(_JSON_UNSAFE.sub(lambda m: f"\\u{ord(m.group()):04x}", text))
 
 

@@ -21,7 +21,7 @@ def design_output(spec: Any, catalog: Any, as_json: bool) -> tuple[str, bool]:
     if as_json:
         import json
 
-        return json.dumps(d.to_dict(), indent=2, ensure_ascii=False, default=str), bool(d.failed)
+        return json.dumps(d.to_dict(), indent=2, ensure_ascii=False, default=str, allow_nan=False), bool(d.failed)
     from ..report import design_report
 
     return design_report(d), bool(d.failed)

@@ -16,6 +16,7 @@ Order of work:
 
 from __future__ import annotations
 
+import math
 from typing import Any
 
 from ..catalog.models import Catalog
@@ -64,7 +65,37 @@ def design(spec: Spec, cat: Catalog) -> Design:
         ev = run.again(ev, temp)
         if settled:
             break
-    return finish(spec, cat, parts, kind, ev, temp, run.summary(ev, temp), iterations)
+    d = finish(spec, cat, parts, kind, ev, temp, run.summary(ev, temp), iterations)
+    _sane(spec, d)
+    return d
+
+
+# the largest figures a wound part of this shop can have; beyond them a design is a model out of its range
+SANE_CURRENT_A, SANE_VOLTAGE_V = 1e5, 1e6
+
+
+def _sane(spec: Spec, d: Design) -> None:
+    """Every number the Design reports is finite, and currents, losses, voltages and lengths lie in a physical
+    range; else a located one-line error (never NaN, inf or an absurd figure in an output)."""
+    def walk(x: object, path: str) -> None:
+        if isinstance(x, float) and not math.isfinite(x):
+            raise spec_error(spec, f"the design of {spec.part} gives a non-finite {path}: the requirement is "
+                                   f"outside what this tool models on core {spec.core_id}", "windings")
+        if isinstance(x, dict):
+            for k, v in x.items():
+                walk(v, f"{path}.{k}" if path else str(k))
+        elif isinstance(x, list):
+            for i, v in enumerate(x):
+                walk(v, f"{path}[{i}]")
+    walk(d.to_dict(), "")
+    for i, w in enumerate(d.windings):
+        bad = (w.current_a > SANE_CURRENT_A or w.length_m < 0
+               or (w.voltage_v is not None and not 0.0 <= w.voltage_v <= SANE_VOLTAGE_V))
+        if bad:
+            raise spec_error(spec, f"winding {w.name} comes out at {w.current_a:.3g} A, {w.voltage_v or 0.0:.3g} V, "
+                                   f"{w.copper_loss_w:.3g} W: the requirement is outside what core {spec.core_id} "
+                                   f"can carry", "windings", i)
+
 
 
 def _section_pins(w: Winding, k: int) -> tuple[str, str]:
@@ -137,10 +168,10 @@ def _build_result(parts: Parts, built: BuiltWindow, ku_num: float, bulge: float)
     former = parts.former
     bulged = built.height_m * bulge
     available = former.height_m
-    hole = former.id_m - 2.0 * bulged if former.kind == "toroid" else None
+    hole = max(0.0, former.id_m - 2.0 * bulged) if former.kind == "toroid" else None
     return Build(height_m=built.height_m, bulged_height_m=bulged, available_m=available,
                  ku=ku_num / parts.wa_m2 if parts.wa_m2 else 0.0, fits=built.ok and bulged <= available + 1e-12,
-                 fill_fraction=bulged / available if available > 0 else float("inf"), hole_m=hole)
+                 fill_fraction=bulged / available if available > 0 else 1e3, hole_m=hole)
 
 
 def finish(spec: Spec, cat: Catalog, parts: Parts, kind: PartKind, ev: Evaluation[Any], temp: ThermalState,
@@ -182,5 +213,6 @@ def finish(spec: Spec, cat: Catalog, parts: Parts, kind: PartKind, ev: Evaluatio
         temperature_rise_k=temp.rise_k, efficiency=s.efficiency, regulation_pct=s.regulation_pct,
         output_power_w=s.output_power_w, checks=tuple(checks), tests=tests, materials=tuple(materials),
         inductor=s.inductor, catalog_ids=catalog_ids(spec, parts, windings), iterations=iterations,
-        notes=spec.notes, history=spec.history,
+        notes=spec.notes, history=spec.history, current_transformer=s.current_transformer,
+        flyback=s.flyback,
     )

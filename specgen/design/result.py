@@ -171,6 +171,7 @@ class TestPlan:
     insulation_resistance_v: float
     insulation_resistance_min_ohm: float
     alpha_per_k: float               # for correcting a DCR reading to 20 degC
+    cautions: tuple[str, ...] = ()   # the kind's own safety cautions (an open CT secondary), on order and sheet
 
 
 @dataclass(frozen=True)
@@ -204,6 +205,62 @@ class InductorResult:
     ripple_a: float
     delta_b_t: float
     b_dc_t: float
+
+
+@dataclass(frozen=True)
+class CurrentTransformerResult:
+    """A current transformer's own figures (kind: current_transformer)."""
+    primary_current_a: float         # rated, rms
+    primary_current_max_a: float
+    primary_turns: int
+    secondary_turns: int
+    turns_ratio: float               # N_s / N_p
+    secondary_current_a: float       # at the rated primary current (ideal, I_p / n)
+    burden_ohm: float
+    winding_resistance_ohm: float    # secondary, hot
+    secondary_voltage_v: float       # at the rated primary current
+    magnetizing_inductance_h: float  # secondary side
+    magnetizing_current_a: float     # at the rated primary current
+    core_loss_current_a: float
+    ratio_error_pct: float
+    phase_error_deg: float
+    ratio_error_max_pct: float       # at the top of the primary range
+    phase_error_max_deg: float
+    knee_burden_ohm: float           # largest burden before B_sat (hot) at the top of the range
+    current_shape: str
+
+
+@dataclass(frozen=True)
+class FlybackWinding:
+    """One flyback winding's currents at the lowest input and full load."""
+    name: str
+    turns: int
+    peak_current_a: float
+    rms_current_a: float
+    dc_current_a: float              # the primary: its average input current; an output: its load current
+    output_voltage_v: float | None   # an output's voltage from whole turns (None for the primary)
+
+
+@dataclass(frozen=True)
+class FlybackResult:
+    """A flyback's own figures (kind: flyback)."""
+    mode: str                        # dcm | ccm at the lowest input, full load
+    mode_at_high_line: str
+    inductance_h: float              # L_p as built
+    gap_m: float
+    duty_max: float                  # at the lowest input
+    duty_min: float                  # at the highest input
+    reflected_voltage_v: float       # from whole turns
+    input_power_w: float
+    output_power_w: float
+    efficiency_estimate: float
+    b_peak_t: float                  # worst line, full load
+    delta_b_t: float
+    leakage_inductance_h: float      # referred to the primary, secondaries shorted
+    clamp_energy_j: float            # 1/2 L_lk I_pk^2 per cycle
+    clamp_power_w: float             # that energy x f (an RCD clamp dissipates more: x V_c / (V_c - V_R))
+    switch_voltage_v: float          # V_in max + V_R, before the leakage spike
+    windings: tuple[FlybackWinding, ...]
 
 
 @dataclass(frozen=True)
@@ -248,6 +305,8 @@ class Design:
     notes: str = ""
     history: tuple[Any, ...] = ()
     fingerprint: str = ""
+    current_transformer: CurrentTransformerResult | None = None
+    flyback: FlybackResult | None = None
 
     @property
     def failed(self) -> list[Check]:
@@ -318,7 +377,7 @@ class Design:
             "temperature_rise_k": self.temperature_rise_k, "efficiency": self.efficiency,
             "regulation_pct": self.regulation_pct, "output_power_w": self.output_power_w,
             "checks": [asdict(ch) for ch in self.checks],
-            "tests": _plain(asdict(self.tests)),
+            "tests": _tests_dict(self.tests),
             "materials": [asdict(m) for m in self.materials],
             "catalog_ids": list(self.catalog_ids),
         }
@@ -335,7 +394,43 @@ class Design:
                 "current_peak_a": i.current_peak_a, "ripple_a": i.ripple_a, "delta_b_t": i.delta_b_t,
                 "b_dc_t": i.b_dc_t,
             })
+        if self.current_transformer is not None:
+            ct = self.current_transformer
+            out.update({
+                "ratio": f"{ct.primary_turns}:{ct.secondary_turns}", "turns_ratio": ct.turns_ratio,
+                "primary_current_a": ct.primary_current_a, "primary_current_max_a": ct.primary_current_max_a,
+                "primary_turns": ct.primary_turns, "secondary_turns": ct.secondary_turns,
+                "secondary_current_a": ct.secondary_current_a, "burden_ohm": ct.burden_ohm,
+                "secondary_voltage_v": ct.secondary_voltage_v, "ratio_error_pct": ct.ratio_error_pct,
+                "phase_error_deg": ct.phase_error_deg, "ratio_error_max_pct": ct.ratio_error_max_pct,
+                "phase_error_max_deg": ct.phase_error_max_deg, "knee_burden_ohm": ct.knee_burden_ohm,
+                "core_loss_current_a": ct.core_loss_current_a, "current_shape": ct.current_shape,
+            })
+        if self.flyback is not None:
+            out.update(_flyback_dict(self.flyback))
+            per = {w.name: w for w in self.flyback.windings}
+            for w in out["windings"]:
+                fw = per[w["name"]]
+                w.update({"peak_current_a": fw.peak_current_a, "rms_current_a": fw.rms_current_a,
+                          "dc_current_a": fw.dc_current_a, "output_voltage_v": fw.output_voltage_v})
         return out
+
+
+def _flyback_dict(fb: FlybackResult) -> dict[str, Any]:
+    return {"mode": fb.mode, "mode_at_high_line": fb.mode_at_high_line, "inductance_h": fb.inductance_h,
+            "gap_mm": fb.gap_m * 1e3, "duty_max": fb.duty_max, "duty_min": fb.duty_min,
+            "reflected_voltage_v": fb.reflected_voltage_v, "input_power_w": fb.input_power_w,
+            "efficiency_estimate": fb.efficiency_estimate, "delta_b_t": fb.delta_b_t,
+            "leakage_inductance_h": fb.leakage_inductance_h, "clamp_energy_j": fb.clamp_energy_j,
+            "clamp_power_w": fb.clamp_power_w, "switch_voltage_v": fb.switch_voltage_v}
+
+
+def _tests_dict(tests: TestPlan) -> dict[str, Any]:
+    """The test plan as JSON; ``cautions`` only for the kinds that carry one (the other kinds' JSON unchanged)."""
+    out: dict[str, Any] = _plain(asdict(tests))
+    if not tests.cautions:
+        del out["cautions"]
+    return out
 
 
 def _plain(obj: Any) -> Any:

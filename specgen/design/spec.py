@@ -21,13 +21,17 @@ from __future__ import annotations
 
 import os
 from dataclasses import dataclass, field
-from typing import Any, cast
+from typing import TYPE_CHECKING, Any, cast
 
 from ..errors import SpecError
 from ..loading import Reader, first_unsafe_char, load_yaml, parse_yaml
 from .limits import MAX_TURNS
 from .vocab import Cooling, Waveform
 
+if TYPE_CHECKING:
+    from .flyback_spec import FlybackReq
+
+KINDS = ("transformer", "inductor", "current_transformer", "flyback")
 ROLES = ("primary", "secondary", "auxiliary", "shield", "main")
 WAVEFORMS = ("sine", "square", "unipolar")
 STATUSES = ("draft", "released", "obsolete")
@@ -91,6 +95,19 @@ class InductorReq:
 
 
 @dataclass(frozen=True)
+class CurrentTransformerReq:
+    """A current transformer's requirement (kind: current_transformer)."""
+    primary_current_a: float         # rated, rms
+    primary_current_max_a: float     # top of the range, rms (the knee and saturation are checked here)
+    primary_turns: int               # 1: a single conductor passed through the core (not wound here)
+    turns_ratio: float               # N_s / N_p
+    burden_ohm: float                # resistive burden
+    current_shape: str               # sine | dc_offset | unipolar
+    ratio_error_pct: float | None    # the accuracy wanted: |ratio error| at most this
+    phase_error_deg: float | None    # |phase displacement| at most this
+
+
+@dataclass(frozen=True)
 class Spec:
     file: str
     part: str
@@ -125,6 +142,8 @@ class Spec:
     notes: str
     history: tuple[dict[str, str], ...]
     data: Any = field(compare=False, repr=False, default_factory=dict)   # the parsed YAML, for fingerprints
+    current_transformer: CurrentTransformerReq | None = None
+    flyback: FlybackReq | None = None
 
     def winding(self, name: str) -> Winding:
         for w in self.windings:
@@ -208,7 +227,7 @@ def _section(r: Reader, key: str) -> Reader:
 
 def parse_spec(data: Any, name: str) -> Spec:
     r = Reader(data, name)
-    kind = r.choice("kind", ("transformer", "inductor"))
+    kind = r.choice("kind", KINDS)
     core = _section(r, "core")
     op = _section(r, "operating")
     waveform = cast(Waveform, op.choice("waveform", WAVEFORMS, "sine"))
@@ -250,7 +269,9 @@ def parse_spec(data: Any, name: str) -> Spec:
     if kind == "inductor":
         inductor = _inductor(_section(r, "inductor"), core)
     elif r.has("inductor"):
-        raise r.error("only an inductor has an 'inductor' section", "inductor")
+        raise r.error(f"'inductor' is not used by kind {kind}: only an inductor has an 'inductor' section", "inductor")
+    ct = _current_transformer_section(r, core, op, kind, windings, wreaders)
+    fb = _flyback_section(r, core, op, kind, windings, wreaders)
 
     stack = core.quantity("stack", "length", None)
     from ..part_numbers import part_number_problem
@@ -264,7 +285,7 @@ def parse_spec(data: Any, name: str) -> Spec:
         status=r.choice("status", STATUSES, "draft"), customer=r.text("customer", "", max_len=200),
         kind=kind, core_id=core.text("id"), stack_m=stack,
         core_count=core.integer("count", 1, minimum=1, maximum=8), bobbin_id=core.text("bobbin", None),
-        windings=windings, build_order=order, inductor=inductor,
+        windings=windings, build_order=order, inductor=inductor, current_transformer=ct, flyback=fb,
         notes=r.text("notes", "", max_len=5000), history=_history(r), data=data,
         frequency_hz=freq, waveform=waveform, duty=duty, ambient_c=ambient, cooling=cooling,
         insulation_class_c=cls, flux_limit_t=flux_limit_t, efficiency_guess=efficiency_guess,
@@ -309,7 +330,7 @@ def _check_windings(r: Reader, kind: str, windings: tuple[Winding, ...], wreader
             if w.role == "main":
                 raise wr.error("role 'main' is for inductors; a transformer's windings are primary, "
                                "secondary, auxiliary or shield", "role")
-    else:
+    elif kind == "inductor":
         if len(windings) != 1:
             raise r.error("an inductor here has exactly one winding (split it with sections: N)", "windings")
         if windings[0].voltage_tolerance is not None:
@@ -412,6 +433,38 @@ def _inductor(r: Reader, core: Reader) -> InductorReq:
     if req.current_peak_a is not None and req.current_peak_a < req.current_dc_a:
         raise r.error("current_peak is below the rated current", "current_peak")
     return req
+
+
+def _current_transformer_section(r: Reader, core: Reader, op: Reader, kind: str, windings: tuple[Winding, ...],
+                                 wreaders: list[Reader]) -> CurrentTransformerReq | None:
+    """The ``current_transformer`` section (only that kind has one; it has no gap)."""
+    if kind != "current_transformer":
+        if r.has("current_transformer"):
+            raise r.error(f"a {kind} has no 'current_transformer' section", "current_transformer")
+        return None
+    if core.has("gap") or core.has("gap_arrangement"):
+        key = "gap" if core.has("gap") else "gap_arrangement"
+        raise core.error(f"'{key}' is not used by kind current_transformer: a current transformer's core is not "
+                         f"gapped here", key)
+    from .ct_spec import UNUSED_OPERATING_KEYS, parse_current_transformer, refuse_unused
+
+    refuse_unused(op, UNUSED_OPERATING_KEYS)
+    return parse_current_transformer(_section(r, "current_transformer"), windings, wreaders)
+
+
+def _flyback_section(r: Reader, core: Reader, op: Reader, kind: str, windings: tuple[Winding, ...],
+                     wreaders: list[Reader]) -> FlybackReq | None:
+    """The ``flyback`` section (only that kind has one; its gap is found from L_p, not given)."""
+    if kind != "flyback":
+        if r.has("flyback"):
+            raise r.error(f"'flyback' is not used by kind {kind}", "flyback")
+        return None
+    if core.has("gap"):
+        raise core.error("'gap' is not used by kind flyback: the gap is found from the primary inductance", "gap")
+    from .flyback_spec import UNUSED_OPERATING_KEYS, parse_flyback, refuse_unused
+
+    refuse_unused(op, UNUSED_OPERATING_KEYS)
+    return parse_flyback(_section(r, "flyback"), core, windings, wreaders)
 
 
 def _history(r: Reader) -> tuple[dict[str, str], ...]:

@@ -16,7 +16,7 @@ from .vocab import CheckLevel, Cooling, FormerKind, GapArrangement, Waveform, Wi
 
 if TYPE_CHECKING:
     from ..catalog.models import Bobbin, Catalog, Core, Material, Wire
-    from .result import Build, Check, InductorResult, Layer, Limit, Losses, WindingResult
+    from .result import Build, Check, CurrentTransformerResult, FlybackResult, InductorResult, Layer, Limit, Losses, WindingResult
     from .spec import Spec, Winding
 
 __all__ = ["CheckLevel", "Cooling", "FormerKind", "GapArrangement", "Waveform", "WireKind"]
@@ -192,6 +192,8 @@ class ElectricalSummary:
     ripple_rms: dict[str, tuple[float, float]] | None = None        # winding -> (DC, AC rms) currents
     dc_current_a: float = 0.0       # the DC part of the copper loss (a DC choke), for the skin-depth check
     checks: tuple[Check, ...] = ()  # the kind's own, after the common checks
+    current_transformer: CurrentTransformerResult | None = None
+    flyback: FlybackResult | None = None
 
 
 @dataclass(frozen=True, slots=True)
@@ -216,3 +218,4 @@ class KindTests:
     open_circuit: tuple[Limit, ...] = ()
     inductance: tuple[Limit, ...] = ()
     polarity: tuple[str, ...] = ()
+    cautions: tuple[str, ...] = ()  # safety cautions the kind adds to the work order and the test sheet

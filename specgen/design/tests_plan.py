@@ -75,7 +75,8 @@ def test_plan(state: DesignState, kind: KindTests) -> TestPlan:
     ir = shop.insulation_resistance
     return TestPlan(dcr=dcr, ratio=kind.ratio, open_circuit=kind.open_circuit, inductance=kind.inductance,
                     polarity=kind.polarity, hipot=tuple(hipot), insulation_resistance_v=ir["voltage_v"],
-                    insulation_resistance_min_ohm=ir["minimum_ohm"], alpha_per_k=wiremod.ALPHA20_CU_PER_K)
+                    insulation_resistance_min_ohm=ir["minimum_ohm"], alpha_per_k=wiremod.ALPHA20_CU_PER_K,
+                    cautions=kind.cautions)
 
 
 def materials_per_unit(state: DesignState, core: CoreResult) -> list[MaterialLine]:

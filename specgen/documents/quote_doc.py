@@ -70,6 +70,21 @@ def _weeks(seconds: float | None) -> str:
     return f"{seconds / 86400:.0f} days"
 
 
+def _ct_ratings(ct, freq: str) -> list[Rating]:
+    """A current transformer's guaranteed figures: ratio, currents, burden, accuracy (from the Design)."""
+    return [
+        Rating("Ratio", f"{ct.primary_turns}:{ct.secondary_turns}",
+               "single primary conductor through the core" if ct.primary_turns == 1 else "wound primary"),
+        Rating("Rated primary current", f"{_num(ct.primary_current_a, 'A')}, up to {_num(ct.primary_current_max_a, 'A')}",
+               f"{freq}, sine"),
+        Rating("Rated burden", f"{_num(ct.burden_ohm, 'ohm')}, secondary {_num(ct.secondary_current_a, 'A')}",
+               f"knee burden {_num(ct.knee_burden_ohm, 'ohm')}"),
+        Rating("Accuracy", f"ratio error within {max(abs(ct.ratio_error_pct), abs(ct.ratio_error_max_pct)):.2g} %, "
+                           f"phase within {max(abs(ct.phase_error_deg), abs(ct.phase_error_max_deg)) * 60:.2g} min",
+               "calculated, at the rated burden over the current range"),
+    ]
+
+
 def ratings(design) -> list[Rating]:
     """What the shop guarantees, read from the Design: voltages, VA, inductance, DCR, hipot, class."""
     from .workorder import fmt_henry, fmt_ohm, fmt_test_volt
@@ -82,18 +97,29 @@ def ratings(design) -> list[Rating]:
         top = f", up to {_num(prim.voltage_max_v, 'V')}" if prim.voltage_max_v and \
             prim.voltage_max_v > prim.voltage_v * 1.0005 else ""
         out.append(Rating(f"Input ({prim.name})", f"{_num(prim.voltage_v, 'V')}{top}", f"{freq}, {d.waveform}"))
+    ct = getattr(d, "current_transformer", None)
+    if ct is not None:
+        out += _ct_ratings(ct, freq)
     ocv = {lim.item: lim for lim in d.tests.open_circuit}
     for w in d.windings:
-        if w.role not in ("secondary", "auxiliary") or not w.voltage_v:
+        if ct is not None or d.flyback is not None or w.role not in ("secondary", "auxiliary") or not w.voltage_v:
             continue
         value = f"{_num(w.voltage_v, 'V')} at {_num(w.current_a, 'A')} (full load)"
         lim = ocv.get(w.name)
         if lim is not None and lim.low is not None and lim.high is not None:
             value += f"; {_num(lim.low, 'V')} to {_num(lim.high, 'V')} (no load)"
         out.append(Rating(f"Output {w.name}", value, "at rated input"))
-    if d.output_power_w and d.kind != "inductor":
+    if d.output_power_w and d.kind not in ("inductor", "current_transformer", "flyback"):
         out.append(Rating("Rated output", _num(d.output_power_w, "VA"), f"continuous, ambient up to {d.ambient_c:g} °C"))
-    if d.inductor is not None:
+    if d.flyback is not None:
+        fb = d.flyback
+        for fw in fb.windings:
+            if fw.output_voltage_v is not None:
+                out.append(Rating(f"Output {fw.name}", f"{_num(fw.output_voltage_v, 'V')} at {_num(fw.dc_current_a, 'A')} "
+                                                       f"DC", "rectified, from the turns ratio, full load"))
+        out.append(Rating("Primary inductance", f"{fmt_henry(fb.inductance_h)}", f"{freq} switching, "
+                                                                            f"{fb.mode.upper()} at the lowest input"))
+    if d.inductor is not None and d.flyback is None:
         ind = d.inductor
         out.append(Rating("Rated current", f"{_num(ind.current_dc_a, 'A')} DC",
                           f"{_num(ind.ripple_a, 'A')} peak-to-peak ripple at {freq}" if ind.ripple_a else ""))

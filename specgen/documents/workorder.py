@@ -439,7 +439,7 @@ def build_context(design, cat, *, number: str, qty: int, due: str | None = None,
     # ---- tests
     t = d.tests
     dcr = [_limit_row(l, fmt_ohm) for l in t.dcr]
-    ratio = [_limit_row(l, fmt_ratio) for l in t.ratio]
+    ratio = [_limit_row(l, fmt_ratio if l.unit == ":1" else lambda v: fmt_eng(v, "A")) for l in t.ratio]
     ocv = [_limit_row(l, fmt_volt) for l in t.open_circuit]
     inductance = [_limit_row(l, _inductance_fmt(l)) for l in t.inductance]
     hipot = [{"between": h.between, "rating": h.rating, "working": fmt_test_volt(h.working_voltage_v),
@@ -458,7 +458,7 @@ def build_context(design, cat, *, number: str, qty: int, due: str | None = None,
         "hipot": hipot, "alpha": f"{t.alpha_per_k:g}", "formula": DCR_FORMULA,
         "ir_voltage": f"{t.insulation_resistance_v:.0f} V d.c.",
         "ir_min": fmt_eng(t.insulation_resistance_min_ohm, "Ω", 3),
-        "columns": columns, "serials": serials,
+        "columns": columns, "serials": serials, "cautions": list(t.cautions),
     }
     history = []
     for e in d.history or ():

@@ -13,6 +13,8 @@ from __future__ import annotations
 
 from ..state import KindTests
 from .base import KindRun, PartKind
+from .current_transformer import CurrentTransformerKind
+from .flyback import FlybackKind
 from .inductor import InductorKind
 from .transformer import TransformerKind
 
@@ -42,3 +44,5 @@ def kind_names() -> tuple[str, ...]:
 
 register(TransformerKind())
 register(InductorKind())
+register(CurrentTransformerKind())
+register(FlybackKind())

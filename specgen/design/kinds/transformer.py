@@ -149,6 +149,7 @@ class TransformerRun:
         prim, vp = self.prim, self.vp
         built: BuiltWindow | None = None
         loaded: dict[str, float] = {}
+        before: dict[str, float] = {}         # each output's loaded voltage before its last raise
         for _ in range(12):
             built = lay_out(spec, parts, states, self.cat)
             if not built.ok:
@@ -167,6 +168,12 @@ class TransformerRun:
             # to the leakage instead, which the converter's duty absorbs)
             x_lk = (2.0 * math.pi * spec.frequency_hz * leakage_h(built, parts.former, _balanced(spec, states, np_turns),
                                                                   prim.name)) if spec.waveform == "sine" else 0.0
+            volts_per_turn = (vp - i_ref * rp) / np_turns
+            if not volts_per_turn > 0.0:
+                raise spec_error(spec, f"the primary's own resistance drop ({i_ref * rp:.3g} V at {i_ref:.3g} A) "
+                                       f"reaches its {vp:g} V: the outputs cannot be delivered through "
+                                       f"{np_turns} primary turns on core {spec.core_id}", "windings",
+                                 spec.windings.index(prim), "voltage")
             for w in self.loads:
                 st = states[w.name]
                 rs = _dcr(st, lengths[w.name], temp.hot_c)
@@ -177,9 +184,18 @@ class TransformerRun:
                 v_loaded = math.sqrt(max(e * e - x_drop * x_drop, 0.0)) - st.current_a * rs
                 loaded[w.name] = v_loaded
                 want = self.lowest_v(w)
-                if w.turns is None and v_loaded < want - 1e-9 and st.turns <= K.MAX_TURNS:
-                    volts_per_turn = (vp - i_ref * rp) / np_turns
+                if w.turns is None and v_loaded < want - 1e-9:
+                    if w.name in before and v_loaded <= before[w.name] + 1e-12:
+                        # each added turn drops more in the winding's own resistance than it induces
+                        raise spec_error(spec, f"winding {w.name} cannot reach {want:.4g} V at {st.current_a:g} A: "
+                                               f"with {st.turns} turns it delivers {v_loaded:.4g} V and more turns "
+                                               f"add more drop than voltage on core {spec.core_id}", "windings",
+                                         st.index, "voltage")
+                    before[w.name] = v_loaded
                     add = max(1, math.ceil((want - v_loaded) / volts_per_turn - 1e-9))
+                    if st.turns + add > K.MAX_TURNS:
+                        raise too_many_turns(spec, st.turns + add, f"winding {w.name} at {w.voltage_v:g} V",
+                                             "windings", st.index, "voltage")
                     states[w.name], changed = replace(st, turns=st.turns + add), True
             for w in self.loads:      # matched pairs wind the larger of their two turn counts
                 if w.match and states[w.match].turns != states[w.name].turns:
@@ -309,7 +325,11 @@ class TransformerRun:
     def voltage_check(self, w: Winding, p: TransformerPass) -> Check:
         """Output voltage: asked, delivered at full load and open circuit, against the winding's tolerance."""
         asked, tol = w.voltage_v or 0.0, self.tolerance(w)
-        got, oc = p.loaded_v.get(w.name, 0.0), p.open_v.get(w.name, 0.0)
+        got, oc = p.loaded_v.get(w.name), p.open_v.get(w.name, 0.0)
+        if got is None:
+            return Check("fail", "output-voltage", f"winding {w.name}: the full-load voltage is not known because the "
+                                                   f"build does not fit (see the fit check); {oc:.3f} V open circuit "
+                                                   f"against {_band(asked, tol)}")
         said = f"winding {w.name}: {got:.3f} V at full load ({oc:.3f} V open circuit) against {_band(asked, tol)}"
         if K.output_voltage_ok(asked, got, *tol):
             return Check("pass", "output-voltage", said)
