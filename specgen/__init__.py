@@ -92,7 +92,7 @@ def search_designs(requirement: Any, catalog: Catalog | None = None, **options: 
     parsed ``Requirement`` (``specgen.search.search`` options: top, sort, per_core, part)."""
     from . import search as _search
 
-    req = _search.load_requirement(requirement) if isinstance(requirement, (str, os.PathLike)) else requirement
+    req = _search.load_requirement(os.fspath(requirement)) if isinstance(requirement, (str, os.PathLike)) else requirement
     return _search.search(req, catalog if catalog is not None else load_catalog(), **options)
 
 

@@ -244,6 +244,7 @@ def _limit_rows(prefix: str, lim) -> list:
             (f"{prefix} high limit", lim.high, unit)]
 
 
+# long: one flat list of every compared figure, in the order the change summary prints them
 def shop_results(d, costs: Mapping[str, tuple] | None = None) -> dict[tuple[str, str], tuple[Any, str]]:
     """``{(group, quantity): (value, unit)}`` of everything a change summary compares."""
     out: dict[tuple[str, str], tuple[Any, str]] = {}

@@ -29,6 +29,7 @@ def waveform_text(d: Design) -> str:
     return d.waveform
 
 
+# long: the terminal report, section by section in print order
 def design_report(d: Design) -> str:
     c = d.core
     out = []

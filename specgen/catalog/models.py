@@ -8,9 +8,11 @@ from __future__ import annotations
 
 import math
 from collections.abc import Iterator, Mapping
-from dataclasses import dataclass, field
+from dataclasses import field
 from decimal import Decimal
 from typing import Any
+
+from ..records import record
 
 WIRE_KINDS = ("round", "litz", "foil", "strip", "tiw")
 CORE_SHAPES = ("EI", "toroid", "E", "ETD", "EFD", "PQ", "RM", "POT")
@@ -18,7 +20,7 @@ MATERIAL_FAMILIES = ("silicon_steel_no", "silicon_steel_go", "ferrite", "iron_po
                      "alloy_powder", "amorphous", "nanocrystalline")
 
 
-@dataclass(frozen=True)
+@record
 class Wire:
     id: str
     kind: str                      # round | litz | foil | strip | tiw
@@ -57,7 +59,7 @@ class Wire:
         return self.strand_area_m2 * self.strands
 
 
-@dataclass(frozen=True)
+@record
 class Material:
     id: str
     name: str
@@ -100,7 +102,7 @@ class Material:
         return self.family in ("silicon_steel_no", "silicon_steel_go", "amorphous", "nanocrystalline")
 
 
-@dataclass(frozen=True)
+@record
 class Core:
     id: str
     shape: str                     # EI | toroid | E | ETD | EFD | PQ | RM | POT
@@ -123,7 +125,7 @@ class Core:
         return self.shape == "toroid"
 
 
-@dataclass(frozen=True)
+@record
 class Bobbin:
     id: str
     core: str                      # Core id it fits
@@ -144,7 +146,7 @@ class Bobbin:
     raw: dict = field(default_factory=dict, compare=False, repr=False)
 
 
-@dataclass(frozen=True)
+@record
 class Tape:
     id: str
     name: str
@@ -157,7 +159,7 @@ class Tape:
     raw: dict = field(default_factory=dict, compare=False, repr=False)
 
 
-@dataclass(frozen=True)
+@record
 class Sleeving:
     id: str
     name: str
@@ -170,7 +172,7 @@ class Sleeving:
     raw: dict = field(default_factory=dict, compare=False, repr=False)
 
 
-@dataclass(frozen=True)
+@record
 class Varnish:
     id: str
     name: str
@@ -205,7 +207,7 @@ class _ByKey(Mapping[str, Any]):
         return sum(1 for _ in self)
 
 
-@dataclass(frozen=True)
+@record
 class CurrentDensities(_ByKey):
     """Design current density [A/m^2] per cooling case (``natural`` is required; the others fall back to it)."""
 
@@ -217,7 +219,7 @@ class CurrentDensities(_ByKey):
         return float(self.get(cooling, self.natural))
 
 
-@dataclass(frozen=True)
+@record
 class HipotFigures(_ByKey):
     """Dielectric (hipot) test figures: type-test voltages per insulation rating, durations, trip."""
 
@@ -231,13 +233,13 @@ class HipotFigures(_ByKey):
     trip_current_a: float
 
 
-@dataclass(frozen=True)
+@record
 class InsulationResistanceFigures(_ByKey):
     voltage_v: float                  # d.c. test voltage
     minimum_ohm: float
 
 
-@dataclass(frozen=True)
+@record
 class Tolerances(_ByKey):
     """Test limits as fractions of the nominal (0.1 = +-10 %)."""
 
@@ -247,7 +249,7 @@ class Tolerances(_ByKey):
     open_circuit_voltage: float
 
 
-@dataclass(frozen=True)
+@record
 class LaborFigures:
     """The quote's time model (shop.yaml ``labor``): winder speeds, factors, times in seconds.
 
@@ -270,7 +272,7 @@ class LaborFigures:
     test_s: Decimal
 
 
-@dataclass(frozen=True)
+@record
 class Shop:
     name: str
     currency: str
@@ -298,7 +300,7 @@ class Shop:
     documents: ShopDocuments = field(default_factory=lambda: ShopDocuments())
 
 
-@dataclass(frozen=True)
+@record
 class Catalog:
     """The whole stock, by id. Built by ``catalog.loader.load_catalog``."""
 
@@ -347,7 +349,7 @@ class Catalog:
 PAPER_SIZES_M = {"A4": (0.210, 0.297), "Letter": (0.2159, 0.2794)}
 
 
-@dataclass(frozen=True)
+@record
 class Party:
     """A postal address block: the shop's own, or a customer's (catalogue customers.yaml)."""
 
@@ -360,7 +362,7 @@ class Party:
     raw: dict = field(default_factory=dict, compare=False, repr=False)
 
 
-@dataclass(frozen=True)
+@record
 class BuyBreak:
     """A supplier's price break on what one lot buys of one stock item: from ``threshold`` up, ``discount`` off."""
 
@@ -368,7 +370,7 @@ class BuyBreak:
     discount: Decimal              # fraction off the catalogue price
 
 
-@dataclass(frozen=True)
+@record
 class QuoteTerms:
     """shop.quote_terms: lead time, payment, delivery, who signs, and what makes a larger lot cheaper."""
 
@@ -384,7 +386,7 @@ class QuoteTerms:
     breaks_by_count: tuple = ()                # BuyBreaks on pieces/sets of one core or bobbin in the lot
 
 
-@dataclass(frozen=True)
+@record
 class ShopDocuments:
     """shop.paper, shop.address and shop.quote_terms, typed."""
 

@@ -91,7 +91,8 @@ def pipe_safe_output() -> Iterator[None]:
         yield
     finally:
         with contextlib.suppress(Exception):
-            sys.stdout.flush()
+            if sys.stdout is not None:
+                sys.stdout.flush()
         sys.stdout, sys.stderr = saved
 
 

@@ -16,6 +16,7 @@ from ._common import guarded, print_json
 from .options import CatalogOpt, JsonOpt
 
 
+# long: the four commands are nested here so they are built only when the root app mounts them
 def register(app) -> None:
     """Add ``release``, ``verify``, ``diff`` and ``new`` to the root Typer app."""
 

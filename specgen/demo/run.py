@@ -77,10 +77,11 @@ def run_demo(out: Path, catalog=None, echo=print) -> dict:
                      json.dumps(lib.result_json(result, cat.shop.currency), indent=2, ensure_ascii=False,
                                 default=str) + "\n")
         if result.top:
-            best = result.top[0].design
+            best, cost = result.top[0].design, result.top[0].cost
+            assert best is not None and cost is not None      # the top list holds confirmed candidates only
             echo(f"{req_path.stem:8} best of {len(result.top)}: {best.core.id}, {best.losses.total_w:.2f} W, "
                  f"hot spot {best.hot_spot_c:.0f} °C, material {cat.shop.currency} "
-                 f"{result.top[0].cost.quantize(Decimal('0.01'), ROUND_HALF_UP)}")
+                 f"{cost.quantize(Decimal('0.01'), ROUND_HALF_UP)}")
         else:
             echo(f"{req_path.stem:8} nothing in the catalogue fits (reasons in search/{req_path.stem}.txt)")
 

@@ -5,20 +5,21 @@ All values SI floats (temperatures degC). ``Design.to_dict()`` is the stable JSO
 
 from __future__ import annotations
 
-from dataclasses import asdict, dataclass
+from dataclasses import asdict
 from typing import Any
 
+from ..records import record
 from .vocab import CheckLevel
 
 
-@dataclass(frozen=True)
+@record
 class Check:
     level: CheckLevel   # pass | warn | fail
     code: str        # stable identifier, e.g. 'saturation', 'fit'
     message: str     # one plain sentence a shop engineer acts on
 
 
-@dataclass(frozen=True)
+@record
 class Layer:
     index: int                 # 1-based within its section
     turns: int
@@ -28,7 +29,7 @@ class Layer:
     turns_capacity: int        # how many turns this layer holds (the last may be partial)
 
 
-@dataclass(frozen=True)
+@record
 class Section:
     winding: str
     index: int                 # 1..sections of its winding
@@ -50,7 +51,7 @@ class Section:
     margin_tape: str | None = None   # built up in the margins each side
 
 
-@dataclass(frozen=True)
+@record
 class WindingResult:
     name: str
     role: str
@@ -89,7 +90,7 @@ class WindingResult:
     voltage_error_pct: float | None = None
 
 
-@dataclass(frozen=True)
+@record
 class CoreResult:
     id: str
     shape: str
@@ -115,7 +116,7 @@ class CoreResult:
     surface_area_m2: float
 
 
-@dataclass(frozen=True)
+@record
 class Build:
     height_m: float                  # sum of layers, tapes and wraps
     bulged_height_m: float           # x the shop's bulge factor
@@ -126,7 +127,7 @@ class Build:
     hole_m: float | None             # toroid: hole left for the shuttle
 
 
-@dataclass(frozen=True)
+@record
 class Losses:
     copper_w: float
     core_w: float
@@ -134,7 +135,7 @@ class Losses:
     core_loss_density_w_m3: float
 
 
-@dataclass(frozen=True)
+@record
 class HipotTest:
     between: str                     # "P - S1+S2", "all windings - core"
     a: str
@@ -149,7 +150,7 @@ class HipotTest:
     basis: str
 
 
-@dataclass(frozen=True)
+@record
 class Limit:
     name: str                        # what is measured
     item: str                        # winding or pair
@@ -160,7 +161,7 @@ class Limit:
     condition: str
 
 
-@dataclass(frozen=True)
+@record
 class TestPlan:
     dcr: tuple[Limit, ...]           # at 20 degC
     ratio: tuple[Limit, ...]         # Np/Ns
@@ -174,7 +175,7 @@ class TestPlan:
     cautions: tuple[str, ...] = ()   # the kind's own safety cautions (an open CT secondary), on order and sheet
 
 
-@dataclass(frozen=True)
+@record
 class MaterialLine:
     kind: str                        # core | laminations | bobbin | clip | wire | tape | sleeving | varnish
     id: str
@@ -185,7 +186,7 @@ class MaterialLine:
     note: str = ""
 
 
-@dataclass(frozen=True)
+@record
 class InductorResult:
     inductance_h: float              # as built, at the rated current (powder: at full bias)
     inductance_zero_bias_h: float
@@ -207,7 +208,7 @@ class InductorResult:
     b_dc_t: float
 
 
-@dataclass(frozen=True)
+@record
 class CurrentTransformerResult:
     """A current transformer's own figures (kind: current_transformer)."""
     primary_current_a: float         # rated, rms
@@ -230,7 +231,7 @@ class CurrentTransformerResult:
     current_shape: str
 
 
-@dataclass(frozen=True)
+@record
 class FlybackWinding:
     """One flyback winding's currents at the lowest input and full load."""
     name: str
@@ -241,7 +242,7 @@ class FlybackWinding:
     output_voltage_v: float | None   # an output's voltage from whole turns (None for the primary)
 
 
-@dataclass(frozen=True)
+@record
 class FlybackResult:
     """A flyback's own figures (kind: flyback)."""
     mode: str                        # dcm | ccm at the lowest input, full load
@@ -263,7 +264,7 @@ class FlybackResult:
     windings: tuple[FlybackWinding, ...]
 
 
-@dataclass(frozen=True)
+@record
 class Design:
     part: str
     title: str
@@ -322,6 +323,7 @@ class Design:
                 return w
         raise KeyError(name)
 
+    # long: the JSON document key by key, in the order it is read
     def to_dict(self) -> dict[str, Any]:
         """The stable JSON (``specgen design --json``); shop units appear only in key names."""
         c = self.core

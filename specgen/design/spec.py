@@ -20,11 +20,12 @@ The format (see DEVELOPERS.md and ``specgen new``)::
 from __future__ import annotations
 
 import os
-from dataclasses import dataclass, field
+from dataclasses import field
 from typing import TYPE_CHECKING, Any, cast
 
 from ..errors import SpecError
 from ..loading import Reader, first_unsafe_char, load_yaml, parse_yaml
+from ..records import record
 from .limits import MAX_TURNS
 from .vocab import Cooling, Waveform
 
@@ -40,13 +41,13 @@ RATINGS = ("functional", "basic", "supplementary", "double", "reinforced")
 _VOLTAGE_SPAN = 4.0      # voltage_max / nominal and nominal / voltage_min at most this
 
 
-@dataclass(frozen=True)
+@record
 class TapeUse:
     tape: str            # catalogue id
     layers: int
 
 
-@dataclass(frozen=True)
+@record
 class Barrier:
     """The insulation required between two windings, or a winding and the core."""
     a: str               # winding name
@@ -56,7 +57,7 @@ class Barrier:
     line: int | None = None
 
 
-@dataclass(frozen=True)
+@record
 class Winding:
     name: str
     role: str
@@ -81,7 +82,7 @@ class Winding:
     path: str = ""
 
 
-@dataclass(frozen=True)
+@record
 class InductorReq:
     inductance_h: float | None       # at full DC current
     current_dc_a: float              # DC (choke) or rms (AC reactor)
@@ -94,7 +95,7 @@ class InductorReq:
     gap_arrangement: str             # centre | spacer | none
 
 
-@dataclass(frozen=True)
+@record
 class CurrentTransformerReq:
     """A current transformer's requirement (kind: current_transformer)."""
     primary_current_a: float         # rated, rms
@@ -107,7 +108,7 @@ class CurrentTransformerReq:
     phase_error_deg: float | None    # |phase displacement| at most this
 
 
-@dataclass(frozen=True)
+@record
 class Spec:
     file: str
     part: str
@@ -232,7 +233,7 @@ def parse_spec(data: Any, name: str) -> Spec:
     op = _section(r, "operating")
     waveform = cast(Waveform, op.choice("waveform", WAVEFORMS, "sine"))
     ins_class = op.raw("insulation_class", 130)
-    cls = _insulation_class(op, ins_class)
+    cls = insulation_class(op, ins_class)
     freq = op.quantity("frequency", "frequency")
     if freq > 50e6:
         raise op.error("frequency above 50 MHz is outside what this tool models", "frequency")
@@ -346,8 +347,8 @@ def _check_windings(r: Reader, kind: str, windings: tuple[Winding, ...], wreader
                 raise wr.error(f"only a winding of the same role and voltage can match {w.match}", "match")
 
 
-def _insulation_class(r: Reader, value: object, table: object = None) -> int:
-    """The IEC 60085 class limit [degC] of ``value`` (``table`` is ignored; kept for old callers)."""
+def insulation_class(r: Reader, value: object) -> int:
+    """The IEC 60085 class limit [degC] of ``value``, a mistake located at ``insulation_class`` under ``r``."""
     from ..standards.thermal_classes import parse_thermal_class
 
     try:

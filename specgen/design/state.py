@@ -8,10 +8,11 @@ record the checks and the test plan read (``DesignState``). Nothing here compute
 
 from __future__ import annotations
 
-from dataclasses import dataclass, field
+from dataclasses import field
 from typing import TYPE_CHECKING, Generic, TypeVar
 
 from ..physics import geometry
+from ..records import record
 from .vocab import CheckLevel, Cooling, FormerKind, GapArrangement, Waveform, WireKind
 
 if TYPE_CHECKING:
@@ -22,7 +23,7 @@ if TYPE_CHECKING:
 __all__ = ["CheckLevel", "Cooling", "FormerKind", "GapArrangement", "Waveform", "WireKind"]
 
 
-@dataclass(frozen=True, slots=True)
+@record(slots=True)
 class Former:
     """What the winding is laid on: a bobbin's tube (rect or round) or a toroid's coated core."""
     kind: FormerKind
@@ -44,7 +45,7 @@ class Former:
         return float(geometry.toroid_turn_length_m(self.od_m, self.id_m, self.core_height_m, build_to_centre_m))
 
 
-@dataclass(frozen=True, slots=True)
+@record(slots=True)
 class Parts:
     """The catalogue entries one spec resolved to, and the core's effective parameters."""
     core: Core
@@ -62,27 +63,27 @@ class Parts:
     surface_m2: float
 
 
-@dataclass(frozen=True, slots=True)
+@record(slots=True)
 class FluxLimit:
     value_t: float
     basis: str                   # plain words: where the limit comes from
 
 
-@dataclass(frozen=True, slots=True)
+@record(slots=True)
 class ThermalState:
     winding_c: float             # mean winding temperature
     hot_c: float                 # hot spot: the winding plus the shop's margin
     rise_k: float
 
 
-@dataclass(frozen=True, slots=True)
+@record(slots=True)
 class WireChoice:
     wire: Wire
     strands: int                 # in hand
     reason: str
 
 
-@dataclass(frozen=True, slots=True)
+@record(slots=True)
 class WindingState:
     """A winding at one step of the iteration (a new record, not an edit, when its turns change)."""
     spec: Winding
@@ -98,7 +99,7 @@ class WindingState:
         return self.spec.name
 
 
-@dataclass(frozen=True, slots=True)
+@record(slots=True)
 class SectionBuild:
     """One section laid on the former: its layers and the build it reaches."""
     turns_per_layer: int          # capacity of the first layer
@@ -110,7 +111,7 @@ class SectionBuild:
     usable_breadth_m: float       # bobbin: breadth less the margins; toroid: the first layer's circumference
 
 
-@dataclass(frozen=True, slots=True)
+@record(slots=True)
 class BuiltSection:
     winding: str                  # winding name
     index: int                    # 1..sections of its winding
@@ -121,7 +122,7 @@ class BuiltSection:
     tape_after_layers: int
 
 
-@dataclass(frozen=True, slots=True)
+@record(slots=True)
 class BuiltWindow:
     sections: tuple[BuiltSection, ...]
     height_m: float
@@ -132,7 +133,7 @@ class BuiltWindow:
         return tuple(s for s in self.sections if s.winding == winding)
 
 
-@dataclass(frozen=True, slots=True)
+@record(slots=True)
 class Magnetics:
     """An inductor's turns, gap and flux at one temperature."""
     turns: int
@@ -154,7 +155,7 @@ class Magnetics:
 D = TypeVar("D")
 
 
-@dataclass(frozen=True, slots=True)
+@record(slots=True)
 class Evaluation(Generic[D]):
     """One pass of a kind's calculation at a temperature: windings, build, AC factors and losses.
 
@@ -172,7 +173,7 @@ class Evaluation(Generic[D]):
         return self.copper_w + self.core_w
 
 
-@dataclass(frozen=True, slots=True)
+@record(slots=True)
 class ElectricalSummary:
     """The kind's figures that the Design, the checks and the test plan read."""
     b_peak_t: float
@@ -196,7 +197,7 @@ class ElectricalSummary:
     flyback: FlybackResult | None = None
 
 
-@dataclass(frozen=True, slots=True)
+@record(slots=True)
 class DesignState:
     """Everything the checks, the test plan and the materials read: one typed record."""
     spec: Spec
@@ -211,7 +212,7 @@ class DesignState:
     summary: ElectricalSummary
 
 
-@dataclass(frozen=True, slots=True)
+@record(slots=True)
 class KindTests:
     """A kind's own test-station limits (the DCR and hipot tests are common)."""
     ratio: tuple[Limit, ...] = ()

@@ -250,8 +250,9 @@ def _summary(rows: list, result: BatchResult, workers: int, where, echo) -> None
 
 
 def _new_pool(workers: int) -> ProcessPoolExecutor:
-    return ProcessPoolExecutor(max_workers=workers, max_tasks_per_child=TASKS_PER_WORKER,
-                               initializer=_die_with_parent, initargs=(os.getpid(),))
+    # workers are recycled from Python 3.11 (max_tasks_per_child); on 3.10 they live for the whole batch
+    recycle: dict = {"max_tasks_per_child": TASKS_PER_WORKER} if sys.version_info >= (3, 11) else {}
+    return ProcessPoolExecutor(max_workers=workers, initializer=_die_with_parent, initargs=(os.getpid(),), **recycle)
 
 
 def _render_all(ready: list, reg, cat, out: Path, workers: int, bar: _Progress, result: BatchResult,
@@ -261,7 +262,8 @@ def _render_all(ready: list, reg, cat, out: Path, workers: int, bar: _Progress, 
     A pool broken by a dying worker fails every job in flight; those rows are set aside and, once the
     rest is done, rendered again one at a time in a pool of one worker, where a death is the row's own.
     """
-    queue, suspects, alone = list(ready), [], False
+    queue, alone = list(ready), False
+    suspects: list = []
     pool = _new_pool(workers)
     try:
         while queue or suspects:
@@ -344,8 +346,8 @@ def bench_batch(n_small: int = 20, n_big: int = 200, n_speed: int = 40) -> dict:
     specs = sorted(demo.glob("BH-*.yaml"))
 
     def run(n: int, workers: int) -> tuple[float, float]:
-        with tempfile.TemporaryDirectory() as tmp:
-            tmp = Path(tmp)
+        with tempfile.TemporaryDirectory() as tmp_name:
+            tmp = Path(tmp_name)
             lines = ["spec,qty,due,lot"] + [f"{specs[i % len(specs)]},{10 + i},,B{i:04d}" for i in range(n)]
             (tmp / "orders.csv").write_text("\n".join(lines) + "\n")
             code = ("import resource, sys, time\n"

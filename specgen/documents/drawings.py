@@ -93,6 +93,7 @@ def pin_layout(pins: list, rows: int) -> dict:
     return out
 
 
+# long: one SVG drawn top to bottom, a block per visible element
 def pin_diagram(pins: list, rows: int, coils: list, dots: dict, *, leads: bool = False,
                 width_mm: float = 170.0) -> Markup:
     """The pin and polarity diagram.
@@ -292,6 +293,7 @@ def scale_text(scale: float) -> str:
     return f"1:{1 / scale:g}"
 
 
+# long: one SVG drawn top to bottom, a block per visible element
 def window_section(breadth_m: float, available_m: float, bulged_m: float, sections: list, *,
                    max_w_mm: float = 112.0, max_h_mm: float = 95.0) -> tuple:
     """Cross-section of a bobbin window to scale: (svg, scale).
@@ -395,6 +397,7 @@ def window_section(breadth_m: float, available_m: float, bulged_m: float, sectio
     return _svg(width_mm, height, body, "window cross-section to scale", "window-section"), s
 
 
+# long: one SVG drawn top to bottom, a block per visible element
 def toroid_sector(core_id_m: float, core_od_m: float, coating_m: float, available_m: float, bulged_m: float,
                   sections: list, *, angle_deg: float = 22.0, max_w_mm: float = 105.0,
                   max_h_mm: float = 88.0) -> tuple:

@@ -276,6 +276,7 @@ def marking_step(d, n: int, number: str) -> dict:
             "dot": ""}
 
 
+# long: the template's context key by key (to split by page section)
 def build_context(design, cat, *, number: str, qty: int, due: str | None = None, lot: str | None = None,
                   issued: str | None = None, issued_by: str | None = None, draft: bool = False) -> dict:
     """Everything the work-order template shows, as plain dicts and strings (SVG as Markup)."""

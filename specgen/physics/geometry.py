@@ -292,7 +292,9 @@ def _need(shape: str, dims: dict[str, float], key: str) -> float:
         raise ValueError(f"{shape} core needs dimension {key!r}") from None
 
 
-def _ei_dims(dims: dict[str, float]) -> dict[str, float]:
+def ei_dims(dims: dict[str, float]) -> dict[str, float]:
+    """An EI lamination's tongue, window and leg sizes [m] from its catalogue ``dims`` (the ones not given
+    follow the scrapless proportions: window a/2 x 1.5a, outer legs and yoke a/2, for a tongue a)."""
     a = _need("EI", dims, "tongue")
     return {
         "tongue": a,
@@ -338,7 +340,7 @@ def core_effective(shape: str, dims: dict[str, float], stack_m: float | None = N
     if s == "EI":
         if stack_m is None:
             raise ValueError("EI core needs stack_m")
-        d = _ei_dims(dims)
+        d = ei_dims(dims)
         return ei_effective(d["tongue"], stack_m, k, d["window_width"], d["window_height"],
                             d["leg"], d["yoke"])
     if stack_m is not None and s != "TOROID":
@@ -409,7 +411,7 @@ def window_height_m(shape: str, dims: dict[str, float]) -> float:
     """
     s = _shape(shape)
     if s == "EI":
-        return _ei_dims(dims)["window_width"]
+        return ei_dims(dims)["window_width"]
     if s == "TOROID":
         return _need(s, dims, "id") / 2.0
     if s in ("POT", "RM"):
@@ -430,7 +432,7 @@ def window_breadth_m(shape: str, dims: dict[str, float]) -> float:
     """
     s = _shape(shape)
     if s == "EI":
-        return _ei_dims(dims)["window_height"]
+        return ei_dims(dims)["window_height"]
     if s == "TOROID":
         return float(np.pi * _need(s, dims, "id"))
     return _need(s, dims, "window_height")
@@ -456,7 +458,7 @@ def outer_surface_area_m2(shape: str, dims: dict[str, float], stack_m: float | N
     """
     s = _shape(shape)
     if s == "EI":
-        d = _ei_dims(dims)
+        d = ei_dims(dims)
         if stack_m is None:
             raise ValueError("EI core needs stack_m")
         w = d["tongue"] + 2.0 * d["window_width"] + 2.0 * d["leg"]

@@ -347,7 +347,7 @@ def outline_m(core: Core, stack_m: float | None, bulged_build_m: float | FloatAr
     b = np.asarray(bulged_build_m, dtype=float)
     dims: tuple[float | FloatArray, ...]
     if s == "EI":
-        e = geometry._ei_dims(d)
+        e = geometry.ei_dims(d)
         dims = (e["tongue"] + 2 * e["window_width"] + 2 * e["leg"], e["window_height"] + 2 * e["yoke"],
                 (stack_m or 0.0) + 2 * e["window_width"])
     elif s == "toroid":

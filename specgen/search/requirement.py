@@ -150,7 +150,7 @@ class _Operating:
 
 
 def _operating(r: Reader, kind: str) -> _Operating:
-    from ..design.spec import COOLING, WAVEFORMS, _insulation_class
+    from ..design.spec import COOLING, WAVEFORMS, insulation_class
 
     op = r.mapping("operating")
     assert op is not None          # required key: Reader.mapping raises when it is missing
@@ -167,7 +167,7 @@ def _operating(r: Reader, kind: str) -> _Operating:
     if not -60.0 <= ambient <= 200.0:
         raise op.error(f"ambient {ambient:g} degC is outside -60..200 degC", "ambient")
     cooling = op.choice("cooling", COOLING, "natural")
-    cls = _insulation_class(op, op.raw("insulation_class", 130))
+    cls = insulation_class(op, op.raw("insulation_class", 130))
     max_rise = op.quantity("max_rise", "temperature_difference", None)
     if max_rise is not None and max_rise <= 0:
         raise op.error("max_rise must be above zero", "max_rise")

@@ -79,10 +79,10 @@ def layer_ac_factor_rows(g: K.WireGeometry, turns_in_layer: Any, usable_m: Any, 
     strand-layer axis."""
     shape = np.broadcast_shapes(np.shape(turns_in_layer), np.shape(usable_m), np.shape(skin_depth),
                                 np.shape(f_inner), np.shape(f_outer), np.shape(g.kind))
-    eta = K._layer_porosity(g, turns_in_layer, usable_m)[..., None]               # rows x 1
+    eta = K.layer_porosity(g, turns_in_layer, usable_m)[..., None]               # rows x 1
     skin = _f(skin_depth)[..., None] / np.sqrt(harm.orders)                        # rows x harmonics
     wide = K.WireGeometry(**{f: np.asarray(getattr(g, f))[..., None] for f in g.__dataclass_fields__})
-    d = K._layer_delta(wide, skin, eta)                                            # rows x harmonics
+    d = K.layer_delta(wide, skin, eta)                                            # rows x harmonics
     f1 = np.broadcast_to(_f(f_inner), shape)
     f2 = np.broadcast_to(_f(f_outer), shape)
     k = np.broadcast_to(_f(g.sub_layers), shape)
