@@ -25,9 +25,11 @@ demo: $(STAMP)
 test: $(STAMP)
 	$(PY) -m pytest
 
-# ruff (rules in pyproject.toml) over the package, tests, tools and benchmarks
+# ruff (rules in pyproject.toml) over the package, tests, tools and benchmarks; mypy over the package
+# (strict flags on physics and design, in pyproject.toml)
 lint: $(STAMP)
 	$(VENV)/bin/ruff check specgen tests tools bench
+	$(VENV)/bin/mypy specgen
 
 bench: $(STAMP)
 	$(PY) bench/run.py

@@ -116,6 +116,17 @@ def batch() -> None:
            f"{res['mem200_mb']:.0f} MB vs {res['mem20_mb']:.0f} MB")
 
 
+def register() -> None:
+    import register_bench
+
+    results = register_bench.bench()
+    for name, (rate, bare) in results.items():
+        report(f"register: {name} numbers/s, 16 issuers / bare INSERT loop", rate / bare, 0.2,
+               f"{rate:,.0f} numbers/s vs {bare:,.0f} inserts/s", higher_is_better=True)
+    if "PostgreSQL" not in results:
+        print("register: PostgreSQL not installed (tools/sysdeps.sh installs it); its figure is left out")
+
+
 def main() -> None:
     print(f"specgen benchmarks on {os.cpu_count()} CPU(s), {sys.version.split()[0]}")
     quick_commands()
@@ -123,6 +134,7 @@ def main() -> None:
     workorder_vs_weasyprint()
     search()
     batch()
+    register()
     print("\nsummary")
     for line in RESULTS:
         print(" ", line)

@@ -8,21 +8,52 @@ from __future__ import annotations
 import os
 from dataclasses import replace
 from pathlib import Path
+from typing import Any
 
 from .catalog.loader import load_catalog
 from .catalog.models import Catalog
 from .design.result import Design
 from .design.spec import Spec, load_spec, load_spec_text
 
+#: The shop figures the design reads: they change the part (turns, wire, build, test limits and
+#: voltages). Everything else in shop.yaml (name, currency, rates, margin, labor times, number
+#: format, the register's location, ``source``) changes the paperwork or the price, not the part.
+#: A shop figure the design starts reading must be added here (tests/test_register_location.py
+#: checks every ``shop.<figure>`` the design package reads against this list).
+DESIGN_SHOP_KEYS = ("current_density", "bulge_factor", "lead_length", "flux_limit_fraction", "hotspot_margin",
+                    "hipot", "insulation_resistance", "tolerances")
+
+
+def _is_paperwork_key(key: object) -> bool:
+    """Catalogue keys that describe where a figure came from or what it costs, not the part."""
+    name = str(key).strip()
+    return name == "source" or name == "price" or name.startswith("price_")
+
+
+def _part_content(value: Any) -> Any:
+    """``value`` without paperwork keys, at any depth (a material's loss figures carry their own ``source``)."""
+    if isinstance(value, dict):
+        return {k: _part_content(v) for k, v in value.items() if not _is_paperwork_key(k)}
+    if isinstance(value, list):
+        return [_part_content(v) for v in value]
+    return value
+
 
 def catalog_entries(design_ids, cat: Catalog) -> dict:
-    """Raw YAML content of every catalogue entry a design read, plus the shop figures."""
+    """What of the catalogue a design's fingerprint covers: each catalogue entry the design read,
+    without its ``source`` text and prices, and the shop figures in ``DESIGN_SHOP_KEYS``.
+
+    So a price change, a re-worded source, renaming the shop or naming its register changes no
+    released part's fingerprint; a changed wire diameter, core dimension, current density,
+    tolerance or hipot rule does (see ``specgen.revision.fingerprint``).
+    """
     out = {}
     for item_id in design_ids:
         found = cat.find(item_id)
         if found is not None:
-            out[item_id] = found[1].raw
-    out["shop"] = cat.shop.raw
+            out[item_id] = _part_content(found[1].raw)
+    raw_shop = cat.shop.raw if isinstance(cat.shop.raw, dict) else {}
+    out["shop"] = _part_content({k: v for k, v in raw_shop.items() if k in DESIGN_SHOP_KEYS})
     return out
 
 

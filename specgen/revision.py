@@ -276,8 +276,13 @@ def spec_content(spec_data: Mapping) -> dict:
 def fingerprint(spec_data: Mapping, catalog_entries: Mapping[str, Mapping]) -> str:
     """SHA-256 hex of the spec's content and of every catalogue entry the design used.
 
-    ``catalog_entries`` maps each catalogue id the design used to its raw YAML mapping.
-    ``history``, ``status`` and ``revision`` are excluded (module docstring).
+    ``catalog_entries`` maps each catalogue id the design used to its raw YAML mapping, as
+    ``specgen.api.catalog_entries`` builds it: what changes the part and nothing else. Covered: the
+    whole spec except ``history``, ``status`` and ``revision`` (module docstring); each catalogue
+    entry the design read, without its ``source`` text and prices; the shop figures the design
+    reads (current densities, bulge factor, lead length, flux limit, hot-spot margin, hipot and
+    insulation-resistance rules, test tolerances). Not covered: the shop's name, currency, rates,
+    margin and labor times, the number format, where the register lives, any ``source:`` text.
 
     References: FIPS 180-4 (SHA-256) through hashlib.
     """

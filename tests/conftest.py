@@ -7,6 +7,14 @@ import subprocess
 import pytest
 
 
+@pytest.fixture(autouse=True)
+def own_register(tmp_path, monkeypatch):
+    """Every test gets a register of its own in its tmp_path, so no test finds (and writes) the
+    repository's shop-root register; tests of the register's location remove the variable."""
+    monkeypatch.setenv("SPECGEN_REGISTER", str(tmp_path / "test-register.sqlite"))
+    return tmp_path / "test-register.sqlite"
+
+
 def blank_recorded_fingerprint(text: str) -> str:
     """The shipped demo specs record their release fingerprints; tests that release or tamper with a
     copy start from a release that recorded none (as a spec released before specgen would be)."""
@@ -30,6 +38,48 @@ def git_env(tmp_path, monkeypatch):
 def git(cwd, *args):
     """Run git in cwd and return its output (a failing git command fails the test)."""
     return subprocess.run(["git", *args], cwd=cwd, check=True, capture_output=True, text=True).stdout.strip()
+
+
+# --- the register's two back ends ---------------------------------------------------------------
+
+PG_SKIP = "PostgreSQL server not installed (tools/sysdeps.sh installs it): PostgreSQL register tests skipped"
+
+
+@pytest.fixture(scope="session")
+def pg_cluster():
+    """A throwaway PostgreSQL cluster for the whole session (tools/pg_throwaway.py): initdb into a
+    temporary folder, served on a Unix socket there only, stopped and removed at the end."""
+    import sys
+    from pathlib import Path
+
+    sys.path.insert(0, str(Path(__file__).resolve().parents[1] / "tools"))
+    from pg_throwaway import ThrowawayCluster, server_bin
+
+    if server_bin() is None:
+        pytest.skip(PG_SKIP)
+    try:
+        import psycopg  # noqa: F401
+    except ImportError:
+        pytest.skip("psycopg not installed: PostgreSQL register tests skipped")
+    cluster = ThrowawayCluster().start()
+    yield cluster
+    cluster.stop()
+
+
+@pytest.fixture(params=["sqlite", "postgresql"])
+def target(request, tmp_path) -> str:
+    """A fresh, not yet created register on each back end: an SQLite path or a PostgreSQL URL."""
+    if request.param == "sqlite":
+        return str(tmp_path / "specgen-register.sqlite")
+    return request.getfixturevalue("pg_cluster").new_database()
+
+
+def pytest_terminal_summary(terminalreporter):
+    skipped = terminalreporter.stats.get("skipped", [])
+    count = sum(1 for report in skipped if "PostgreSQL" in str(getattr(report, "longrepr", "")))
+    if count:
+        terminalreporter.write_line(f"{count} PostgreSQL register tests skipped: no PostgreSQL server on this "
+                                    "machine (tools/sysdeps.sh installs it)")
 
 
 # Modules whose tests render PDFs, start processes, kill them or fuzz: all their tests are marked slow,

@@ -37,3 +37,41 @@ def test_specgen_demo_writes_every_document(tmp_path):
         assert len(pypdf.PdfReader(str(pdf)).pages) >= 1
     assert sorted(p.name for p in (out / "search").glob("*.json"))
     assert "all of it in" in r.stdout
+
+
+def _tour_commands() -> str:
+    """The README's tour: the shell block under '## A short tour', as it stands."""
+    from pathlib import Path
+
+    text = (Path(__file__).resolve().parent.parent / "README.md").read_text(encoding="utf-8")
+    tour = text.split("## A short tour", 1)[1]
+    return tour.split("```sh\n", 1)[1].split("```", 1)[0]
+
+
+@pytest.mark.skipif(shutil.which("git") is None, reason="the demo shop is a git repository")
+def test_readme_tour_runs_verbatim_after_the_demo(tmp_path):
+    """Every line of the README's tour, run as written by bash -e from a project folder whose .venv is
+    this interpreter's and whose out/demo is a fresh `specgen demo`: each command must exit 0."""
+    import os
+    import subprocess
+    import sys
+    from pathlib import Path
+
+    project = tmp_path / "project"
+    out = project / "out" / "demo"
+    r = CliRunner().invoke(app, ["demo", "--out", str(out)])
+    assert r.exit_code == 0, r.stdout + r.stderr
+    assert (out / "shop" / "orders.csv").read_text().startswith("spec,qty,due,lot\n")
+    venv = Path(sys.prefix)
+    (project / ".venv").symlink_to(venv, target_is_directory=True)
+    assert (venv / "bin" / "activate").exists() and (venv / "bin" / "specgen").exists()
+    env = {k: v for k, v in os.environ.items() if k not in ("SPECGEN_CATALOG", "SPECGEN_REGISTER")}
+    script = "set -euo pipefail\n" + _tour_commands()
+    run = subprocess.run(["bash", "-c", script], cwd=project, env=env, capture_output=True, text=True,
+                         timeout=600)
+    assert run.returncode == 0, run.stdout[-2000:] + run.stderr[-2000:]
+    shop = out / "shop"
+    assert (shop / "specgen-register.sqlite").exists()           # the shop's one register, at its root
+    assert not list((shop / "parts").glob("*.sqlite"))           # never one beside the specs
+    batch_rows = len((shop / "orders.csv").read_text().splitlines()) - 1
+    assert len(list((shop / "orders").glob("WO-*.pdf"))) == 1 + batch_rows   # the single one and the batch

@@ -381,7 +381,9 @@ def test_pdf_holds_every_break_and_its_json_unit_price(tmp_path):
                                     "--nre", "1500"])
     assert result.exit_code == 0, result.output
     data = json.loads(result.stdout)
-    pdf = tmp_path / f"{data['part']}-rev{data['revision']}-quote.pdf"
+    # an issued quote takes its register number and is filed under it
+    assert data["reference"] == data["number"] and re.fullmatch(r"Q-\d{4}-\d{5}", data["number"])
+    pdf = tmp_path / f"{data['number']}-{data['part']}-rev{data['revision']}.pdf"
     assert pdf.is_file() and pdf.with_suffix(".html").is_file()
     pages, text = _pdf_text(pdf)
     assert pages == 1
@@ -398,7 +400,7 @@ def test_pdf_holds_every_break_and_its_json_unit_price(tmp_path):
     assert "revision " + data["revision"] in text
     # the fingerprint identifies the design for the shop: it is on the internal copy, not the customer's
     assert data["fingerprint_short"] not in text
-    _pages, internal = _pdf_text(tmp_path / f"{data['part']}-rev{data['revision']}-quote-internal.pdf")
+    _pages, internal = _pdf_text(pdf.with_name(pdf.stem + "-internal.pdf"))
     assert data["fingerprint"] in internal.replace("\n", "")
 
 
@@ -439,7 +441,8 @@ def test_csv_rows_match_json(tmp_path):
 def test_table_mode_writes_pdf_into_out(tmp_path):
     r = runner.invoke(_app(), ["quote", str(DEMO / "BH-5018.yaml"), "--out", str(tmp_path / "q")])
     assert r.exit_code == 0, r.output
-    assert (tmp_path / "q" / "BH-5018-revA-quote.pdf").is_file()
+    stem = f"Q-{dt.date.today().year}-00001-BH-5018-revA"
+    assert sorted(p.name for p in (tmp_path / "q").glob("*.pdf")) == [f"{stem}-internal.pdf", f"{stem}.pdf"]
     assert "unit price" in r.stdout and "wrote" in r.stdout
 
 

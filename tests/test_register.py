@@ -36,7 +36,7 @@ from specgen import atomic
 from specgen.atomic import TEMP_GLOB, atomic_paths, clean_stale_temps, write_atomic
 from specgen.commands import orders as orders_cli
 from specgen.errors import SpecError
-from specgen.register import APPLICATION_ID, SCHEMA_VERSION, Order, Register, default_register_path
+from specgen.register import APPLICATION_ID, SCHEMA_VERSION, Order, Register
 
 REPO = Path(__file__).resolve().parents[1]
 WORKER = Path(__file__).resolve().parent / "register_helpers" / "worker.py"
@@ -77,8 +77,13 @@ def issue(reg: Register, part="BH-1042", revision="B", qty=50, **kw) -> str:
                         kw.pop("issued_by", "planner"), **kw)
 
 
+def kind_of(target: str) -> str:
+    return "postgresql" if target.startswith("postgresql://") else "sqlite"
+
+
 @pytest.fixture
 def db(tmp_path) -> Path:
+    """An SQLite register file (for the tests of SQLite's own file handling)."""
     return tmp_path / "specgen-register.sqlite"
 
 
@@ -179,6 +184,8 @@ INSERT INTO orders VALUES ('WO-{YEAR}-00001', 'BH-4120', 'A', 'aa11', 12, 'L-7',
   '{YEAR}-01-05T08:00:00+00:00', 'old', 'complete', NULL);
 INSERT INTO orders VALUES ('WO-{YEAR}-00002', 'BH-4120', 'B', 'bb22', 30, 'L-8', '2026-04-01',
   '{YEAR}-01-06T08:00:00+00:00', 'old', 'void', 'wrong core');
+INSERT INTO orders VALUES ('WO-{YEAR}-00003', 'BH-4120', 'B', 'bb22', 40, 'L-9', '2026-04-01',
+  '{YEAR}-01-07T08:00:00+00:00', 'old', 'floor', NULL);
 INSERT INTO order_files VALUES ('WO-{YEAR}-00001', 0, 'out/WO-{YEAR}-00001.pdf');
 PRAGMA user_version = 1;
 """
@@ -197,10 +204,30 @@ def test_older_schema_is_migrated(db):
         assert old.files == (f"out/WO-{YEAR}-00001.pdf",)
         assert reg.get(f"WO-{YEAR}-00002").void_reason == "wrong core"
         assert [e.to_state for e in reg.history(old.number)] == ["issued"]
-        assert issue(reg) == f"WO-{YEAR}-00003"  # steps past the numbers the old file holds
+        assert reg.get(f"WO-{YEAR}-00003").state == "in-work"  # the old name of the state, renamed
+        assert issue(reg) == f"WO-{YEAR}-00004"  # steps past the numbers the old file holds
+        assert reg.set_state(f"WO-{YEAR}-00003", "complete").state == "complete"
     assert header_ints(db) == (SCHEMA_VERSION, APPLICATION_ID)
+    if os.path.exists(SQLITE_SHELL):
+        assert shell(db, "PRAGMA integrity_check") == "ok"
+        assert shell(db, "PRAGMA foreign_key_check") == ""
     with Register.open(db) as reg:  # opening again is a no-op
-        assert len(reg.list()) == 3
+        assert len(reg.list()) == 4
+
+
+def test_reading_an_older_register_never_converts_it(db):
+    """A read (orders list) of a version-1 file says to upgrade and leaves every byte as it was."""
+    con = sqlite3.connect(db)
+    con.executescript(V1_SCHEMA)
+    con.close()
+    before = db.read_bytes()
+    with pytest.raises(SpecError, match="older than this specgen.*orders upgrade"):
+        Register.open(db, read_only=True)
+    r = cli("list", "--register", str(db))
+    assert r.exit_code == 2 and "orders upgrade" in r.stderr
+    assert db.read_bytes() == before and folder_listing(db) == {db.name}
+    r = cli("upgrade", "--register", str(db))
+    assert r.exit_code == 0 and header_ints(db)[0] == SCHEMA_VERSION
 
 
 def make_register_with_orders(db: Path, count: int = 40) -> None:
@@ -285,7 +312,19 @@ def test_missing_folder_and_missing_register(tmp_path):
         Register.open(tmp_path / "nowhere" / "r.sqlite")
     with pytest.raises(SpecError, match="no register here"):
         Register.open(tmp_path / "r.sqlite", create=False)
+    with pytest.raises(SpecError, match="no register here"):
+        Register.open(tmp_path / "r.sqlite", read_only=True)
     assert not (tmp_path / "r.sqlite").exists()
+
+
+def test_reading_an_empty_file_leaves_it_empty(tmp_path):
+    """`orders list --register empty.sqlite` is a read: the empty file is not turned into a register."""
+    empty = tmp_path / "empty.sqlite"
+    empty.write_bytes(b"")
+    for args in (("list",), ("show", "WO-1"), ("where-used", "BH-1042"), ("stale",), ("set", "WO-1", "void")):
+        r = cli(*args, "--register", str(empty))
+        assert r.exit_code == 2 and "no register here" in r.stderr, (args, r.output)
+        assert empty.read_bytes() == b"" and {p.name for p in tmp_path.iterdir()} == {"empty.sqlite"}
 
 
 # --- an independent client --------------------------------------------------------------------
@@ -310,8 +349,8 @@ def test_sqlite3_shell_reads_the_register(db):
 
 # --- numbering rules --------------------------------------------------------------------------
 
-def test_erp_number_is_used_and_a_duplicate_refused(db):
-    with Register.open(db) as reg:
+def test_erp_number_is_used_and_a_duplicate_refused(target):
+    with Register.open(target) as reg:
         assert issue(reg, number="ERP-778812") == "ERP-778812"
         with pytest.raises(SpecError, match="already in the register"):
             issue(reg, number="ERP-778812")
@@ -324,8 +363,8 @@ def test_erp_number_is_used_and_a_duplicate_refused(db):
         assert len({o.number for o in reg.list()}) == 4
 
 
-def test_void_keeps_the_number_listed_and_the_sequence_gapless(db):
-    with Register.open(db) as reg:
+def test_void_keeps_the_number_listed_and_the_sequence_gapless(target):
+    with Register.open(target) as reg:
         first = issue(reg)
         with pytest.raises(RuntimeError):
             with reg.issuing("BH-2210", "A", "cc33", 5) as failed:
@@ -341,10 +380,10 @@ def test_void_keeps_the_number_listed_and_the_sequence_gapless(db):
         assert [o.number for o in reg.where_used("BH-2210", include_void=True)] == [failed]
 
 
-def test_sequence_restarts_each_year(db):
+def test_sequence_restarts_each_year(target):
     dec = dt.datetime(2026, 12, 31, 23, 59, tzinfo=dt.timezone.utc)
     jan = dt.datetime(2027, 1, 1, 0, 1, tzinfo=dt.timezone.utc)
-    with Register.open(db) as reg:
+    with Register.open(target) as reg:
         assert issue(reg, now=dec) == "WO-2026-00001"
         assert issue(reg, now=dec) == "WO-2026-00002"
         assert issue(reg, now=jan) == "WO-2027-00001"
@@ -354,16 +393,16 @@ def test_sequence_restarts_each_year(db):
 
 @pytest.mark.parametrize("fmt, needle", [("WO-{seq:05d}-{shift}", "unknown field {shift}"),
                                          ("WO-{year}", "no {seq}"), ("WO-{seq:q}", "number format")])
-def test_bad_number_format_is_a_spec_error(db, fmt, needle):
-    with Register.open(db) as reg:
+def test_bad_number_format_is_a_spec_error(target, fmt, needle):
+    with Register.open(target) as reg:
         with pytest.raises(SpecError, match=needle.replace("{", r"\{").replace("}", r"\}")):
             issue(reg, fmt=fmt)
         assert reg.list() == []
 
 
 @pytest.mark.parametrize("field, value", [("qty", 0), ("qty", 2.5), ("part", " "), ("due", "next week")])
-def test_bad_order_fields_are_spec_errors(db, field, value):
-    with Register.open(db) as reg:
+def test_bad_order_fields_are_spec_errors(target, field, value):
+    with Register.open(target) as reg:
         kwargs = {"part": "BH-1042", "qty": 5, "due": "2026-06-30"}
         kwargs[field] = value
         with pytest.raises(SpecError):
@@ -373,41 +412,62 @@ def test_bad_order_fields_are_spec_errors(db, field, value):
 
 # --- states, history, queries -----------------------------------------------------------------
 
-def test_state_transitions(db):
-    with Register.open(db) as reg:
+def test_state_transitions(target):
+    with Register.open(target) as reg:
         n = issue(reg)
-        assert reg.set_state(n, "floor").state == "floor"
-        with pytest.raises(SpecError, match="cannot go from floor to issued"):
+        with pytest.raises(SpecError, match="cannot go from issued to complete"):
+            reg.set_state(n, "complete")  # a lot is worked before it is complete
+        assert reg.set_state(n, "in work", by="floor lead").state == "in-work"
+        with pytest.raises(SpecError, match="cannot go from in-work to issued"):
             reg.set_state(n, "issued")
         with pytest.raises(SpecError, match="needs a reason"):
             reg.set_state(n, "void")
         with pytest.raises(SpecError, match="unknown state"):
             reg.set_state(n, "shipped")
         with pytest.raises(SpecError, match="no work order"):
-            reg.set_state("WO-1999-00001", "floor")
+            reg.set_state("WO-1999-00001", "in-work")
         assert reg.set_state(n, "complete", why="passed hipot").state == "complete"
         with pytest.raises(SpecError, match="final"):
             reg.void(n, "late")
-        assert [(e.from_state, e.to_state, e.why) for e in reg.history(n)] == [
-            (None, "issued", None), ("issued", "floor", None), ("floor", "complete", "passed hipot")]
+        with pytest.raises(SpecError, match="a correction of .* needs a reason"):
+            reg.set_state(n, "in-work", correction=True)
+        # a correction is a new event; the earlier events stay as they were
+        assert reg.set_state(n, "in-work", why="hipot log missing", by="QA", correction=True).state == "in-work"
+        events = [(e.from_state, e.to_state, e.why, e.by, e.kind) for e in reg.history(n)]
+        assert events[1:] == [("issued", "in-work", None, "floor lead", "change"),
+                              ("in-work", "complete", "passed hipot", events[2][3], "change"),
+                              ("complete", "in-work", "hipot log missing", "QA", "correction")]
+        assert events[0][:2] == (None, "issued") and events[0][3] == "planner"
         with pytest.raises(SpecError, match="void"):
             m = issue(reg)
             reg.void(m, "duplicate")
             reg.attach_files(m, ["x.pdf"])
 
 
-def test_list_filters_and_where_used(db):
+def test_a_draft_copy_can_never_be_made_valid(target):
+    with Register.open(target) as reg:
+        n = issue(reg, draft=True)
+        reg.void(n, "draft copy: not for production")
+        with pytest.raises(SpecError, match="draft copy"):
+            reg.set_state(n, "issued", why="needed it after all", correction=True)
+        m = issue(reg)
+        reg.void(m, "entered twice by mistake")
+        assert reg.set_state(m, "issued", why="the other one was the duplicate", correction=True).state == "issued"
+        assert [e.kind for e in reg.history(m)] == ["change", "change", "correction"]
+
+
+def test_list_filters_and_where_used(target):
     day = lambda d: dt.datetime(2026, 5, d, 9, 0, tzinfo=dt.timezone.utc)
-    with Register.open(db) as reg:
+    with Register.open(target) as reg:
         a = issue(reg, part="BH-1042", revision="A", lot="L-1", now=day(1))
         b = issue(reg, part="BH-1042", revision="B", lot="L-2", qty=80, now=day(3))
         c = issue(reg, part="BH-5018", revision="A", lot="L-3", now=day(5))
         d = issue(reg, part="BH-1042", revision="B", lot="L-4", now=day(7))
-        reg.set_state(b, "floor")
+        reg.set_state(b, "in-work")
         reg.void(d, "wrong wire")
         assert [o.number for o in reg.list(part="BH-1042")] == [a, b, d]
         assert [o.number for o in reg.list(part="BH-1042", revision="B")] == [b, d]
-        assert [o.number for o in reg.list(state="floor")] == [b]
+        assert [o.number for o in reg.list(state="in work")] == [b]
         assert [o.number for o in reg.list(since="2026-05-03")] == [b, c, d]
         assert [o.number for o in reg.list(since="2026-05-05T09:00:01+00:00")] == [d]
         with pytest.raises(SpecError, match="since"):
@@ -417,8 +477,8 @@ def test_list_filters_and_where_used(db):
         assert [o.lot for o in reg.where_used("BH-1042")] == ["L-1", "L-2"]
 
 
-def test_attach_files_keeps_order_and_skips_repeats(db):
-    with Register.open(db) as reg:
+def test_attach_files_keeps_order_and_skips_repeats(target):
+    with Register.open(target) as reg:
         n = issue(reg)
         reg.attach_files(n, [Path("out") / "wo.pdf", "out/wo.html"])
         reg.attach_files(n, ["out/wo.pdf", "out/wo.svg"])
@@ -426,9 +486,9 @@ def test_attach_files_keeps_order_and_skips_repeats(db):
         assert isinstance(reg.get(n), Order)
 
 
-def test_export_csv_reads_back(db, tmp_path):
+def test_export_csv_reads_back(target, tmp_path):
     """The export parses as RFC 4180 CSV (stdlib csv) with one row per order."""
-    with Register.open(db) as reg:
+    with Register.open(target) as reg:
         n = issue(reg, lot='L-"9", rework')
         reg.attach_files(n, ["a.pdf", "a.html"])
         issue(reg, qty=3)
@@ -438,19 +498,6 @@ def test_export_csv_reads_back(db, tmp_path):
     assert [r["number"] for r in rows] == [n, f"WO-{YEAR}-00002"]
     assert rows[0]["lot"] == 'L-"9", rework' and rows[0]["files"] == "a.pdf; a.html"
     assert rows[1]["qty"] == "3" and rows[1]["due"] == "2026-06-30"
-
-
-def test_default_register_path(tmp_path):
-    spec = tmp_path / "specs" / "BH-1042.yaml"
-    spec.parent.mkdir()
-    spec.write_text("part: BH-1042\n")
-    env = {"SPECGEN_REGISTER": "/srv/shop/register.sqlite"}
-    assert default_register_path(spec, "mine.sqlite", environ=env) == Path("mine.sqlite")
-    assert default_register_path(spec, environ=env, shop_setting="shop.sqlite") == Path(env["SPECGEN_REGISTER"])
-    assert default_register_path(spec, environ={}, shop_setting="shop.sqlite") == Path("shop.sqlite")
-    assert default_register_path(spec, environ={}) == spec.parent / "specgen-register.sqlite"
-    assert default_register_path(spec.parent, environ={}) == spec.parent / "specgen-register.sqlite"
-    assert default_register_path(environ={"SPECGEN_REGISTER": ""}) == Path("specgen-register.sqlite")
 
 
 def test_busy_register_gives_a_spec_error_not_a_crash(db):
@@ -628,49 +675,53 @@ def cli(*args: str):
     return runner.invoke(orders_cli.app, list(args))
 
 
-def test_cli_commands(db, tmp_path):
-    with Register.open(db) as reg:
+def test_cli_commands(target, tmp_path):
+    with Register.open(target) as reg:
         a = issue(reg, revision="A", lot="L-10")
         b = issue(reg, revision="B", lot="L-11", qty=20)
         reg.attach_files(b, ["out/b.pdf"])
-    r = cli("list", "--register", str(db))
+    r = cli("list", "--register", target)
     assert r.exit_code == 0 and a in r.stdout and b in r.stdout
-    r = cli("list", "--revision", "B", "--json", "--register", str(db))
-    assert [o["number"] for o in json.loads(r.stdout)] == [b]
-    r = cli("list", "--csv", "--register", str(db))
+    r = cli("list", "--revision", "B", "--json", "--register", target)
+    listed = json.loads(r.stdout)
+    assert [o["number"] for o in listed["orders"]] == [b] and listed["quotes"] == []
+    assert listed["register"]["found_by"] == "--register" and listed["register"]["kind"] == kind_of(target)
+    r = cli("list", "--csv", "--register", target)
     assert [row["lot"] for row in csv.DictReader(r.stdout.splitlines())] == ["L-10", "L-11"]
-    r = cli("show", b, "--json", "--register", str(db))
+    r = cli("show", b, "--json", "--register", target)
     shown = json.loads(r.stdout)
     assert shown["files"] == ["out/b.pdf"] and shown["history"][0]["to"] == "issued"
-    r = cli("show", b, "--register", str(db))
+    r = cli("show", b, "--register", target)
     assert "out/b.pdf" in r.stdout and "revision:" in r.stdout
-    r = cli("set", a, "floor", "--register", str(db))
-    assert r.exit_code == 0 and r.stdout.strip() == f"{a}: issued -> floor"
-    r = cli("set", b, "void", "--why", "customer cancelled", "--register", str(db))
+    r = cli("set", a, "in work", "--register", target)
+    assert r.exit_code == 0 and r.stdout.strip() == f"{a}: issued -> in-work"
+    r = cli("set", b, "void", "--why", "customer cancelled", "--register", target)
     assert r.exit_code == 0
-    r = cli("list", "--state", "void", "--register", str(db))
+    r = cli("list", "--state", "void", "--register", target)
     assert "customer cancelled" in r.stdout
-    r = cli("where-used", "BH-1042", "--register", str(db))
+    r = cli("where-used", "BH-1042", "--register", target)
     assert "revision A: 1 work order, 50 pieces" in r.stdout and b not in r.stdout
-    r = cli("where-used", "BH-1042", "--revision", "A", "--json", "--register", str(db))
-    assert [o["lot"] for o in json.loads(r.stdout)] == ["L-10"]
+    r = cli("where-used", "BH-1042", "--revision", "A", "--json", "--register", target)
+    assert [o["lot"] for o in json.loads(r.stdout)["orders"]] == ["L-10"]
     out = tmp_path / "export.csv"
-    r = cli("export", "--csv", str(out), "--register", str(db))
+    r = cli("export", "--csv", str(out), "--register", target)
     assert r.exit_code == 0 and len(list(csv.DictReader(out.read_text().splitlines()))) == 2
 
 
 @pytest.mark.parametrize("args, needle", [
-    (("set", "WO-1999-00001", "floor"), "no work order"),
+    (("set", "WO-1999-00001", "in-work"), "no work order or quote"),
+    (("set", "{a}", "complete"), "cannot go from issued to complete"),
+    (("set", "{a}", "in-work", "--correct"), "needs a reason"),
     (("set", "{a}", "void"), "needs a reason"),
     (("set", "{a}", "shipped"), "unknown state"),
     (("list", "--since", "yesterday"), "since"),
     (("list", "--json", "--csv"), "choose one"),
-    (("show", "nope"), "no work order"),
+    (("show", "nope"), "no work order or quote"),
 ])
-def test_cli_errors_are_one_line_exit_2(db, args, needle):
-    with Register.open(db) as reg:
+def test_cli_errors_are_one_line_exit_2(target, args, needle):
+    with Register.open(target) as reg:
         a = issue(reg)
-    r = cli(*[x.format(a=a) for x in args], "--register", str(db))
+    r = cli(*[x.format(a=a) for x in args], "--register", target)
     assert r.exit_code == 2
     assert r.stderr.count("\n") == 1 and needle in r.stderr and "Traceback" not in r.output
 
@@ -687,7 +738,7 @@ def test_cli_refuses_a_missing_register_and_uses_the_env_var(tmp_path, monkeypat
     assert r.exit_code == 0 and n in r.stdout
 
 
-def test_cli_mounts_as_orders_subcommand(db):
+def test_cli_mounts_as_orders_subcommand(target):
     root = typer.Typer()
 
     @root.callback()
@@ -695,9 +746,9 @@ def test_cli_mounts_as_orders_subcommand(db):
         """root"""
 
     root.add_typer(orders_cli.app)
-    with Register.open(db) as reg:
+    with Register.open(target) as reg:
         n = issue(reg)
-    r = runner.invoke(root, ["orders", "list", "--register", str(db)])
+    r = runner.invoke(root, ["orders", "list", "--register", target])
     assert r.exit_code == 0 and n in r.stdout
 
 

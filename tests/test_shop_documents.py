@@ -75,7 +75,9 @@ def test_document_keys_do_not_touch_a_release_fingerprint(cat_dir):
     _edit(cat_dir, "Unit 4, Tanyard Row", "Unit 9, Tanyard Row")
     after = {p.name: run_design(load_spec(p), load_catalog(cat_dir)).fingerprint for p in demo_specs()}
     assert before == after
-    _edit(cat_dir, 'labor_rate: "38.00"', 'labor_rate: "39.00"')      # a shop figure still counts
+    _edit(cat_dir, 'labor_rate: "38.00"', 'labor_rate: "39.00"')      # a price figure changes no part either
+    assert {p.name: run_design(load_spec(p), load_catalog(cat_dir)).fingerprint for p in demo_specs()} == before
+    _edit(cat_dir, "dcr: 10 %", "dcr: 8 %")                             # a figure the design reads counts
     changed = {p.name: run_design(load_spec(p), load_catalog(cat_dir)).fingerprint for p in demo_specs()}
     assert changed != before
 

@@ -1,33 +1,67 @@
 """``specgen orders ...``: thin commands over :class:`specgen.register.Register`.
 
 Mounted by the root CLI with ``app.add_typer(orders.app)``. Only light imports here: reading the
-register never loads the document renderer.
+register never loads the document renderer. Every command finds the shop's one register the way the
+issuing commands do (:func:`specgen.register.locate_register`); the reading ones (list, show,
+where-used, export, stale without --void) open it read-only: they never create, convert or migrate it.
 """
 
 from __future__ import annotations
 
 import json
-from collections.abc import Callable
+from collections.abc import Callable, Sequence
 from pathlib import Path
+from typing import Any
 
 import typer
 
 from specgen.errors import SpecError
-from specgen.register import STATES, Order, Register, default_register_path, orders_csv
+from specgen.register import (
+    QUOTE_STATES,
+    STATES,
+    Order,
+    QuoteEntry,
+    Register,
+    RegisterLocation,
+    locate_register,
+    orders_csv,
+    shop_register_setting,
+)
 
 app = typer.Typer(
     name="orders",
-    help="The work-order register: list, show, change state, trace where a revision was used, export.",
+    help="The shop's register of work orders and quotes: list, show, change state, stale numbers, trace, export.",
     no_args_is_help=True,
 )
 
-_REGISTER_HELP = ("Register file (default: $SPECGEN_REGISTER, else specgen-register.sqlite "
-                  "in the current folder).")
+_REGISTER_HELP = ("The register, a file or a postgresql:// URL (default: $SPECGEN_REGISTER, else register: in "
+                  "shop.yaml, else specgen-register.sqlite at the shop's root above the current folder).")
+_CATALOG_HELP = "Catalogue folder whose shop.yaml may name the register (default: $SPECGEN_CATALOG, else the shipped one)."
 
 
-def _open(register: Path | None) -> Register:
-    # reading commands never create a register: a mistyped path must not look like an empty one
-    return Register.open(default_register_path(explicit=register), create=False)
+def _register_opt() -> Any:
+    return typer.Option(None, "--register", metavar="PATH|URL", help=_REGISTER_HELP)
+
+
+def _catalog_opt() -> Any:
+    return typer.Option(None, "--catalog", envvar="SPECGEN_CATALOG", metavar="DIR", help=_CATALOG_HELP)
+
+
+def _verbose_opt() -> Any:
+    return typer.Option(False, "--verbose", "-v", help="Say which register was used and how it was found.")
+
+
+def _locate(register: str | None, catalog: Path | None) -> RegisterLocation:
+    setting, folder = (None, None) if register else shop_register_setting(catalog)
+    return locate_register(None, register, shop_setting=setting, catalog_dir=folder)
+
+
+def _open(where: RegisterLocation, verbose: bool, *, write: bool = False) -> Register:
+    if verbose:
+        typer.echo(f"register {where.shown} ({where.found_by})", err=True)
+    if write:
+        return Register.open(where.target, create=False)
+    return Register.open(where.target, read_only=True)
 
 
 def _run(action: Callable[[], None]) -> None:
@@ -39,18 +73,26 @@ def _run(action: Callable[[], None]) -> None:
         raise typer.Exit(2) from None
 
 
-def _table(orders: list[Order]) -> str:
-    headers = ("number", "state", "part", "rev", "qty", "lot", "due", "issued", "by")
-    rows = [(o.number, o.state, o.part, o.revision, str(o.qty), o.lot or "-", o.due or "-",
-             o.issued_at[:10], o.issued_by) for o in orders]
-    widths = [max(len(h), *(len(r[i]) for r in rows)) if rows else len(h)
-              for i, h in enumerate(headers)]
+def _table(headers: tuple[str, ...], rows: Sequence[tuple[str, ...]]) -> list[str]:
+    widths = [max(len(h), *(len(r[i]) for r in rows)) if rows else len(h) for i, h in enumerate(headers)]
     lines = ["  ".join(h.ljust(w) for h, w in zip(headers, widths)).rstrip()]
-    for row in rows:
-        lines.append("  ".join(c.ljust(w) for c, w in zip(row, widths)).rstrip())
-    for order in orders:
-        if order.state == "void":
-            lines.append(f"{order.number} void: {order.void_reason}")
+    lines += ["  ".join(c.ljust(w) for c, w in zip(row, widths)).rstrip() for row in rows]
+    return lines
+
+
+def _orders_table(orders: list[Order]) -> str:
+    rows = [(o.number, o.state, o.part, o.revision, str(o.qty), o.lot or "-", o.due or "-", o.issued_at[:10],
+             o.issued_by, o.quote or "-") for o in orders]
+    lines = _table(("number", "state", "part", "rev", "qty", "lot", "due", "issued", "by", "quote"), rows)
+    lines += [f"{o.number} void: {o.void_reason}" for o in orders if o.state == "void"]
+    return "\n".join(lines)
+
+
+def _quotes_table(quotes: list[QuoteEntry]) -> str:
+    rows = [(q.number, q.state, q.part, q.revision, q.customer or "-", q.valid_until or "-", q.issued_at[:10],
+             q.issued_by) for q in quotes]
+    lines = _table(("number", "state", "part", "rev", "customer", "valid until", "issued", "by"), rows)
+    lines += [f"{q.number} void: {q.void_reason}" for q in quotes if q.state == "void"]
     return "\n".join(lines)
 
 
@@ -58,77 +100,154 @@ def _table(orders: list[Order]) -> str:
 def list_orders(
     part: str | None = typer.Option(None, "--part", help="Only this part."),
     revision: str | None = typer.Option(None, "--revision", help="Only this revision."),
-    state: str | None = typer.Option(None, "--state", help=f"Only this state: {', '.join(STATES)}."),
+    state: str | None = typer.Option(None, "--state", help=f"Only this state: {', '.join(STATES)} "
+                                                           f"(quotes: {', '.join(QUOTE_STATES)})."),
     since: str | None = typer.Option(None, "--since", help="Issued on or after this date (YYYY-MM-DD)."),
-    as_json: bool = typer.Option(False, "--json", help="Print JSON."),
-    as_csv: bool = typer.Option(False, "--csv", help="Print CSV."),
-    register: Path | None = typer.Option(None, "--register", help=_REGISTER_HELP),
+    quotes_only: bool = typer.Option(False, "--quotes", help="Only quotes."),
+    orders_only: bool = typer.Option(False, "--orders", help="Only work orders."),
+    as_json: bool = typer.Option(False, "--json", help="Print JSON (with the register used)."),
+    as_csv: bool = typer.Option(False, "--csv", help="Print work orders as CSV."),
+    register: str | None = _register_opt(), catalog: Path | None = _catalog_opt(), verbose: bool = _verbose_opt(),
 ) -> None:
-    """List work orders, oldest first."""
+    """List work orders and quotes, oldest first."""
     def action() -> None:
         if as_json and as_csv:
             raise SpecError("choose one of --json and --csv")
-        with _open(register) as reg:
-            orders = reg.list(part=part, revision=revision, state=state, since=since)
+        if quotes_only and orders_only:
+            raise SpecError("choose one of --quotes and --orders")
+        if as_csv and quotes_only:
+            raise SpecError("--csv exports work orders; use --json for quotes")
+        where = _locate(register, catalog)
+        want_orders, want_quotes = not quotes_only, not orders_only and not as_csv
+        with _open(where, verbose) as reg:
+            orders = reg.list(part=part, revision=revision, state=state, since=since) if want_orders else []
+            quotes = reg.list_quotes(part=part, revision=revision, state=state, since=since) if want_quotes else []
         if as_json:
-            typer.echo(json.dumps([o.to_dict() for o in orders], indent=2))
+            typer.echo(json.dumps({"register": where.to_dict(), "orders": [o.to_dict() for o in orders],
+                                   "quotes": [q.to_dict() for q in quotes]}, indent=2))
         elif as_csv:
             typer.echo(orders_csv(orders), nl=False)
-        elif not orders:
-            typer.echo("no work orders match")
         else:
-            typer.echo(_table(orders))
+            blocks = []
+            if want_orders:
+                blocks.append("work orders\n" + _orders_table(orders) if orders else "no work orders match")
+            if want_quotes:
+                blocks.append("quotes\n" + _quotes_table(quotes) if quotes else "no quotes match")
+            typer.echo("\n\n".join(blocks))
     _run(action)
+
+
+def _find(reg: Register, number: str) -> tuple[str, Order | QuoteEntry]:
+    """A number is a work order's or a quote's; look in both (orders first)."""
+    try:
+        return "order", reg.get(number)
+    except SpecError:
+        pass
+    try:
+        return "quote", reg.get_quote(number)
+    except SpecError:
+        raise SpecError(f"no work order or quote {number} in the register", file=reg.shown) from None
 
 
 @app.command("show")
 def show(
-    number: str = typer.Argument(..., help="Work-order number."),
+    number: str = typer.Argument(..., help="Work-order or quote number."),
     as_json: bool = typer.Option(False, "--json", help="Print JSON."),
-    register: Path | None = typer.Option(None, "--register", help=_REGISTER_HELP),
+    register: str | None = _register_opt(), catalog: Path | None = _catalog_opt(), verbose: bool = _verbose_opt(),
 ) -> None:
-    """Show one work order with its files and state history."""
+    """Show one work order or quote with its files and its history of changes."""
     def action() -> None:
-        with _open(register) as reg:
-            order = reg.get(number)
-            events = reg.history(number)
+        where = _locate(register, catalog)
+        with _open(where, verbose) as reg:
+            record, item = _find(reg, number)
+            events = reg.history(number) if record == "order" else reg.quote_history(number)
         if as_json:
-            data = order.to_dict()
-            data["history"] = [{"at": e.at, "from": e.from_state, "to": e.to_state, "why": e.why}
-                               for e in events]
+            data = {"record": record, **item.to_dict(), "history": [e.to_dict() for e in events],
+                    "register": where.to_dict()}
             typer.echo(json.dumps(data, indent=2))
             return
-        fields = [("number", order.number), ("state", order.state), ("part", order.part),
-                  ("revision", order.revision), ("fingerprint", order.fingerprint),
-                  ("quantity", str(order.qty)), ("lot", order.lot or "-"), ("due", order.due or "-"),
-                  ("issued at", order.issued_at), ("issued by", order.issued_by)]
-        if order.state == "void":
-            fields.append(("void reason", order.void_reason or "-"))
+        fields = [("number", item.number), ("record", "work order" if record == "order" else "quote"),
+                  ("state", item.state), ("part", item.part), ("revision", item.revision),
+                  ("fingerprint", item.fingerprint)]
+        if isinstance(item, Order):
+            fields += [("quantity", str(item.qty)), ("lot", item.lot or "-"), ("due", item.due or "-"),
+                       ("fulfils", item.quote or "-")]
+        else:
+            fields += [("customer", item.customer or "-"), ("valid until", item.valid_until or "-")]
+        fields += [("issued at", item.issued_at), ("issued by", item.issued_by)]
+        if item.state == "void":
+            fields.append(("void reason", item.void_reason or "-"))
         for label, value in fields:
             typer.echo(f"{label + ':':13} {value}")
-        typer.echo("files:" + ("" if order.files else "        none recorded"))
-        for path in order.files:
+        typer.echo("files:" + ("" if item.files else "        none recorded"))
+        for path in item.files:
             typer.echo(f"  {path}")
         typer.echo("history:")
         for e in events:
             change = f"{e.from_state} -> {e.to_state}" if e.from_state else e.to_state
-            typer.echo(f"  {e.at}  {change}" + (f"  ({e.why})" if e.why else ""))
+            note = "  CORRECTION" if e.kind == "correction" else ""
+            typer.echo(f"  {e.at}  {change}{note}  by {e.by or '-'}" + (f"  ({e.why})" if e.why else ""))
     _run(action)
 
 
 @app.command("set")
 def set_state(
-    number: str = typer.Argument(..., help="Work-order number."),
-    state: str = typer.Argument(..., help=f"New state: {', '.join(STATES)}."),
-    why: str | None = typer.Option(None, "--why", help="Reason (required for void)."),
-    register: Path | None = typer.Option(None, "--register", help=_REGISTER_HELP),
+    number: str = typer.Argument(..., help="Work-order or quote number."),
+    state: str = typer.Argument(..., help=f"New state: {', '.join(STATES)}; quotes: {', '.join(QUOTE_STATES)}."),
+    why: str | None = typer.Option(None, "--why", help="Reason (required for void and for a correction)."),
+    correct: bool = typer.Option(False, "--correct",
+                                 help="Put a mistake right: any other state, recorded as a correction with --why."),
+    by: str | None = typer.Option(None, "--by", metavar="NAME", help="Who makes the change (default: login name)."),
+    register: str | None = _register_opt(), catalog: Path | None = _catalog_opt(), verbose: bool = _verbose_opt(),
 ) -> None:
-    """Move a work order to another state (issued -> floor -> complete, or void with --why)."""
+    """Move a work order (issued -> in-work -> complete, or void with --why) or a quote
+    (issued -> accepted | declined | void); --correct --why REASON for anything else."""
     def action() -> None:
-        with _open(register) as reg:
-            before = reg.get(number).state
-            after = reg.set_state(number, state, why=why)
-        typer.echo(f"{after.number}: {before} -> {after.state}")
+        where = _locate(register, catalog)
+        with _open(where, verbose, write=True) as reg:
+            record, item = _find(reg, number)
+            if record == "order":
+                after: Order | QuoteEntry = reg.set_state(number, state, why=why, by=by, correction=correct)
+            else:
+                after = reg.set_quote_state(number, state, why=why, by=by, correction=correct)
+        typer.echo(f"{after.number}: {item.state} -> {after.state}" + (" (correction)" if correct else ""))
+    _run(action)
+
+
+@app.command("stale")
+def stale(
+    void: bool = typer.Option(False, "--void", help="Void the numbers listed as voidable, with the reason."),
+    older_than: float | None = typer.Option(
+        None, "--older-than", metavar="HOURS",
+        help="Count a number whose process cannot be checked (another machine) as voidable after this many hours."),
+    why: str | None = typer.Option(None, "--why", help="Reason recorded with --void (default: says what was found)."),
+    as_json: bool = typer.Option(False, "--json", help="Print JSON."),
+    register: str | None = _register_opt(), catalog: Path | None = _catalog_opt(), verbose: bool = _verbose_opt(),
+) -> None:
+    """Review numbers taken but never finished (issued, no files): whose process is gone, which may be voided."""
+    from specgen.register import STALE_UNCHECKABLE_S
+
+    def action() -> None:
+        if older_than is not None and not older_than >= 0:
+            raise SpecError(f"expected hours of 0 or more, got {older_than}", path="--older-than")
+        bound = STALE_UNCHECKABLE_S if older_than is None else older_than * 3600.0
+        where = _locate(register, catalog)
+        with _open(where, verbose, write=void) as reg:
+            found = reg.stale(uncheckable_after_s=bound)
+            voided = reg.void_stale(uncheckable_after_s=bound, reason=why) if void else []
+        if as_json:
+            typer.echo(json.dumps({"register": where.to_dict(), "stale": [s.to_dict() for s in found],
+                                   "voided": voided}, indent=2))
+            return
+        if not found:
+            typer.echo("no unfinished numbers")
+            return
+        rows = [(s.number, s.record, s.part, s.issued_at, s.issued_by, f"{s.age_s / 3600:.1f} h", s.process,
+                 "yes" if s.voidable else "no") for s in found]
+        typer.echo("\n".join(_table(("number", "record", "part", "issued at", "by", "age", "process", "voidable"),
+                                    rows)))
+        if void:
+            typer.echo(f"voided {len(voided)}: {', '.join(voided) or '-'}")
     _run(action)
 
 
@@ -137,14 +256,15 @@ def where_used(
     part: str = typer.Argument(..., help="Part number."),
     revision: str | None = typer.Option(None, "--revision", help="Only this revision."),
     as_json: bool = typer.Option(False, "--json", help="Print JSON."),
-    register: Path | None = typer.Option(None, "--register", help=_REGISTER_HELP),
+    register: str | None = _register_opt(), catalog: Path | None = _catalog_opt(), verbose: bool = _verbose_opt(),
 ) -> None:
     """Traceability: the work orders and lots built from a part or one revision (voids left out)."""
     def action() -> None:
-        with _open(register) as reg:
+        where = _locate(register, catalog)
+        with _open(where, verbose) as reg:
             orders = reg.where_used(part, revision)
         if as_json:
-            typer.echo(json.dumps([o.to_dict() for o in orders], indent=2))
+            typer.echo(json.dumps({"register": where.to_dict(), "orders": [o.to_dict() for o in orders]}, indent=2))
             return
         if not orders:
             which = f"{part} revision {revision}" if revision else part
@@ -166,11 +286,27 @@ def where_used(
 @app.command("export")
 def export(
     csv_file: Path = typer.Option(..., "--csv", help="CSV file to write (replaced atomically)."),
-    register: Path | None = typer.Option(None, "--register", help=_REGISTER_HELP),
+    register: str | None = _register_opt(), catalog: Path | None = _catalog_opt(), verbose: bool = _verbose_opt(),
 ) -> None:
     """Export every work order to a CSV file."""
     def action() -> None:
-        with _open(register) as reg:
+        where = _locate(register, catalog)
+        with _open(where, verbose) as reg:
             count = reg.export_csv(csv_file)
         typer.echo(f"wrote {count} work orders to {csv_file}")
+    _run(action)
+
+
+@app.command("upgrade")
+def upgrade(
+    register: str | None = _register_opt(), catalog: Path | None = _catalog_opt(), verbose: bool = _verbose_opt(),
+) -> None:
+    """Bring a register written by an older specgen to this version's schema (reading never does)."""
+    from specgen.register import SCHEMA_VERSION
+
+    def action() -> None:
+        where = _locate(register, catalog)
+        with _open(where, verbose, write=True):
+            pass
+        typer.echo(f"register {where.shown} is at schema version {SCHEMA_VERSION}")
     _run(action)

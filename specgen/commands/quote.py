@@ -1,10 +1,12 @@
 """``specgen quote``: price a part at quantity breaks from the same Design the shop floor uses.
 
 Outputs:
-- default: write ``<part>-rev<R>-quote.pdf`` and ``.html`` into ``--out`` (default: the current
-  folder) and print the cost build-up and price table;
+- default: issue the quote: take the next quote number from the shop's register (numbered like work
+  orders, never reused), write ``<number>-<part>-rev<R>.pdf`` and ``.html`` into ``--out`` (default:
+  the current folder), record them, and print the cost build-up and price table;
 - ``--json`` / ``--csv``: print only that to stdout (machine-readable, nothing else mixed in); the
-  PDF is written only when ``--out`` is given, and its "wrote" line goes to stderr.
+  quote is issued (numbered, PDF written) only when ``--out`` is given, and its "wrote" line goes to
+  stderr. Without ``--out`` it is a price look: no number is taken.
 A design with a failed check is refused (exit 1), an obsolete revision or a bad option is one line
 and exit 2. Drafts are quoted as budgetary (see ``specgen.quote``).
 """
@@ -35,6 +37,12 @@ def register(app) -> None:
         nre: str | None = typer.Option(None, "--nre", metavar="AMOUNT", help="One-time tooling / NRE charge."),
         valid_days: str = typer.Option("30", "--valid-days", metavar="N", help="Days the quote is valid."),
         catalog: Path | None = CatalogOpt,
+        register_path: str | None = typer.Option(
+            None, "--register", metavar="PATH|URL",
+            help="The register that numbers the quote (default: as for work orders: $SPECGEN_REGISTER, "
+                 "register: in shop.yaml, else the shop's root)."),
+        by: str | None = typer.Option(None, "--by", metavar="NAME", help="Who issues it (default: login name)."),
+        verbose: bool = typer.Option(False, "--verbose", "-v", help="Say which register numbered the quote."),
     ):
         """Quote a part: unit and extended price per quantity break, copper sensitivity, a PDF."""
         from ..api import run_design
@@ -61,14 +69,25 @@ def register(app) -> None:
         spec_obj = load_spec(spec)
         design = run_design(spec_obj, cat)
         q = build_quote(spec_obj, design, cat, quantities, nre=nre_amount, valid_days=days)
-        written = []
+        written: list = []
+        register_info = None
         if out_dir is not None:
-            from ..documents.quote_doc import write_quote
+            from ..documents.quote_doc import issue_quote
+            from ..register import locate_register
 
+            where = locate_register(spec, register_path, shop_setting=cat.shop.register_path, catalog_dir=cat.root)
             _make_dir(out_dir)
-            written = write_quote(q, out_dir)
+            issued = issue_quote(q, out_dir, where, by=by)
+            q, written = issued.quote, list(issued.files)
+            register_info = {"location": issued.register, "found_by": issued.register_found_by}
+            if verbose:
+                typer.echo(f"quote {q.reference} from the register {issued.register} ({issued.register_found_by})",
+                           err=True)
         if as_json:
-            print_json(q.to_dict())
+            data = q.to_dict()
+            data["number"] = q.reference if register_info else None
+            data["register"] = register_info
+            print_json(data)
         elif as_csv:
             from ..csvsafe import csv_text
 

@@ -40,9 +40,13 @@ def register(app) -> None:
         draft: bool = typer.Option(False, "--draft",
                                    help="Allow a spec that is not released: every page is marked "
                                         "'DRAFT - NOT FOR PRODUCTION' and the number is recorded void."),
-        register_path: Path | None = typer.Option(
-            None, "--register", metavar="PATH",
-            help="Work-order register (default: $SPECGEN_REGISTER, else specgen-register.sqlite beside the spec)."),
+        register_path: str | None = typer.Option(
+            None, "--register", metavar="PATH|URL",
+            help="The register (default: $SPECGEN_REGISTER, else register: in shop.yaml, else "
+                 "specgen-register.sqlite at the shop's root). A postgresql:// URL names a server."),
+        quote: str | None = typer.Option(None, "--quote", metavar="NUMBER",
+                                         help="The register number of the quote this work order fulfils."),
+        verbose: bool = typer.Option(False, "--verbose", "-v", help="Say which register was used and how it was found."),
         number: str | None = typer.Option(None, "--number", metavar="NUM",
                                              help="Use this number (from the ERP) instead of the next one."),
         by: str | None = typer.Option(None, "--by", metavar="NAME", help="Who issues it (default: login name)."),
@@ -53,9 +57,9 @@ def register(app) -> None:
         from ..errors import SpecError
 
         if batch is not None:
-            if spec is not None or qty is not None or number is not None or draft or due or lot:
+            if spec is not None or qty is not None or number is not None or draft or due or lot or quote:
                 raise SpecError("--batch takes its parts, quantities, due dates and lots from the CSV; "
-                                "give no SPEC, --qty, --due, --lot, --number or --draft with it", path="--batch")
+                                "give no SPEC, --qty, --due, --lot, --number, --quote or --draft with it", path="--batch")
             if workers is not None and not 1 <= workers <= 32:
                 raise SpecError(f"expected 1 to 32 workers, got {workers}", path="--workers")
             from ..documents.batch import issue_batch
@@ -84,11 +88,15 @@ def register(app) -> None:
 
         issued = issue_work_order(spec, qty=qty, due=due, lot=lot, out_dir=out, draft=draft,
                                   register_path=register_path, number=number, by=by, catalog_dir=catalog,
-                                  warn=lambda msg: typer.echo(f"warning: {msg}", err=True))
+                                  warn=lambda msg: typer.echo(f"warning: {msg}", err=True), quote=quote)
         if as_json:
             print_json({"number": issued.number, "pdf": str(issued.pdf), "html": str(issued.html),
-                        "register": str(issued.register), "warnings": list(issued.warnings),
+                        "quote": quote, "warnings": list(issued.warnings),
+                        "register": {"location": issued.register, "found_by": issued.register_found_by},
                         "seconds": round(issued.seconds, 3)})
-        else:
-            typer.echo(str(issued.pdf))
-            typer.echo(str(issued.html))
+            return
+        typer.echo(str(issued.pdf))
+        typer.echo(str(issued.html))
+        if verbose:
+            typer.echo(f"number {issued.number} from the register {issued.register} ({issued.register_found_by})",
+                       err=True)

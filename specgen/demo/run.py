@@ -5,6 +5,8 @@
   quotes/      a quote per part at 100 / 500 / 2500 pieces
   changes/     a change summary between two revisions of BH-2210 held in a scratch git repository
   search/      the design search on the demo requirements (ranked candidates)
+  shop/        a demo shop to try the commands in (the README's tour): a git repository holding the
+               parts (BH-2210 with a second revision), the catalogue, the requirements and an orders CSV
 
 Demo code only: the document modules know nothing of it.
 """
@@ -82,7 +84,10 @@ def run_demo(out: Path, catalog=None, echo=print) -> dict:
                  f"{cost.quantize(Decimal('0.01'), ROUND_HALF_UP)}")
         else:
             echo(f"{req_path.stem:8} nothing in the catalogue fits (reasons in search/{req_path.stem}.txt)")
-    echo(f"all of it in {out}/")
+
+    echo("== demo shop")
+    shop = demo_shop(out / "shop", cat, designs, echo)
+    echo(f"all of it in {out}/; try the commands in {shop}/ (the README's tour)")
     return designs
 
 
@@ -236,3 +241,59 @@ def demo_change_summary(out_dir, cat, echo=print):
         return pdf
     finally:
         shutil.rmtree(repo, ignore_errors=True)
+
+
+# ----------------------------------------------------------------------------------------------
+# The demo shop: a folder laid out as a shop keeps its parts, for the README's tour
+
+SHOP_GITIGNORE = "orders/\nquotes/\nspecgen-register.sqlite*\n"
+
+
+def demo_shop(shop_dir, cat, designs: dict, echo=print) -> Path | None:
+    """Lay out ``shop_dir`` as a shop keeps its parts, for trying the commands by hand.
+
+    ``catalog/`` (a copy of the catalogue in use), ``parts/`` (the demo parts, committed to git as
+    shipped, then BH-2210 released again as revision C with one more primary turn, so that a diff has
+    two revisions), ``requirements/`` (the search's requirement files) and ``orders.csv`` (a batch of
+    work orders for the released parts, with its header row). The shop's register is created at its
+    root by the first work order. An existing shop folder is replaced. Returns the folder, or None
+    (with a message) when git is not installed.
+    """
+    from ..lifecycle import release_spec
+    from ..revision import start_next_draft_file
+
+    if shutil.which("git") is None:
+        echo("demo shop skipped: git is not installed")
+        return None
+    shop = Path(shop_dir)
+    if shop.exists():
+        shutil.rmtree(shop)
+    (shop / "parts").mkdir(parents=True)
+    (shop / "requirements").mkdir()
+    shutil.copytree(Path(cat.root), shop / "catalog",
+                    ignore=shutil.ignore_patterns("*.sqlite*", "__pycache__"))
+    for path in demo_specs():
+        shutil.copyfile(path, shop / "parts" / path.name)
+    for req in sorted(Path(__file__).resolve().parent.glob("REQ-*.yaml")):
+        shutil.copyfile(req, shop / "requirements" / req.name)
+    released = sorted(part for part, (_p, spec, d) in designs.items()
+                      if spec.status == "released" and not d.failed and part != "BH-2210")
+    rows = ["spec,qty,due,lot"] + [f"parts/{part}.yaml,{50 * (i + 1)},2027-02-{i + 1:02d},LOT-{part}"
+                                   for i, part in enumerate(released)]
+    write_atomic(shop / "orders.csv", "\n".join(rows) + "\n")
+    write_atomic(shop / ".gitignore", SHOP_GITIGNORE)
+    _git(shop, "init", "-q")
+    _git(shop, "add", "-A")
+    _git(shop, "commit", "-q", "-m", "Brindle Hollow parts as released")
+    spec_path = shop / "parts" / "BH-2210.yaml"
+    primary = next(w for w in designs["BH-2210"][2].windings if w.role == "primary")
+    start_next_draft_file(spec_path)
+    text = spec_path.read_text(encoding="utf-8")
+    turns = _more_turns_that_pass(text, primary.name, primary.turns, cat, str(spec_path))
+    spec_path.write_text(_add_turns(text, primary.name, turns), encoding="utf-8")
+    release_spec(spec_path, by="T. Vance", date="2026-12-07", cat=cat,
+                 note=f"{turns} primary turns: lower flux at the top of the bus range")
+    _git(shop, "commit", "-q", "-a", "-m", "BH-2210 rev C")
+    echo(f"demo shop in {shop}/: {len(designs)} parts in git, BH-2210 at revision C, "
+         f"orders.csv for {len(released)} parts")
+    return shop

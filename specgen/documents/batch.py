@@ -162,7 +162,7 @@ def issue_batch(csv_path, *, out_dir=".", register_path=None, workers: int | Non
     from ..api import run_design
     from ..catalog.loader import load_catalog
     from ..design.spec import load_spec
-    from ..register import Register, default_register_path
+    from ..register import Register, locate_register
     from .workorder import check_number, preflight, render_work_order_html
 
     t0 = time.perf_counter()
@@ -202,7 +202,8 @@ def issue_batch(csv_path, *, out_dir=".", register_path=None, workers: int | Non
             continue
         ready.append((row, spec_path, spec, design, qty, due, lot))
 
-    reg_path = default_register_path(csv_path, register_path, shop_setting=cat.shop.register_path)
+    where = locate_register(csv_path, register_path, shop_setting=cat.shop.register_path,
+                            catalog_dir=cat.root) if ready else None
     bar = _Progress(len(ready), sys.stderr.isatty() if progress is None else progress)
     result = BatchResult(rows=rows, seconds=0.0, workers=workers)
     try:
@@ -212,7 +213,8 @@ def issue_batch(csv_path, *, out_dir=".", register_path=None, workers: int | Non
                 out.mkdir(parents=True, exist_ok=True)
             except OSError as err:
                 raise SpecError(f"cannot create the output folder: {err.strerror or err}", file=str(out)) from None
-            with Register.open(reg_path) as reg:
+            assert where is not None
+            with Register.open(where.target) as reg:
                 # 2. numbers in row order (no row ready: the register is not even opened, so nothing is created)
                 for row, _spec_path, _spec, design, qty, due, lot in ready:
                     fmt = cat.shop.work_order_format.replace("{part}", design.part)
@@ -232,19 +234,19 @@ def issue_batch(csv_path, *, out_dir=".", register_path=None, workers: int | Non
         result.seconds = time.perf_counter() - t0
         result.peak_rss_main_mb = resource.getrusage(resource.RUSAGE_SELF).ru_maxrss / 1024.0
         result.peak_rss_worker_mb = resource.getrusage(resource.RUSAGE_CHILDREN).ru_maxrss / 1024.0
-        _summary(rows, result, workers, reg_path, echo)
+        _summary(rows, result, workers, where, echo)
     return result
 
 
-def _summary(rows: list, result: BatchResult, workers: int, reg_path, echo) -> None:
+def _summary(rows: list, result: BatchResult, workers: int, where, echo) -> None:
     """5. The summary: one line per row, then the totals (printed however the batch ended)."""
     for row in rows:
         if row.error:
             echo(f"FAILED  {row.error}")
         elif row.pdf is not None:
             echo(f"issued  {row.number}  {row.spec} x {row.qty}  {row.pdf}")
-    echo(f"{len(result.issued)} issued, {len(result.failed)} failed, {result.seconds:.1f} s on {workers} worker(s); "
-         f"register {reg_path}")
+    echo(f"{len(result.issued)} issued, {len(result.failed)} failed, {result.seconds:.1f} s on {workers} worker(s)"
+         + (f"; register {where.shown} ({where.found_by})" if where is not None else ""))
 
 
 def _new_pool(workers: int) -> ProcessPoolExecutor:
@@ -324,7 +326,7 @@ def _finish(fut, row: Row, pdf: Path, htm: Path, reg, result: BatchResult, bar: 
         first = str(exc).splitlines()[0] if str(exc) else type(exc).__name__
         _void(reg, row, f"render failed: {first}")
     else:
-        reg.attach_files(row.number, [str(pdf), str(htm)])
+        reg.attach_files(row.number, [str(pdf.resolve()), str(htm.resolve())])   # the same from any folder
         row.pdf = pdf
         result.issued.append(row)
     bar.step()

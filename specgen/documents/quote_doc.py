@@ -19,7 +19,7 @@ WeasyPrint is imported only when a PDF is made.
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 from decimal import Decimal
 from pathlib import Path
 
@@ -247,22 +247,24 @@ def render_quote_html(q: Quote, internal: bool = False) -> str:
     return render_html(TEMPLATE, **quote_context(q, internal))
 
 
-def quote_paths(q: Quote, out_dir: str | Path) -> dict[str, Path]:
+def quote_paths(q: Quote, out_dir: str | Path, stem: str | None = None) -> dict[str, Path]:
     out = Path(out_dir)
-    stem, internal = q.filename_stem, q.filename_stem + INTERNAL_SUFFIX
+    stem = stem or q.filename_stem
+    internal = stem + INTERNAL_SUFFIX
     return {"pdf": out / f"{stem}.pdf", "html": out / f"{stem}.html",
             "internal_pdf": out / f"{internal}.pdf", "internal_html": out / f"{internal}.html"}
 
 
-def write_quote(q: Quote, out_dir: str | Path, blocked: list | None = None) -> list[Path]:
+def write_quote(q: Quote, out_dir: str | Path, blocked: list | None = None, *, stem: str | None = None) -> list[Path]:
     """Write the customer's copy and the internal copy (PDF and HTML each): all four or none.
 
-    Returns the paths, the customer's PDF first.
+    Returns the paths, the customer's PDF first. ``stem``: the file names' stem; the default
+    ``<part>-rev<R>-quote`` is for an unregistered copy (:func:`issue_quote` names issued quotes).
     """
     from ..atomic import atomic_paths
     from .render import html_to_pdf
 
-    paths = quote_paths(q, out_dir)
+    paths = quote_paths(q, out_dir, stem)
     customer_html = render_quote_html(q, internal=False)
     internal_html = render_quote_html(q, internal=True)
     customer_pdf = html_to_pdf(customer_html, blocked)
@@ -274,3 +276,37 @@ def write_quote(q: Quote, out_dir: str | Path, blocked: list | None = None) -> l
         temps[2].write_bytes(internal_pdf)
         temps[3].write_text(internal_html, encoding="utf-8")
     return order
+
+
+@dataclass(frozen=True)
+class IssuedQuote:
+    quote: Quote                  # with ``reference`` = the register number
+    files: tuple[Path, ...]
+    register: str                 # the register's address, as shown
+    register_found_by: str
+
+
+def issue_quote(q: Quote, out_dir: str | Path, where, *, by: str | None = None,
+                blocked: list | None = None) -> IssuedQuote:
+    """Take the next quote number from the register ``where`` (a ``RegisterLocation``), write
+    ``<number>-<part>-rev<R>.pdf`` and ``.html`` (and the ``-internal`` copy) and record them with the number.
+
+    Quote numbers are unique and never reused, so an issued quote's files are never overwritten: a
+    file already standing under the new number (left by another register) refuses the issue, and
+    the number is voided with that reason. A failed render voids the number too."""
+    from ..errors import SpecError
+    from ..register import Register
+
+    out = Path(out_dir)
+    with Register.open(where.target) as reg:
+        with reg.issuing_quote(q.part, q.revision, q.fingerprint or "-", customer=q.customer,
+                               valid_until=q.valid_until, issued_by=by) as number:
+            issued = replace(q, reference=number)
+            stem = f"{number}-{q.part}-rev{q.revision}"
+            taken = [p for p in quote_paths(issued, out, stem).values() if p.exists()]
+            if taken:
+                raise SpecError(f"a file of quote {number} already exists and an issued quote is never "
+                                "overwritten (is another register numbering into this folder?)", file=str(taken[0]))
+            paths = write_quote(issued, out, blocked, stem=stem)
+        reg.attach_quote_files(number, [str(p.resolve()) for p in paths])
+    return IssuedQuote(issued, tuple(paths), where.shown, where.found_by)

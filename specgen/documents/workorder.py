@@ -558,9 +558,10 @@ class Issued:
     number: str
     pdf: Path
     html: Path
-    register: Path
+    register: str                 # the register's address (a file path or a postgresql:// URL, shown)
     warnings: list = field(default_factory=list)
     seconds: float = 0.0
+    register_found_by: str = ""   # how that register was found (see specgen.register.location)
 
 
 def preflight(spec_path, spec, design, cat, *, qty, due=None, lot=None, draft=False) -> tuple:
@@ -592,9 +593,11 @@ def preflight(spec_path, spec, design, cat, *, qty, due=None, lot=None, draft=Fa
 
 
 def issue_from_design(spec_path, spec, design, cat, *, qty, due=None, lot=None, out_dir=".", draft=False,
-                      register_path=None, number=None, by=None, warn=None) -> Issued:
-    """Issue one work order for an already computed design (the CLI and the demo come through here)."""
-    from ..register import Register, default_register_path
+                      register_path=None, number=None, by=None, warn=None, quote=None) -> Issued:
+    """Issue one work order for an already computed design (the CLI and the demo come through here).
+
+    ``quote``: the register number of the quote this order fulfils (checked: same part, not void)."""
+    from ..register import Register, locate_register
     from .render import write_pdf_and_html
 
     t0 = time.perf_counter()
@@ -606,11 +609,11 @@ def issue_from_design(spec_path, spec, design, cat, *, qty, due=None, lot=None, 
     out = Path(out_dir)
     if out.exists() and not out.is_dir():
         raise SpecError("is a file, expected the folder for the work order", file=str(out), path="--out")
-    reg_path = default_register_path(spec_path, register_path, shop_setting=cat.shop.register_path)
+    where = locate_register(spec_path, register_path, shop_setting=cat.shop.register_path, catalog_dir=cat.root)
     fmt = cat.shop.work_order_format.replace("{part}", design.part)
-    with Register.open(reg_path) as reg:
+    with Register.open(where.target) as reg:
         with reg.issuing(design.part, design.revision, design.fingerprint or "-", qty, lot, due,
-                         issued_by=by, fmt=fmt, number=number) as num:
+                         issued_by=by, fmt=fmt, number=number, quote=quote, draft=draft) as num:
             check_number(num)
             order = reg.get(num)
             html = render_work_order_html(design, cat, number=num, qty=qty, due=due, lot=lot,
@@ -618,17 +621,17 @@ def issue_from_design(spec_path, spec, design, cat, *, qty, due=None, lot=None, 
             pdf_path, html_path = out / f"{num}.pdf", out / f"{num}.html"
             blocked: list = []
             write_pdf_and_html(html, pdf_path, html_path, blocked, make_folders=True)   # the folder only now
-        reg.attach_files(num, [str(pdf_path), str(html_path)])
+        reg.attach_files(num, [str(pdf_path.resolve()), str(html_path.resolve())])  # the same from any folder
         if draft:
             # a draft copy is traceable but never built for production: listed as void with the reason
             reg.void(num, "draft copy: not for production")
     for url in blocked:
         warn(f"the renderer was refused {url[:80]}")
-    return Issued(num, pdf_path, html_path, reg_path, warnings, time.perf_counter() - t0)
+    return Issued(num, pdf_path, html_path, where.shown, warnings, time.perf_counter() - t0, where.found_by)
 
 
 def issue_work_order(spec_path, *, qty, due=None, lot=None, out_dir=".", draft=False, register_path=None,
-                     number=None, by=None, catalog_dir=None, warn=None) -> Issued:
+                     number=None, by=None, catalog_dir=None, warn=None, quote=None) -> Issued:
     """``specgen workorder``: options checked first, then load, design, refuse or issue."""
     from ..api import run_design
     from ..catalog.loader import load_catalog
@@ -642,4 +645,5 @@ def issue_work_order(spec_path, *, qty, due=None, lot=None, out_dir=".", draft=F
     spec = load_spec(spec_path)
     design = run_design(spec, cat)
     return issue_from_design(spec_path, spec, design, cat, qty=qty, due=due, lot=lot, out_dir=out_dir,
-                             draft=draft, register_path=register_path, number=number, by=by, warn=warn)
+                             draft=draft, register_path=register_path, number=number, by=by, warn=warn,
+                             quote=quote)
