@@ -21,7 +21,7 @@ from .design.spec import Spec, load_spec, load_spec_text
 #: A shop figure the design starts reading must be added here (tests/test_register_location.py
 #: checks every ``shop.<figure>`` the design package reads against this list).
 DESIGN_SHOP_KEYS = ("current_density", "bulge_factor", "lead_length", "flux_limit_fraction", "hotspot_margin",
-                    "hipot", "insulation_resistance", "tolerances")
+                    "hipot", "insulation_resistance", "tolerances", "insulation", "voltage_tolerance")
 
 
 def _is_paperwork_key(key: object) -> bool:
