@@ -108,9 +108,9 @@ def issue(db: str, out: str, where_to_stop: str) -> int:
     elif where_to_stop == "rendering":
         real = render.write_pdf_and_html
 
-        def slow(html, pdf, htm, blocked=None):
+        def slow(html, pdf, htm, blocked=None, **options):
             stop("STOPPED")  # the number is taken, the HTML made, no file written yet
-            return real(html, pdf, htm, blocked)
+            return real(html, pdf, htm, blocked, **options)
 
         render.write_pdf_and_html = slow
     elif where_to_stop == "written":
