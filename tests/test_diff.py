@@ -136,7 +136,8 @@ def test_diff_pdf_names_things_as_a_reader_does(two_revisions, tmp_path, cat):
     summary = diff.compare_refs(f"{spec}@HEAD~1", str(spec), cat)
     for side in (summary.old, summary.new):
         assert side.fingerprint[:12] in flat                     # short fingerprints, 12 hex digits
-        assert side.fingerprint[:13] not in flat.replace(" ", "")
+        # never the long form: the 12 digits are not followed by the 13th (whatever word follows them)
+        assert not re.search(re.escape(side.fingerprint[:12]) + r"\s?" + re.escape(side.fingerprint[12:16]), flat)
     assert "Primary turns" in flat and "windings[P]" not in flat  # the input by its plain name
     assert "revision B as released 2026-11-02 by T. Vance" in flat     # not a git ref the reader lacks
     assert "HEAD" not in flat and "@" not in flat
