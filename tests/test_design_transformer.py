@@ -19,7 +19,7 @@ from specgen.physics import faraday
 
 U = pint.UnitRegistry()
 
-# IEC 60028, annealed copper (figures from memory, as in references.md): rho20 = 1/58 ohm mm^2/m,
+# IEC 60028, annealed copper (figures from memory): rho20 = 1/58 ohm mm^2/m,
 # alpha20 = 0.00393 /K, density 8.89 g/cm^3
 RHO20_OHM_MM2_PER_M = 1.0 / 58.0
 ALPHA20_PER_K = 0.00393
@@ -135,7 +135,7 @@ def test_dcr_from_iec_60028(designs, cat, part):
 
 
 def test_dcr_scaling_100c_matches_the_iec_60028_ratio():
-    # references.md (computed from IEC 60028): R(100 degC) / R(20 degC) = 1 + 0.00393 x 80 = 1.3144
+    # computed from IEC 60028: R(100 degC) / R(20 degC) = 1 + 0.00393 x 80 = 1.3144
     from specgen.physics import wire
 
     ratio = wire.resistance_per_m_ohm(1e-6, 100.0) / wire.resistance_per_m_ohm(1e-6, 20.0)

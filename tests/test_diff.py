@@ -324,7 +324,7 @@ def test_demo_change_summary_without_git(tmp_path, monkeypatch, cat):
 
 
 def test_diff_text_and_json_do_not_load_weasyprint():
-    """design.md: commands that print numbers must not import WeasyPrint (about 1 s)."""
+    """Speed rule of this project: commands that print numbers must not import WeasyPrint (about 1 s)."""
     import sys
 
     code = ("import sys\n"

@@ -7,7 +7,7 @@ Independent references used here:
   formatting helpers are checked against the BIPM SI Brochure's prefixes as pint implements them;
 - IEC 60028 (from memory): annealed copper's temperature coefficient alpha_20 = 0.00393 /K, the
   coefficient of the printed correction R20 = Rt / (1 + alpha (t - 20));
-- the demo scenario (/work/shared/scenario.md): a 3 % scrap allowance on wire;
+- the invented demo shop: a 3 % scrap allowance on wire;
 - plain arithmetic: a turns ratio is Np / Ns of the printed turns.
 Expected strings are formatted from the Design with the same helpers the template uses; integer
 quantities (turns) are read back as integers from the PDF text.

@@ -41,7 +41,7 @@ import tempfile
 from decimal import ROUND_HALF_UP, Decimal
 from pathlib import Path
 
-BASE_PRICE = Decimal("14.50")          # per kg copper magnet wire, scenario.md
+BASE_PRICE = Decimal("14.50")          # per kg copper magnet wire, invented demo figure
 
 R20 = [0.050, 0.056, 0.063, 0.071, 0.080, 0.090, 0.100, 0.112, 0.125, 0.140, 0.160, 0.180,
        0.200, 0.224, 0.250, 0.280, 0.315, 0.355, 0.400, 0.450, 0.500, 0.560, 0.630, 0.710,

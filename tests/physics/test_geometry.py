@@ -15,7 +15,7 @@ MM = 1e-3
 
 def test_toroid_iec_60205_values():
     # IEC 60205 rectangular-section toroid, r1 = 10 mm, r2 = 20 mm, h = 10 mm:
-    # le = 87.10 mm, Ae = 96.09 mm2 (references.md, computed from the IEC 60205 formulas)
+    # le = 87.10 mm, Ae = 96.09 mm2 (computed from the IEC 60205 formulas)
     ep = g.toroid_effective(40 * MM, 20 * MM, 10 * MM)
     assert ep.le_m / MM == pytest.approx(87.10, abs=0.005)
     assert ep.ae_m2 / MM ** 2 == pytest.approx(96.09, abs=0.005)
