@@ -20,7 +20,8 @@ def test_reference_point_from_references():
 
 @pytest.mark.parametrize("m", range(1, 11))
 def test_low_frequency_expansion(m):
-    # 1 + (5m^2 - 1) D^4 / 45 within 0.1 % for D <= 0.5 (Dowell, Proc. IEE 113(8), 1966; the expansion computed). Measured: holds for
+    # 1 + (5m^2 - 1) D^4 / 45 within 0.1 % for D <= 0.5 (Dowell, Proc. IEE 113(8), 1966; expansion computed).
+    # Measured: holds for
     # m <= 9; at m = 10, D = 0.5 the series is 0.103 % high, so m = 10 is held to 0.11 %.
     d = np.linspace(0.0, 0.5, 201)
     err = np.abs(dowell.dowell_fr_low_freq(d, m) / dowell.dowell_fr(d, m) - 1)
