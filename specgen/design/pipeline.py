@@ -24,6 +24,7 @@ from ..physics import wire as wiremod
 from . import kernel as K
 from .build import copper_lengths_m, winding_fr
 from .checks import run_checks
+from .floor import floor_data, history_entries
 from .flux import b_sat_hot_t
 from .insulation import coordinate
 from .kinds import PartKind, kind_for
@@ -215,6 +216,7 @@ def finish(spec: Spec, cat: Catalog, parts: Parts, kind: PartKind, ev: Evaluatio
         temperature_rise_k=temp.rise_k, efficiency=s.efficiency, regulation_pct=s.regulation_pct,
         output_power_w=s.output_power_w, checks=tuple(checks), tests=tests, materials=tuple(materials),
         inductor=s.inductor, catalog_ids=catalog_ids(spec, parts, windings), iterations=iterations,
-        notes=spec.notes, history=spec.history, insulation=insulation,
+        notes=spec.notes, history=history_entries(spec.history), insulation=insulation,
         current_transformer=s.current_transformer, flyback=s.flyback,
+        floor=floor_data(cat, parts, ev.built, windings, spec.varnish),
     )

@@ -264,6 +264,85 @@ class InductorResult:
     b_dc_t: float
 
 
+@record(slots=True)
+class TapeWrap:
+    """One tape as wound on a section: the catalogue's tape and the radial build it adds."""
+    id: str
+    name: str
+    thickness_m: float
+    width_m: float
+    layers: int                      # wraps laid
+    lap_factor: float                # radial build of one wrap / thickness (2 on a toroid: half-lapped)
+    build_m: float                   # thickness x layers x lap_factor, as the build counted it
+
+
+@record(slots=True)
+class SectionTapes:
+    """The tapes of one section and the height of its layers, in build order (for drawings and steps)."""
+    winding: str
+    index: int                       # section index within its winding
+    order: int                       # 1-based place in the build
+    layer_height_m: float            # radial height of one wire layer
+    between_layers: TapeWrap | None  # tape between this section's layers (None with one layer)
+    after: TapeWrap | None           # tape wrapped after the section (the outer wrap after the last)
+
+
+@record(slots=True)
+class CoreOutline:
+    """The few core dimensions a drawing needs, in metres (toroid: the bare ring and its coating)."""
+    shape: str
+    inner_diameter_m: float | None   # toroid
+    outer_diameter_m: float | None   # toroid
+    height_m: float | None           # toroid: the ring (or stack) height
+    coating_m: float                 # toroid: coating or core-box wall on each face
+    winding_breadth_m: float         # bobbin: breadth of one chamber between the flanges; toroid: ring height
+
+
+@record(slots=True)
+class PinLayout:
+    """Where the windings end: a bobbin's pins as the catalogue lists them, or a toroid's free leads."""
+    bobbin: str | None
+    pins: tuple[str, ...]            # pin names in order (free leads: in the order the sections name them)
+    rows: int                        # 1 or 2 (pins split between the two sides)
+    pitch_m: float | None            # None for free leads
+    free_leads: bool                 # True: no bobbin, the leads leave the winding
+
+
+@record(slots=True)
+class VarnishCure:
+    """The impregnating varnish and its cure, as the catalogue gives them."""
+    id: str
+    name: str
+    thermal_class_c: int
+    cure_temperature_c: float
+    cure_time_s: float
+
+
+@record(slots=True)
+class HistoryEntry:
+    """One release line of the spec's history."""
+    revision: str
+    date: str
+    by: str
+    note: str
+    fingerprint: str                 # '' when the entry records none
+
+
+@record(slots=True)
+class FloorData:
+    """What the documents show beyond the electrical figures: tapes, outline, pins, varnish."""
+    sections: tuple[SectionTapes, ...]   # in build order
+    outline: CoreOutline
+    pins: PinLayout
+    varnish: VarnishCure | None
+
+    def section(self, winding: str, index: int) -> SectionTapes:
+        for s in self.sections:
+            if s.winding == winding and s.index == index:
+                return s
+        raise KeyError((winding, index))
+
+
 @record
 class CurrentTransformerResult:
     """A current transformer's own figures (kind: current_transformer)."""
@@ -360,9 +439,10 @@ class Design:
     catalog_ids: tuple[str, ...]     # every catalogue entry this design read
     iterations: int
     notes: str = ""
-    history: tuple[Any, ...] = ()
+    history: tuple[HistoryEntry, ...] = ()
     fingerprint: str = ""
     insulation: InsulationResult | None = None
+    floor: FloorData | None = None   # None only for a Design built outside the pipeline
     current_transformer: CurrentTransformerResult | None = None
     flyback: FlybackResult | None = None
 
