@@ -173,10 +173,11 @@ def test_spec_mistakes_are_located(cat, old, new, needle):
 
 
 def test_open_secondary_caution_on_the_test_plan_and_the_work_order(ct, cat):
+    from specgen.documents.settings import DocumentSettings
     from specgen.documents.workorder import render_work_order_html
 
     assert any("open-circuit the secondary" in c for c in ct.tests.cautions)
-    html = render_work_order_html(ct, cat, number="WO-TEST-1", qty=10, draft=True)
+    html = render_work_order_html(ct, DocumentSettings.from_shop(cat.shop), number="WO-TEST-1", qty=10, draft=True)
     assert html.count("open-circuit the secondary") >= 2      # the winding steps and the test sheet
     assert "licensed practice" in html
 

@@ -22,6 +22,7 @@ from specgen.catalog.loader import load_catalog
 from specgen.design.spec import load_spec
 from specgen.documents import drawings as dr
 from specgen.documents import workorder as wo
+from specgen.documents.settings import DocumentSettings
 
 SVG = "{http://www.w3.org/2000/svg}"
 PARTS = ["BH-1042", "BH-2210", "BH-3305", "BH-4120", "BH-5018"]
@@ -34,7 +35,7 @@ def built():
     for path in api.demo_specs():
         spec = load_spec(path)
         d = api.run_design(spec, cat)
-        out[spec.part] = (d, wo._drawings(d, cat), cat)
+        out[spec.part] = (d, wo._drawings(d, DocumentSettings.from_shop(cat.shop)), cat)
     return out
 
 

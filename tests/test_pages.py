@@ -21,6 +21,7 @@ from specgen.catalog.loader import load_catalog
 from specgen.design.spec import load_spec
 from specgen.documents import workorder as wo
 from specgen.documents.render import html_to_pdf
+from specgen.documents.settings import DocumentSettings
 
 PAPERS = {"A4": (210.0, 297.0), "Letter": (215.9, 279.4)}
 WO_MARGINS_MM = (39.0, 16.0)         # templates/specgen.css @page: top (running header), bottom (footer)
@@ -42,7 +43,8 @@ def _on(cat, paper):
 
 
 def _work_order_pdf(d, cat, tmp_path, name="wo"):
-    html = wo.render_work_order_html(d, cat, number="WO-T-1", qty=50, lot="L1", issued="2026-12-02")
+    html = wo.render_work_order_html(d, DocumentSettings.from_shop(cat.shop), number="WO-T-1", qty=50, lot="L1",
+                                     issued="2026-12-02")
     pdf = tmp_path / f"{name}.pdf"
     pdf.write_bytes(html_to_pdf(html))
     return pdf
@@ -55,7 +57,7 @@ def test_drawings_fit_the_text_width_so_they_print_to_scale(cat, designs, paper)
     c = _on(cat, paper)
     text_width = PAPERS[paper][0] - 2 * wo.SIDE_MARGIN_MM
     for d in designs.values():
-        drawings = wo._drawings(d, c)
+        drawings = wo._drawings(d, DocumentSettings.from_shop(c.shop))
         for key in ("pin_svg", "window_svg"):
             assert wo._svg_width_mm(drawings[key]) <= text_width + 1e-6, (d.part, key)
 
@@ -81,7 +83,7 @@ def test_no_page_is_left_a_third_full_because_one_box_moved_over(cat, designs, t
 @pytest.mark.parametrize("part", ["BH-1042", "BH-2210", "BH-3305", "BH-4120", "BH-5018"])
 def test_every_work_order_terminates_the_leads_and_marks_the_part(cat, designs, part):
     d = designs[part]
-    ctx = wo.build_context(d, cat, number="WO-T-1", qty=10)
+    ctx = wo.build_context(d, DocumentSettings.from_shop(cat.shop), number="WO-T-1", qty=10)
     steps = ctx["steps"] + ([{"heading": "varnish", "n": ctx["varnish"]["n"]}] if ctx["varnish"] else []) \
         + ctx["after_varnish"]
     headings = [s["heading"] for s in steps]
@@ -100,6 +102,6 @@ def test_every_work_order_terminates_the_leads_and_marks_the_part(cat, designs, 
 
 
 def test_counts_on_the_work_order_read_in_the_right_number(cat, designs):
-    html = wo.render_work_order_html(designs["BH-3305"], cat, number="WO-T-1", qty=10)
+    html = wo.render_work_order_html(designs["BH-3305"], DocumentSettings.from_shop(cat.shop), number="WO-T-1", qty=10)
     assert "2 pieces per set" in html and not re.search(r"\w\(s\)", html)
     assert wo.in_number("1 set(s) of 2 piece(s)") == "1 set of 2 pieces"

@@ -10,6 +10,7 @@ from specgen.api import run_design
 from specgen.catalog.loader import load_catalog
 from specgen.design.spec import load_spec_text
 from specgen.documents import render
+from specgen.documents.settings import DocumentSettings
 
 DEMO = Path(__file__).resolve().parent.parent / "specgen" / "demo"
 PAYLOADS = {
@@ -54,7 +55,7 @@ def test_work_order_and_quote_escape_every_text_field(cat, field, kind):
 
     spec = _spec_with(field, PAYLOADS[kind])
     d = run_design(spec, cat)
-    html = render_work_order_html(d, cat, number="WO-T-1", qty=5, due=None, lot=PAYLOADS[kind],
+    html = render_work_order_html(d, DocumentSettings.from_shop(cat.shop), number="WO-T-1", qty=5, due=None, lot=PAYLOADS[kind],
                                   issued="2026-12-01", issued_by=PAYLOADS["file"], draft=True)
     q_html = quote_html(build_quote(spec, d, cat, (10,), allow_failed=True))
     assert PAYLOADS[kind] not in html and "&lt;" in html    # never raw; the escaped text is there instead

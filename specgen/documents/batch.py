@@ -157,18 +157,21 @@ class _Progress:
             sys.stderr.write("\n")
 
 
+# long: the batch's steps in order (read, design, number, render, summary), each a few lines
 def issue_batch(csv_path, *, out_dir=".", register_path=None, workers: int | None = None, catalog_dir=None,
                 by=None, progress: bool | None = None, echo=print) -> BatchResult:
     from ..api import run_design
     from ..catalog.loader import load_catalog
     from ..design.spec import load_spec
     from ..register import Register, locate_register
+    from .settings import DocumentSettings
     from .workorder import check_number, preflight, render_work_order_html
 
     t0 = time.perf_counter()
     csv_path = Path(csv_path)
     rows = read_orders(csv_path)
     cat = load_catalog(catalog_dir)
+    settings = DocumentSettings.from_shop(cat.shop)    # the documents see these figures, not the catalogue
     out = Path(out_dir)
     if out.exists() and not out.is_dir():
         raise SpecError("is a file, expected the folder for the work orders", file=str(out), path="--out")
@@ -202,7 +205,7 @@ def issue_batch(csv_path, *, out_dir=".", register_path=None, workers: int | Non
             continue
         ready.append((row, spec_path, spec, design, qty, due, lot))
 
-    where = locate_register(csv_path, register_path, shop_setting=cat.shop.register_path,
+    where = locate_register(csv_path, register_path, shop_setting=settings.register_path,
                             catalog_dir=cat.root) if ready else None
     bar = _Progress(len(ready), sys.stderr.isatty() if progress is None else progress)
     result = BatchResult(rows=rows, seconds=0.0, workers=workers)
@@ -217,12 +220,12 @@ def issue_batch(csv_path, *, out_dir=".", register_path=None, workers: int | Non
             with Register.open(where.target) as reg:
                 # 2. numbers in row order (no row ready: the register is not even opened, so nothing is created)
                 for row, _spec_path, _spec, design, qty, due, lot in ready:
-                    fmt = cat.shop.work_order_format.replace("{part}", design.part)
+                    fmt = settings.work_order_format.replace("{part}", design.part)
                     row.number = reg.allocate(design.part, design.revision, design.fingerprint or "-", qty, lot,
                                               due, issued_by=by, fmt=fmt)
                     check_number(row.number)
                 try:
-                    _render_all(ready, reg, cat, out, workers, bar, result, render_work_order_html)
+                    _render_all(ready, reg, settings, out, workers, bar, result, render_work_order_html)
                 finally:
                     # whatever stopped the render phase, no row stays 'issued' without its files
                     for row, *_ in ready:
@@ -255,7 +258,7 @@ def _new_pool(workers: int) -> ProcessPoolExecutor:
     return ProcessPoolExecutor(max_workers=workers, initializer=_die_with_parent, initargs=(os.getpid(),), **recycle)
 
 
-def _render_all(ready: list, reg, cat, out: Path, workers: int, bar: _Progress, result: BatchResult,
+def _render_all(ready: list, reg, settings, out: Path, workers: int, bar: _Progress, result: BatchResult,
                 render_html) -> None:
     """3-4. Render every ready row in worker processes, a bounded number of jobs in flight.
 
@@ -276,7 +279,7 @@ def _render_all(ready: list, reg, cat, out: Path, workers: int, bar: _Progress, 
             while (queue or pending) and not broken:
                 while queue and len(pending) < (1 if alone else 2 * workers):
                     item = queue.pop(0)
-                    job = _submit(pool, item, reg, cat, out, render_html, bar)
+                    job = _submit(pool, item, reg, settings, out, render_html, bar)
                     if job is not None:
                         pending[job[0]] = (item, job[1], job[2])
                 if not pending:
@@ -305,12 +308,12 @@ def _render_all(ready: list, reg, cat, out: Path, workers: int, bar: _Progress, 
         pool.shutdown(wait=True, cancel_futures=True)
 
 
-def _submit(pool, item, reg, cat, out: Path, render_html, bar: _Progress):
+def _submit(pool, item, reg, settings, out: Path, render_html, bar: _Progress):
     """Build one row's HTML here and hand the PDF render to a worker: (future, pdf, html) or None."""
     row, _spec_path, _spec, design, qty, due, lot = item
     order = reg.get(row.number)
     try:
-        html = render_html(design, cat, number=row.number, qty=qty, due=due, lot=lot,
+        html = render_html(design, settings, number=row.number, qty=qty, due=due, lot=lot,
                            issued=order.issued_at[:10], issued_by=order.issued_by, draft=False)
     except Exception as exc:   # a template fault: this row only
         _void(reg, row, f"render failed: {exc}")

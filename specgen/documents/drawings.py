@@ -1,7 +1,7 @@
 """SVG drawings for the work order: the pin and polarity diagram and the window cross-section to scale.
 
-Pure functions of plain data taken from the Design (and, for the former's outline, the catalogue): they
-draw, they compute no physics. Every length in the SVG is in millimetres of the printed page (the
+Pure functions of plain data taken from the Design (its ``floor``: tapes, core outline, pins): they
+draw, they compute no physics and read no catalogue. Every length in the SVG is in millimetres of the printed page (the
 ``width``/``height`` attributes are in mm and the viewBox matches), so a drawing "at 4:1" measures four
 times the real part when printed at 100 %. All text put into the SVG is XML-escaped here.
 

@@ -1,7 +1,8 @@
 """The shop-floor work order: context builder and issue flow.
 
-``build_context`` turns a Design (plus the catalogue entries it names, for pins, tape thicknesses and
-cure data) into plain dicts and strings for ``templates/workorder.html``; it computes no physics: every
+``build_context`` turns a Design (and the shop's ``DocumentSettings``: paper, lead length, scrap) into
+plain dicts and strings for ``templates/workorder.html``; it reads no catalogue (tapes, pins, outline and
+varnish cure are on the Design's ``floor``) and computes no physics: every
 number is the Design's, formatted here once by the helpers below (the tests format their expected
 strings with the same helpers). ``issue_work_order`` is the whole flow of ``specgen workorder``:
 validate the options, run the design, refuse what must not reach the floor, take a number from the
@@ -21,6 +22,7 @@ from pathlib import Path
 
 from .. import present
 from ..errors import DesignFailed, SpecError
+from .settings import DocumentSettings
 
 UNCONTROLLED = "Printed copies are uncontrolled: check the revision before use"
 WATERMARK = "DRAFT - NOT FOR PRODUCTION"
@@ -113,12 +115,6 @@ def _sections_in_order(design) -> list:
     return [(w, s) for _o, w, s in out]
 
 
-def _layer_height_m(section) -> float:
-    if not section.layers:
-        return 0.0
-    return 2.0 * (section.layers[0].build_to_centre_m - section.start_build_m)
-
-
 def _pins_of(condition: str) -> str:
     m = re.match(r"pins\s+(\S+)", condition or "")
     return m.group(1).rstrip(",") if m else ""
@@ -170,12 +166,6 @@ def _inductance_fmt(lim):
     return fmt_henry
 
 
-def _tape_thickness(cat, tape_id: str | None) -> float:
-    if not tape_id or tape_id not in cat.tapes:
-        return 0.0
-    return cat.tapes[tape_id].thickness_m
-
-
 def _svg_width_mm(svg) -> float:
     m = re.search(r'width="([0-9.]+)mm"', str(svg))
     return float(m.group(1)) if m else 0.0
@@ -194,53 +184,42 @@ def _fit_to_text_width(draw, text_width_mm: float, max_w_mm: float):
     return svg, scale
 
 
-def _drawings(design, cat) -> dict:
+def _drawings(design, settings) -> dict:
+    """The pin diagram and the window (or ring) section, from the Design alone, sized to the text width."""
     from . import drawings as dr
 
+    floor = design.floor
     toroid = design.core.shape == "toroid"
     index = {w.name: i for i, w in enumerate(design.windings)}
     coils = [dr.Coil(winding=w.name, label=section_label(w, s), start=s.start_pin, finish=s.finish_pin,
                      turns=s.turns, colour_index=index[w.name]) for w, s in _sections_in_order(design)]
     dots = {w.name: w.dot_pin for w in design.windings}
-    if toroid or design.core.bobbin is None or design.core.bobbin not in cat.bobbins:
-        pins = []
-        for w in design.windings:
-            for s in w.sections:
-                for p in (s.start_pin, s.finish_pin):
-                    if p and p not in pins:
-                        pins.append(p)
-        pin_svg = dr.pin_diagram(pins, 1, coils, dots, leads=True)
-    else:
-        b = cat.bobbins[design.core.bobbin]
-        pin_svg = dr.pin_diagram(list(b.pins), b.pin_rows, coils, dots)
+    pins = floor.pins
+    pin_svg = dr.pin_diagram(list(pins.pins), pins.rows, coils, dots, leads=pins.free_leads)
 
-    text_width_mm = cat.shop.documents.paper_m[0] * 1e3 - 2 * SIDE_MARGIN_MM
-    tf = 2.0 if toroid else 1.0          # tape on a toroid is half-lapped (the build's own rule)
+    text_width_mm = settings.paper_width_m * 1e3 - 2 * SIDE_MARGIN_MM
     secs = []
     for w, s in _sections_in_order(design):
-        lh = _layer_height_m(s)
-        lt = _tape_thickness(cat, s.layer_tape) * s.layer_tape_layers * tf if s.layer_tape else 0.0
+        tapes = floor.section(w.name, s.index)
         secs.append(dr.SectionDraw(
             order=s.order, label=section_label(w, s), winding=w.name, turns=s.turns, start_m=s.start_build_m,
-            end_m=s.end_build_m, layer_height_m=lh,
+            end_m=s.end_build_m, layer_height_m=tapes.layer_height_m,
             layers=tuple(dr.LayerBand(l.turns, l.turns_capacity, l.build_to_centre_m) for l in s.layers),
             margin_m=s.margin_m, wire_diameter_m=w.overall_diameter_m, strands=w.strands,
             round_wire=w.wire_kind in ("round", "litz", "tiw"), tape_after=s.tape_after,
-            tape_after_m=_tape_thickness(cat, s.tape_after) * s.tape_after_layers * tf,
-            layer_tape_m=lt if len(s.layers) > 1 else 0.0, colour_index=index[w.name]))
+            tape_after_m=tapes.after.build_m if tapes.after else 0.0,
+            layer_tape_m=tapes.between_layers.build_m if tapes.between_layers else 0.0,
+            colour_index=index[w.name]))
+    outline = floor.outline
     if toroid:
-        core = cat.cores.get(design.core.id)
-        dims = core.dims if core is not None else {}
         window_svg, scale = _fit_to_text_width(
-            lambda w: dr.toroid_sector(dims.get("id", 0.0), dims.get("od", 0.0),
-                                       core.coating_m if core is not None else 0.0, design.build.available_m,
+            lambda w: dr.toroid_sector(outline.inner_diameter_m or 0.0, outline.outer_diameter_m or 0.0,
+                                       outline.coating_m, design.build.available_m,
                                        design.build.bulged_height_m, secs, max_w_mm=w), text_width_mm, 105.0)
     else:
-        first = design.windings[0].sections[0]
-        breadth = first.usable_breadth_m + 2 * first.margin_m
         window_svg, scale = _fit_to_text_width(
-            lambda w: dr.window_section(breadth, design.build.available_m, design.build.bulged_height_m, secs,
-                                        max_w_mm=w), text_width_mm, 112.0)
+            lambda w: dr.window_section(outline.winding_breadth_m, design.build.available_m,
+                                        design.build.bulged_height_m, secs, max_w_mm=w), text_width_mm, 112.0)
     return {"pin_svg": pin_svg, "window_svg": window_svg, "window_scale": dr.scale_text(scale),
             "dot_legend": dr.DOT_LEGEND}
 
@@ -297,22 +276,21 @@ def marking_step(d, n: int, number: str) -> dict:
 
 
 # long: the template's context key by key (to split by page section)
-def build_context(design, cat, *, number: str, qty: int, due: str | None = None, lot: str | None = None,
+def build_context(design, settings, *, number: str, qty: int, due: str | None = None, lot: str | None = None,
                   issued: str | None = None, issued_by: str | None = None, draft: bool = False) -> dict:
     """Everything the work-order template shows, as plain dicts and strings (SVG as Markup)."""
     from .. import revision
 
     d = design
     toroid = d.core.shape == "toroid"
-    shop = cat.shop
-    scrap = float(shop.scrap_wire)
-    lead_m = shop.lead_length_m
+    scrap = settings.scrap_wire
+    lead_m = settings.lead_length_m
     issued = issued or _dt.date.today().isoformat()
     fp12 = revision.short(d.fingerprint) if d.fingerprint else "not computed"
     head = {
         "number": number, "part": d.part, "title": d.title, "revision": d.revision, "status": d.status,
         "customer": d.customer, "qty": f"{qty:,}", "qty_int": qty, "due": due or "not set", "lot": lot or "—",
-        "issued": issued, "issued_by": issued_by or "—", "fingerprint": fp12, "shop": shop.name,
+        "issued": issued, "issued_by": issued_by or "—", "fingerprint": fp12, "shop": settings.shop_name,
         "uncontrolled": UNCONTROLLED, "draft": bool(draft), "watermark": WATERMARK,
     }
     pin_word = "lead" if toroid else "pin"
@@ -434,14 +412,12 @@ def build_context(design, cat, *, number: str, qty: int, due: str | None = None,
                       "layers": [], "dot": ""})
 
     varnish = None
-    vline = next((m for m in d.materials if m.kind == "varnish"), None)
-    if vline is not None:
-        v = cat.varnishes.get(vline.id)
+    v = d.floor.varnish
+    if v is not None:
         n += 1
-        cure = (f"{fmt_temp(v.cure_temperature_c)} for {fmt_seconds(v.cure_time_s)}" if v is not None
-                else "see the varnish data")
-        varnish = {"n": n, "id": vline.id, "name": vline.description, "cure": cure,
-                   "lines": [f"Dip in {vline.description} ({vline.id}) until the bubbles stop; drain.",
+        cure = f"{fmt_temp(v.cure_temperature_c)} for {fmt_seconds(v.cure_time_s)}"
+        varnish = {"n": n, "id": v.id, "name": v.name, "cure": cure,
+                   "lines": [f"Dip in {v.name} ({v.id}) until the bubbles stop; drain.",
                              f"Cure in the varnish oven: {cure} (catalogue figures)."],
                    "caution": [f"Hot varnish oven: parts, racks and oven walls at {cure.split(' for ')[0]}. "
                                f"Let parts cool before handling; wear heat-resistant gloves at the oven.",
@@ -481,28 +457,25 @@ def build_context(design, cat, *, number: str, qty: int, due: str | None = None,
         "ir_min": fmt_eng(t.insulation_resistance_min_ohm, "Ω", 3),
         "columns": columns, "serials": serials, "cautions": list(t.cautions),
     }
-    history = []
-    for e in d.history or ():
-        fp = str(e.get("fingerprint") or "") if isinstance(e, dict) else ""
-        history.append({"revision": str(e.get("revision", "")), "date": str(e.get("date", "")),
-                        "by": str(e.get("by", "")), "note": str(e.get("note", "")),
-                        "fingerprint": revision.short(fp) if fp else "not recorded"})
+    history = [{"revision": e.revision, "date": e.date, "by": e.by, "note": e.note,
+                "fingerprint": revision.short(e.fingerprint) if e.fingerprint else "not recorded"}
+               for e in d.history]
     ctx = {
         "head": head, "summary": summary, "materials": _materials(d, qty, scrap),
         "scrap": f"{scrap:.0%}", "steps": steps, "varnish": varnish, "after_varnish": after, "tests": tests,
         "caution": list(HIPOT_CAUTION), "standards_note": STANDARDS_NOTE, "notes": (d.notes or "").strip(),
         "history": history, "warnings": [c.message for c in d.warnings], "toroid": toroid,
-        "pin_word": pin_word, "paper": CSS_PAPER[shop.documents.paper], "side_margin_mm": SIDE_MARGIN_MM,
+        "pin_word": pin_word, "paper": CSS_PAPER[settings.paper], "side_margin_mm": SIDE_MARGIN_MM,
         "insulation": _insulation_rows(d),
     }
-    ctx.update(_drawings(d, cat))
+    ctx.update(_drawings(d, settings))
     return ctx
 
 
-def render_work_order_html(design, cat, **kwargs) -> str:
+def render_work_order_html(design, settings, **kwargs) -> str:
     from .render import render_html
 
-    return render_html("workorder.html", **build_context(design, cat, **kwargs))
+    return render_html("workorder.html", **build_context(design, settings, **kwargs))
 
 
 # ------------------------------------------------------------------------------------------------ issuing
@@ -609,14 +582,15 @@ def issue_from_design(spec_path, spec, design, cat, *, qty, due=None, lot=None, 
     out = Path(out_dir)
     if out.exists() and not out.is_dir():
         raise SpecError("is a file, expected the folder for the work order", file=str(out), path="--out")
-    where = locate_register(spec_path, register_path, shop_setting=cat.shop.register_path, catalog_dir=cat.root)
-    fmt = cat.shop.work_order_format.replace("{part}", design.part)
+    settings = DocumentSettings.from_shop(cat.shop)    # the document itself sees these figures only
+    where = locate_register(spec_path, register_path, shop_setting=settings.register_path, catalog_dir=cat.root)
+    fmt = settings.work_order_format.replace("{part}", design.part)
     with Register.open(where.target) as reg:
         with reg.issuing(design.part, design.revision, design.fingerprint or "-", qty, lot, due,
                          issued_by=by, fmt=fmt, number=number, quote=quote, draft=draft) as num:
             check_number(num)
             order = reg.get(num)
-            html = render_work_order_html(design, cat, number=num, qty=qty, due=due, lot=lot,
+            html = render_work_order_html(design, settings, number=num, qty=qty, due=due, lot=lot,
                                           issued=order.issued_at[:10], issued_by=order.issued_by, draft=draft)
             pdf_path, html_path = out / f"{num}.pdf", out / f"{num}.html"
             blocked: list = []
