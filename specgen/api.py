@@ -16,7 +16,7 @@ from .design.result import Design
 from .design.spec import Spec, load_spec, load_spec_text
 
 #: The shop figures the design reads: they change the part (turns, wire, build, test limits and
-#: voltages). Everything else in shop.yaml (name, currency, rates, margin, labor times, number
+#: voltages). Everything else in shop.yaml (name, currency, rates, profit margin, labor times, number
 #: format, the register's location, ``source``) changes the paperwork or the price, not the part.
 #: A shop figure the design starts reading must be added here (tests/test_register_location.py
 #: checks every ``shop.<figure>`` the design package reads against this list).

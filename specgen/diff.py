@@ -319,7 +319,7 @@ def shop_results(d, costs: Mapping[str, tuple] | None = None) -> dict[tuple[str,
         put(g, "spacer", i.spacer_m, "mm")
         put(g, "centre-leg grind", i.grind_m, "mm")
         put(g, "AL", i.al_nh, "nH")
-        put(g, "permeability roll-off at full current", i.rolloff_pct, "pct")
+        put(g, "permeability roll-off at full current", i.bias_drop_pct, "pct")
         put(g, "B_dc", i.b_dc_t, "T")
     if getattr(d, "current_transformer", None) is not None:
         ct = d.current_transformer

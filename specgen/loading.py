@@ -13,7 +13,7 @@ import math
 import os
 import re
 import stat
-from collections.abc import Iterable
+from collections.abc import Iterable, Mapping
 from typing import TYPE_CHECKING, Any, overload
 
 import yaml
@@ -230,6 +230,19 @@ def load_yaml(path: str | os.PathLike, what: str = "YAML file") -> Any:
 
 _MISSING = object()
 _PLAIN_NUMBER = re.compile(r"[+-]?(?:[0-9]+(?:\.[0-9]*)?|\.[0-9]+)(?:[eE][+-]?[0-9]+)?")
+
+
+#: Keys the spec, requirement and catalogue files used to spell otherwise, by where they stand: old key -> the
+#: one-line error that names the new key (``Reader.done(renamed=...)``).
+RENAMED_KEYS: dict[str, dict[str, str]] = {
+    "materials": {"rolloff": "rolloff was renamed dc_bias: {half_field, steepness} "
+                             "(half_field = b^(-1/c) in A/m, steepness = c, for a fit with a = 1)"},
+    "cores.dims": {"ring_fraction": "ring_fraction was renamed skirt_coverage (the share of the ring the skirts cover)"},
+    "bobbins": {"core": "core was renamed cores: a list of the cores the bobbin fits, e.g. cores: [ETD-39-F100]"},
+    "varnishes": {"usage": "usage was renamed winding_volume_share"},
+    "shop": {"margin": "margin (the profit on the selling price) was renamed profit_margin"},
+    "windings": {"match": "match was renamed same_turns_as (the winding whose turns this one repeats)"},
+}
 
 
 class Reader:
@@ -454,10 +467,13 @@ class Reader:
         line = lines[index] if lines and index < len(lines) else self.line_of(key)
         return SpecError(message, file=self.file, line=line, path=f"{self._key_path(key)}[{index}]")
 
-    def done(self, also_allowed: Iterable[str] = ()) -> None:
-        """Report the first key nobody read: almost always a typo."""
+    def done(self, also_allowed: Iterable[str] = (), renamed: Mapping[str, str] | None = None) -> None:
+        """Report the first key nobody read: almost always a typo, or a key spelt as it used to be
+        (``renamed``: old key -> the one-line message naming the new one)."""
         allowed = self._seen | set(also_allowed)
         for key in self.data:
+            if renamed and key in renamed and key not in allowed:
+                raise self.error(renamed[key], key)
             if key not in allowed:
                 near = _nearest(str(key), [str(k) for k in allowed])
                 hint = f"; did you mean '{near}'?" if near else ""

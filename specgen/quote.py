@@ -50,8 +50,8 @@ Price (common practice in custom-magnetics quoting; the conventions chosen here)
     overhead      shop.overhead x direct labor (a labor burden: benches, oven, test station),
                   not applied to material.
     cost          material + labor + overhead, per unit at the lot quantity.
-    unit price    cost / (1 - shop.margin): the margin is a fraction of the selling price (gross
-                  margin), so 22 % margin means 22 % of what the customer pays is margin.
+    unit price    cost / (1 - shop.profit_margin): the profit margin is a fraction of the selling price (gross
+                  margin), so a 22 % profit margin means 22 % of what the customer pays is profit.
     rounding      the unit price to the cent, ROUND_HALF_UP, once; the extended price is that
                   rounded unit price x quantity (so the customer's arithmetic checks). NRE/tooling
                   is a separate one-time line, rounded the same way, never amortised into the unit.
@@ -298,21 +298,21 @@ class PriceBreak:
     material_discount: Decimal = Decimal(0)   # per unit, from the suppliers' breaks (within material)
 
 
-def _check_margin(shop) -> None:
-    if shop.margin >= 1:
-        raise SpecError(f"a margin of {plain(shop.margin * 100)} % leaves no price (cost / (1 - margin)); "
-                        f"it must be below 100 %", path="shop.margin")
+def _check_profit_margin(shop) -> None:
+    if shop.profit_margin >= 1:
+        raise SpecError(f"a profit margin of {plain(shop.profit_margin * 100)} % leaves no price "
+                        f"(cost / (1 - profit_margin)); it must be below 100 %", path="shop.profit_margin")
 
 
 def unit_price(material: Decimal, run_s: Decimal, setup_s: Decimal, quantity: int, shop) -> dict:
     """Per-unit build-up at one lot size; the price rounded to the cent (half up)."""
-    _check_margin(shop)
+    _check_profit_margin(shop)
     setup_share_s = setup_s / Decimal(quantity)
     labor = (run_s + setup_share_s) / _HOUR * shop.labor_rate
     setup = setup_share_s / _HOUR * shop.labor_rate
     overhead = labor * shop.overhead
     cost = material + labor + overhead
-    price = cents(cost / (Decimal(1) - shop.margin))
+    price = cents(cost / (Decimal(1) - shop.profit_margin))
     return {"material": material, "labor": labor, "setup": setup, "overhead": overhead, "cost": cost,
             "unit_price": price}
 
@@ -494,7 +494,7 @@ class Quote:
     copper_per_unit: Decimal       # the copper wire share of the material per unit
     labor_rate: Decimal
     overhead: Decimal
-    margin: Decimal
+    profit_margin: Decimal
     scrap_wire: Decimal
     notes: tuple = ()
     design_summary: dict = field(default_factory=dict)
@@ -536,7 +536,7 @@ class Quote:
             "budgetary": self.budgetary, "budgetary_detail": self.budgetary_detail,
             "rules": {
                 "labor_rate_per_hour": str(self.labor_rate), "overhead_on_labor": str(self.overhead),
-                "margin_on_price": str(self.margin), "price": "cost / (1 - margin)",
+                "profit_margin_on_price": str(self.profit_margin), "price": "cost / (1 - profit_margin)",
                 "scrap_wire": str(self.scrap_wire), "rounding": "unit price to the cent, half up",
                 "copper_sensitivity": [str(COPPER_LOW), str(COPPER_HIGH)],
             },
@@ -597,7 +597,7 @@ def build_quote(spec, design, cat, quantities: Iterable[int], *, nre: Decimal | 
     if not quantities:
         raise SpecError("no quantity breaks", path="--qty")
     shop = cat.shop
-    _check_margin(shop)
+    _check_profit_margin(shop)
     model = time_model(shop)
     materials = material_lines(design, cat)
     labor = labor_lines(design, model)
@@ -626,7 +626,7 @@ def build_quote(spec, design, cat, quantities: Iterable[int], *, nre: Decimal | 
         materials=tuple(materials), labor=tuple(labor), run_time_s=run_seconds(labor),
         setup_time_s=dec(shop.setup_time_s), breaks=tuple(breaks), nre=None if nre is None else cents(nre),
         copper_per_unit=copper_total(materials), labor_rate=shop.labor_rate, overhead=shop.overhead,
-        margin=shop.margin, scrap_wire=shop.scrap_wire, notes=tuple(notes), design_summary=_summary(design),
+        profit_margin=shop.profit_margin, scrap_wire=shop.scrap_wire, notes=tuple(notes), design_summary=_summary(design),
         design=design, shop_documents=getattr(shop, "documents", None),
         customer_party=cat.customer(design.customer) if hasattr(cat, "customer") else None)
 
@@ -657,7 +657,7 @@ def quote_table(q: Quote) -> str:
                  f"  (copper wire {q.copper_per_unit:.4f})")
     lines.append("")
     lines.append(f"labor per unit at {money(q.labor_rate)}/h, overhead {plain(q.overhead * 100)} % on labor, "
-                 f"margin {plain(q.margin * 100)} % of price")
+                 f"profit margin {plain(q.profit_margin * 100)} % of price")
     for t in q.labor:
         lines.append(f"  {t.operation:<13} {t.seconds:>8.1f} s  {t.item + ': ' if t.item else ''}{t.detail}")
     lines.append(f"  {'run time':<13} {q.run_time_s:>8.1f} s  per unit; setup "

@@ -48,7 +48,7 @@ def design_report(d: Design) -> str:
          + (f", {c.laminations} lamination pairs" if c.laminations else "")],
         ["bobbin", c.bobbin or "none (toroid)"],
         ["Ae / le / Ve", f"{c.ae_m2 * 1e6:.1f} mm² / {c.le_m * 1e3:.1f} mm / {c.ve_m3 * 1e9:,.0f} mm³  "
-                         f"({c.effective_from})"],
+                         f"({c.effective_parameters_from})"],
         ["window Wa", f"{c.wa_m2 * 1e6:.1f} mm²"],
         ["frequency, waveform", f"{freq(d.frequency_hz)}, {waveform_text(d)}"],
         ["B_pk nominal / max", f"{d.b_peak_t:.3f} T / {d.b_peak_max_t:.3f} T  (limit {d.b_limit_t:.3f} T: "
@@ -73,7 +73,7 @@ def design_report(d: Design) -> str:
              + (f" (grind centre leg {i.grind_m * 1e3:.2f} mm)" if i.grind_m else "")
              + f", fringing F {i.fringing_factor:.3f}"],
             ["AL, energy", f"{present.si(i.al_nh * 1e-9, 'H')}/turn², {present.si(i.energy_j, 'J')}"],
-            ["DC bias", f"H_dc {i.h_dc_a_m:.4g} A/m, roll-off {i.rolloff_pct:.1f} %"],
+            ["DC bias", f"H_dc {i.h_dc_a_m:.4g} A/m, roll-off {i.bias_drop_pct:.1f} %"],
             ["current", f"{i.current_dc_a:g} A, ripple {i.ripple_a:g} A p-p, peak {i.current_peak_a:g} A; "
                         f"ΔB {i.delta_b_t * 1e3:.1f} mT"],
         ]

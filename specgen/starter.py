@@ -73,7 +73,7 @@ windings:                    # list order is the build order unless build_order 
     voltage: 24 V            # at full load
     current: 1 A             # rms at full load (or va: 24 VA)
     # va: 24 VA              # instead of current: the winding's apparent power
-    # match: P               # wind the same turns as another winding of the same role and voltage
+    # same_turns_as: P       # wind the same turns as another winding of the same role and voltage
     wire: auto
     start: "5"
     finish: "6"
@@ -109,7 +109,7 @@ core:                        # the magnetic core, from the catalogue
   id: ETD-34-F100            # catalogue core; a gapped choke needs a gappable ferrite core
   gap: auto                  # auto (calculated) | none | a fixed gap such as 0.8 mm
   gap_arrangement: centre    # centre (ground centre leg) | spacer (spacer in every leg) | none
-  # bobbin: BOB-ETD34-20P    # catalogue bobbin; default: the first that fits the core
+  # bobbin: BOB-ETD34-PIN20    # catalogue bobbin; default: the first that fits the core
   # count: 1                 # cores side by side (default 1)
 
 operating:                   # how the part is driven and where it lives

@@ -70,12 +70,12 @@ def test_check_finds_planted_errors_with_file_and_line(tmp_path):
 def test_check_finds_a_bobbin_bigger_than_its_window(tmp_path):
     d = _copy(tmp_path)
     text = (d / "bobbins.yaml").read_text()
-    start = text.index("  - id: BOB-ETD39-20P\n")
+    start = text.index("  - id: BOB-ETD39-PIN20\n")
     i = text.index("    breadth:", start)
     j = text.index("\n", i)
     (d / "bobbins.yaml").write_text(text[:i] + "    breadth: 60 mm" + text[j:])
     problems = [str(p) for p in check_catalog(d)]
-    assert any("BOB-ETD39-20P.breadth" in p and "does not fit" in p and "bobbins.yaml:" in p for p in problems), problems
+    assert any("BOB-ETD39-PIN20.breadth" in p and "does not fit" in p and "bobbins.yaml:" in p for p in problems), problems
 
 
 def test_cli_catalog_check_exit_codes(tmp_path):
@@ -119,7 +119,7 @@ def test_cli_catalog_list_json():
     ("shop.yaml", "per_winding: 90 s", "per_winding: 90 kg", "shop.labor.per_winding"),
     ("shop.yaml", "per_layer_tape: 20 s", "per_windnig: 90 s\n    per_layer_tape: 20 s", "shop.labor.per_windnig"),
     ("shop.yaml", "test: 150 s", "test: 150 d", "shop.labor.test"),
-    ("shop.yaml", "margin: 22 %", "margin: 100 %", "shop.margin"),
+    ("shop.yaml", "profit_margin: 22 %", "profit_margin: 100 %", "shop.profit_margin"),
     ("shop.yaml", "trip_current: 5 mA", "trip_current: 5 kA", "shop.hipot.trip_current"),
     ("shop.yaml", "ratio: 0.5 %", "ratio: 50 %x", "shop.tolerances.ratio"),
     ("shop.yaml", "minimum: 100 Mohm", "minimum: 100 V", "shop.insulation_resistance.minimum"),
@@ -143,12 +143,12 @@ def test_check_catches_bad_shop_and_stock_values(tmp_path, file, old, new, where
 def test_check_catches_two_bobbins_for_one_core_and_stack(tmp_path):
     d = _copy(tmp_path)
     text = (d / "bobbins.yaml").read_text()
-    start = text.index("  - id: BOB-EI75-19-2S\n")
+    start = text.index("  - id: BOB-EI75-19-SPLIT\n")
     end = text.index("\n\n", start)
-    twin = text[start:end].replace("BOB-EI75-19-2S", "BOB-EI75-19-2S-B")
+    twin = text[start:end].replace("BOB-EI75-19-SPLIT", "BOB-EI75-19-SPLIT-B")
     (d / "bobbins.yaml").write_text(text[:end] + "\n\n" + twin + text[end:])
     problems = [str(p) for p in check_catalog(d)]
-    assert any("BOB-EI75-19-2S-B.core" in p and "second 2-section bobbin" in p for p in problems), problems
+    assert any("BOB-EI75-19-SPLIT-B.cores" in p and "second 2-section bobbin" in p for p in problems), problems
 
 
 def test_cli_catalog_check_fails_on_a_bad_labour_figure(tmp_path):

@@ -56,7 +56,7 @@ def test_show_is_readable_text():
     out = r.stdout
     assert "{" not in out and "None" not in out and "True" not in out, out
     assert "cores.yaml:" in out and "gappable    yes" in out and "Ae" in out and "mm²" in out
-    assert "BOB-ETD39-20P" in out
+    assert "BOB-ETD39-PIN20" in out
 
 
 def test_show_wire_figures_against_iec_60028():

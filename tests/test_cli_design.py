@@ -28,7 +28,7 @@ CHECK = {"level", "code", "message"}
 CURRENT_TRANSFORMER = {"ratio", "burden_ohm", "ratio_error_pct", "phase_error_deg", "knee_burden_ohm"}
 FLYBACK = {"inductance_h", "gap_mm", "mode", "duty_max", "reflected_voltage_v", "delta_b_t", "leakage_inductance_h"}
 INDUCTOR = {"inductance_h", "inductance_at_full_bias_h", "gap_mm", "gap_arrangement", "al_nh", "energy_j",
-            "h_dc_a_m", "rolloff_pct"}
+            "h_dc_a_m", "bias_drop_pct"}
 
 
 def _specgen(*args, cwd=None):
@@ -94,7 +94,7 @@ def test_inductor_json_values(outputs):
     powder = json.loads(outputs["BH-5018"].stdout)
     assert gapped["gap_mm"] > 0 and gapped["gap_arrangement"] in ("centre", "spacer")
     assert powder["gap_mm"] is None and powder["gap_arrangement"] == "none"
-    assert powder["rolloff_pct"] > 0 and gapped["rolloff_pct"] == 0
+    assert powder["bias_drop_pct"] > 0 and gapped["bias_drop_pct"] == 0
     # the JSON is in the units its key names: mm, mm^2, nH (A_L = L / N^2)
     n = gapped["windings"][0]["turns"]
     assert gapped["al_nh"] == pytest.approx(gapped["inductance_h"] / n ** 2 * 1e9, rel=1e-9)

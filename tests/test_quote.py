@@ -4,7 +4,7 @@ Sources named beside each check:
 - the hand-computed build-up re-does the arithmetic of the rules stated in specgen/quote.py's
   docstring with Python's decimal module, from the Design's lengths/masses/turns and the catalogue
   prices written out below (invented demo figures, catalog/*.yaml); it calls none of the cost code.
-- overhead on direct labor and margin as a fraction of the selling price, price = cost / (1 - margin):
+- overhead on direct labor and profit margin as a fraction of the selling price, price = cost / (1 - profit margin):
   common practice in custom-magnetics quoting (the convention specgen.quote chooses and states).
 - rounding to the cent, half up: the commercial rounding rule, checked against decimal.ROUND_HALF_UP
   and against banker's rounding on a tie where the two differ.
@@ -65,7 +65,7 @@ def designs(cat):
 # Shop figures (demo scenario, catalog/shop.yaml): written out here, checked against the catalogue.
 LABOR_RATE = Decimal("38.00")        # per hour
 OVERHEAD = Decimal("0.45")           # on direct labor
-MARGIN = Decimal("0.22")             # of the selling price
+PROFIT_MARGIN = Decimal("0.22")             # of the selling price
 SETUP_S = Decimal("2700")            # 0.75 h per lot
 SCRAP = Decimal("0.03")              # on wire
 # labor time model (catalog/shop.yaml labor:, invented demo figures)
@@ -94,7 +94,7 @@ VARNISH_PER_L = {"VAR-PEI-F": Decimal("9.50")}
 def test_written_out_prices_are_the_catalogue_s(cat):
     # guards the hand computation below: if the demo catalogue changes, this says where
     shop = cat.shop
-    assert (shop.labor_rate, shop.overhead, shop.margin, shop.scrap_wire) == (LABOR_RATE, OVERHEAD, MARGIN, SCRAP)
+    assert (shop.labor_rate, shop.overhead, shop.profit_margin, shop.scrap_wire) == (LABOR_RATE, OVERHEAD, PROFIT_MARGIN, SCRAP)
     assert D(shop.setup_time_s) == SETUP_S
     assert cat.cores["EI-125"].price == LAMINATION_PER_KG and cat.cores["EI-125"].price_unit == "kg"
     assert cat.bobbins["BOB-EI125-32"].price == BOBBIN
@@ -195,23 +195,23 @@ def test_bh1042_build_up_reproduced_to_the_cent(cat, designs):
         labor = (run_s * learning + SETUP_S / b.quantity) / 3600 * LABOR_RATE   # setup amortised over the lot
         overhead = labor * OVERHEAD                                    # overhead on labor only
         cost = material + labor + overhead
-        price = (cost / (1 - MARGIN)).quantize(Decimal("0.01"), rounding=ROUND_HALF_UP)
+        price = (cost / (1 - PROFIT_MARGIN)).quantize(Decimal("0.01"), rounding=ROUND_HALF_UP)
         assert b.cost == cost
         assert b.unit_price == price, b.quantity
         assert b.extended == price * b.quantity
         # copper sensitivity: only the copper wire lines move, by 20 % of themselves
-        high = ((cost + copper * Decimal("0.2")) / (1 - MARGIN)).quantize(Decimal("0.01"), rounding=ROUND_HALF_UP)
-        low = ((cost - copper * Decimal("0.2")) / (1 - MARGIN)).quantize(Decimal("0.01"), rounding=ROUND_HALF_UP)
+        high = ((cost + copper * Decimal("0.2")) / (1 - PROFIT_MARGIN)).quantize(Decimal("0.01"), rounding=ROUND_HALF_UP)
+        low = ((cost - copper * Decimal("0.2")) / (1 - PROFIT_MARGIN)).quantize(Decimal("0.01"), rounding=ROUND_HALF_UP)
         assert (b.unit_price_copper_low, b.unit_price_copper_high) == (low, high)
 
 
-def test_margin_is_on_price_and_overhead_on_labor_only(cat, designs):
-    # common practice (the convention chosen): margin / price == 22 %; material carries no overhead
+def test_profit_margin_is_on_price_and_overhead_on_labor_only(cat, designs):
+    # common practice (the convention chosen): profit margin / price == 22 %; material carries no overhead
     _path, spec, d = designs["BH-5018"]
     q = qm.build_quote(spec, d, cat, (1000,), issued=ISSUED)
     b = q.breaks[0]
-    exact_price = b.cost / (1 - MARGIN)
-    assert abs((exact_price - b.cost) / exact_price - MARGIN) < Decimal("1e-20")   # 28-digit context
+    exact_price = b.cost / (1 - PROFIT_MARGIN)
+    assert abs((exact_price - b.cost) / exact_price - PROFIT_MARGIN) < Decimal("1e-20")   # 28-digit context
     assert b.overhead == b.labor * OVERHEAD
     assert b.cost == b.material + b.labor + b.overhead
 
@@ -341,9 +341,9 @@ def test_time_model_is_the_shop_figures_typed_at_load(cat):
     assert model.bobbin_turns_per_minute == Decimal(600) and model.per_winding_s == Decimal(90)
 
 
-def test_margin_of_100_percent_is_refused(cat):
-    shop = dataclasses.replace(cat.shop, margin=Decimal(1))
-    with pytest.raises(SpecError, match="margin"):
+def test_profit_margin_of_100_percent_is_refused(cat):
+    shop = dataclasses.replace(cat.shop, profit_margin=Decimal(1))
+    with pytest.raises(SpecError, match="profit margin"):
         qm.unit_price(Decimal(1), Decimal(1), Decimal(1), 10, shop)
 
 

@@ -227,8 +227,8 @@ def test_a_family_evaluated_but_failing_says_why(cat):
     """The 47 uH choke: ungapped nanocrystalline and high-permeability ferrite toroids saturate."""
     sr = S.search(S.load_requirement(DEMO / "REQ-3305.yaml"), cat)
     fams = {f.family: f for f in sr.families}
-    assert "saturates" in fams["toroid / FER-HMU"].reasons
-    assert "closest:" in fams["toroid / FER-HMU"].detail
+    assert "saturates" in fams["toroid / FER-HIGHPERM"].reasons
+    assert "closest:" in fams["toroid / FER-HIGHPERM"].detail
 
 
 # ------------------------------------------------------------------------------------------------ vector = scalar

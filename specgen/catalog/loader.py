@@ -16,7 +16,7 @@ from pathlib import Path
 from typing import Any
 
 from ..errors import SpecError
-from ..loading import Reader, load_yaml
+from ..loading import RENAMED_KEYS, Reader, load_yaml
 from .models import (
     CORE_SHAPES,
     MATERIAL_FAMILIES,
@@ -197,15 +197,16 @@ def _material(r: Reader) -> Material:
         # fail in ordinary service, so such a figure is a slip (of unit or of digit)
         raise r.error(f"a ferrite's Curie point of {out['curie_c']:g} degC is below {FERRITE_CURIE_MIN_C:g} degC; "
                       "power ferrites lie far above (common practice: 150-300 degC)", "curie")
-    ro = r.mapping("rolloff", None)
-    if ro is not None:
-        out.update(rolloff_a=ro.number("a", minimum=0.01), rolloff_b=ro.number("b", minimum=0.0),
-                   rolloff_c=ro.number("c", minimum=0.1, maximum=5.0))
-        ro.done()
-    r.done()
+    bias = r.mapping("dc_bias", None)
+    if bias is not None:
+        out.update(dc_bias_half_field_a_m=bias.quantity("half_field", "field"),
+                   dc_bias_steepness=bias.number("steepness", minimum=0.1, maximum=5.0))
+        bias.done()
+    r.done(renamed=RENAMED_KEYS["materials"])
     m = Material(**out)
-    if m.is_powder and m.rolloff_a is None:
-        raise r.error("a powder material needs its DC-bias roll-off curve (rolloff: {a, b, c})", "rolloff")
+    if m.is_powder and m.dc_bias_half_field_a_m is None:
+        raise r.error("a powder material needs its permeability under DC bias (dc_bias: {half_field, steepness})",
+                      "dc_bias")
     return m
 
 
@@ -225,10 +226,10 @@ def _core(r: Reader) -> Core:
         if d.has(k):
             dims[k] = d.quantity(k, "length", maximum=MAX_DIMENSION_M)
     if shape == "RM":
-        dims["ring_fraction"] = d.number("ring_fraction", 0.6, minimum=0.1, maximum=1.0)
+        dims["skirt_coverage"] = d.number("skirt_coverage", 0.6, minimum=0.1, maximum=1.0)
     elif shape == "POT":
-        dims["ring_fraction"] = d.number("ring_fraction", 1.0, minimum=0.1, maximum=1.0)
-    d.done()
+        dims["skirt_coverage"] = d.number("skirt_coverage", 1.0, minimum=0.1, maximum=1.0)
+    d.done(renamed=RENAMED_KEYS["cores.dims"])
     _check_core_dims(shape, dims, d)
     stacks: tuple[float, ...] = ()
     if shape == "EI" or r.has("stacks"):
@@ -297,7 +298,7 @@ def _bobbin(r: Reader) -> Bobbin:
         n = r.integer("pins", minimum=1, maximum=200)
         pins = tuple(str(i) for i in range(1, n + 1))
     b = Bobbin(
-        id=r.text("id"), core=r.text("core"), shape=shape, tube_width_m=tube_w, tube_depth_m=tube_d,
+        id=r.text("id"), cores=_core_ids(r), shape=shape, tube_width_m=tube_w, tube_depth_m=tube_d,
         breadth_m=r.quantity("breadth", "length", maximum=MAX_DIMENSION_M),
         height_m=r.quantity("height", "length", maximum=MAX_DIMENSION_M),
         pins=pins, pin_pitch_m=r.quantity("pin_pitch", "length", 0.005),
@@ -310,8 +311,20 @@ def _bobbin(r: Reader) -> Bobbin:
         core_creepage_m=r.quantity("core_creepage", "length", None),
         wall_voltage_v=r.quantity("wall_voltage", "voltage", None),
     )
-    r.done()
+    r.done(renamed=RENAMED_KEYS["bobbins"])
     return b
+
+
+def _core_ids(r: Reader) -> tuple[str, ...]:
+    """The ids of the cores a bobbin fits: one body in several grades takes the same bobbin."""
+    ids = tuple(str(c).strip() for c in r.list_of("cores", None) or ())
+    if not ids or not all(ids):
+        if r.has("core"):
+            raise r.error(RENAMED_KEYS["bobbins"]["core"], "core")
+        raise r.error("list the cores this bobbin fits, e.g. cores: [ETD-39-F100, ETD-39-F300]", "cores")
+    if len(set(ids)) != len(ids):
+        raise r.error("a core is listed twice", "cores")
+    return ids
 
 
 def _tape(r: Reader) -> Tape:
@@ -336,9 +349,9 @@ def _varnish(r: Reader) -> Varnish:
     v = Varnish(id=r.text("id"), name=r.text("name"), thermal_class_c=_thermal_class(r),
                 cure_temperature_c=r.quantity("cure_temperature", "temperature"),
                 cure_time_s=r.quantity("cure_time", "time"),
-                usage_m3_per_m3=r.number("usage", 0.15, minimum=0.0, maximum=1.0),
+                winding_volume_share=r.number("winding_volume_share", 0.15, minimum=0.0, maximum=1.0),
                 price_per_litre=r.decimal("price_per_litre"), source=r.text("source"), raw=_plain(r.data))
-    r.done()
+    r.done(renamed=RENAMED_KEYS["varnishes"])
     return v
 
 
@@ -446,14 +459,16 @@ def _shop(r: Reader) -> Shop:
     fmt = _work_order_format(r)
     labor = _labor(r.mapping("labor"))
     documents = _shop_documents(r)
-    margin = _pct(r, "margin")
-    if margin >= 1:
-        raise r.error(f"a margin of {(margin * 100).normalize():f} % leaves no price (cost / (1 - margin)); "
-                      "it must be below 100 %", "margin")
+    if r.has("margin"):
+        raise r.error(RENAMED_KEYS["shop"]["margin"], "margin")
+    profit_margin = _pct(r, "profit_margin")
+    if profit_margin >= 1:
+        raise r.error(f"a profit margin of {(profit_margin * 100).normalize():f} % leaves no price "
+                      "(cost / (1 - profit_margin)); it must be below 100 %", "profit_margin")
     insulation = _insulation_basis(r.mapping("insulation")) if r.has("insulation") else None
     shop = Shop(
         name=r.text("name"), currency=r.text("currency", "USD"), labor_rate=r.decimal("labor_rate"),
-        overhead=_pct(r, "overhead"), margin=margin,
+        overhead=_pct(r, "overhead"), profit_margin=profit_margin,
         setup_time_s=r.quantity("setup_time", "time", allow_zero=True, maximum=7 * 24 * 3600.0),
         scrap_wire=_pct(r, "scrap_wire", maximum=Decimal(1)),
         current_density_a_m2=densities, bulge_factor=r.number("bulge_factor", 1.12, minimum=1.0, maximum=1.6),
@@ -662,43 +677,48 @@ def _cross_check(tables: dict, locations: dict, problems: list | None) -> None:
             raise err
         problems.append(err)
 
-    from ..physics import geometry
-
     for core in tables["cores"].values():
         if core.material not in tables["materials"]:
             fail(core.id, "material", f"unknown material '{core.material}'")
     seen: dict = {}
     for bob in tables["bobbins"].values():
-        key = (bob.core, None if bob.stack_m is None else round(bob.stack_m, 6), bob.sections)
-        if key in seen:
-            stack = "" if bob.stack_m is None else f" at stack {bob.stack_m * 1e3:g} mm"
-            fail(bob.id, "core", f"a second {bob.sections}-section bobbin for core '{bob.core}'{stack} (first: "
-                                 f"'{seen[key]}'); the design picks one bobbin per core, stack and sections")
-            continue
-        seen[key] = bob.id
-        core = tables["cores"].get(bob.core)
-        if core is None:
-            fail(bob.id, "core", f"unknown core '{bob.core}'")
-            continue
-        if core.is_toroid:
-            fail(bob.id, "core", f"'{bob.core}' is a toroid; toroids are wound without a bobbin")
-            continue
-        try:
-            breadth = geometry.window_breadth_m(core.shape, core.dims)
-            height = geometry.window_height_m(core.shape, core.dims)
-        except (ValueError, ZeroDivisionError, KeyError) as exc:   # a shape the geometry cannot size
-            fail(core.id, "dims", f"cannot size the window: {exc}")
-            continue
-        if bob.breadth_m > breadth + 1e-9:
-            fail(bob.id, "breadth", f"winding breadth {bob.breadth_m * 1e3:.2f} mm does not fit the core's "
-                                    f"window length {breadth * 1e3:.2f} mm")
-        if bob.height_m > height + 1e-9:
-            fail(bob.id, "height", f"build height {bob.height_m * 1e3:.2f} mm is more than the core's "
-                                   f"window depth {height * 1e3:.2f} mm")
-        if core.shape == "EI" and bob.stack_m is not None and core.stacks_m and \
-                not any(abs(bob.stack_m - s) < 1e-6 for s in core.stacks_m):
-            fail(bob.id, "stack", f"stack {bob.stack_m * 1e3:g} mm is not one of the stacks stocked for '{core.id}'")
+        for core_id in bob.cores:
+            key = (core_id, None if bob.stack_m is None else round(bob.stack_m, 6), bob.sections)
+            if key in seen:
+                stack = "" if bob.stack_m is None else f" at stack {bob.stack_m * 1e3:g} mm"
+                fail(bob.id, "cores", f"a second {bob.sections}-section bobbin for core '{core_id}'{stack} (first: "
+                                      f"'{seen[key]}'); the design picks one bobbin per core, stack and sections")
+                continue
+            seen[key] = bob.id
+            core = tables["cores"].get(core_id)
+            if core is None:
+                fail(bob.id, "cores", f"unknown core '{core_id}'")
+                continue
+            _check_bobbin_fits(bob, core, fail)
 
+
+def _check_bobbin_fits(bob: Bobbin, core: Core, fail: Callable[[str, str, str], None]) -> None:
+    """The bobbin fits the window of one of the cores it lists (and, on an EI core, a stocked stack)."""
+    from ..physics import geometry
+
+    if core.is_toroid:
+        fail(bob.id, "cores", f"'{core.id}' is a toroid; toroids are wound without a bobbin")
+        return
+    try:
+        breadth = geometry.window_breadth_m(core.shape, core.dims)
+        height = geometry.window_height_m(core.shape, core.dims)
+    except (ValueError, ZeroDivisionError, KeyError) as exc:   # a shape the geometry cannot size
+        fail(core.id, "dims", f"cannot size the window: {exc}")
+        return
+    if bob.breadth_m > breadth + 1e-9:
+        fail(bob.id, "breadth", f"winding breadth {bob.breadth_m * 1e3:.2f} mm does not fit the window length "
+                                f"{breadth * 1e3:.2f} mm of '{core.id}'")
+    if bob.height_m > height + 1e-9:
+        fail(bob.id, "height", f"build height {bob.height_m * 1e3:.2f} mm is more than the window depth "
+                               f"{height * 1e3:.2f} mm of '{core.id}'")
+    if core.shape == "EI" and bob.stack_m is not None and core.stacks_m and \
+            not any(abs(bob.stack_m - s) < 1e-6 for s in core.stacks_m):
+        fail(bob.id, "stack", f"stack {bob.stack_m * 1e3:g} mm is not one of the stacks stocked for '{core.id}'")
 
 def load_catalog(root: str | os.PathLike | None = None) -> Catalog:
     """Load the catalogue folder (see ``resolve_catalog_dir``) or raise the first SpecError.

@@ -83,9 +83,8 @@ class Material:
     mu_amplitude: float | None = None        # relative permeability at the working flux (steels: far above mu_i)
     lamination_thickness_m: float = 0.0
     stacking_factor: float = 1.0
-    rolloff_a: float | None = None           # powders: mu/mu_i = 1 / (a + b * H^c), H in A/m
-    rolloff_b: float | None = None
-    rolloff_c: float | None = None
+    dc_bias_half_field_a_m: float | None = None   # powders: mu/mu_i = 1 / (1 + (H / half_field)^steepness)
+    dc_bias_steepness: float | None = None
     raw: dict = field(default_factory=dict, compare=False, repr=False)
 
     @property
@@ -96,6 +95,16 @@ class Material:
     @property
     def is_powder(self) -> bool:
         return self.family in ("iron_powder", "alloy_powder")
+
+    def bias_fit(self) -> tuple[float, float, float]:
+        """The DC-bias curve as the coefficients (a, b, c) of mu/mu_i = 1 / (a + b H^c), H in A/m, that the
+        physics functions take: a = 1, b = half_field^-steepness, c = steepness; (0, 0, 0) without a curve."""
+        if self.dc_bias_half_field_a_m is None or self.dc_bias_steepness is None:
+            return 0.0, 0.0, 0.0
+        from ..physics.powder_bias import fit_b_from_half_field
+
+        b = float(fit_b_from_half_field(self.dc_bias_half_field_a_m, self.dc_bias_steepness))
+        return 1.0, b, float(self.dc_bias_steepness)
 
     @property
     def is_lamination(self) -> bool:
@@ -129,7 +138,7 @@ class Core:
 @record
 class Bobbin:
     id: str
-    core: str                      # Core id it fits
+    cores: tuple                   # ids of the cores it fits (one body, several grades)
     shape: str                     # rect | round (winding surface of the tube)
     tube_width_m: float            # rect: outer size of the tube across the centre leg width
     tube_depth_m: float            # rect: outer size along the stack/depth; round: = tube_width (the diameter)
@@ -184,7 +193,7 @@ class Varnish:
     thermal_class_c: int
     cure_temperature_c: float
     cure_time_s: float
-    usage_m3_per_m3: float         # varnish taken up per volume of winding (common practice ~ 0.1-0.2)
+    winding_volume_share: float    # varnish taken up per volume of winding (common practice ~ 0.1-0.2)
     price_per_litre: Decimal
     source: str
     raw: dict = field(default_factory=dict, compare=False, repr=False)
@@ -283,7 +292,7 @@ class Shop:
     currency: str
     labor_rate: Decimal            # per hour
     overhead: Decimal              # fraction (0.45)
-    margin: Decimal                # fraction
+    profit_margin: Decimal         # fraction of the selling price
     setup_time_s: float            # per lot
     scrap_wire: Decimal            # fraction of wire
     current_density_a_m2: CurrentDensities   # cooling -> A/m^2
@@ -357,7 +366,7 @@ class Catalog:
         return None
 
     def bobbins_for(self, core_id: str) -> list:
-        return [b for b in self.bobbins.values() if b.core == core_id]
+        return [b for b in self.bobbins.values() if core_id in b.cores]
 
 
 # ------------------------------------------------------------------------------------------------ documents

@@ -23,7 +23,7 @@ def rows(cat, table: str) -> list:
                         "stacks_mm": [round(s * 1e3, 2) for s in obj.stacks_m] or None,
                         "gappable": obj.gappable, "price": str(obj.price), "per": obj.price_unit})
         elif table == "bobbins":
-            out.append({"id": obj.id, "core": obj.core, "breadth_mm": _mm(obj.breadth_m),
+            out.append({"id": obj.id, "cores": ", ".join(obj.cores), "breadth_mm": _mm(obj.breadth_m),
                         "height_mm": _mm(obj.height_m), "pins": len(obj.pins), "sections": obj.sections,
                         "class": obj.thermal_class_c, "price": str(obj.price)})
         elif table == "materials":

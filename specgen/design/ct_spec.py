@@ -90,7 +90,7 @@ def parse_current_transformer(r: Reader, windings: tuple[Winding, ...], wreaders
                                  ratio_error_pct=ratio_err, phase_error_deg=phase_err)
 
 
-_UNUSED_WINDING_KEYS = ("voltage", "voltage_min", "voltage_max", "current", "va", "turns", "match")
+_UNUSED_WINDING_KEYS = ("voltage", "voltage_min", "voltage_max", "current", "va", "turns", "same_turns_as")
 
 
 def _check_ct_windings(r: Reader, windings: tuple[Winding, ...], wreaders: list[Reader], np_turns: int) -> None:

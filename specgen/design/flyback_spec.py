@@ -26,7 +26,7 @@ MODES = ("dcm", "boundary", "ccm")
 SECTION_KEYS = ("input_voltage_min", "input_voltage_max", "mode", "ripple_ratio", "inductance", "duty_max",
                 "reflected_voltage", "efficiency", "diode_drop", "output_tolerance")
 UNUSED_OPERATING_KEYS = ("waveform", "duty", "efficiency")   # the drive is the flyback's own; efficiency here
-_UNUSED_WINDING_KEYS = ("voltage_min", "voltage_max", "va", "turns", "match")
+_UNUSED_WINDING_KEYS = ("voltage_min", "voltage_max", "va", "turns", "same_turns_as")
 
 
 @dataclass(frozen=True)

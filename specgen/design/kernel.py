@@ -59,7 +59,7 @@ from ..physics import coreloss, dowell, faraday, geometry, thermal
 from ..physics import gap as gapmod
 from ..physics import wire as wiremod
 from ..physics.layers import layer_fr
-from ..physics.permeability import rolloff_fraction
+from ..physics.permeability import bias_fit_fraction
 from .limits import (
     COOLING_RISE_FACTOR,
     FIRST_GUESS_RISE_K,
@@ -294,9 +294,9 @@ def gapped_turns_and_gap(target_h: ArrayLike, i_peak_a: ArrayLike, b_limit_t: Ar
 def powder_flux_t(turns: ArrayLike, current_a: ArrayLike, le_m: ArrayLike, mu_initial: ArrayLike,
                   a: float, b: float, c: float) -> Arr:
     """Flux density in a powder core at a current, B = mu0 mu_i f(H) H with H = N I / le (the roll-off fit
-    ``physics.permeability.rolloff_fraction``)."""
+    ``physics.permeability.bias_fit_fraction``)."""
     h = _f(turns) * _f(current_a) / _f(le_m)
-    return _out(MU0_H_M * _f(mu_initial) * _f(rolloff_fraction(h, a, b, c)) * h)
+    return _out(MU0_H_M * _f(mu_initial) * _f(bias_fit_fraction(h, a, b, c)) * h)
 
 
 def magnetizing_current_a(v: ArrayLike, freq_hz: ArrayLike, inductance_h: ArrayLike, waveform: str,

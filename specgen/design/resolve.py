@@ -138,8 +138,8 @@ def resolve_bobbin(spec: Spec, cat: Catalog, core: Core, stack: float | None) ->
         if b is None:
             raise spec_error(spec, f"unknown bobbin '{spec.bobbin_id}'{nearest(spec.bobbin_id, cat.bobbins)}",
                              "core", "bobbin")
-        if b.core != core.id:
-            raise spec_error(spec, f"bobbin {b.id} is made for core {b.core}, not {core.id}", "core", "bobbin")
+        if core.id not in b.cores:
+            raise spec_error(spec, f"bobbin {b.id} is made for core {', '.join(b.cores)}, not {core.id}", "core", "bobbin")
         return b
     fits = [b for b in cat.bobbins_for(core.id)
             if b.stack_m is None or stack is None or abs(b.stack_m - stack) < 1e-6]
@@ -235,7 +235,7 @@ def core_result(spec: Spec, cat: Catalog, parts: Parts, b_sat_hot_t: float) -> C
         ve_m3=parts.ve_m3, wa_m2=parts.wa_m2, amin_m2=parts.amin_m2, mass_kg=mass, stack_m=parts.stack_m,
         count=spec.core_count, laminations=lams, bobbin=parts.bobbin.id if parts.bobbin else None,
         b_sat_hot_t=b_sat_hot_t, b_r_t=m.b_r_t, h_c_a_m=m.h_c_a_m, mu_initial=m.mu_initial,
-        effective_from=parts.effective_from, window_breadth_m=parts.window_breadth_m,
+        effective_parameters_from=parts.effective_parameters_from, window_breadth_m=parts.window_breadth_m,
         window_height_m=parts.former.height_m, surface_area_m2=parts.surface_m2,
     )
 

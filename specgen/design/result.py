@@ -110,7 +110,7 @@ class CoreResult:
     b_r_t: float
     h_c_a_m: float
     mu_initial: float
-    effective_from: str              # 'IEC 60205 from dimensions' or 'measured (catalogue override)'
+    effective_parameters_from: str              # 'IEC 60205 from dimensions' or 'measured (catalogue override)'
     window_breadth_m: float
     window_height_m: float
     surface_area_m2: float
@@ -256,7 +256,7 @@ class InductorResult:
     al_nh: float
     energy_j: float
     h_dc_a_m: float
-    rolloff_pct: float               # % of initial permeability lost at full DC current
+    bias_drop_pct: float               # % of initial permeability lost at full DC current
     current_dc_a: float
     current_peak_a: float
     ripple_a: float
@@ -479,7 +479,7 @@ class Design:
                 "le_mm": c.le_m * 1e3, "ve_mm3": c.ve_m3 * 1e9, "wa_mm2": c.wa_m2 * 1e6,
                 "mass_g": c.mass_kg * 1e3, "stack_mm": c.stack_m * 1e3 if c.stack_m else None,
                 "count": c.count, "laminations": c.laminations, "bobbin": c.bobbin,
-                "effective_from": c.effective_from, "surface_area_cm2": c.surface_area_m2 * 1e4,
+                "effective_parameters_from": c.effective_parameters_from, "surface_area_cm2": c.surface_area_m2 * 1e4,
             },
             "windings": [{
                 "name": w.name, "role": w.role, "turns": w.turns, "voltage_v": w.voltage_v,
@@ -531,7 +531,7 @@ class Design:
                 "spacer_mm": i.spacer_m * 1e3 if i.spacer_m is not None else None,
                 "grind_mm": i.grind_m * 1e3 if i.grind_m is not None else None,
                 "fringing_factor": i.fringing_factor, "al_nh": i.al_nh, "energy_j": i.energy_j,
-                "h_dc_a_m": i.h_dc_a_m, "rolloff_pct": i.rolloff_pct, "current_dc_a": i.current_dc_a,
+                "h_dc_a_m": i.h_dc_a_m, "bias_drop_pct": i.bias_drop_pct, "current_dc_a": i.current_dc_a,
                 "current_peak_a": i.current_peak_a, "ripple_a": i.ripple_a, "delta_b_t": i.delta_b_t,
                 "b_dc_t": i.b_dc_t,
             })

@@ -24,7 +24,7 @@ from dataclasses import field
 from typing import TYPE_CHECKING, Any, cast
 
 from ..errors import SpecError
-from ..loading import Reader, first_unsafe_char, load_yaml, parse_yaml
+from ..loading import RENAMED_KEYS, Reader, first_unsafe_char, load_yaml, parse_yaml
 from ..records import record
 from .limits import MAX_TURNS
 from .vocab import Cooling, Waveform
@@ -83,7 +83,7 @@ class Winding:
     turns: int | None                # a fixed turn count (overrides the calculation)
     margin_m: float | None           # creepage margin each side (None: the insulation default)
     lead_sleeving: str | None
-    match: str | None = None         # wind the same turns as this winding (series/parallel pairs)
+    same_turns_as: str | None = None   # wind the same turns as this winding (series/parallel pairs)
     voltage_tolerance: tuple[float, float] | None = None   # (minus, plus) fractions; None: the shop's
     line: int | None = None
     path: str = ""
@@ -205,10 +205,10 @@ def _winding(r: Reader, kind: str) -> Winding:
         start=_pin(r, "start"), finish=_pin(r, "finish"),
         direction=r.choice("direction", ("cw", "ccw"), "cw"), sections=sections, section_pins=spins,
         turns=turns, margin_m=r.quantity("margin", "length", None, allow_zero=True),
-        lead_sleeving=r.text("lead_sleeving", None), match=r.text("match", None),
+        lead_sleeving=r.text("lead_sleeving", None), same_turns_as=r.text("same_turns_as", None),
         voltage_tolerance=r.tolerance_pair("voltage_tolerance", None), line=r.line, path=r.path,
     )
-    r.done()
+    r.done(renamed=RENAMED_KEYS["windings"])
     if w.start == w.finish:
         raise r.error(f"starts and finishes on the same pin '{w.start}'", "finish")
     chain = [w.start, *spins, w.finish]
@@ -325,7 +325,7 @@ def parse_spec(data: Any, name: str) -> Spec:
 
 
 def _check_windings(r: Reader, kind: str, windings: tuple[Winding, ...], wreaders: list[Reader]) -> None:
-    """Names unique, the roles a kind needs, matched pairs that can match."""
+    """Names unique, the roles a kind needs, same-turns pairs that can be paired."""
     names = [w.name for w in windings]
     for i, w in enumerate(windings):
         if (problem := winding_name_problem(w.name)) is not None:
@@ -362,12 +362,13 @@ def _check_windings(r: Reader, kind: str, windings: tuple[Winding, ...], wreader
                                     "transformer's secondary and auxiliary windings", "voltage_tolerance")
 
     for w, wr in zip(windings, wreaders):
-        if w.match is not None:
-            other = next((o for o in windings if o.name == w.match), None)
+        if w.same_turns_as is not None:
+            other = next((o for o in windings if o.name == w.same_turns_as), None)
             if other is None or other is w:
-                raise wr.error(f"'{w.match}' names no other winding", "match")
+                raise wr.error(f"'{w.same_turns_as}' names no other winding", "same_turns_as")
             if other.role != w.role or other.voltage_v != w.voltage_v:
-                raise wr.error(f"only a winding of the same role and voltage can match {w.match}", "match")
+                raise wr.error(f"only a winding of the same role and voltage can have the same turns as {w.same_turns_as}",
+                               "same_turns_as")
 
 
 RESERVED_NAMES = ("all", "core")

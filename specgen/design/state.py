@@ -58,7 +58,7 @@ class Parts:
     ve_m3: float
     amin_m2: float
     wa_m2: float
-    effective_from: str
+    effective_parameters_from: str
     window_breadth_m: float      # along the leg (the fringing factor's G); toroid: core height
     surface_m2: float
 
@@ -143,7 +143,7 @@ class Magnetics:
     inductance_full_bias_h: float
     b_peak_t: float                   # at the operating peak current
     b_peak_max_t: float               # at the over-current peak
-    rolloff_pct: float
+    bias_drop_pct: float
     gap_m: float | None = None        # None: powder (distributed gap)
     arrangement: GapArrangement = "none"
     fringing_factor: float = 1.0

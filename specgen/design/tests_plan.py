@@ -165,6 +165,6 @@ def materials_per_unit(state: DesignState, core: CoreResult) -> list[MaterialLin
             sb = sec.build
             for layer in sb.layers:
                 volume += layer.turns_capacity * sb.pitch_m * sb.layer_height_m * layer.mlt_m
-        out.append(MaterialLine("varnish", v.id, v.name, volume * v.usage_m3_per_m3 * 1e3, "l", None,
-                                note=f"{v.usage_m3_per_m3:.0%} of the winding volume (common practice)"))
+        out.append(MaterialLine("varnish", v.id, v.name, volume * v.winding_volume_share * 1e3, "l", None,
+                                note=f"{v.winding_volume_share:.0%} of the winding volume (common practice)"))
     return out

@@ -32,7 +32,7 @@ KEY_NAMES = {
     "name": "name", "role": "role", "turns": "turns", "voltage": "voltage", "voltage_max": "highest voltage",
     "current": "current", "va": "VA", "wire": "wire", "strands": "strands in hand", "sections": "sections",
     "section_pins": "tie pins between sections", "start": "start pin", "finish": "finish pin",
-    "direction": "winding direction", "margin": "creepage margin", "match": "wound to match",
+    "direction": "winding direction", "margin": "creepage margin", "same_turns_as": "same turns as",
     "build_order": "build order", "layer_tape": "tape between layers", "winding_tape": "tape between windings",
     "outer_wrap": "outer wrap", "margin_tape": "margin tape", "sleeving": "lead sleeving", "varnish": "varnish",
     "tape": "tape", "layers": "layers", "between": "between", "rating": "rating",

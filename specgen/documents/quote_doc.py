@@ -10,7 +10,7 @@ are how the shop makes the part, not what it promises.
 
 Internal copy (``<part>-rev<R>-quote-internal.pdf``): the same identity and prices, marked
 internal, plus the fingerprint, the construction, and the whole build-up (material lines, labor
-operations, learning and suppliers' breaks per lot, overhead, margin).
+operations, learning and suppliers' breaks per lot, overhead, profit margin).
 
 Rendering goes through ``specgen.documents.render`` (one jinja2 environment, the locked-down
 WeasyPrint fetcher); the four files (two PDFs, two HTML) are written together atomically.
@@ -178,7 +178,7 @@ def _internal(q: Quote) -> dict:
              "discount": f"−{money(b.material_discount)}" if money(b.material_discount) != "0.00" else "0.00",
              "labor": money(b.labor),
              "setup": money(b.setup), "overhead": money(b.overhead), "cost": money(b.cost),
-             "margin": money(b.unit_price - b.cost), "unit_price": money(b.unit_price)} for b in q.breaks]
+             "profit": money(b.unit_price - b.cost), "unit_price": money(b.unit_price)} for b in q.breaks]
     s = q.design_summary
     windings = []
     for w in s.get("windings", []):
@@ -190,7 +190,7 @@ def _internal(q: Quote) -> dict:
         "run_time": f"{q.run_time_s.quantize(Decimal('0.1'))}", "setup_min": plain(q.setup_time_s / 60),
         "lots": lots, "core": s.get("core", ""), "windings": windings,
         "rules": f"labor {money(q.labor_rate)} per hour; overhead {plain(q.overhead * 100)} % on labor; "
-                 f"margin {plain(q.margin * 100)} % of the price; wire scrap {plain(q.scrap_wire * 100)} %"
+                 f"profit margin {plain(q.profit_margin * 100)} % of the price; wire scrap {plain(q.scrap_wire * 100)} %"
                  + _lot_rules(q),
         "budgetary_detail": q.budgetary_detail,
     }

@@ -298,7 +298,7 @@ def build_context(design, settings, *, number: str, qty: int, due: str | None = 
         ("Part", f"{d.part} rev {d.revision} ({d.status})"), ("Kind", d.kind),
         ("Core", f"{d.core.id}, {d.core.material_name}"
                  + (f", stack {fmt_mm(d.core.stack_m)}" if d.core.stack_m and not toroid else "")),
-        ("Former", d.core.bobbin if d.core.bobbin else "none (toroid, wound on the core)"),
+        ("Bobbin", d.core.bobbin if d.core.bobbin else "none (toroid, wound on the core)"),
         ("Windings", ", ".join(f"{w.name} {w.turns} t" for w in d.windings)),
         ("Operating", f"{d.frequency_hz:g} Hz, insulation class {d.insulation_class_c}"),
     ]

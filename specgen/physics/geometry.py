@@ -43,7 +43,7 @@ def _positive(**values: float) -> None:
             raise ValueError(f"{name} must be positive, got {value!r}")
 
 
-def effective_from_segments(lengths_m: ArrayLike, areas_m2: ArrayLike) -> EffectiveParams:
+def effective_params_from_segments(lengths_m: ArrayLike, areas_m2: ArrayLike) -> EffectiveParams:
     """Effective parameters from series segments of a magnetic circuit (IEC 60205 summation).
 
     Parameters
@@ -120,7 +120,7 @@ def _e_loop(centre_area: float, centre_half_width: float, outer_area: float, out
         (outer_area + yoke_area) / 2.0,
         (centre_area + yoke_area) / 2.0,
     ]
-    return effective_from_segments(lengths, areas)
+    return effective_params_from_segments(lengths, areas)
 
 
 def ei_effective(tongue_m: float, stack_m: float, stacking_factor: float, window_width_m: float, window_height_m: float,
@@ -215,7 +215,7 @@ _GAUSS_X, _GAUSS_W = np.polynomial.legendre.leggauss(64)
 
 def pot_effective(outer_diameter_m: float, inner_diameter_m: float, post_diameter_m: float, height_m: float,
                   window_height_m: float,
-                  post_hole_m: float = 0.0, ring_fraction: float = 1.0) -> EffectiveParams:
+                  post_hole_m: float = 0.0, skirt_coverage: float = 1.0) -> EffectiveParams:
     """Effective parameters of a mated pair of pot-core or RM-core halves.
 
     Parameters
@@ -226,15 +226,15 @@ def pot_effective(outer_diameter_m: float, inner_diameter_m: float, post_diamete
     height_m : overall height of the mated pair [m]
     window_height_m : mated window height along the post [m]
     post_hole_m : diameter of the hole through the post d4 [m] (0 for none)
-    ring_fraction : fraction of the full outer ring present (1 for a pot core, < 1 for RM cores whose
+    skirt_coverage : fraction of the full outer ring present (1 for a pot core, < 1 for RM cores whose
         wall is cut away); scales the wall area and the plate area towards the wall.
 
     Segments: the post (window height, pi (d3^2 - d4^2)/4), the outer wall (window height,
-    ring_fraction pi (d1^2 - d2^2)/4), the two end plates as radial paths of thickness
+    skirt_coverage pi (d1^2 - d2^2)/4), the two end plates as radial paths of thickness
     t = (height - window height)/2 from r3 = d3/2 to r2 = d2/2 with area A(r) = 2 pi r t g(r), and
     four corners (quarter ellipses, length pi (w1 + w2)/8, mean area). The plate integrals
     int dr/A and int dr/A^2 are evaluated by Gauss-Legendre quadrature; g(r) = 1 for a pot core, and
-    for an RM core falls linearly from 1 at the post to ring_fraction at the wall (an approximation of
+    for an RM core falls linearly from 1 at the post to skirt_coverage at the wall (an approximation of
     the cut-away plate; IEC 60205's dedicated RM formulas are not reproduced). Slots for leads are
     ignored.
 
@@ -244,12 +244,12 @@ def pot_effective(outer_diameter_m: float, inner_diameter_m: float, post_diamete
     """
     d1, d2, d3 = float(outer_diameter_m), float(inner_diameter_m), float(post_diameter_m)
     d4, ht, hw = float(post_hole_m), float(height_m), float(window_height_m)
-    rf = float(ring_fraction)
+    rf = float(skirt_coverage)
     t = (ht - hw) / 2.0
-    _positive(post_diameter_m=d3, window_height_m=hw, plate_thickness=t, ring_fraction=rf,
+    _positive(post_diameter_m=d3, window_height_m=hw, plate_thickness=t, skirt_coverage=rf,
               wall_thickness=d1 - d2, window_build=d2 - d3, post_wall=d3 - d4)
     if d4 < 0.0 or rf > 1.0:
-        raise ValueError("post_hole_m must be >= 0 and ring_fraction <= 1")
+        raise ValueError("post_hole_m must be >= 0 and skirt_coverage <= 1")
     r2, r3 = d2 / 2.0, d3 / 2.0
     a_post = np.pi * (d3 * d3 - d4 * d4) / 4.0
     a_ring = rf * np.pi * (d1 * d1 - d2 * d2) / 4.0
@@ -327,7 +327,7 @@ def core_effective(shape: str, dims: dict[str, float], stack_m: float | None = N
             optional centre_leg_depth.
         ETD / PQ: width, height, depth, window_width, window_height, centre_leg_diameter.
         POT / RM: outer_diameter, inner_diameter, post_diameter, height, window_height,
-            optional post_hole, ring_fraction.
+            optional post_hole, skirt_coverage.
     stack_m : lamination stack height [m] (EI) or stacked toroid height [m]; not used otherwise
     stacking_factor : iron fraction of laminated or tape-wound cores (1 for ferrite/powder)
 
@@ -369,7 +369,7 @@ def core_effective(shape: str, dims: dict[str, float], stack_m: float | None = N
     ep = pot_effective(_need(s, dims, "outer_diameter"), _need(s, dims, "inner_diameter"),
                        _need(s, dims, "post_diameter"), _need(s, dims, "height"),
                        _need(s, dims, "window_height"), float(dims.get("post_hole", 0.0)),
-                       float(dims.get("ring_fraction", 1.0)))
+                       float(dims.get("skirt_coverage", 1.0)))
     return _scale_areas(ep, k)
 
 

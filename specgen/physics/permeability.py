@@ -17,7 +17,7 @@ def _out(x: ArrayLike) -> Arr:
     return float(x) if x.ndim == 0 else x
 
 
-def rolloff_fraction(h_a_m: ArrayLike, a: float, b: float, c: float) -> Arr:
+def bias_fit_fraction(h_a_m: ArrayLike, a: float, b: float, c: float) -> Arr:
     """Fraction of the initial permeability left under a DC magnetizing force, f = 1 / (a + b H^c).
 
     Parameters
@@ -50,7 +50,7 @@ def powder_inductance_h(turns: ArrayLike, ae_m2: ArrayLike, le_m: ArrayLike, mu_
     le_m : effective path length [m]
     mu_initial : initial relative permeability mu_i
     current_a : DC current [A]
-    a, b, c : roll-off fit coefficients for H in A/m (see ``rolloff_fraction``)
+    a, b, c : roll-off fit coefficients for H in A/m (see ``bias_fit_fraction``)
 
     References
     ----------
@@ -59,7 +59,7 @@ def powder_inductance_h(turns: ArrayLike, ae_m2: ArrayLike, le_m: ArrayLike, mu_
     n = np.asarray(turns, dtype=float)
     le = np.asarray(le_m, dtype=float)
     h = n * np.asarray(current_a, dtype=float) / le
-    mu = np.asarray(mu_initial, dtype=float) * np.asarray(rolloff_fraction(h, a, b, c))
+    mu = np.asarray(mu_initial, dtype=float) * np.asarray(bias_fit_fraction(h, a, b, c))
     return _out(MU0_H_M * mu * n * n * np.asarray(ae_m2, dtype=float) / le)
 
 
@@ -84,7 +84,7 @@ def turns_for_biased_inductance(inductance_h: float, current_a: float, ae_m2: fl
 
     References
     ----------
-    Powder-core inductor design by DC-bias roll-off (the curve-fit form of ``rolloff_fraction``).
+    Powder-core inductor design by DC-bias roll-off (the curve-fit form of ``bias_fit_fraction``).
     """
     n = np.arange(1, int(max_turns) + 1, dtype=float)
     ell = np.asarray(powder_inductance_h(n, ae_m2, le_m, mu_initial, current_a, a, b, c))

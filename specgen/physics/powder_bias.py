@@ -1,10 +1,10 @@
 """Powder cores under DC bias: flux density from the incremental-permeability roll-off, its inverse, inductances.
 
-The catalogue's roll-off fit gives the incremental permeability, mu_inc(H) = mu_i f(H), f(H) = 1 / (a + b |H|^c)
+The catalogue's DC-bias curve gives the incremental permeability, mu_inc(H) = mu_i f(H), f(H) = 1 / (a + b |H|^c)
 (H in A/m). The flux density is its integral, B(H) = mu0 mu_i int_0^H f(h) dh, which is monotonic in H; the
 product mu0 mu_i f(H) H is not (it peaks and falls when c > 1) and is not the flux density.
-A fit stored as a half field and a steepness, f = 1 / (1 + (H / H_half)^s), is the same curve with a = 1,
-b = H_half^-s, c = s (``rolloff_b_from_half_field``).
+The catalogue stores it as a half field and a steepness, f = 1 / (1 + (H / H_half)^s): the same curve with
+a = 1, b = H_half^-s, c = s (``fit_b_from_half_field``).
 
 SI units: H in A/m, B in T, lengths m, areas m^2, inductance H, flux linkage Wb-turns. Floats or numpy arrays.
 """
@@ -24,7 +24,7 @@ ArrayLike = npt.ArrayLike
 
 __all__ = [
     "b_from_bias_t", "bias_integral_unit", "flux_linkage_wb", "h_from_b_a_m", "incremental_inductance_h",
-    "rolloff_b_from_half_field", "secant_inductance_h",
+    "fit_b_from_half_field", "secant_inductance_h",
 ]
 
 # Series terms: both series below run at a ratio of at most 1/2, so 56 terms leave < 1e-16 relative.
@@ -248,8 +248,8 @@ def h_from_b_a_m(b_t: ArrayLike, mu_i: ArrayLike, a: ArrayLike, b: ArrayLike, c:
     return _out(np.asarray(np.sign(bt) * np.where(target == 0.0, 0.0, h), dtype=float))
 
 
-def rolloff_b_from_half_field(half_field_a_m: ArrayLike, steepness: ArrayLike) -> FloatLike:
-    """The fit coefficient b for a roll-off stored as half field and steepness: b = H_half^-s (with a = 1, c = s).
+def fit_b_from_half_field(half_field_a_m: ArrayLike, steepness: ArrayLike) -> FloatLike:
+    """The fit coefficient b for a DC-bias curve stored as half field and steepness: b = H_half^-s (with a = 1, c = s).
 
     f = 1 / (1 + (H / H_half)^s) is f = 1 / (a + b H^c) with a = 1, b = H_half^-s, c = s; f(H_half) = 1/2.
 

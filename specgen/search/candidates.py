@@ -265,7 +265,7 @@ def option_groups(req: Requirement) -> list[int]:
     group: dict[str, int] = {}
     out = []
     for w in req.windings:
-        key = w.match or w.name
+        key = w.same_turns_as or w.name
         if key not in group:
             group[key] = len(group)
         out.append(group[key])

@@ -197,7 +197,7 @@ class ChokeSetup:
         ae, le, mu = cores.ae_m2, cores.le_m, cores.mu_initial
         for i in np.flatnonzero(self.powder):
             m = cat.materials[ctx.choices[i].core.material]
-            a, b, cc = float(m.rolloff_a or 0.0), float(m.rolloff_b or 0.0), float(m.rolloff_c or 0.0)
+            a, b, cc = m.bias_fit()
             nn = permeability.turns_for_biased_inductance(c.target_h, c.i_dc, ae[i], le[i], mu[i], a, b, cc)
             if nn is None:
                 ctx.core_flags[i] |= Fail.GAP

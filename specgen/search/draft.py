@@ -98,8 +98,8 @@ def _winding_lines(req: Requirement, options: list[WireOption | None], pins: lis
             for key in ("voltage", "voltage_min", "voltage_max", "current", "va"):
                 if w.text.get(key):
                     lines.append(f"    {key}: {_y(w.text[key])}")
-            if w.match:
-                lines.append(f"    match: {_y(w.match)}")
+            if w.same_turns_as:
+                lines.append(f"    same_turns_as: {_y(w.same_turns_as)}")
         if opt is None:
             lines.append("    wire: auto")
         else:

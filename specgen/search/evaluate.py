@@ -220,8 +220,8 @@ def _secondary_turns(ctx: SearchContext, ci: IntArray, opts: list[OptionRows], n
             tt[j] = np.where(need, tt[j] + add, tt[j])
             changed |= need
         for j in loads:
-            if windings[j].match:
-                k = by_name[str(windings[j].match)]
+            if windings[j].same_turns_as:
+                k = by_name[str(windings[j].same_turns_as)]
                 mx = np.maximum(tt[j], tt[k])
                 changed |= (tt[j] != mx) | (tt[k] != mx)
                 tt[j], tt[k] = mx, mx.copy()

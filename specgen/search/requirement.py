@@ -10,7 +10,7 @@ from pathlib import Path
 from typing import Any
 
 from ..errors import SpecError
-from ..loading import Reader, load_yaml
+from ..loading import RENAMED_KEYS, Reader, load_yaml
 
 KINDS = ("transformer", "inductor")
 RATINGS = ("functional", "basic", "reinforced")
@@ -19,7 +19,7 @@ TOP_KEYS = ("requirement", "part", "title", "customer", "kind", "operating", "wi
             "limits", "notes")
 OPERATING_KEYS = ("frequency", "waveform", "duty", "ambient", "cooling", "insulation_class", "max_rise",
                   "flux_limit", "efficiency")
-WINDING_KEYS = ("name", "role", "voltage", "voltage_min", "voltage_max", "current", "va", "match")
+WINDING_KEYS = ("name", "role", "voltage", "voltage_min", "voltage_max", "current", "va", "same_turns_as")
 INDUCTOR_KEYS = ("inductance", "current", "ripple", "current_peak", "duty")
 DEFAULT_EFFICIENCY = 0.9     # first guess when the requirement gives none (the engine's own default)
 
@@ -33,7 +33,7 @@ class ReqWinding:
     voltage_max_v: float | None
     current_a: float | None
     va: float | None
-    match: str | None
+    same_turns_as: str | None
     text: dict[str, str | None]     # key -> the text as written (copied into the draft spec)
 
     @property
@@ -179,14 +179,14 @@ def _operating(r: Reader, kind: str) -> _Operating:
 
 
 def _winding(wr: Reader) -> ReqWinding:
-    wr.done(WINDING_KEYS)
+    wr.done(WINDING_KEYS, renamed=RENAMED_KEYS["windings"])
     role = wr.choice("role", ("primary", "secondary", "auxiliary"))
     w = ReqWinding(
         name=wr.text("name", max_len=40), role=role, voltage_v=wr.quantity("voltage", "voltage"),
         voltage_min_v=wr.quantity("voltage_min", "voltage", None),
         voltage_max_v=wr.quantity("voltage_max", "voltage", None),
         current_a=wr.quantity("current", "current", None), va=wr.quantity("va", "apparent_power", None),
-        match=wr.text("match", None),
+        same_turns_as=wr.text("same_turns_as", None),
         text={k: _text(wr, k) for k in ("voltage", "voltage_min", "voltage_max", "current", "va")})
     wr.done()
     if w.name.lower() in ("core", "all") or "+" in w.name:
@@ -213,13 +213,14 @@ def _windings(r: Reader) -> tuple[ReqWinding, ...]:
     if len(prim) != 1:
         raise r.error(f"a transformer needs exactly one primary winding, found {len(prim)}", "windings")
     for w, wr in read:
-        if w.match is None:
+        if w.same_turns_as is None:
             continue
-        other = next((o for o, _ in read if o.name == w.match), None)
+        other = next((o for o, _ in read if o.name == w.same_turns_as), None)
         if other is None or other is w or other.role != w.role or other.voltage_v != w.voltage_v:
-            raise wr.error(f"'{w.match}' names no other winding of the same role and voltage", "match")
-        if other.match is not None:
-            raise wr.error(f"'{w.match}' itself matches another winding; match every one to the same", "match")
+            raise wr.error(f"'{w.same_turns_as}' names no other winding of the same role and voltage", "same_turns_as")
+        if other.same_turns_as is not None:
+            raise wr.error(f"'{w.same_turns_as}' itself has the same turns as another winding; name that one instead",
+                           "same_turns_as")
     if r.has("inductor"):
         raise r.error("only a choke has an 'inductor' section", "inductor")
     return tuple(w for w, _ in read)

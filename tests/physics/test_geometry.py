@@ -58,8 +58,8 @@ def _parallel(branches):
 
 
 def test_parallel_rule_is_iec_summed_area_for_identical_branches():
-    one = g.effective_from_segments([30 * MM], [20 * MM ** 2])
-    summed = g.effective_from_segments([30 * MM], [40 * MM ** 2])
+    one = g.effective_params_from_segments([30 * MM], [20 * MM ** 2])
+    summed = g.effective_params_from_segments([30 * MM], [40 * MM ** 2])
     le, ae = _parallel([one, one])
     assert (le, ae) == pytest.approx((summed.le_m, summed.ae_m2), rel=1e-12)
 
@@ -70,7 +70,7 @@ def test_segment_method_on_thin_rings_matches_closed_form():
     r1, r2, h, n = 10 * MM, 20 * MM, 10 * MM, 4000
     edges = np.linspace(r1, r2, n + 1)
     mids = (edges[1:] + edges[:-1]) / 2
-    rings = [g.effective_from_segments([2 * math.pi * r], [h * (r2 - r1) / n]) for r in mids]
+    rings = [g.effective_params_from_segments([2 * math.pi * r], [h * (r2 - r1) / n]) for r in mids]
     le, ae = _parallel(rings)
     ep = g.toroid_effective(2 * r2, 2 * r1, h)
     assert le == pytest.approx(ep.le_m, rel=1e-6)
@@ -79,7 +79,7 @@ def test_segment_method_on_thin_rings_matches_closed_form():
 
 def test_uniform_section_gives_path_and_area():
     # IEC 60205: for a core of uniform cross-section Ae = A and le = the path length
-    ep = g.effective_from_segments([10 * MM, 25 * MM, 7 * MM], [50 * MM ** 2] * 3)
+    ep = g.effective_params_from_segments([10 * MM, 25 * MM, 7 * MM], [50 * MM ** 2] * 3)
     assert ep.le_m == pytest.approx(42 * MM, rel=1e-12)
     assert ep.ae_m2 == pytest.approx(50 * MM ** 2, rel=1e-12)
     assert ep.ve_m3 == pytest.approx(42 * 50 * MM ** 3, rel=1e-12)
@@ -90,7 +90,7 @@ def test_segment_bounds(segments):
     # IEC 60205 definitions: Ae = C1/C2 lies between the smallest and largest segment area
     # (Cauchy-Schwarz), and Ve = le Ae
     lengths, areas = zip(*segments)
-    ep = g.effective_from_segments(lengths, areas)
+    ep = g.effective_params_from_segments(lengths, areas)
     assert min(areas) * (1 - 1e-9) <= ep.ae_m2 <= max(areas) * (1 + 1e-9)
     assert ep.amin_m2 == min(areas)
     assert ep.ve_m3 == pytest.approx(ep.le_m * ep.ae_m2, rel=1e-9)
@@ -171,7 +171,7 @@ def test_ei_needs_stack():
 
 def test_pot_core_plates_against_scipy():
     # the end-plate integrals int dr/A and int dr/A^2 (A = 2 pi r t g(r)) recomputed with
-    # scipy.integrate.quad, RM-style plate (g falls linearly from 1 to ring_fraction)
+    # scipy.integrate.quad, RM-style plate (g falls linearly from 1 to skirt_coverage)
     d1, d2, d3, d4, ht, hw, rf = 30 * MM, 25 * MM, 12 * MM, 3 * MM, 20 * MM, 13 * MM, 0.55
     t, r2, r3 = (ht - hw) / 2, d2 / 2, d3 / 2
 
@@ -211,7 +211,7 @@ def test_rm_cut_wall_raises_c1():
     dims = dict(outer_diameter=28 * MM, inner_diameter=22 * MM, post_diameter=11 * MM,
                 height=20 * MM, window_height=13 * MM)
     pot = g.core_effective("POT", dims)
-    rm = g.core_effective("RM", {**dims, "ring_fraction": 0.5})
+    rm = g.core_effective("RM", {**dims, "skirt_coverage": 0.5})
     assert rm.c1_per_m > pot.c1_per_m
 
 

@@ -16,13 +16,13 @@ A, B, C = 1.0, 2.5e-7, 1.9   # invented fit coefficients, H in A/m
 
 
 @given(st.floats(0, 1e5), st.floats(1e-3, 1e5))
-def test_rolloff_monotonic(h, dh):
-    assert pm.rolloff_fraction(h + dh, A, B, C) < pm.rolloff_fraction(h, A, B, C)
+def test_bias_fit_monotonic(h, dh):
+    assert pm.bias_fit_fraction(h + dh, A, B, C) < pm.bias_fit_fraction(h, A, B, C)
 
 
 @pytest.mark.parametrize("h", [0.0, 3000.0, 20000.0])
-def test_rolloff_equals_formula(h):
-    assert pm.rolloff_fraction(h, A, B, C) == pytest.approx(1 / (A + B * h ** C), rel=1e-14)
+def test_bias_fit_equals_formula(h):
+    assert pm.bias_fit_fraction(h, A, B, C) == pytest.approx(1 / (A + B * h ** C), rel=1e-14)
 
 
 def test_oersted_fit_converts_with_pint():
@@ -32,7 +32,7 @@ def test_oersted_fit_converts_with_pint():
     with U.context("Gaussian"):   # pint keeps the oersted in the Gaussian system
         h_oe = (h * U.A / U.m).to(U.oersted).magnitude
     b_am = b_oe * (4 * math.pi / 1000) ** c
-    assert pm.rolloff_fraction(h, 1.0, b_am, c) == pytest.approx(1 / (1 + b_oe * h_oe ** c), rel=1e-9)
+    assert pm.bias_fit_fraction(h, 1.0, b_am, c) == pytest.approx(1 / (1 + b_oe * h_oe ** c), rel=1e-9)
 
 
 def test_unbiased_inductance_with_pint():

@@ -80,7 +80,7 @@ def test_b_from_bias_is_not_mu_f_h():
     # peaks and falls for c > 1; B keeps rising and always exceeds that product for H > 0
     h = np.logspace(0, 6, 300)
     b = pb.b_from_bias_t(h, MU_I, A, B, C)
-    wrong = constants.mu_0 * MU_I * permeability.rolloff_fraction(h, A, B, C) * h
+    wrong = constants.mu_0 * MU_I * permeability.bias_fit_fraction(h, A, B, C) * h
     assert np.all(np.diff(b) > 0)
     assert np.all(b > wrong)
     assert np.any(np.diff(wrong) < 0)   # the product does fall: the bug this function removes
@@ -141,10 +141,10 @@ def test_fit_validation(bad):
 
 def test_half_field_form_is_the_same_curve():
     # f = 1/(1 + (H/H_half)^s) is a = 1, b = H_half^-s, c = s; f(H_half) = 1/2
-    b_fit = pb.rolloff_b_from_half_field(4000.0, 2.2)
-    assert permeability.rolloff_fraction(4000.0, 1.0, b_fit, 2.2) == pytest.approx(0.5, rel=1e-14)
+    b_fit = pb.fit_b_from_half_field(4000.0, 2.2)
+    assert permeability.bias_fit_fraction(4000.0, 1.0, b_fit, 2.2) == pytest.approx(0.5, rel=1e-14)
     with pytest.raises(ValueError):
-        pb.rolloff_b_from_half_field(0.0, 2.0)
+        pb.fit_b_from_half_field(0.0, 2.0)
 
 
 def test_inductances_from_incremental_permeability():

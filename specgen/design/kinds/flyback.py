@@ -272,7 +272,7 @@ class FlybackRun:
             grind_m=d.gap_m if arrangement == "centre" else None,
             fringing_factor=float(gapmod.fringing_factor(d.gap_m, parts.ae_m2, g)) if d.gap_m > 0 else 1.0,
             al_nh=float(gapmod.al_nh(d.l_h, n_p)), energy_j=0.5 * d.l_h * worst.i_peak_a ** 2,
-            h_dc_a_m=n_p * i_avg / parts.le_m, rolloff_pct=0.0, current_dc_a=self.p_in / req.v_in_min_v,
+            h_dc_a_m=n_p * i_avg / parts.le_m, bias_drop_pct=0.0, current_dc_a=self.p_in / req.v_in_min_v,
             current_peak_a=worst.i_peak_a, ripple_a=worst.i_ripple_a, delta_b_t=d.delta_b_t,
             b_dc_t=d.l_h * i_avg / (n_p * parts.ae_m2))
         windings = tuple(FlybackWinding(name=w.name, turns=d.turns[w.name], peak_current_a=d.currents[w.name][0],

@@ -34,7 +34,7 @@ from ..state import (
 )
 from ..wires import choose_wire
 
-ROLLOFF_WARN_PCT = 50.0    # more than half the permeability gone at full current: a poor use of powder (common practice)
+BIAS_DROP_WARN_PCT = 50.0    # more than half the permeability gone at full current: a poor use of powder (common practice)
 
 
 @dataclass(frozen=True, slots=True)
@@ -91,7 +91,7 @@ class InductorRun:
         """Turns from the DC-bias roll-off; L and B at zero and full bias."""
         spec, parts, c, mat = self.spec, self.parts, self.c, self.parts.material
         ae, le, mu = parts.ae_m2, parts.le_m, mat.mu_initial
-        a, b, cc = float(mat.rolloff_a or 0.0), float(mat.rolloff_b or 0.0), float(mat.rolloff_c or 0.0)
+        a, b, cc = mat.bias_fit()
         n = self.w.turns or permeability.turns_for_biased_inductance(c.target_h, c.i_dc if not c.ac else c.i_op_pk,
                                                                      ae, le, mu, a, b, cc)
         if n is None:
@@ -101,12 +101,12 @@ class InductorRun:
         bias = c.i_dc if not c.ac else 0.0
         l0 = float(permeability.powder_inductance_h(n, ae, le, mu, 0.0, a, b, cc))
         lfull = float(permeability.powder_inductance_h(n, ae, le, mu, bias, a, b, cc))
-        frac = float(permeability.rolloff_fraction(n * bias / le, a, b, cc))
-        rolloff = (1.0 - frac / float(permeability.rolloff_fraction(0.0, a, b, cc))) * 100.0
+        frac = float(permeability.bias_fit_fraction(n * bias / le, a, b, cc))
+        drop = (1.0 - frac / float(permeability.bias_fit_fraction(0.0, a, b, cc))) * 100.0
         return Magnetics(turns=int(n), flux_limit=flux_limit(spec, self.cat, mat, temp.hot_c), inductance_h=lfull,
                          inductance_zero_bias_h=l0, inductance_full_bias_h=lfull,
                          b_peak_t=float(K.powder_flux_t(n, c.i_op_pk, le, mu, a, b, cc)),
-                         b_peak_max_t=float(K.powder_flux_t(n, c.i_pk, le, mu, a, b, cc)), rolloff_pct=rolloff)
+                         b_peak_max_t=float(K.powder_flux_t(n, c.i_pk, le, mu, a, b, cc)), bias_drop_pct=drop)
 
     def gapped(self, temp: ThermalState) -> Magnetics:
         """Turns and gap: fixed gap or none (turns for L), else the energy method (``kernel.gapped_turns_and_gap``)."""
@@ -144,7 +144,7 @@ class InductorRun:
                          grind_m=lg if arrangement == "centre" else None,
                          b_peak_t=float(gapmod.b_peak_from_inductance_t(l_built, c.i_op_pk, n, ae)),
                          b_peak_max_t=float(gapmod.b_peak_from_inductance_t(l_built, c.i_pk, n, ae)),
-                         rolloff_pct=0.0, notes=tuple(notes))
+                         bias_drop_pct=0.0, notes=tuple(notes))
 
     def evaluate(self, temp: ThermalState) -> Evaluation[InductorPass]:
         spec, parts, c, mat = self.spec, self.parts, self.c, self.parts.material
@@ -183,7 +183,7 @@ class InductorRun:
             grind_m=mg.grind_m, fringing_factor=mg.fringing_factor,
             al_nh=float(gapmod.al_nh(mg.inductance_zero_bias_h, n)),
             energy_j=float(gapmod.energy_j(mg.inductance_full_bias_h, c.i_op_pk if c.ac else c.i_dc)),
-            h_dc_a_m=n * c.i_dc / le, rolloff_pct=mg.rolloff_pct, current_dc_a=c.i_dc if not c.ac else c.i_rms,
+            h_dc_a_m=n * c.i_dc / le, bias_drop_pct=mg.bias_drop_pct, current_dc_a=c.i_dc if not c.ac else c.i_rms,
             current_peak_a=c.i_pk, ripple_a=c.ripple, delta_b_t=ev.detail.delta_b_t,
             b_dc_t=mg.inductance_full_bias_h * c.i_dc / (n * ae) if c.i_dc else 0.0,
         )
@@ -197,8 +197,8 @@ class InductorRun:
         else:
             extra.append(Check("pass", "inductance", f"L {lfull * 1e6:.4g} µH at "
                                                      f"{ind.current_dc_a:g} A against {c.target_h * 1e6:.4g} µH required"))
-        if powder and mg.rolloff_pct > ROLLOFF_WARN_PCT:
-            extra.append(Check("warn", "rolloff", f"{mg.rolloff_pct:.0f} % of the permeability is lost at "
+        if powder and mg.bias_drop_pct > BIAS_DROP_WARN_PCT:
+            extra.append(Check("warn", "dc_bias", f"{mg.bias_drop_pct:.0f} % of the permeability is lost at "
                                                   f"{c.i_dc:g} A (H = {ind.h_dc_a_m:.0f} A/m): a larger core or a lower-"
                                                   f"permeability mix rolls off less (common practice: under 50 %)"))
         return ElectricalSummary(b_peak_t=mg.b_peak_t, b_peak_max_t=mg.b_peak_max_t, flux_limit=mg.flux_limit,
@@ -252,7 +252,7 @@ class InductorKind:
         l0 = inductor.inductance_zero_bias_h
         ind.append(Limit(name="inductance, no bias", item=w.name, nominal=l0, low=l0 * (1 - t), high=l0 * (1 + t),
                          unit="H", condition=f"pins {w.start}-{w.finish}, small signal, {_freq(state.spec.frequency_hz)}"))
-        if inductor.rolloff_pct > 0.5:
+        if inductor.bias_drop_pct > 0.5:
             ind.append(Limit(name=f"inductance at {inductor.current_dc_a:g} A DC", item=w.name,
                              nominal=inductor.inductance_at_full_bias_h,
                              low=inductor.inductance_at_full_bias_h * (1 - t), high=None, unit="H",

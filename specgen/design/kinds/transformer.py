@@ -198,9 +198,9 @@ class TransformerRun:
                                              "windings", st.index, "voltage")
                     states[w.name], changed = replace(st, turns=st.turns + add), True
             for w in self.loads:      # matched pairs wind the larger of their two turn counts
-                if w.match and states[w.match].turns != states[w.name].turns:
-                    n = max(states[w.match].turns, states[w.name].turns)
-                    states[w.match] = replace(states[w.match], turns=n)
+                if w.same_turns_as and states[w.same_turns_as].turns != states[w.name].turns:
+                    n = max(states[w.same_turns_as].turns, states[w.name].turns)
+                    states[w.same_turns_as] = replace(states[w.same_turns_as], turns=n)
                     states[w.name] = replace(states[w.name], turns=n)
                     changed = True
             if not changed:
