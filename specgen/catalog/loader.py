@@ -17,6 +17,7 @@ from typing import Any
 
 from ..errors import SpecError
 from ..loading import RENAMED_KEYS, Reader, load_yaml
+from .fits import check_bobbins
 from .models import (
     CORE_SHAPES,
     MATERIAL_FAMILIES,
@@ -680,45 +681,7 @@ def _cross_check(tables: dict, locations: dict, problems: list | None) -> None:
     for core in tables["cores"].values():
         if core.material not in tables["materials"]:
             fail(core.id, "material", f"unknown material '{core.material}'")
-    seen: dict = {}
-    for bob in tables["bobbins"].values():
-        for core_id in bob.cores:
-            key = (core_id, None if bob.stack_m is None else round(bob.stack_m, 6), bob.sections)
-            if key in seen:
-                stack = "" if bob.stack_m is None else f" at stack {bob.stack_m * 1e3:g} mm"
-                fail(bob.id, "cores", f"a second {bob.sections}-section bobbin for core '{core_id}'{stack} (first: "
-                                      f"'{seen[key]}'); the design picks one bobbin per core, stack and sections")
-                continue
-            seen[key] = bob.id
-            core = tables["cores"].get(core_id)
-            if core is None:
-                fail(bob.id, "cores", f"unknown core '{core_id}'")
-                continue
-            _check_bobbin_fits(bob, core, fail)
-
-
-def _check_bobbin_fits(bob: Bobbin, core: Core, fail: Callable[[str, str, str], None]) -> None:
-    """The bobbin fits the window of one of the cores it lists (and, on an EI core, a stocked stack)."""
-    from ..physics import geometry
-
-    if core.is_toroid:
-        fail(bob.id, "cores", f"'{core.id}' is a toroid; toroids are wound without a bobbin")
-        return
-    try:
-        breadth = geometry.window_breadth_m(core.shape, core.dims)
-        height = geometry.window_height_m(core.shape, core.dims)
-    except (ValueError, ZeroDivisionError, KeyError) as exc:   # a shape the geometry cannot size
-        fail(core.id, "dims", f"cannot size the window: {exc}")
-        return
-    if bob.breadth_m > breadth + 1e-9:
-        fail(bob.id, "breadth", f"winding breadth {bob.breadth_m * 1e3:.2f} mm does not fit the window length "
-                                f"{breadth * 1e3:.2f} mm of '{core.id}'")
-    if bob.height_m > height + 1e-9:
-        fail(bob.id, "height", f"build height {bob.height_m * 1e3:.2f} mm is more than the window depth "
-                               f"{height * 1e3:.2f} mm of '{core.id}'")
-    if core.shape == "EI" and bob.stack_m is not None and core.stacks_m and \
-            not any(abs(bob.stack_m - s) < 1e-6 for s in core.stacks_m):
-        fail(bob.id, "stack", f"stack {bob.stack_m * 1e3:g} mm is not one of the stacks stocked for '{core.id}'")
+    check_bobbins(tables, fail)
 
 def load_catalog(root: str | os.PathLike | None = None) -> Catalog:
     """Load the catalogue folder (see ``resolve_catalog_dir``) or raise the first SpecError.
