@@ -104,12 +104,15 @@ def compare_revisions(old: str, new: str, catalog: Catalog | None = None, *, lot
 
 
 def release_spec(path: PathLike, *, by: str, note: str, catalog: Catalog | None = None, date: Any = None,
-            commit: bool = False) -> ReleaseResult:
-    """Release a spec file (``specgen.lifecycle.release_spec``)."""
+                 commit: bool = False, accept: Any = None, accept_all: bool = False, reason: str | None = None,
+                 effective: str | None = None, register_path: str | None = None) -> ReleaseResult:
+    """Release a spec file (``specgen.lifecycle.release_spec``): design warnings accepted by check code
+    (``accept``, or ``accept_all`` with a ``reason``), ``effective`` over the revision it supersedes."""
     from .lifecycle import release_spec as _release
 
     return _release(path, by=by, note=note, cat=catalog if catalog is not None else load_catalog(),
-                        date=date, commit=commit)
+                    date=date, commit=commit, accept=accept, accept_all=accept_all, reason=reason,
+                    effective=effective, register_path=register_path)
 
 
 def verify_spec(path: PathLike, catalog: Catalog | None = None) -> VerifyResult:

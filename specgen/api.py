@@ -14,6 +14,7 @@ from .catalog.loader import load_catalog
 from .catalog.models import Catalog
 from .design.result import Design
 from .design.spec import Spec, load_spec, load_spec_text
+from .errors import SpecError
 
 #: The shop figures the design reads: they change the part (turns, wire, build, test limits and
 #: voltages). Everything else in shop.yaml (name, currency, rates, profit margin, labor times, number
@@ -63,7 +64,13 @@ def run_design(spec: Spec, cat: Catalog) -> Design:
     from .revision import fingerprint
 
     d = design(spec, cat)
-    return replace(d, fingerprint=fingerprint(spec.data, catalog_entries(d.catalog_ids, cat)))
+    try:
+        fp = fingerprint(spec.data, catalog_entries(d.catalog_ids, cat))
+    except SpecError as err:      # name the file: the fingerprint rules see only the parsed data
+        if err.file:
+            raise
+        raise SpecError(err.message, file=str(spec.file), line=err.line, path=err.path) from None
+    return replace(d, fingerprint=fp)
 
 
 def design_file(path: str | os.PathLike, catalog_dir: str | os.PathLike | None = None,

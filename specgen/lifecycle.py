@@ -26,17 +26,15 @@ from pathlib import Path
 from typing import TYPE_CHECKING, Any
 
 from . import revision
+from .design.acceptance import AcceptedWarning, WarningNote
 from .errors import DesignFailed, SpecError
+from .freetext import MAX_LOT_CHARS, MAX_NOTE_CHARS, check_free_text
+from .freetext import MAX_NAME_CHARS as MAX_BY_CHARS
 
 if TYPE_CHECKING:
     from .catalog.models import Catalog
     from .design.result import Design
     from .design.spec import Spec
-
-#: Longest ``--by`` a release records (a name, initials, a role).
-MAX_BY_CHARS = 200
-#: Longest ``--note`` (one line; the spec's history notes are read with this limit too).
-MAX_NOTE_CHARS = 2000
 
 
 # ----------------------------------------------------------------------------------------------
@@ -84,6 +82,12 @@ class ReleaseVerdict:
     current: str                      # the fingerprint now
     recorded: str | None              # the fingerprint its history entry recorded, if any
     problems: tuple[str, ...]         # why a spec marked released is not a valid release
+    warnings: tuple[WarningNote, ...] = ()   # the design's warnings, each with its acceptance (or None)
+
+    @property
+    def unaccepted(self) -> tuple[WarningNote, ...]:
+        """The design's warnings nobody accepted at the release of this revision."""
+        return tuple(w for w in self.warnings if w.accepted is None)
 
     @property
     def firm(self) -> bool:
@@ -123,7 +127,37 @@ def release_gate(spec: Spec, design: Design, cat: Catalog) -> ReleaseVerdict:
     check = revision.check_release(spec.data, catalog_entries(design.catalog_ids, cat))
     return ReleaseVerdict(file=str(spec.file), part=design.part, revision=design.revision or "",
                           status=check.status, current=check.current, recorded=check.recorded,
-                          problems=tuple(check.problems))
+                          problems=tuple(check.problems), warnings=warning_notes(design))
+
+
+def _entry_field(entry: Any, key: str, default: Any) -> Any:
+    return entry.get(key, default) if isinstance(entry, Mapping) else getattr(entry, key, default)
+
+
+def release_entry(design: Design) -> Any:
+    """The history entry recording the release of the design's own revision (the last such), or None."""
+    found = None
+    for entry in design.history or ():
+        if str(_entry_field(entry, "revision", "")) == (design.revision or "") and design.revision:
+            found = entry
+    return found
+
+
+def warning_notes(design: Design) -> tuple[WarningNote, ...]:
+    """The design's warnings, each with the acceptance recorded at the release of its revision.
+
+    The one rule for "accepted": a warning is accepted when the history entry of the design's own
+    revision names its check code under ``accepted:``; a warning of a draft, of a revision released
+    without accepting it, or of a check that came up after the release, is not. Documents show
+    exactly this, so they never claim an acceptance nobody gave.
+    """
+    entry = release_entry(design)
+    accepted: dict[str, AcceptedWarning] = {}
+    for a in (_entry_field(entry, "accepted", ()) if entry is not None else ()) or ():
+        if isinstance(a, AcceptedWarning):
+            accepted.setdefault(a.code, a)
+    return tuple(WarningNote(code=c.code, message=c.message, accepted=accepted.get(c.code))
+                 for c in design.warnings)
 
 
 # ----------------------------------------------------------------------------------------------
@@ -131,16 +165,10 @@ def release_gate(spec: Spec, design: Design, cat: Catalog) -> ReleaseVerdict:
 
 
 def check_release_text(value: Any, option: str, limit: int) -> str:
-    """``--by`` or ``--note``: one line of text, not empty, no control characters, at most ``limit``."""
-    text = "" if value is None else str(value).strip()
-    if not text:
-        what = "who releases it" if option == "--by" else "a note saying what changed"
-        raise SpecError(f"a release needs {what}; it is empty", path=option)
-    if len(text) > limit:
-        raise SpecError(f"is {len(text):,} characters long; at most {limit:,}", path=option)
-    if any(ord(c) < 32 or 0x7F <= ord(c) <= 0x9F or c in "\u2028\u2029" for c in text):
-        raise SpecError("control characters and line breaks are not allowed", path=option)
-    return text
+    """``--by``, ``--note`` or ``--reason``: one line of text, not empty, no control characters, at most
+    ``limit`` (``specgen.freetext``, the one check of every free-text option)."""
+    what = {"--by": "who releases it", "--note": "a note saying what changed"}.get(option, "a reason")
+    return str(check_free_text(value, option, limit, what=what))
 
 
 def check_release_date(value: Any) -> _dt.date:
@@ -157,6 +185,156 @@ def check_release_date(value: Any) -> _dt.date:
 
 
 @dataclass(frozen=True)
+class Effectivity:
+    """When a new revision takes effect over the one it supersedes (``release --effective``)."""
+
+    word: str                         # next-order | now | lot
+    lot: str | None = None            # with ``lot``: the first lot built to the new revision
+
+    @property
+    def text(self) -> str:
+        """As recorded in the history and printed: ``next-order``, ``now`` or ``lot <reference>``."""
+        return f"lot {self.lot}" if self.word == "lot" else self.word
+
+    @property
+    def phrase(self) -> str:
+        """For a reader: 'from the next work order', 'at once (open work orders included)', 'from lot L7'."""
+        return {"next-order": "from the next work order", "now": "at once, open work orders included"
+                }.get(self.word, f"from lot {self.lot}")
+
+
+def check_effectivity(value: Any) -> Effectivity | None:
+    """``--effective``: ``next-order``, ``now`` or ``lot <reference>`` (also ``lot=R``, ``lot:R``); None if not given."""
+    text = check_free_text(value, "--effective", MAX_LOT_CHARS + 8, required=False)
+    if text is None:
+        return None
+    if text.lower() in ("next-order", "now"):
+        return Effectivity(text.lower())
+    m = re.fullmatch(r"lot(?:\s*[=:]\s*|\s+)(.*)", text, flags=re.IGNORECASE)
+    if m is not None or text.lower() == "lot":
+        lot = check_free_text(m.group(1) if m else "", "--effective", MAX_LOT_CHARS,
+                              what="the lot reference after 'lot'")
+        return Effectivity("lot", lot)
+    raise SpecError(f"expected next-order, now or 'lot <reference>', got {text!r}", path="--effective")
+
+
+@dataclass(frozen=True)
+class Acceptance:
+    """What ``release`` was told about the design's warnings: codes accepted by name, or all, and why."""
+
+    codes: tuple[tuple[str, str | None], ...] = ()   # (check code, its own reason or None)
+    accept_all: bool = False
+    reason: str | None = None                         # ``--reason``: for --accept-all and codes without one
+
+
+def check_acceptance(accept: Iterable[str] | None, accept_all: bool, reason: Any) -> Acceptance:
+    """``--accept CODE`` (repeated; ``CODE=REASON`` gives that warning its own reason), ``--accept-all``,
+    ``--reason TEXT``: checked as text; every accepted warning must end up with a reason."""
+    why = check_free_text(reason, "--reason", MAX_NOTE_CHARS, required=False)
+    codes: list[tuple[str, str | None]] = []
+    for raw in accept or ():
+        text = check_free_text(raw, "--accept", MAX_NOTE_CHARS + 60, what="a warning's check code")
+        code, sep, own = str(text).partition("=")
+        code = code.strip()
+        if not re.fullmatch(r"[a-z][a-z0-9-]{0,59}", code):
+            raise SpecError(f"{code!r} is not a check code (like skin-depth or window-fill)", path="--accept")
+        own_reason = check_free_text(own, "--accept", MAX_NOTE_CHARS, what=f"a reason after '{code}='") if sep else None
+        if own_reason is None and why is None:
+            raise SpecError(f"accepting {code} needs a reason: --accept {code}=REASON or --reason TEXT", path="--accept")
+        codes.append((code, own_reason))
+    if accept_all and why is None:
+        raise SpecError("--accept-all needs a reason (--reason TEXT) saying why the warnings are acceptable",
+                        path="--accept-all")
+    if why is not None and not codes and not accept_all:
+        raise SpecError("--reason goes with --accept CODE or --accept-all", path="--reason")
+    return Acceptance(codes=tuple(codes), accept_all=accept_all, reason=why)
+
+
+class WarningsNotAccepted(SpecError):
+    """A release refused because design warnings were not accepted by name; ``warnings`` lists them."""
+
+    def __init__(self, message: str, warnings: tuple[WarningNote, ...], file: str | None = None):
+        self.warnings = warnings
+        super().__init__(message, file=file, path="--accept")
+
+
+def accept_warnings(design: Design, acceptance: Acceptance, *, by: str, day: _dt.date,
+                    file: str) -> tuple[AcceptedWarning, ...]:
+    """The acceptances a release records: one per check code among the design's warnings.
+
+    Refused (SpecError): a code that is not among the warnings (a typo must not accept nothing
+    silently); any warning left unaccepted (``WarningsNotAccepted``, listing them)."""
+    codes = list(dict.fromkeys(c.code for c in design.warnings))
+    given = dict(acceptance.codes)
+    unknown = [c for c in given if c not in codes]
+    if unknown:
+        have = ", ".join(codes) if codes else "none"
+        raise SpecError(f"the design has no warning {unknown[0]} to accept (its warnings: {have})",
+                        file=file, path="--accept")
+    missing = [c for c in codes if c not in given and not acceptance.accept_all]
+    if missing:
+        notes = tuple(WarningNote(code=c.code, message=c.message, accepted=None)
+                      for c in design.warnings if c.code in missing)
+        raise WarningsNotAccepted(
+            f"{len(notes)} design warning(s) not accepted: {', '.join(missing)}; accept each by name with "
+            "--accept CODE --reason TEXT (or --accept CODE=REASON), or all with --accept-all --reason TEXT",
+            notes, file=file)
+    return tuple(AcceptedWarning(code=c, by=by, date=day.isoformat(),
+                                 reason=str(given.get(c) or acceptance.reason)) for c in codes)
+
+
+@dataclass(frozen=True)
+class Supersession:
+    """What a release supersedes: the previous released revision, its work orders still open in the
+    register at the release, and the effectivity the engineer gave."""
+
+    revision: str                     # the revision superseded
+    open_orders: tuple[str, ...]      # its work orders issued or in work, from the register
+    effective: Effectivity
+    register: str = ""                # the register asked (as shown), '' when there is none
+
+
+def open_work_orders(spec_path: str | os.PathLike, part: str, revision_letter: str, cat: Catalog,
+                     register_path: str | None = None) -> tuple[tuple[str, ...], str]:
+    """(numbers, register shown): the work orders of ``part`` ``revision_letter`` still issued or in
+    work, from the shop's one register (found as every command finds it). Read-only: a register
+    that does not exist yet has no open orders and is not created."""
+    from .register import ENV_VAR, Register, locate_register, shop_root
+
+    if not (register_path or os.environ.get(ENV_VAR, "").strip() or cat.shop.register_path) \
+            and shop_root(spec_path, cat.root) is None:
+        return (), ""       # no register anywhere above this spec: no work order was issued from it
+    where = locate_register(spec_path, register_path, shop_setting=cat.shop.register_path, catalog_dir=cat.root)
+    if where.kind == "sqlite" and (not Path(where.target).is_file() or Path(where.target).stat().st_size == 0):
+        return (), ""
+    with Register.open(where.target, read_only=True) as reg:
+        orders = reg.list(part=part, revision=revision_letter)
+    return tuple(o.number for o in orders if o.state in ("issued", "in-work")), where.shown
+
+
+def supersession(spec_path: Path, spec: Spec, letter: str, effective: Effectivity | None, cat: Catalog,
+                 register_path: str | None) -> Supersession | None:
+    """The revision this release supersedes and its open work orders; refuses (SpecError) when work
+    orders are open and the engineer has not said when the new revision takes effect."""
+    done = [r for r in revision.history_revisions(spec.data.get("history"))
+            if revision.revision_index(r) < revision.revision_index(letter)]
+    if not done:
+        if effective is not None:
+            raise SpecError(f"revision {letter} supersedes no earlier release; --effective says when a new "
+                            "revision takes over from the last one", file=str(spec_path), path="--effective")
+        return None
+    previous = max(done, key=revision.revision_index)
+    numbers, shown = open_work_orders(spec_path, spec.part, previous, cat, register_path)
+    if numbers and effective is None:
+        listed = ", ".join(numbers[:8]) + (f" and {len(numbers) - 8} more" if len(numbers) > 8 else "")
+        raise SpecError(f"revision {previous} has {len(numbers)} open work order(s) ({listed}); say when revision "
+                        f"{letter} takes effect: --effective next-order | now | lot <lot>", file=str(spec_path),
+                        path="--effective")
+    return Supersession(revision=previous, open_orders=numbers, effective=effective or Effectivity("next-order"),
+                        register=shown)
+
+
+@dataclass(frozen=True)
 class ReleaseResult:
     file: str
     part: str
@@ -165,15 +343,33 @@ class ReleaseResult:
     date: str
     commit: str | None = None
     tag: str | None = None
+    accepted: tuple[AcceptedWarning, ...] = ()
+    supersedes: Supersession | None = None
 
     def message(self) -> str:
         out = f"released {self.part} rev {self.revision}, fingerprint {revision.short(self.fingerprint)}"
         if self.commit:
             out += f"; committed {self.commit[:12]} and tagged {self.tag}"
+        for a in self.accepted:
+            out += f"\n  warning {a.code} accepted by {a.by} on {a.date}: {a.reason}"
+        s = self.supersedes
+        if s is not None:
+            out += f"\n  supersedes rev {s.revision}, effective {s.effective.phrase}"
+            if s.open_orders:
+                out += f"; open work orders of rev {s.revision}: {', '.join(s.open_orders)}"
+            elif s.register:
+                out += f"; no open work orders of rev {s.revision} in the register {s.register}"
+            else:
+                out += f"; no register found, so no open work orders of rev {s.revision} were looked for"
         return out
 
     def to_dict(self) -> dict:
-        return asdict(self)
+        out = asdict(self)
+        out["accepted"] = [{"code": a.code, "by": a.by, "date": a.date, "reason": a.reason} for a in self.accepted]
+        s = self.supersedes
+        out["supersedes"] = None if s is None else {"revision": s.revision, "open_orders": list(s.open_orders),
+                                                    "effective": s.effective.text, "register": s.register or None}
+        return out
 
 
 def _git_precheck(path: Path, tag: str) -> None:
@@ -188,16 +384,28 @@ def _git_precheck(path: Path, tag: str) -> None:
         raise SpecError("git does not know who you are: set user.name and user.email", file=what)
 
 
+# long: the release sequence in order (checks, design, warnings, supersession, write, read back, commit), each
+# step one call; splitting it would scatter the order that makes "nothing written before every check" hold
 def release_spec(path: str | os.PathLike, *, by: str, note: str, cat: Catalog,
-                 date: Any = None, commit: bool = False) -> ReleaseResult:
-    """Release a spec file: check the inputs, design it, refuse on a failed check, write, maybe commit.
+                 date: Any = None, commit: bool = False, accept: Iterable[str] | None = None,
+                 accept_all: bool = False, reason: str | None = None, effective: Any = None,
+                 register_path: str | None = None) -> ReleaseResult:
+    """Release a spec file: check the inputs, design it, refuse on a failed check or an unaccepted
+    warning, write, maybe commit.
 
-    - ``by``, ``note`` and ``date`` are checked first (one line each, no control characters, within
-      ``MAX_BY_CHARS`` / ``MAX_NOTE_CHARS``): a bad one is refused before the file is read;
+    - ``by``, ``note``, ``date``, ``accept``/``accept_all``/``reason`` and ``effective`` are checked
+      first (one line each, no control characters, within the stated lengths): a bad one is refused
+      before the file is read;
     - every design check must pass (``DesignFailed`` otherwise; the file is not touched);
+    - every design warning must be accepted by its check code (``accept``: ``CODE`` or
+      ``CODE=REASON``; ``accept_all`` with ``reason``): ``WarningsNotAccepted`` lists those left;
+    - a revision superseding an earlier release lists that revision's open work orders from the
+      register (``register_path``, else found as every command finds it); with any open, the
+      effectivity must be given (``effective``: next-order, now or lot <reference>);
     - the letter comes from ``revision.release_revision`` (a draft keeps its letter, an edited
-      released spec gets the next one);
-    - the history entry carries the fingerprint and the per-component ``parts``;
+      released spec gets the next one); a date before the last release's is refused;
+    - the history entry carries the fingerprint, the per-component ``parts``, the acceptances
+      (code, by, date, reason) and the supersession (revision, effectivity, open work orders);
     - ``commit``: commit just this file and tag it ``<part>-rev-<letter>`` (never pushes);
       refused before writing when the file is not in a git work tree or the tag exists.
     """
@@ -206,21 +414,36 @@ def release_spec(path: str | os.PathLike, *, by: str, note: str, cat: Catalog,
     by = check_release_text(by, "--by", MAX_BY_CHARS)
     note = check_release_text(note, "--note", MAX_NOTE_CHARS)
     day = check_release_date(date)
+    acceptance = check_acceptance(accept, accept_all, reason)
+    effect = check_effectivity(effective)
     p = Path(path)
     spec = load_spec(p)
     data = spec.data
     # the letter first: an obsolete spec or a letter out of sequence is refused as such
-    letter = revision.release_revision(data.get("status"), data.get("revision"), data.get("history"))
+    try:
+        letter = revision.release_revision(data.get("status"), data.get("revision"), data.get("history"))
+    except SpecError as err:
+        raise SpecError(err.message, file=str(p), line=err.line, path=err.path) from None
+    tag = revision.release_tag(spec.part, letter)
+    if commit:
+        _git_precheck(p, tag)
     loaded = load_design(spec, cat, str(p))
     d = loaded.design
     if d.failed:
         raise DesignFailed(f"{p}: {spec.part} is not released: {len(d.failed)} design check(s) fail", d.failed)
-    tag = revision.release_tag(spec.part, letter)
-    if commit:
-        _git_precheck(p, tag)
+    accepted = accept_warnings(d, acceptance, by=by, day=day, file=str(p))
+    superseded = supersession(p, spec, letter, effect, cat, register_path)
     parts = revision.component_fingerprints(data, loaded.catalog_entries)
+    extra: list[tuple[str, Any]] = []
+    if accepted:
+        extra.append(("accepted", [{"code": a.code, "by": a.by, "date": a.date, "reason": a.reason}
+                                   for a in accepted]))
+    if superseded is not None:
+        extra += [("supersedes", superseded.revision), ("effective", superseded.effective.text)]
+        if superseded.register:       # looked for in a register (none found: nothing to record)
+            extra.append(("open_orders", list(superseded.open_orders)))
     revision.release_file(p, by=by, note=note, fingerprint=d.fingerprint, date=day,
-                          new_revision=letter, parts=parts)
+                          new_revision=letter, parts=parts, extra=extra)
     # read it back: what is on disk now must verify (catches a concurrent edit of the file)
     after = load_design(load_spec(p), cat, str(p))
     if not after.release.ok:
@@ -230,7 +453,8 @@ def release_spec(path: str | os.PathLike, *, by: str, note: str, cat: Catalog,
     if commit:
         sha = revision.git_commit_and_tag(p, f"{spec.part} rev {letter}: {note}", tag)
     return ReleaseResult(file=str(p), part=spec.part, revision=letter, fingerprint=d.fingerprint,
-                         date=day.isoformat(), commit=sha, tag=tag if sha else None)
+                         date=day.isoformat(), commit=sha, tag=tag if sha else None, accepted=accepted,
+                         supersedes=superseded)
 
 
 # ----------------------------------------------------------------------------------------------
@@ -352,5 +576,7 @@ def verify_file(path: str | os.PathLike, cat: Catalog) -> VerifyResult:
 __all__ = [
     "Loaded", "load_design", "ReleaseVerdict", "release_gate",
     "MAX_BY_CHARS", "MAX_NOTE_CHARS", "check_release_text", "check_release_date", "ReleaseResult", "release_spec",
+    "warning_notes", "release_entry", "Effectivity", "check_effectivity", "Acceptance", "check_acceptance",
+    "WarningsNotAccepted", "accept_warnings", "Supersession", "open_work_orders", "supersession",
     "looks_like_spec", "spec_files", "VerifyResult", "verify_file",
 ]

@@ -217,7 +217,7 @@ def _norm_key(key: Any) -> str:
     return json.dumps(value, sort_keys=True, separators=(",", ":"), ensure_ascii=False)
 
 
-def normalise(obj: Any) -> Any:
+def normalise(obj: Any, path: str = "", line: int | None = None) -> Any:
     """``obj`` as plain JSON types with the normalisation rules of ``canonical`` applied.
 
     Accepts any Mapping and Sequence (PyYAML, ruamel.yaml or our own dict/list subclasses),
@@ -241,19 +241,24 @@ def normalise(obj: Any) -> Any:
         out: dict[str, Any] = {}
         for key, value in obj.items():
             k = _norm_key(key)
+            where = f"{path}.{k}" if path else k
+            at = (getattr(obj, "key_lines", None) or {}).get(key, line)    # the loader's key lines
             if k in out:
-                raise SpecError(f"two keys read as {k!r} once spaces are normalised")
-            out[k] = normalise(value)
+                raise SpecError(f"two keys read as {k!r} once spaces are normalised", line=at, path=where)
+            out[k] = normalise(value, where, at)
         return out
     if isinstance(obj, AbstractSet):
-        items = [normalise(v) for v in obj]
+        items = [normalise(v, path, line) for v in obj]
         return sorted(items, key=lambda v: json.dumps(v, sort_keys=True, ensure_ascii=False))
     if isinstance(obj, Sequence) and not isinstance(obj, (bytes, bytearray)):
-        return [normalise(v) for v in obj]
+        lines = getattr(obj, "item_lines", None) or [line] * len(obj)
+        return [normalise(v, f"{path}[{i}]", lines[i] if i < len(lines) else line) for i, v in enumerate(obj)]
     value = getattr(obj, "value", None)   # ruamel TaggedScalar and the like
     if isinstance(value, str):
         return _norm_str(value)
-    raise SpecError(f"cannot fingerprint a value of type {type(obj).__name__}")
+    what = "binary data (a !!binary value)" if isinstance(obj, (bytes, bytearray)) else \
+        f"a value of type {type(obj).__name__}"
+    raise SpecError(f"cannot fingerprint {what}; write it as text", line=line, path=path or None)
 
 
 def canonical(obj: Any) -> bytes:
@@ -286,8 +291,17 @@ def fingerprint(spec_data: Mapping, catalog_entries: Mapping[str, Mapping]) -> s
 
     References: FIPS 180-4 (SHA-256) through hashlib.
     """
-    payload = {"scheme": FINGERPRINT_SCHEME, "spec": spec_content(spec_data),
-               "catalog": dict(catalog_entries or {})}
+    # each side normalised on its own so an error names the spec's key path (or the catalogue entry);
+    # normalising again inside canonical() changes nothing
+    lines = getattr(spec_data, "key_lines", None) or {}
+    content: dict[str, Any] = {}
+    for key, value in spec_content(spec_data).items():
+        k = _norm_key(key)
+        if k in content:
+            raise SpecError(f"two keys read as {k!r} once spaces are normalised", line=lines.get(key), path=k)
+        content[k] = normalise(value, k, lines.get(key))
+    payload = {"scheme": FINGERPRINT_SCHEME, "spec": normalise(content),
+               "catalog": normalise(dict(catalog_entries or {}), "catalog")}
     return hashlib.sha256(canonical(payload)).hexdigest()
 
 
@@ -635,6 +649,15 @@ class _Doc:
                 pad = " " * (dash_col + 1 + len(gap) + map_indent)
                 lines += [f"{pad}{_yaml_scalar(str(k))}: {_yaml_scalar(str(v), quote=chr(34))}"
                           for k, v in value.items()]
+            elif isinstance(value, list) and value and all(isinstance(v, Mapping) for v in value):
+                lines.append(f"{lead}{key}:")
+                pad = " " * (dash_col + 1 + len(gap) + map_indent)
+                for item in value:        # one block mapping per item, every value a quoted string
+                    for j, (k, v) in enumerate(item.items()):
+                        mark = "- " if j == 0 else "  "
+                        lines.append(f"{pad}{mark}{_yaml_scalar(str(k))}: {_yaml_scalar(str(v))}")
+            elif isinstance(value, list):
+                lines.append(f"{lead}{key}: [{', '.join(_yaml_scalar(str(v), quote=chr(34)) for v in value)}]")
             else:
                 lines.append(f"{lead}{key}: {value}")
         return "".join(line + self.nl for line in lines)
@@ -681,7 +704,8 @@ def _as_date(date: Any) -> _dt.date:
 
 def release_text(text: str, *, by: str, note: str, fingerprint: str, date: Any,
                  new_revision: str, parts: Mapping[str, str] | None = None,
-                 name: str = "spec", allow_unchanged: bool = False) -> str:
+                 name: str = "spec", allow_unchanged: bool = False,
+                 extra: Sequence[tuple[str, Any]] = ()) -> str:
     """The spec text released as ``new_revision`` (see ``release_file``); pure, no I/O."""
     doc = _Doc(text, name)
     _check_revision(new_revision, "new revision")
@@ -706,6 +730,7 @@ def release_text(text: str, *, by: str, note: str, fingerprint: str, date: Any,
         last = max(done, key=revision_index)
         raise SpecError(f"revision {new_revision} cannot be released: the history already has "
                         f"revision {last}", file=name, path="history")
+    _check_date_order(history, day, new_revision, name)
     if not allow_unchanged and history and isinstance(history[-1], Mapping) \
             and str(history[-1].get("fingerprint")) == fingerprint:
         raise SpecError(f"nothing changed since revision {history[-1].get('revision')} "
@@ -720,6 +745,9 @@ def release_text(text: str, *, by: str, note: str, fingerprint: str, date: Any,
     ]
     expected_entry: dict[str, Any] = {"revision": new_revision, "date": day, "by": by,
                                       "note": note, "fingerprint": fingerprint}
+    for key, value in extra:          # the acceptances and the supersession (specgen.lifecycle)
+        entry.append((key, value if isinstance(value, list) else _yaml_scalar(str(value))))
+        expected_entry[key] = value
     if parts:
         entry.append(("parts", dict(parts)))
         expected_entry["parts"] = {str(k): str(v) for k, v in parts.items()}
@@ -730,6 +758,22 @@ def release_text(text: str, *, by: str, note: str, fingerprint: str, date: Any,
     _check_result(doc, new, {"revision": new_revision, "status": "released",
                              "history": list(history) + [expected_entry]})
     return new
+
+
+def _check_date_order(history: Sequence[Any], day: _dt.date, new_revision: str, name: str) -> None:
+    """A release dated before an earlier release of the same spec is refused: the history reads in order."""
+    for entry in history:
+        if not isinstance(entry, Mapping) or not is_valid_revision(entry.get("revision")):
+            continue
+        raw = entry.get("date")
+        try:
+            when = _as_date(raw) if raw not in (None, "") else None
+        except SpecError:
+            continue          # an unreadable old date is the spec loader's to report
+        if when is not None and day < when:
+            raise SpecError(f"release date {day.isoformat()} of revision {new_revision} is before revision "
+                            f"{entry.get('revision')} was released on {when.isoformat()}; a release is dated "
+                            "on or after the one before it (--date)", file=name, path="history")
 
 
 def set_status_text(text: str, status: str, name: str = "spec") -> str:
@@ -792,7 +836,7 @@ def _write_text(path: str | os.PathLike, text: str) -> None:
 
 def release_file(path: str | os.PathLike, *, by: str, note: str, fingerprint: str, date: Any,
                  new_revision: str, parts: Mapping[str, str] | None = None,
-                 allow_unchanged: bool = False) -> None:
+                 allow_unchanged: bool = False, extra: Sequence[tuple[str, Any]] = ()) -> None:
     """Release a spec file as ``new_revision``, editing it in place and atomically.
 
     Sets ``revision: <new_revision>`` and ``status: released`` (keeping each line's comment and
@@ -808,7 +852,7 @@ def release_file(path: str | os.PathLike, *, by: str, note: str, fingerprint: st
     text = _read_spec(path)
     new = release_text(text, by=by, note=note, fingerprint=fingerprint, date=date,
                        new_revision=new_revision, parts=parts, name=str(path),
-                       allow_unchanged=allow_unchanged)
+                       allow_unchanged=allow_unchanged, extra=extra)
     _write_text(path, new)
 
 

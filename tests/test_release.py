@@ -63,6 +63,8 @@ def _add_turns(text: str, winding: str, turns: int) -> str:
     return text[:m.end()] + f"{m.group(1)}  turns: {turns}\n" + text[m.end():]
 
 
+# the demo parts BH-3305 and BH-4120 carry a design warning: a release accepts it by name
+ACCEPT_ALL = ("--accept-all", "--reason", "accepted for the test")
 RELEASE_KEYS = re.compile(r"^(revision|status|history)\s*:")
 
 
@@ -77,8 +79,11 @@ def test_release_keeps_every_other_line(demo_copy, name):
     r = cli("release", spec, "--by", "R. Okafor", "--note", "re-released for the test",
             "--date", "2026-12-01")
     assert r.exit_code == 0, r.stderr
-    m = re.fullmatch(r"released (\S+) rev ([A-Z]+), fingerprint ([0-9a-f]{12})\n", r.stdout)
+    m = re.match(r"released (\S+) rev ([A-Z]+), fingerprint ([0-9a-f]{12})\n", r.stdout)
     assert m, r.stdout
+    # the release supersedes the last one: said on the next line (no register above tmp_path: not looked for)
+    assert re.fullmatch(r"  supersedes rev [A-Z]+, effective from the next work order; no register found.*\n",
+                        r.stdout[m.end():]), r.stdout
     after = spec.read_text(encoding="utf-8").splitlines(keepends=True)
     # the old file is a prefix of the new one except the release lines; the new history entry
     # is appended after the old last line
@@ -132,9 +137,9 @@ def test_release_refuses_a_failing_design_and_leaves_the_file_alone(tmp_path):
 
 def test_release_refuses_when_nothing_changed(demo_copy):
     spec = demo_copy("BH-3305.yaml")
-    assert cli("release", spec, "--by", "T. Vance", "--note", "one").exit_code == 0
+    assert cli("release", spec, "--by", "T. Vance", "--note", "one", *ACCEPT_ALL).exit_code == 0
     released = spec.read_bytes()
-    r = cli("release", spec, "--by", "T. Vance", "--note", "two")
+    r = cli("release", spec, "--by", "T. Vance", "--note", "two", *ACCEPT_ALL)
     assert r.exit_code == 2 and "nothing changed" in r.stderr
     assert spec.read_bytes() == released
 
@@ -250,7 +255,7 @@ def test_release_gate(demo_copy):
 
     # released with its fingerprint blanked: a release without a recorded fingerprint is refused
     assert gate().broken and "records no fingerprint" in gate().reason
-    assert cli("release", spec_path, "--by", "x", "--note", "y").exit_code == 0
+    assert cli("release", spec_path, "--by", "x", "--note", "y", *ACCEPT_ALL).exit_code == 0
     assert gate().firm and gate().problems == ()
     spec_path.write_text(spec_path.read_text().replace("ripple: 2.4 A", "ripple: 2.0 A"))
     assert gate().broken and "inductor changed" in gate().reason
@@ -308,7 +313,7 @@ def test_release_commit_and_tag(git_env):
     spec.write_text(blank_recorded_fingerprint((DEMO / "BH-4120.yaml").read_text()))
     _git(repo, "add", ".")
     _git(repo, "commit", "-q", "-m", "BH-4120 as shipped")
-    r = cli("release", spec, "--by", "T. Vance", "--note", "new core supplier lot", "--commit")
+    r = cli("release", spec, "--by", "T. Vance", "--note", "new core supplier lot", "--commit", *ACCEPT_ALL)
     assert r.exit_code == 0, r.stderr
     assert "committed" in r.stdout and "BH-4120-rev-B" in r.stdout
     assert _git(repo, "cat-file", "-t", "BH-4120-rev-B") == "tag"
@@ -320,7 +325,7 @@ def test_release_commit_and_tag(git_env):
     edited = spec.read_bytes()
     # re-releasing would give rev C, so force the clash by tagging C first
     _git(repo, "tag", "BH-4120-rev-C")
-    r = cli("release", spec, "--by", "T. Vance", "--note", "again", "--commit")
+    r = cli("release", spec, "--by", "T. Vance", "--note", "again", "--commit", *ACCEPT_ALL)
     assert r.exit_code == 2 and "already exists" in r.stderr
     assert spec.read_bytes() == edited != before
 

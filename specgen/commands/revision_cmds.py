@@ -30,19 +30,50 @@ def register(app) -> None:
                                            help="Release date (default: today)."),
         commit: bool = typer.Option(False, "--commit",
                                     help="Commit just this file and tag it PART-rev-X (never pushes)."),
+        accept: list[str] = typer.Option([], "--accept", metavar="CODE[=REASON]",
+                                         help="Accept the design warning with this check code (repeat for each)."),
+        accept_all: bool = typer.Option(False, "--accept-all", help="Accept every design warning (needs --reason)."),
+        reason: str | None = typer.Option(None, "--reason", metavar="TEXT",
+                                          help="Why the accepted warnings are acceptable (recorded in the history)."),
+        effective: str | None = typer.Option(
+            None, "--effective", metavar="next-order|now|lot LOT",
+            help="When this revision takes over from the one it supersedes (required when that one has open "
+                 "work orders; default next-order)."),
+        register_path: str | None = typer.Option(
+            None, "--register", metavar="PATH|URL",
+            help="The register asked for open work orders of the superseded revision (default: as for work orders)."),
         catalog: Path | None = CatalogOpt,
         as_json: bool = JsonOpt,
     ):
-        """Release a spec: refuse if a design check fails, set the next revision letter, record
-        the fingerprint in its history (comments and formatting kept)."""
+        """Release a spec: refuse if a design check fails or a warning is not accepted by name, set the
+        next revision letter, record the fingerprint, the acceptances and the effectivity in its history
+        (comments and formatting kept)."""
         from .. import load_catalog, release_spec
-        from ..lifecycle import MAX_BY_CHARS, MAX_NOTE_CHARS, check_release_date, check_release_text
+        from ..lifecycle import (
+            MAX_BY_CHARS,
+            MAX_NOTE_CHARS,
+            WarningsNotAccepted,
+            check_acceptance,
+            check_effectivity,
+            check_release_date,
+            check_release_text,
+        )
+        from ._common import terminal_safe
 
         # every option checked before the catalogue is read or the file touched
         check_release_text(by, "--by", MAX_BY_CHARS)
         check_release_text(note, "--note", MAX_NOTE_CHARS)
         check_release_date(date)
-        result = release_spec(spec, by=by, note=note, catalog=load_catalog(catalog), date=date, commit=commit)
+        check_acceptance(accept, accept_all, reason)
+        check_effectivity(effective)
+        try:
+            result = release_spec(spec, by=by, note=note, catalog=load_catalog(catalog), date=date, commit=commit,
+                                  accept=accept, accept_all=accept_all, reason=reason, effective=effective,
+                                  register_path=register_path)
+        except WarningsNotAccepted as err:
+            for w in err.warnings:          # the list first, then the one-line refusal
+                typer.echo(f"  WARN {w.code}: {terminal_safe(w.message)}", err=True)
+            raise
         if as_json:
             print_json(result.to_dict())
         else:

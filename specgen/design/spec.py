@@ -26,6 +26,7 @@ from typing import TYPE_CHECKING, Any, cast
 from ..errors import SpecError
 from ..loading import RENAMED_KEYS, Reader, first_unsafe_char, load_yaml, parse_yaml
 from ..records import record
+from .acceptance import AcceptedWarning
 from .limits import MAX_TURNS
 from .vocab import Cooling, Waveform
 
@@ -148,7 +149,7 @@ class Spec:
     barriers: tuple[Barrier, ...]
     inductor: InductorReq | None
     notes: str
-    history: tuple[dict[str, str], ...]
+    history: tuple[dict[str, Any], ...]
     core_wrap: TapeUse | None = None          # toroid: tape wrapped on the core under the first winding
     insulation_basis: dict[str, Any] = field(default_factory=dict)   # this part's own mains voltage, OVC, PD
     data: Any = field(compare=False, repr=False, default_factory=dict)   # the parsed YAML, for fingerprints
@@ -542,15 +543,26 @@ def _flyback_section(r: Reader, core: Reader, op: Reader, kind: str, windings: t
     return parse_flyback(_section(r, "flyback"), core, windings, wreaders)
 
 
-def _history(r: Reader) -> tuple[dict[str, str], ...]:
+def _history(r: Reader) -> tuple[dict[str, Any], ...]:
     out = []
     for h in r.items("history", []):
         out.append({
             "revision": h.text("revision", ""), "date": _history_date(h), "by": h.text("by", ""),
             "note": h.text("note", ""), "fingerprint": h.text("fingerprint", ""),
+            "accepted": tuple(_accepted(a) for a in h.items("accepted", [])),
+            "supersedes": h.text("supersedes", ""), "effective": h.text("effective", "", max_len=200),
+            "open_orders": tuple(str(n) for n in h.list_of("open_orders", [])),
         })
         h.done(("parts",))     # per-key fingerprints written by `specgen release`
     return tuple(out)
+
+
+def _accepted(a: Reader) -> AcceptedWarning:
+    """One ``accepted:`` item of a history entry (written by ``specgen release --accept``)."""
+    out = AcceptedWarning(code=a.text("code"), by=a.text("by", max_len=200), date=_history_date(a),
+                          reason=a.text("reason", max_len=2000))
+    a.done()
+    return out
 
 
 def _history_date(h: Reader) -> str:

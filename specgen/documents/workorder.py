@@ -464,12 +464,20 @@ def build_context(design, settings, *, number: str, qty: int, due: str | None = 
         "head": head, "summary": summary, "materials": _materials(d, qty, scrap),
         "scrap": f"{scrap:.0%}", "steps": steps, "varnish": varnish, "after_varnish": after, "tests": tests,
         "caution": list(HIPOT_CAUTION), "standards_note": STANDARDS_NOTE, "notes": (d.notes or "").strip(),
-        "history": history, "warnings": [c.message for c in d.warnings], "toroid": toroid,
+        "history": history, "warnings": _warning_rows(d), "toroid": toroid,
         "pin_word": pin_word, "paper": CSS_PAPER[settings.paper], "side_margin_mm": SIDE_MARGIN_MM,
         "insulation": _insulation_rows(d),
     }
     ctx.update(_drawings(d, settings))
     return ctx
+
+
+def _warning_rows(d) -> list[dict[str, str]]:
+    """Each design warning with "accepted by NAME on DATE: REASON" when its release accepted it, '' when
+    nobody did (the rule is ``specgen.lifecycle.warning_notes``: no acceptance is ever implied)."""
+    from ..lifecycle import warning_notes
+
+    return [{"message": w.message, "accepted": w.accepted_line} for w in warning_notes(d)]
 
 
 def render_work_order_html(design, settings, **kwargs) -> str:
