@@ -87,6 +87,10 @@ class Side:
     released_on: str = ""
     released_by: str = ""
     release_note: str = ""
+    # what its release recorded about the revision it superseded (``specgen release --effective``)
+    supersedes: str = ""
+    effective: str = ""               # next-order | now | lot <reference>; '' when none was recorded
+    open_orders: tuple[str, ...] | None = None   # that revision's open work orders at the release (None: not looked)
 
     @classmethod
     def of(cls, loaded: Loaded) -> Side:
@@ -99,7 +103,37 @@ class Side:
                    fingerprint=d.fingerprint, release_ok=ok,
                    release_problems=tuple(loaded.release.problems),
                    recorded=loaded.release.recorded, released_on=str(entry.get("date") or ""),
-                   released_by=str(entry.get("by") or ""), release_note=str(entry.get("note") or "").strip())
+                   released_by=str(entry.get("by") or ""), release_note=str(entry.get("note") or "").strip(),
+                   supersedes=str(entry.get("supersedes") or ""), effective=str(entry.get("effective") or ""),
+                   open_orders=(tuple(str(n) for n in entry["open_orders"])
+                                if isinstance(entry.get("open_orders"), list) else None))
+
+    @property
+    def effectivity(self) -> str:
+        """When this revision governs the shop's work, as its release recorded it (or the shop's rule:
+        work orders are issued from released revisions only)."""
+        if self.status != "released":
+            return f"None yet: revision {self.revision} is a {self.status}. It governs no work order until it is released."
+        since = f"from {self.released_on}" if self.released_on else "from its release"
+        old = f"revision {self.supersedes}" if self.supersedes else "an earlier revision"
+        orders = ""
+        if self.open_orders:
+            orders = f" Open work orders of {old} at the release: {', '.join(self.open_orders)}."
+        elif self.open_orders is not None and self.supersedes:
+            orders = f" No work order of {old} was open at the release."
+        word = self.effective.split(" ", 1)
+        if word[0] == "now":
+            return (f"At once: revision {self.revision} takes effect for every work order, including those "
+                    f"still open to {old}, which are brought to revision {self.revision} before they are finished."
+                    + orders)
+        if word[0] == "lot" and len(word) == 2:
+            return (f"From lot {word[1]}: that lot and every later one is built to revision {self.revision}; "
+                    f"earlier lots finish to {old}." + orders)
+        text = (f"Work orders issued {since} are built to revision {self.revision}; orders already issued to "
+                f"{old} finish to the revision printed on them.")
+        if not self.effective and self.supersedes == "":
+            return text if self.open_orders is None else text + orders
+        return text + orders + ("" if self.effective else " (No effectivity was recorded at the release.)")
 
     @property
     def release_text(self) -> str:
@@ -445,6 +479,7 @@ def summary_text(s: ChangeSummary) -> str:
     for label, side in (("old", s.old), ("new", s.new)):
         out.append(f"  {label}  {side.name}  fingerprint {revision.short(side.fingerprint)}  "
                    f"({side.release_text})")
+    out.append(f"  effective: {s.new.effectivity}")
     if s.unchanged:
         out.append("")
         out.append("no changes in the spec or in the shop-floor results")

@@ -306,7 +306,7 @@ def open_work_orders(spec_path: str | os.PathLike, part: str, revision_letter: s
         return (), ""       # no register anywhere above this spec: no work order was issued from it
     where = locate_register(spec_path, register_path, shop_setting=cat.shop.register_path, catalog_dir=cat.root)
     if where.kind == "sqlite" and (not Path(where.target).is_file() or Path(where.target).stat().st_size == 0):
-        return (), ""
+        return (), where.shown      # named but never started: nothing was issued from it
     with Register.open(where.target, read_only=True) as reg:
         orders = reg.list(part=part, revision=revision_letter)
     return tuple(o.number for o in orders if o.state in ("issued", "in-work")), where.shown

@@ -81,8 +81,8 @@ def test_release_keeps_every_other_line(demo_copy, name):
     assert r.exit_code == 0, r.stderr
     m = re.match(r"released (\S+) rev ([A-Z]+), fingerprint ([0-9a-f]{12})\n", r.stdout)
     assert m, r.stdout
-    # the release supersedes the last one: said on the next line (no register above tmp_path: not looked for)
-    assert re.fullmatch(r"  supersedes rev [A-Z]+, effective from the next work order; no register found.*\n",
+    # the release supersedes the last one: said on the next line (the test's own register holds no order)
+    assert re.fullmatch(r"  supersedes rev [A-Z]+, effective from the next work order; no open work orders .*\n",
                         r.stdout[m.end():]), r.stdout
     after = spec.read_text(encoding="utf-8").splitlines(keepends=True)
     # the old file is a prefix of the new one except the release lines; the new history entry

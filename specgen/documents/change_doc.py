@@ -71,14 +71,8 @@ def input_name(key: str, roles: dict) -> str:
 
 
 def _effectivity(new) -> str:
-    """What the new revision governs from when, in the shop's terms: work orders are issued from
-    released revisions only, so a release takes effect for the orders issued after it."""
-    if new.status != "released":
-        return (f"None yet: revision {new.revision} is a {new.status}. It governs no work order until it is "
-                f"released.")
-    since = f"from {new.released_on}" if new.released_on else "from its release"
-    return (f"Work orders issued {since} are built to revision {new.revision}; orders already issued to an "
-            f"earlier revision finish to the revision printed on them.")
+    """What the new revision governs from when: as its release recorded it (``specgen.diff.Side.effectivity``)."""
+    return str(new.effectivity)
 
 
 def build_context(summary) -> dict:
