@@ -156,7 +156,7 @@ def read_text(path: str | os.PathLike, what: str = "file", limit: int | None = N
     finally:
         os.close(fd)
     if total > limit:                                           # it grew while being read
-        raise SpecError(_too_big(total, what, limit), file=name)
+        raise SpecError(too_big(total, what, limit), file=name)
     return decode_text(b"".join(chunks), name)
 
 
@@ -165,7 +165,7 @@ def limit_for(what: str) -> int:
     return SPEC_MAX_BYTES if ("spec" in what or "requirement" in what) else MAX_FILE_BYTES
 
 
-def _too_big(size: int, what: str, limit: int) -> str:
+def too_big(size: int, what: str, limit: int) -> str:
     return f"is {size:,} bytes ({size / 1e6:.2f} MB); a {what} is at most {limit:,} bytes"
 
 
@@ -177,7 +177,7 @@ def _check_regular(st: os.stat_result, what: str, name: str, limit: int) -> None
                 else "a device")
         raise SpecError(f"is {kind}, not a regular file; expected a {what}", file=name)
     if st.st_size > limit:
-        raise SpecError(_too_big(st.st_size, what, limit), file=name)
+        raise SpecError(too_big(st.st_size, what, limit), file=name)
 
 
 def decode_text(raw: bytes, name: str) -> str:

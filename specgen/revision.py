@@ -933,7 +933,7 @@ def read_rev(spec_ref: str) -> tuple[str, str]:
     file's repository); the file need not exist in the work tree any more. Not a repository,
     an unknown revision or a file missing from it are SpecErrors of one line.
     """
-    from .loading import MAX_FILE_BYTES, decode_text, read_text
+    from .loading import too_big, decode_text, limit_for, read_text
 
     path_str, rev = split_ref(str(spec_ref))
     if rev is None:
@@ -957,12 +957,16 @@ def read_rev(spec_ref: str) -> tuple[str, str]:
     if proc.stdout.decode().strip() != "blob":
         raise SpecError(f"{rel} is a folder in git revision {rev}, expected a spec file",
                         file=display)
+    limit = limit_for("spec")                # the same limit as a spec read from the work tree
     proc = _git(["cat-file", "-s", obj], top, display)
-    if proc.returncode == 0 and int(proc.stdout.decode().strip() or 0) > MAX_FILE_BYTES:
-        raise SpecError("is too large for a spec file", file=display)
+    size = int(proc.stdout.decode().strip() or 0) if proc.returncode == 0 else 0
+    if size > limit:
+        raise SpecError(too_big(size, "spec", limit), file=display)
     proc = _git(["cat-file", "blob", obj], top, display)
     if proc.returncode != 0:
         raise SpecError(f"git could not read it: {_git_message(proc)}", file=display)
+    if len(proc.stdout) > limit:             # the size asked first, checked again on what came back
+        raise SpecError(too_big(len(proc.stdout), "spec", limit), file=display)
     return display, decode_text(proc.stdout, display)
 
 

@@ -599,6 +599,23 @@ def test_read_rev_errors_are_one_line_spec_errors(repo, git_env):
 
 
 @pytestmark_git
+def test_read_rev_holds_a_spec_from_history_to_the_spec_size_limit(repo):
+    """A spec read from git history has the limit of a spec in the work tree (1 MiB), not a catalogue
+    file's 16 MiB: a 2 MB file committed as a spec is refused with the stated limit."""
+    from specgen.loading import SPEC_MAX_BYTES
+
+    big = repo / "parts" / "BH-BIG.yaml"
+    big.write_text("part: BH-BIG\nnotes: |\n" + ("  " + "x" * 78 + "\n") * 25_000)   # about 2 MB
+    assert SPEC_MAX_BYTES < big.stat().st_size < 16 * 1024 * 1024
+    _git(repo, "add", ".")
+    _git(repo, "commit", "-q", "-m", "an oversized spec")
+    for ref in (f"{big}@HEAD", str(big)):         # from history and from the work tree: the same refusal
+        with pytest.raises(SpecError) as info:
+            rv.read_rev(ref)
+        assert f"a spec is at most {SPEC_MAX_BYTES:,} bytes" in str(info.value), str(info.value)
+
+
+@pytestmark_git
 def test_a_file_named_with_at_is_read_as_a_file(repo):
     odd = repo / "parts" / "BH-1042@HEAD"
     odd.write_text("part: odd\n")
