@@ -477,6 +477,26 @@ def test_failed_design_exits_1(monkeypatch, tmp_path):
     assert list(tmp_path.iterdir()) == []          # refused: no half-made quote
 
 
+@pytest.mark.parametrize("stage", ["render", "register"])
+def test_failed_quote_leaves_no_out_folder(monkeypatch, tmp_path, stage):
+    """A render that fails, or a register that refuses, leaves no --out folder behind (made only once
+    every file is rendered, removed again when the write fails)."""
+    import specgen.documents.render as render
+
+    def broken(*_a, **_k):
+        raise OSError("the renderer ran out of memory")
+
+    if stage == "render":
+        monkeypatch.setattr(render, "html_to_pdf", broken)
+    else:
+        (tmp_path / "register.sqlite").mkdir()          # a folder where the register file should be
+        monkeypatch.setenv("SPECGEN_REGISTER", str(tmp_path / "register.sqlite"))
+    out = tmp_path / "quotes" / "today"
+    r = runner.invoke(_app(), ["quote", str(DEMO / "BH-5018.yaml"), "--out", str(out)])
+    assert r.exit_code != 0
+    assert not (tmp_path / "quotes").exists()
+
+
 def test_json_quote_does_not_import_weasyprint():
     code = ("import sys; from specgen.cli import app\n"
             "try:\n    app(['quote', sys.argv[1], '--json'])\nexcept SystemExit as e:\n    assert not e.code, e.code\n"

@@ -76,7 +76,8 @@ def register(app) -> None:
             from ..register import locate_register
 
             where = locate_register(spec, register_path, shop_setting=cat.shop.register_path, catalog_dir=cat.root)
-            _make_dir(out_dir)
+            # the folder is made by the writer once every file is rendered, and removed again if the write
+            # fails: a refused or failed quote leaves no empty --out folder behind
             issued = issue_quote(q, out_dir, where, by=by)
             q, written = issued.quote, list(issued.files)
             register_info = {"location": issued.register, "found_by": issued.register_found_by}
@@ -109,12 +110,3 @@ def _out_dir(out: Path | None) -> Path:
     if folder.exists() and not folder.is_dir():
         raise SpecError("is a file, expected a folder for the quote", file=str(folder), path="--out")
     return folder
-
-
-def _make_dir(folder: Path) -> None:
-    from ..errors import SpecError
-
-    try:
-        folder.mkdir(parents=True, exist_ok=True)
-    except OSError as exc:
-        raise SpecError(f"cannot create the folder: {exc.strerror}", file=str(folder), path="--out") from None

@@ -270,7 +270,7 @@ def write_quote(q: Quote, out_dir: str | Path, blocked: list | None = None, *, s
     customer_pdf = html_to_pdf(customer_html, blocked)
     internal_pdf = html_to_pdf(internal_html, blocked)
     order = [paths["pdf"], paths["html"], paths["internal_pdf"], paths["internal_html"]]
-    with atomic_paths(*order) as temps:
+    with atomic_paths(*order, make_folders=True) as temps:     # a missing folder only now (removed on failure)
         temps[0].write_bytes(customer_pdf)
         temps[1].write_text(customer_html, encoding="utf-8")
         temps[2].write_bytes(internal_pdf)
