@@ -427,6 +427,35 @@ def test_pdf_fetches_nothing_outside_templates(cat, designs, tmp_path):
     assert blocked == []          # the quote's own stylesheet is inside templates/; nothing else is asked for
 
 
+def _local_references(html: str) -> list[str]:
+    """Every href/src/@import of an HTML page that names a file (not an anchor, a data: or a web URL)."""
+    import re
+
+    refs = re.findall(r"""(?:href|src)\s*=\s*["']([^"']+)["']|@import\s+(?:url\()?["']?([^"')\s;]+)""", html)
+    return [a or b for a, b in refs if not (a or b).startswith(("#", "data:", "http:", "https:", "mailto:"))]
+
+
+def test_saved_quote_and_change_html_stand_on_their_own(cat, designs, tmp_path):
+    """The HTML written beside each PDF names no style sheet or other file that is not written with it
+    (the quote's and the change summary's style sheets are inlined, as the work order's always was)."""
+    from specgen.diff import compare
+    from specgen.documents.change_doc import write_change_pdf
+    from specgen.documents.quote_doc import write_quote
+    from specgen.lifecycle import load_design
+
+    path, spec, d = designs["BH-4120"]
+    for written in write_quote(qm.build_quote(spec, d, cat, (100,), issued=ISSUED), tmp_path / "q"):
+        if written.suffix == ".html":
+            html = written.read_text(encoding="utf-8")
+            assert _local_references(html) == [], written.name
+            assert ".q-compact" in html or "q-" in html          # the quote's own rules are in the page
+    loaded = load_design(spec, cat, str(path))
+    out = tmp_path / "c"
+    out.mkdir()
+    write_change_pdf(compare(loaded, loaded, costs=None), out / "c.pdf", out / "c.html")
+    assert _local_references((out / "c.html").read_text(encoding="utf-8")) == []
+
+
 def test_csv_rows_match_json(tmp_path):
     spec = str(DEMO / "BH-3305.yaml")
     j = json.loads(runner.invoke(_app(), ["quote", spec, "--qty", "10,1000", "--json"]).stdout)
