@@ -42,6 +42,13 @@ _CONTROLS = re.compile("[\x00-\x1f\x7f-\x9f\u061c\u200e\u200f\u202a-\u202e\u2066
 _NAMED = {"\n": "\\n", "\r": "\\r", "\t": "\\t"}
 
 
+def first_control(text: str) -> str | None:
+    """The first character of ``text`` a terminal would act on (as ``U+001B``), line breaks and tabs
+    included, or None: what a one-line free-text value may not hold (``specgen.freetext``)."""
+    m = _CONTROLS.search(text)
+    return f"U+{ord(m.group()):04X}" if m else None
+
+
 def escape_controls(text: str, keep_newlines: bool = False) -> str:
     """``text`` with every character a terminal would act on (ESC, BEL, NUL, CR, bidi overrides) shown
     as an escape (``\\x1b``) instead; ``keep_newlines`` leaves line feeds and tabs as they are."""

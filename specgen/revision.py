@@ -933,7 +933,7 @@ def read_rev(spec_ref: str) -> tuple[str, str]:
     file's repository); the file need not exist in the work tree any more. Not a repository,
     an unknown revision or a file missing from it are SpecErrors of one line.
     """
-    from .loading import too_big, decode_text, limit_for, read_text
+    from .loading import decode_text, limit_for, read_text, too_big
 
     path_str, rev = split_ref(str(spec_ref))
     if rev is None:

@@ -15,7 +15,8 @@ from typing import Any
 
 import typer
 
-from specgen.errors import SpecError
+from specgen.errors import SpecError, escape_controls
+from specgen.freetext import check_free_text, check_name
 from specgen.register import (
     QUOTE_STATES,
     STATES,
@@ -73,7 +74,14 @@ def _run(action: Callable[[], None]) -> None:
         raise typer.Exit(2) from None
 
 
+def _safe(value: object) -> str:
+    """A value from the register as printed: every control character, line break and bidirectional
+    control shown escaped (a register written by hand or by an older version may hold any of them)."""
+    return escape_controls(str(value))
+
+
 def _table(headers: tuple[str, ...], rows: Sequence[tuple[str, ...]]) -> list[str]:
+    rows = [tuple(_safe(c) for c in row) for row in rows]
     widths = [max(len(h), *(len(r[i]) for r in rows)) if rows else len(h) for i, h in enumerate(headers)]
     lines = ["  ".join(h.ljust(w) for h, w in zip(headers, widths)).rstrip()]
     lines += ["  ".join(c.ljust(w) for c, w in zip(row, widths)).rstrip() for row in rows]
@@ -84,7 +92,7 @@ def _orders_table(orders: list[Order]) -> str:
     rows = [(o.number, o.state, o.part, o.revision, str(o.qty), o.lot or "-", o.due or "-", o.issued_at[:10],
              o.issued_by, o.quote or "-") for o in orders]
     lines = _table(("number", "state", "part", "rev", "qty", "lot", "due", "issued", "by", "quote"), rows)
-    lines += [f"{o.number} void: {o.void_reason}" for o in orders if o.state == "void"]
+    lines += [_safe(f"{o.number} void: {o.void_reason}") for o in orders if o.state == "void"]
     return "\n".join(lines)
 
 
@@ -92,7 +100,7 @@ def _quotes_table(quotes: list[QuoteEntry]) -> str:
     rows = [(q.number, q.state, q.part, q.revision, q.customer or "-", q.valid_until or "-", q.issued_at[:10],
              q.issued_by) for q in quotes]
     lines = _table(("number", "state", "part", "rev", "customer", "valid until", "issued", "by"), rows)
-    lines += [f"{q.number} void: {q.void_reason}" for q in quotes if q.state == "void"]
+    lines += [_safe(f"{q.number} void: {q.void_reason}") for q in quotes if q.state == "void"]
     return "\n".join(lines)
 
 
@@ -126,7 +134,7 @@ def list_orders(
             typer.echo(json.dumps({"register": where.to_dict(), "orders": [o.to_dict() for o in orders],
                                    "quotes": [q.to_dict() for q in quotes]}, indent=2))
         elif as_csv:
-            typer.echo(orders_csv(orders), nl=False)
+            typer.echo(escape_controls(orders_csv(orders), keep_newlines=True), nl=False)   # CSV's own line breaks
         else:
             blocks = []
             if want_orders:
@@ -178,15 +186,15 @@ def show(
         if item.state == "void":
             fields.append(("void reason", item.void_reason or "-"))
         for label, value in fields:
-            typer.echo(f"{label + ':':13} {value}")
+            typer.echo(f"{label + ':':13} {_safe(value)}")
         typer.echo("files:" + ("" if item.files else "        none recorded"))
         for path in item.files:
-            typer.echo(f"  {path}")
+            typer.echo(f"  {_safe(path)}")
         typer.echo("history:")
         for e in events:
             change = f"{e.from_state} -> {e.to_state}" if e.from_state else e.to_state
             note = "  CORRECTION" if e.kind == "correction" else ""
-            typer.echo(f"  {e.at}  {change}{note}  by {e.by or '-'}" + (f"  ({e.why})" if e.why else ""))
+            typer.echo(_safe(f"  {e.at}  {change}{note}  by {e.by or '-'}" + (f"  ({e.why})" if e.why else "")))
     _run(action)
 
 
@@ -203,14 +211,17 @@ def set_state(
     """Move a work order (issued -> in-work -> complete, or void with --why) or a quote
     (issued -> accepted | declined | void); --correct --why REASON for anything else."""
     def action() -> None:
+        checked_why = check_free_text(why, "--why", required=False)      # before the register is opened
+        checked_by = check_name(by)
         where = _locate(register, catalog)
         with _open(where, verbose, write=True) as reg:
             record, item = _find(reg, number)
             if record == "order":
-                after: Order | QuoteEntry = reg.set_state(number, state, why=why, by=by, correction=correct)
+                after: Order | QuoteEntry = reg.set_state(number, state, why=checked_why, by=checked_by,
+                                                         correction=correct)
             else:
-                after = reg.set_quote_state(number, state, why=why, by=by, correction=correct)
-        typer.echo(f"{after.number}: {item.state} -> {after.state}" + (" (correction)" if correct else ""))
+                after = reg.set_quote_state(number, state, why=checked_why, by=checked_by, correction=correct)
+        typer.echo(_safe(f"{after.number}: {item.state} -> {after.state}") + (" (correction)" if correct else ""))
     _run(action)
 
 
@@ -230,11 +241,12 @@ def stale(
     def action() -> None:
         if older_than is not None and not older_than >= 0:
             raise SpecError(f"expected hours of 0 or more, got {older_than}", path="--older-than")
+        reason = check_free_text(why, "--why", required=False)
         bound = STALE_UNCHECKABLE_S if older_than is None else older_than * 3600.0
         where = _locate(register, catalog)
         with _open(where, verbose, write=void) as reg:
             found = reg.stale(uncheckable_after_s=bound)
-            voided = reg.void_stale(uncheckable_after_s=bound, reason=why) if void else []
+            voided = reg.void_stale(uncheckable_after_s=bound, reason=reason) if void else []
         if as_json:
             typer.echo(json.dumps({"register": where.to_dict(), "stale": [s.to_dict() for s in found],
                                    "voided": voided}, indent=2))
@@ -247,7 +259,7 @@ def stale(
         typer.echo("\n".join(_table(("number", "record", "part", "issued at", "by", "age", "process", "voidable"),
                                     rows)))
         if void:
-            typer.echo(f"voided {len(voided)}: {', '.join(voided) or '-'}")
+            typer.echo(_safe(f"voided {len(voided)}: {', '.join(voided) or '-'}"))
     _run(action)
 
 
@@ -268,7 +280,7 @@ def where_used(
             return
         if not orders:
             which = f"{part} revision {revision}" if revision else part
-            typer.echo(f"no work orders used {which}")
+            typer.echo(_safe(f"no work orders used {which}"))
             return
         by_revision: dict[str, list[Order]] = {}
         for order in orders:
@@ -276,10 +288,10 @@ def where_used(
         for rev, group in by_revision.items():
             total = sum(o.qty for o in group)
             plural = "" if len(group) == 1 else "s"
-            typer.echo(f"{part} revision {rev}: {len(group)} work order{plural}, {total} pieces")
+            typer.echo(_safe(f"{part} revision {rev}: {len(group)} work order{plural}, {total} pieces"))
             for o in group:
-                typer.echo(f"  {o.number}  lot {o.lot or '-'}  qty {o.qty}  {o.state}  "
-                           f"issued {o.issued_at[:10]}  fingerprint {o.fingerprint}")
+                typer.echo(_safe(f"  {o.number}  lot {o.lot or '-'}  qty {o.qty}  {o.state}  "
+                                 f"issued {o.issued_at[:10]}  fingerprint {o.fingerprint}"))
     _run(action)
 
 

@@ -49,6 +49,7 @@ def register(app) -> None:
         from ..catalog.loader import load_catalog
         from ..design.spec import load_spec
         from ..errors import SpecError
+        from ..freetext import check_name
         from ..quote import (
             CSV_FIELDS,
             build_quote,
@@ -61,6 +62,7 @@ def register(app) -> None:
 
         if as_json and as_csv:
             raise SpecError("choose one of --json or --csv", path="--json")
+        by = check_name(by)
         quantities = parse_quantities(qty)
         nre_amount = parse_amount(nre, "--nre")
         days = parse_days(valid_days)

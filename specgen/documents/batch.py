@@ -163,11 +163,13 @@ def issue_batch(csv_path, *, out_dir=".", register_path=None, workers: int | Non
     from ..api import run_design
     from ..catalog.loader import load_catalog
     from ..design.spec import load_spec
+    from ..freetext import check_name
     from ..register import Register, locate_register
     from .settings import DocumentSettings
     from .workorder import check_number, preflight, render_work_order_html
 
     t0 = time.perf_counter()
+    by = check_name(by)                    # before the CSV is read: a bad --by refuses the whole batch
     csv_path = Path(csv_path)
     rows = read_orders(csv_path)
     cat = load_catalog(catalog_dir)

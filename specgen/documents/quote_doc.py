@@ -295,8 +295,10 @@ def issue_quote(q: Quote, out_dir: str | Path, where, *, by: str | None = None,
     file already standing under the new number (left by another register) refuses the issue, and
     the number is voided with that reason. A failed render voids the number too."""
     from ..errors import SpecError
+    from ..freetext import check_name
     from ..register import Register
 
+    by = check_name(by)
     out = Path(out_dir)
     with Register.open(where.target) as reg:
         with reg.issuing_quote(q.part, q.revision, q.fingerprint or "-", customer=q.customer,

@@ -514,14 +514,9 @@ def check_due(due) -> str | None:
 def check_lot(lot) -> str | None:
     if lot is None:
         return None
-    text = str(lot).strip()
-    if not text:
-        return None
-    if len(text) > MAX_LOT_CHARS:
-        raise SpecError(f"at most {MAX_LOT_CHARS} characters, got {len(text)}", path="--lot")
-    if any(ord(c) < 32 or 0x7F <= ord(c) <= 0x9F for c in text):
-        raise SpecError("control characters are not allowed", path="--lot")
-    return text
+    from ..freetext import check_free_text
+
+    return check_free_text(lot, "--lot", MAX_LOT_CHARS, required=False)
 
 
 def check_number(number) -> str | None:
@@ -618,11 +613,13 @@ def issue_work_order(spec_path, *, qty, due=None, lot=None, out_dir=".", draft=F
     from ..api import run_design
     from ..catalog.loader import load_catalog
     from ..design.spec import load_spec
+    from ..freetext import check_name
 
     check_qty(qty)
     check_due(due)
     check_lot(lot)
     check_number(number)
+    by = check_name(by)
     cat = load_catalog(catalog_dir)
     spec = load_spec(spec_path)
     design = run_design(spec, cat)

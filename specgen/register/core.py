@@ -44,7 +44,8 @@ from pathlib import Path
 from typing import Any
 
 import specgen.register.model as model
-from specgen.errors import SpecError
+from specgen.errors import SpecError, escape_controls
+from specgen.freetext import MAX_NAME_CHARS, MAX_NOTE_CHARS, check_free_text, check_name
 
 from .model import (
     DEFAULT_NUMBER_FORMAT,
@@ -173,7 +174,7 @@ class Register:
         if isinstance(qty, bool) or not isinstance(qty, int) or qty <= 0:
             raise SpecError(f"work order: quantity must be a whole number above zero, got {qty!r}")
         values = {"part": part, "revision": revision, "fingerprint": fingerprint, "qty": qty,
-                  "lot": (str(lot).strip() or None) if lot is not None else None,
+                  "lot": check_free_text(lot, "--lot", MAX_NOTE_CHARS, required=False),   # --lot itself: at most 40
                   "due": model.parse_date(due, "due date"), "draft": 1 if draft else 0,
                   "quote": str(quote).strip() if quote else None}
         return self._allocate(ORDERS, values, issued_by, fmt, number, now)
@@ -186,7 +187,7 @@ class Register:
         for name, value in (("part", part), ("revision", revision), ("fingerprint", fingerprint)):
             model.check_text(f"quote: {name}", value)
         values = {"part": part, "revision": revision, "fingerprint": fingerprint,
-                  "customer": (str(customer).strip() or None) if customer else None,
+                  "customer": check_free_text(customer, "customer", MAX_NAME_CHARS, required=False),
                   "valid_until": model.parse_date(valid_until, "valid until")}
         return self._allocate(QUOTES, values, issued_by, fmt, None, now)
 
@@ -198,7 +199,7 @@ class Register:
                 raise SpecError(f"{kind.name}: --number is empty")
         else:
             model.check_format(fmt)
-        by = issued_by or model.login_name()
+        by = check_name(issued_by) or model.login_name()
         moment = now or now_utc()
         issued_at = iso(moment)
         year = moment.astimezone(_dt.timezone.utc).year
@@ -334,18 +335,22 @@ class Register:
         mistake) is refused unless ``correction`` is set, and a correction needs ``why``: it is
         recorded as a new event of kind ``correction``, never by editing the old ones.
         """
-        self._set_state(ORDERS, number, state, why, by=by, correction=correction)
+        self._set_state(ORDERS, number, state, check_free_text(why, "--why", required=False), by=check_name(by),
+                        correction=correction)
         return self.get(number)
 
     def set_quote_state(self, number: str, state: str, why: str | None = None, *, by: str | None = None,
                         correction: bool = False) -> QuoteEntry:
-        self._set_state(QUOTES, number, state, why, by=by, correction=correction)
+        self._set_state(QUOTES, number, state, check_free_text(why, "--why", required=False), by=check_name(by),
+                        correction=correction)
         return self.get_quote(number)
 
     def _set_state(self, kind: _Kind, number: str, state: str, why: str | None, *, by: str | None,
                    correction: bool, unfinished_only: bool = False) -> None:
         state = model.check_state(state, kind.states)
-        why = one_line(why) if why and str(why).strip() else None
+        # reasons the program composes (a render error) are made one safe line; what a person typed was
+        # checked by set_state (specgen.freetext)
+        why = escape_controls(one_line(why)) if why and str(why).strip() else None
         if state == "void" and not why:
             raise SpecError(f"voiding {number} needs a reason (--why)")
         if correction and not why:
