@@ -24,6 +24,7 @@ from specgen.catalog.loader import load_catalog
 from specgen.cli import app
 from specgen.design.spec import load_spec
 from specgen.diff import compare_refs, summary_text
+from specgen.documents.settings import DocumentSettings
 from specgen.documents.workorder import render_work_order_html
 from specgen.lifecycle import release_gate, warning_notes
 from specgen.register import Register
@@ -57,7 +58,8 @@ def inductor(tmp_path):
 
 def _html(path: Path) -> str:
     cat = load_catalog(None)
-    return render_work_order_html(api.run_design(load_spec(path), cat), cat, number="WO-T-1", qty=5)
+    return render_work_order_html(api.run_design(load_spec(path), cat), DocumentSettings.from_shop(cat.shop),
+                                  number="WO-T-1", qty=5)
 
 
 # ----------------------------------------------------------------------------------------------

@@ -10,6 +10,7 @@ from __future__ import annotations
 from collections.abc import Iterable, Mapping
 
 from ..catalog.models import Catalog
+from .acceptance import AcceptedWarning
 from .build import tape_factor
 from .result import CoreOutline, FloorData, HistoryEntry, PinLayout, SectionTapes, TapeWrap, VarnishCure, WindingResult
 from .state import BuiltWindow, Parts
@@ -85,4 +86,11 @@ def history_entries(history: Iterable[Mapping[str, object]]) -> tuple[HistoryEnt
     """The spec's history lines as typed entries (missing keys read as '')."""
     return tuple(HistoryEntry(revision=str(e.get("revision", "") or ""), date=str(e.get("date", "") or ""),
                               by=str(e.get("by", "") or ""), note=str(e.get("note", "") or ""),
-                              fingerprint=str(e.get("fingerprint", "") or "")) for e in history)
+                              fingerprint=str(e.get("fingerprint", "") or ""),
+                              accepted=tuple(a for a in _items(e.get("accepted")) if isinstance(a, AcceptedWarning)),
+                              supersedes=str(e.get("supersedes", "") or ""),
+                              effective=str(e.get("effective", "") or "")) for e in history)
+
+
+def _items(value: object) -> tuple[object, ...]:
+    return tuple(value) if isinstance(value, (tuple, list)) else ()

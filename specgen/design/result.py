@@ -9,6 +9,7 @@ from dataclasses import asdict
 from typing import Any
 
 from ..records import record
+from .acceptance import AcceptedWarning
 from .vocab import CheckLevel
 
 
@@ -326,6 +327,9 @@ class HistoryEntry:
     by: str
     note: str
     fingerprint: str                 # '' when the entry records none
+    accepted: tuple[AcceptedWarning, ...] = ()   # design warnings accepted by name at this release
+    supersedes: str = ""             # the revision this release superseded ('' for a first release)
+    effective: str = ""              # when it took over: next-order | now | lot <reference> ('' if not recorded)
 
 
 @record(slots=True)
