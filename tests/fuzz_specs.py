@@ -30,6 +30,7 @@ if str(ROOT) not in sys.path:
 
 from specgen import units  # noqa: E402
 from specgen.api import demo_specs, design_text  # noqa: E402
+from specgen.design import bounds  # noqa: E402
 from specgen.errors import DesignFailed, SpecError  # noqa: E402
 
 DEMO_DATA = {p.name: yaml.safe_load(p.read_text()) for p in demo_specs()}
@@ -42,12 +43,9 @@ ODD_TEXT = ["", " ", "\x1b]0;title\x07", "a\x00b", "\u202eevil", "∞", "€", "
 EXPONENTS = [-300, -200, -30, -12, -9, -6, -3, -1, 1, 3, 6, 9, 12, 30, 200, 300]
 QUANTITY = re.compile(r"^\s*([-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?)\s*(\S.*)?$")
 
-# unit suffix of a Design field -> units dimension
-SUFFIX = {"_v": "voltage", "_a": "current", "_hz": "frequency", "_s": "time", "_m": "length", "_m2": "area",
-          "_m3": "volume", "_kg": "mass", "_t": "flux_density", "_a_m": "field", "_a_m2": "current_density",
-          "_w": "power", "_h": "inductance", "_ohm": "resistance", "_w_m3": "power_density", "_c": "temperature",
-          "_k": "temperature_difference", "_va": "apparent_power", "_kw_m3": "power_density", "_mm": "length"}
-SCALE = {"_kw_m3": 1e3, "_mm": 1e-3}
+# unit suffix of a Design field -> units dimension, and the results' envelope: the library's own rule
+# (specgen.design.bounds refuses a design beyond it), so the property checks what the program promises
+SUFFIX, SCALE = bounds.SUFFIX, bounds.SCALE
 NAN_WORD = re.compile(r"\b(nan|inf|infinity)\b", re.IGNORECASE)
 
 
@@ -153,9 +151,7 @@ def _numbers(obj, key=""):
         yield key, obj
 
 
-# The Design reports more than a spec gives (metres of wire, a tiny DC flux from a tiny current), so its
-# envelope is the physical range of the dimension widened where a result legitimately goes further.
-OUTPUT_LARGEST = {"length": 1e5, "mass": 1e4, "time": 1e9}
+OUTPUT_LARGEST = bounds.OUTPUT_LARGEST
 TINY = 1e-200      # a magnitude below this is an underflow on its way, not a physical value
 
 

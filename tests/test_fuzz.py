@@ -20,8 +20,9 @@ import yaml
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
-from specgen.api import demo_specs
+from specgen.api import demo_specs, design_text
 from specgen.catalog.loader import load_catalog
+from specgen.errors import SpecError
 
 CAT = load_catalog(None)
 SPECS = {p.name: p.read_text() for p in demo_specs()}
@@ -128,10 +129,26 @@ def _report(cases: list) -> str:
 @pytest.mark.slow
 def test_structure_aware_mutants_fixed_seed():
     """2,500 mutants of the demo specs (seed 20261202): no traceback, no non-finite number, every refusal
-    one located line. Finite numbers outside a dimension's physical range in a failed design are the
-    engine's to bound; they are counted by the long run, not failed here."""
-    hard, _soft = fuzz_specs.run(2500, 20261202, CAT)
+    one located line, and every result of a design inside its dimension's physical range (a design beyond
+    it is refused by specgen.design.bounds)."""
+    hard, soft = fuzz_specs.run(2500, 20261202, CAT)
     assert not hard, _report(hard)
+    assert not soft, _report(soft)
+
+
+@pytest.mark.parametrize("edit, field", [
+    (("  diode_drop: 0.5 V", "  diode_drop: 500 V"), "clamp_power_w"),             # long run seed 4, case 7083
+    (("current: 0.05 A", "current: 50000 A"), "peak_current_a"),                   # long run seed 4, case 5465
+])
+def test_results_beyond_the_physical_range_are_refused_in_one_line(edit, field):
+    """Mutants the long run found: each designed (refused by failing checks) with a result beyond any part
+    (a 1.4 GW clamp loss, a 234 kA peak), printed as such. Now one line at the file, naming the result."""
+    text = SPECS["BH-7065.yaml"]
+    assert edit[0] in text
+    with pytest.raises(SpecError) as info:
+        design_text(text.replace(edit[0], edit[1], 1), "BH-7065.yaml", CAT)
+    message = str(info.value)
+    assert message.startswith(f"BH-7065.yaml: the design leads to {field} = ") and "\n" not in message
 
 
 @pytest.mark.slow
@@ -144,3 +161,4 @@ def test_structure_aware_mutants_long_run(seed):
     for _i, _text, problems in soft[:20]:
         print("  soft:", problems[:2])
     assert not hard, _report(hard)
+    assert not soft, _report(soft)
