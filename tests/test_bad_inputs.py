@@ -196,7 +196,8 @@ def test_verify_keeps_its_failing_exit_code_when_its_reader_goes_away(tmp_path):
     spec = tmp_path / "BH-3305.yaml"
     spec.write_text(blank_recorded_fingerprint((DEMO / "BH-3305.yaml").read_text()))
     released = subprocess.run([sys.executable, "-m", "specgen.cli", "release", str(spec), "--by", "x",
-                               "--note", "y"], capture_output=True, text=True)
+                               "--note", "y", "--accept-all", "--reason", "accepted for the test"],
+                              capture_output=True, text=True)
     assert released.returncode == 0, released.stderr
     spec.write_text(spec.read_text().replace("current: 4 A", "current: 5 A").replace(
         "title: ", "title: tampered ", 1))
@@ -267,7 +268,9 @@ def test_design_keeps_its_failing_exit_code_when_its_reader_goes_away(tmp_path):
     import sys
 
     spec = tmp_path / "runaway.yaml"
-    spec.write_text((DEMO / "BH-3305.yaml").read_text().replace("ripple: 2.4 A", "ripple: 100 A"))
+    # a ripple far above the rating: the design fails its checks (a 100 A ripple would now be refused as input
+    # leading to results beyond any part, exit 2)
+    spec.write_text((DEMO / "BH-3305.yaml").read_text().replace("ripple: 2.4 A", "ripple: 20 A"))
     for extra in ([], ["--json"]):
         p = subprocess.Popen([sys.executable, "-m", "specgen.cli", "design", str(spec), *extra],
                              stdout=subprocess.PIPE, stderr=subprocess.PIPE)
