@@ -136,6 +136,15 @@ def test_structure_aware_mutants_fixed_seed():
     assert not soft, _report(soft)
 
 
+@pytest.mark.parametrize("name", ["nan", "NaN", "inf", "Infinity"])
+def test_a_winding_named_like_a_non_finite_number_is_refused(name):
+    """Long run seed 2, case 9920: a winding named 'nan' printed 'winding nan: ...' in its check messages."""
+    text = SPECS["BH-3305.yaml"]
+    assert "  - name: L\n" in text
+    with pytest.raises(SpecError, match="reads as a number"):
+        design_text(text.replace("  - name: L\n", f"  - name: {name!r}\n", 1), "BH-3305.yaml", CAT)
+
+
 @pytest.mark.parametrize("edit, field", [
     (("  diode_drop: 0.5 V", "  diode_drop: 500 V"), "clamp_power_w"),             # long run seed 4, case 7083
     (("current: 0.05 A", "current: 50000 A"), "peak_current_a"),                   # long run seed 4, case 5465

@@ -389,6 +389,8 @@ def winding_name_problem(name: str) -> str | None:
             return f"winding name '{name}' carries '{c}', which the spec uses between names (P.1, S1+S2)"
     if name.lower() in RESERVED_NAMES:
         return f"'{name}' is reserved ('all' windings, the 'core') and cannot name a winding"
+    if name.lower() in ("nan", "inf", "infinity"):     # 'winding nan' on a work order reads as a failed number
+        return f"winding name '{name}' reads as a number that is not one; use letters like P, S1 or AUX"
     return None
 
 
