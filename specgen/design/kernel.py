@@ -220,11 +220,12 @@ def _gap_bisect(target_h: npt.NDArray[np.float64], n: npt.NDArray[np.float64], a
     out[closed] = (k / target_h - le / mu)[closed]
     b = np.flatnonzero(reach & ~closed)
     if b.size:
+        nb, aeb, leb, mub, wb, tb = n[b], ae[b], le[b], mu[b], window[b], target_h[b]
         lo = np.log(1e-12 * upper[b])
         hi = np.log(upper[b])
         for _ in range(64):
             mid = 0.5 * (lo + hi)
-            above = _f(gapmod.inductance_gapped_h(n[b], ae[b], le[b], mu[b], np.exp(mid), window[b])) >= target_h[b]
+            above = _f(gapmod.inductance_gapped_h(nb, aeb, leb, mub, np.exp(mid), wb)) >= tb
             lo = np.where(above, mid, lo)
             hi = np.where(above, hi, mid)
         out[b] = np.exp(0.5 * (lo + hi))

@@ -23,6 +23,7 @@ if TYPE_CHECKING:
 FORMER_CODE = {"rect": 0, "round": 1, "toroid": 2}
 WIRE_CODE = {"round": 0, "litz": 1, "tiw": 2, "foil": 3, "strip": 4}
 _TOROID = FORMER_CODE["toroid"]
+_FORMER_NAME = {code: name for name, code in FORMER_CODE.items()}
 
 
 @dataclass(frozen=True, slots=True)
@@ -86,11 +87,30 @@ def mean_turn_length_m(former_kind: Any, centre_m: ArrayLike, *, tube_width_m: A
             return _out(geometry.mlt_round_m(tube_width_m, centre_m))
         return _out(geometry.toroid_turn_length_m(od_m, id_m, core_height_m, centre_m))
     code = np.asarray(former_kind)
-    rect = geometry.mlt_rect_m(tube_width_m, tube_depth_m, centre_m)
-    rnd = geometry.mlt_round_m(tube_width_m, centre_m)
-    with np.errstate(invalid="ignore", divide="ignore"):
-        tor = geometry.toroid_turn_length_m(od_m, id_m, core_height_m, centre_m)
-    return _out(np.where(code == 0, rect, np.where(code == 1, rnd, tor)))
+    if code.size and code.min() == code.max():       # one shape for every row: its formula alone
+        one = mean_turn_length_m(_FORMER_NAME[int(code.flat[0])], centre_m, tube_width_m=tube_width_m,
+                                 tube_depth_m=tube_depth_m, od_m=od_m, id_m=id_m, core_height_m=core_height_m)
+        if np.shape(one) == code.shape:      # (np.broadcast_shapes costs more than the formula)
+            return one
+        return _full(one, np.broadcast_shapes(code.shape, np.shape(centre_m), np.shape(tube_width_m),
+                                              np.shape(tube_depth_m), np.shape(od_m), np.shape(id_m),
+                                              np.shape(core_height_m)))
+    is_rect, is_round = code == 0, code == 1     # only the formulas of the shapes present; np.where picks per row
+    rect: Any = geometry.mlt_rect_m(tube_width_m, tube_depth_m, centre_m) if is_rect.any() else 0.0
+    rnd: Any = geometry.mlt_round_m(tube_width_m, centre_m) if is_round.any() else 0.0
+    tor: Any = 0.0
+    if not (is_rect | is_round).all():
+        with np.errstate(invalid="ignore", divide="ignore"):
+            tor = geometry.toroid_turn_length_m(od_m, id_m, core_height_m, centre_m)
+    return _out(np.where(is_rect, rect, np.where(is_round, rnd, tor)))
+
+
+def _full(x: Any, shape: tuple[int, ...]) -> Arr:
+    """``x`` as the broadcast result would be: a float for 0-d, else an array of ``shape``."""
+    a = _f(x)
+    if a.shape != shape:
+        a = np.array(np.broadcast_to(a, shape))
+    return _out(a)
 
 
 def layer_centre_m(start_m: Arr, index: Arr, layer_height_m: Arr, layer_tape_m: Arr) -> Arr:
@@ -118,12 +138,21 @@ def layer_capacity(former_kind: Any, pitch_m: ArrayLike, usable_m: ArrayLike, id
         return (float(math.floor(u1 / p1 + 1e-9)) if u1 > 0 else 0.0), u1
     pitch, usable = _f(pitch_m), _f(usable_m)
     code = FORMER_CODE[former_kind] if isinstance(former_kind, str) else np.asarray(former_kind)
+    tor = np.asarray(code) == _TOROID
+    any_tor = bool(tor.any())
     with np.errstate(divide="ignore", invalid="ignore"):
-        flat = np.where(usable > 0, np.floor(usable / pitch + 1e-9), 0.0)
-        flat = np.where(one_turn_per_layer, np.where(pitch <= usable + 1e-12, 1.0, 0.0), flat)
+        if not tor.all():               # the bobbin rule, where a row is on a bobbin
+            flat = np.where(usable > 0, np.floor(usable / pitch + 1e-9), 0.0)
+            flat = np.where(one_turn_per_layer, np.where(pitch <= usable + 1e-12, 1.0, 0.0), flat)
+            if not any_tor:
+                return _out(flat), _out(usable)
         circ = _f(geometry.toroid_inner_circumference_m(id_m, centre_m))
         ring = np.maximum(np.floor(circ / pitch + 1e-9), 0.0)
-    tor = np.asarray(code) == _TOROID
+        if tor.all():
+            if tor.ndim == usable.ndim == np.ndim(one_turn_per_layer) == 0:     # the toroid's figures as they are
+                return _out(ring), _out(circ)
+            shape = np.broadcast_shapes(ring.shape, tor.shape, usable.shape, np.shape(one_turn_per_layer))
+            return _full(ring, shape), _full(circ, shape)
     return _out(np.where(tor, ring, flat)), _out(np.where(tor, circ, usable))
 
 
@@ -157,6 +186,7 @@ class SectionWinding:
 
 
 _TOROID_BINS = (4, 16, 64, 256, 1024)
+_TOROID_BLOCKS = (1,) + _TOROID_BINS        # toroid layers are laid in blocks of columns ending here
 
 
 def wind_section(former: FormerArrays, turns: ArrayLike, pitch_m: ArrayLike, layer_height_m: ArrayLike,
@@ -215,6 +245,9 @@ def _wind_toroid(fm: FormerArrays, tor: npt.NDArray[np.intp], turns: npt.NDArray
                  layer_tape: npt.NDArray[np.float64], foil: npt.NDArray[np.bool_],
                  limit: npt.NDArray[np.float64] | None, out: dict[str, npt.NDArray[np.float64]],
                  ok_out: npt.NDArray[np.bool_]) -> None:
+    """Toroid rows layer by layer: layers are laid in blocks of columns (``_TOROID_BLOCKS``), each block only for
+    the rows that have not yet held all their turns, so a row costs about the layers it needs. The copper
+    length is summed layer after layer (as the engine's build does)."""
     step = lh[tor] + layer_tape[tor]
     if limit is None:
         lmax = np.full(tor.size, float(_TOROID_BINS[-1]))
@@ -225,37 +258,73 @@ def _wind_toroid(fm: FormerArrays, tor: npt.NDArray[np.intp], turns: npt.NDArray
         cap_min = np.floor(_f(geometry.toroid_inner_circumference_m(fm.id_m[tor], top)) / pitch[tor] + 1e-9)
         need = np.where(cap_min >= 1, np.ceil(turns[tor] / np.maximum(cap_min, 1.0)), lmax)
         lmax = np.clip(np.minimum(lmax, need), 1.0, _TOROID_BINS[-1])
+    t = turns[tor]
+    n = tor.size
+    length = np.zeros(n)
+    layers = np.ones(n)
+    last = t.copy()                          # turns in the last layer (all of them where none holds them)
+    ok = np.zeros(n, dtype=bool)
+    cap0 = np.zeros(n)
+    circ0 = np.zeros(n)
+    tl0 = np.zeros(n)
+    pos = np.flatnonzero((t > 0) & ~foil[tor])       # rows still laying layers (positions in tor)
+    # the rows' figures, kept compact: rows that stop are dropped after each block
+    r = tor[pos]
+    tg, lm, held, acc = t[pos], lmax[pos], np.zeros(pos.size), np.zeros(pos.size)
+    s0, h, tape, pg = start[r][:, None], lh[r][:, None], layer_tape[r][:, None], pitch[r][:, None]
+    idm, odm, hm = fm.id_m[r][:, None], fm.od_m[r][:, None], fm.core_height_m[r][:, None]
     lo = 0
-    for hi in _TOROID_BINS:
-        sel = tor[(lmax > lo) & (lmax <= hi)]
-        lo = hi
-        if not sel.size:
-            continue
-        lm = lmax[np.searchsorted(tor, sel)]
-        m = int(lm.max())
-        j = np.arange(m, dtype=float)[None, :]
-        allowed = j < lm[:, None]
-        centre = _f(layer_centre_m(start[sel][:, None], j, lh[sel][:, None], layer_tape[sel][:, None]))
-        idm = fm.id_m[sel][:, None]
-        cap, circ = layer_capacity("toroid", pitch[sel][:, None], 0.0, idm, centre)
-        cap = np.where(allowed, _f(cap), 0.0)
-        circ = _f(circ)
+    for hi in _TOROID_BLOCKS:
+        if not pos.size:
+            break
+        width = int(min(hi, lm.max())) - lo
+        if width <= 0:
+            break
+        j = np.arange(lo, lo + width, dtype=float)[None, :]
+        centre = _f(layer_centre_m(s0, j, h, tape))
+        cap, circ = layer_capacity("toroid", pg, 0.0, idm, centre)
+        cap = np.where(j < lm[:, None], _f(cap), 0.0)
         dead = np.cumsum(cap < 1, axis=1) > 0     # a layer holding no turn ends the section
         cap = np.where(dead, 0.0, cap)
-        cum = np.cumsum(cap, axis=1)
-        t = turns[sel]
-        reach = cum >= t[:, None]
-        ok = reach[:, -1] & (t > 0) & ~foil[sel]
-        layers = np.where(ok, np.argmax(reach, axis=1) + 1.0, 1.0)
-        li = (layers - 1).astype(np.int64)
-        rows = np.arange(sel.size)
-        before = np.where(li > 0, cum[rows, np.maximum(li - 1, 0)], 0.0)
-        last = t - before
-        nturn = np.where(j < (layers - 1.0)[:, None], cap, 0.0)
-        nturn[rows, li] = last
-        tl = _f(mean_turn_length_m("toroid", centre, od_m=fm.od_m[sel][:, None], id_m=idm,
-                                   core_height_m=fm.core_height_m[sel][:, None]))
-        out["length"][sel] = np.sum(nturn * tl, axis=1)
-        out["end"][sel] = start[sel] + layers * lh[sel] + (layers - 1.0) * layer_tape[sel]
-        out["layers"][sel], out["last"][sel] = layers, last
-        out["cap"][sel], out["usable"][sel], ok_out[sel] = cap[:, 0], circ[:, 0], ok
+        tl = _f(mean_turn_length_m("toroid", centre, od_m=odm, id_m=idm, core_height_m=hm))
+        if lo == 0:
+            cap0[pos], circ0[pos], tl0[pos] = cap[:, 0], _f(circ)[:, 0], tl[:, 0]
+        cum = held[:, None] + np.cumsum(cap, axis=1)
+        reach = cum >= tg[:, None]
+        done = reach[:, -1]
+        first = np.argmax(reach, axis=1)
+        rows = np.arange(pos.size)
+        before = np.where(first > 0, cum[rows, np.maximum(first - 1, 0)], held)
+        # turns in each layer of the block: full layers before the one that holds the last turn, that one
+        # its remainder; rows not done yet lay every layer of the block full
+        nturn = np.where(j - lo < np.where(done, first, width)[:, None], cap, 0.0)
+        nturn[rows[done], first[done]] = (tg - before)[done]
+        for col in range(width):
+            acc = acc + nturn[:, col] * tl[:, col]
+        held = cum[:, -1]
+        # capacities only shrink towards the hole: a row the allowed layers left cannot complete at the last
+        # layer's capacity never holds its turns (reported like any such row, from its first layer)
+        short = held + cap[:, -1] * (lm - lo - width) < tg
+        stop = done | dead[:, -1] | (lo + width >= lm) | short
+        fin = pos[done]
+        length[fin], layers[fin], last[fin], ok[fin] = acc[done], lo + first[done] + 1.0, (tg - before)[done], True
+        keep = ~stop
+        pos, tg, lm, held, acc = pos[keep], tg[keep], lm[keep], held[keep], acc[keep]
+        s0, h, tape, pg, idm, odm, hm = (x[keep] for x in (s0, h, tape, pg, idm, odm, hm))
+        lo += width
+    # rows that never held their turns: reported as one layer of all the turns (not ok)
+    bad = ~ok
+    layers[bad] = 1.0
+    length[bad] = t[bad] * tl0[bad]
+    first_layer = np.flatnonzero(bad & ((t <= 0) | foil[tor]))
+    if first_layer.size:       # never laid above: the first layer's figures for the report
+        r = tor[first_layer]
+        c0 = _f(layer_centre_m(start[r], 0.0, lh[r], layer_tape[r]))
+        cp, cc = layer_capacity("toroid", pitch[r], 0.0, fm.id_m[r], c0)
+        cap0[first_layer], circ0[first_layer] = _f(cp), _f(cc)
+        length[first_layer] = t[first_layer] * _f(mean_turn_length_m(
+            "toroid", c0, od_m=fm.od_m[r], id_m=fm.id_m[r], core_height_m=fm.core_height_m[r]))
+    out["length"][tor] = length
+    out["end"][tor] = start[tor] + layers * lh[tor] + (layers - 1.0) * layer_tape[tor]
+    out["layers"][tor], out["last"][tor] = layers, last
+    out["cap"][tor], out["usable"][tor], ok_out[tor] = cap0, circ0, ok

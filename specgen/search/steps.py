@@ -147,7 +147,16 @@ def _toroid_fr(g: K.WireGeometry, fm: FormerRows, sec: SectionRows, turns: Float
     layers matrix from the kernel's layer centre, capacity and turn length, then the kernel's layer factor
     on every layer, weighted by its copper length. Rows are binned by layer count to bound the matrix."""
     out = np.ones(turns.shape)
-    lo = 0
+    lone = np.flatnonzero(sec.layers == 1.0)
+    if lone.size:       # one layer: its own factor (weighted by its own length, as below), no layer matrix
+        c0 = _f(K.layer_centre_m(sec.start_m[lone], 0.0, lh[lone], lt[lone]))
+        length = turns[lone] * _f(K.mean_turn_length_m("toroid", c0, od_m=fm.od_m[lone], id_m=fm.id_m[lone],
+                                                       core_height_m=fm.core_height_m[lone]))
+        f1 = f_start[lone] + 0.0 * current[lone]
+        fr = layer_ac_factor_rows(_wire_rows(g, lone), turns[lone], sec.usable_m[lone], delta[lone], f1,
+                                  f1 + turns[lone] * current[lone], harm)
+        out[lone] = fr * length / length
+    lo = 1
     for hi in _TOROID_BINS:
         sel = np.flatnonzero((sec.layers > lo) & (sec.layers <= hi))
         lo = hi
