@@ -23,6 +23,12 @@ Flux and turns
   magnetizing_current_a(v, freq_hz, inductance_h, waveform, duty)    (rms, peak)
   output_voltage_ok(asked_v, delivered_v, minus, plus)              delivered within asked -minus/+plus
   secondary_turns_within(np_turns, v_primary, asked_v, drop_fraction, minus, plus)  Ns meeting it, 0: none
+  primary_current_a(p_out_w, efficiency, v_primary, i_magnetizing_a)  load referred in quadrature with I_mag
+  secondary_turns_for_voltage(np_turns, v_primary, want_v)           open-circuit whole turns
+  loaded_output_v(ratio, v_primary_after_drop, load_a, r_secondary_ohm, x_drop_v)  full-load voltage
+  secondary_turns_to_add(want_v, loaded_v, volts_per_turn)           the drop made up, whole turns
+  ripple_flux_t(inductance_h, ripple_a, turns, ae_m2)               peak-to-peak flux of a ripple
+  least_loss_turns(n0, beta, core_w, copper_w, max_ratio)            core loss ~ N^-beta against copper ~ N^2
 Winding
   pitch_and_height(wire, strands) / wire_geometry(wire, strands) / stack_wires(geometries)   (scalar wire)
   mean_turn_length_m(former_kind, centre_m, ...)                     MLT at a layer's centre line
@@ -118,6 +124,8 @@ __all__ = [
     "current_harmonics", "dc_resistance_ohm", "first_guess_thermal", "flux_limit_source", "flux_limit_t", "gap_for_inductance_m",
     "gapped_turns_and_gap", "hot_spot_c", "layer_ac_factor", "layer_capacity", "layer_centre_m", "layer_delta",
     "layer_porosity", "magnetizing_current_a", "mean_turn_length_m", "output_voltage_ok", "secondary_turns_within",
+    "least_loss_turns", "loaded_output_v", "primary_current_a", "ripple_flux_t", "secondary_turns_for_voltage",
+    "secondary_turns_to_add",
     "pitch_and_height", "powder_flux_t", "round_gap_down_m",
     "section_ac_factor", "skin_depth_m", "stack_wires", "temperature_rise_k", "thermal_state",
     "turns_for_inductance", "turns_for_peak_flux", "turns_for_voltage", "unipolar_swing_t", "whole_turns",
@@ -125,6 +133,11 @@ __all__ = [
 ]
 
 MU0_H_M = wiremod.MU0_H_M
+
+
+def _float(x: Any) -> float:
+    """One value (a Python or numpy scalar) as a float, for the scalar paths."""
+    return float(x)
 
 
 # ================================================================================================ flux and turns
@@ -347,6 +360,66 @@ def secondary_turns_within(np_turns: ArrayLike, v_primary: ArrayLike, asked_v: A
         lo = np.maximum(1.0, np.ceil(v * (1.0 - _f(minus)) / e - 1e-9))
         hi = np.floor(v * (1.0 + _f(plus)) / e + 1e-9)
     return _out(np.where((lo <= hi) & np.isfinite(lo) & (e > 0), lo, 0.0))
+
+
+def primary_current_a(p_out_w: ArrayLike, efficiency: ArrayLike, v_primary: ArrayLike,
+                      i_magnetizing_a: ArrayLike) -> Arr:
+    """The primary's rms current: the load referred to the primary, P_out / (eta V_p), in quadrature with the
+    magnetizing current (a resistive load's current is in phase with the voltage, the magnetizing current
+    lags it by 90 degrees; McLyman, transformer design, primary current)."""
+    if _scalar(p_out_w, efficiency, v_primary, i_magnetizing_a):
+        return math.hypot(_float(p_out_w) / _float(efficiency) / _float(v_primary), _float(i_magnetizing_a))
+    return _out(np.hypot(_f(p_out_w) / _f(efficiency) / _f(v_primary), _f(i_magnetizing_a)))
+
+
+def secondary_turns_for_voltage(np_turns: ArrayLike, v_primary: ArrayLike, want_v: ArrayLike) -> Arr:
+    """A secondary's whole turns for ``want_v`` at open circuit from ``np_turns`` on ``v_primary`` (the turns
+    ratio, rounded up; at least one). The full-load drop is then made up by ``secondary_turns_to_add``."""
+    if _scalar(np_turns, v_primary, want_v):
+        return float(max(1, math.ceil(_float(np_turns) * _float(want_v) / _float(v_primary) - 1e-9)))
+    return whole_turns(_f(np_turns) * _f(want_v) / _f(v_primary))
+
+
+def loaded_output_v(ratio: ArrayLike, v_primary_after_drop: ArrayLike, load_a: ArrayLike,
+                    r_secondary_ohm: ArrayLike, x_drop_v: ArrayLike = 0.0) -> Arr:
+    """A secondary's full-load voltage: the turns ratio x the primary voltage left after the primary's own
+    drop, less the secondary's resistive drop in phase with a resistive load; a leakage drop ``x_drop_v``
+    (referred to this winding) is in quadrature: sqrt(e^2 - x^2) - I R (McLyman, regulation)."""
+    if _scalar(ratio, v_primary_after_drop, load_a, r_secondary_ohm, x_drop_v):
+        e, x = _float(ratio) * _float(v_primary_after_drop), _float(x_drop_v)
+        v = e if x == 0.0 else math.sqrt(max(e * e - x * x, 0.0))
+        return v - _float(load_a) * _float(r_secondary_ohm)
+    ea, xa = _f(ratio) * _f(v_primary_after_drop), _f(x_drop_v)
+    va = ea if not xa.any() else np.sqrt(np.maximum(ea * ea - xa * xa, 0.0))
+    return _out(va - _f(load_a) * _f(r_secondary_ohm))
+
+
+def secondary_turns_to_add(want_v: ArrayLike, loaded_v: ArrayLike, volts_per_turn: ArrayLike) -> Arr:
+    """Turns to add to a secondary that delivers ``loaded_v`` at full load, below ``want_v``: the shortfall
+    over the volts per turn, rounded up, at least one (each added turn adds its volts less a little more drop,
+    so the caller lays the build again and repeats)."""
+    if _scalar(want_v, loaded_v, volts_per_turn):
+        return float(max(1, math.ceil((_float(want_v) - _float(loaded_v)) / _float(volts_per_turn) - 1e-9)))
+    return _out(np.maximum(1.0, np.ceil((_f(want_v) - _f(loaded_v)) / _f(volts_per_turn) - 1e-9)))
+
+
+def ripple_flux_t(inductance_h: ArrayLike, ripple_a: ArrayLike, turns: ArrayLike, ae_m2: ArrayLike) -> Arr:
+    """Peak-to-peak flux density of a current ripple, dB = L dI / (N Ae) (Faraday's law over the ripple)."""
+    if _scalar(inductance_h, ripple_a, turns, ae_m2):
+        return _float(inductance_h) * _float(ripple_a) / (_float(turns) * _float(ae_m2))
+    return _out(_f(inductance_h) * _f(ripple_a) / (_f(turns) * _f(ae_m2)))
+
+
+def least_loss_turns(n0: ArrayLike, beta: ArrayLike, core_w: ArrayLike, copper_w: ArrayLike,
+                     max_ratio: float) -> Arr:
+    """Whole primary turns of least total loss near n0: core loss falls as N^-beta and copper loss rises as
+    N^2, so the sum is least at N = n0 (beta P_core / (2 P_cu))^(1/(beta + 2)) (McLyman, the optimum of core
+    and copper loss), held between n0 and ``max_ratio`` x n0."""
+    b, pc, pcu = _f(beta), _f(core_w), _f(copper_w)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        ratio = (b * pc / (2.0 * pcu)) ** (1.0 / (b + 2.0))
+    ratio = np.clip(np.nan_to_num(ratio, nan=1.0, posinf=max_ratio), 1.0, max_ratio)
+    return _out(np.asarray(np.ceil(_f(n0) * ratio - 1e-9), dtype=float))
 
 
 # ================================================================================================ loss and temperature

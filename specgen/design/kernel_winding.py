@@ -240,6 +240,22 @@ def wind_section(former: FormerArrays, turns: ArrayLike, pitch_m: ArrayLike, lay
                           end_build_m=out["end"], copper_length_m=out["length"], usable_breadth_m=out["usable"])
 
 
+def _toroid_layer_bound(fm: FormerArrays, tor: npt.NDArray[np.intp], turns: npt.NDArray[np.float64],
+                        pitch: npt.NDArray[np.float64], lh: npt.NDArray[np.float64],
+                        start: npt.NDArray[np.float64], layer_tape: npt.NDArray[np.float64],
+                        limit: npt.NDArray[np.float64] | None) -> npt.NDArray[np.float64]:
+    """The most layers a toroid row may lay: as many as fit below ``limit``, and no more than its turns over
+    the smallest capacity an allowed layer has."""
+    if limit is None:
+        return np.full(tor.size, float(_TOROID_BINS[-1]))
+    step = lh[tor] + layer_tape[tor]
+    lmax = np.floor((limit[tor] - start[tor] + layer_tape[tor]) / step + 1e-9)
+    top = _f(layer_centre_m(start[tor], np.maximum(lmax, 1.0) - 1.0, lh[tor], layer_tape[tor]))
+    cap_min = np.floor(_f(geometry.toroid_inner_circumference_m(fm.id_m[tor], top)) / pitch[tor] + 1e-9)
+    need = np.where(cap_min >= 1, np.ceil(turns[tor] / np.maximum(cap_min, 1.0)), lmax)
+    return np.clip(np.minimum(lmax, need), 1.0, _TOROID_BINS[-1])
+
+
 def _wind_toroid(fm: FormerArrays, tor: npt.NDArray[np.intp], turns: npt.NDArray[np.float64],
                  pitch: npt.NDArray[np.float64], lh: npt.NDArray[np.float64], start: npt.NDArray[np.float64],
                  layer_tape: npt.NDArray[np.float64], foil: npt.NDArray[np.bool_],
@@ -248,16 +264,7 @@ def _wind_toroid(fm: FormerArrays, tor: npt.NDArray[np.intp], turns: npt.NDArray
     """Toroid rows layer by layer: layers are laid in blocks of columns (``_TOROID_BLOCKS``), each block only for
     the rows that have not yet held all their turns, so a row costs about the layers it needs. The copper
     length is summed layer after layer (as the engine's build does)."""
-    step = lh[tor] + layer_tape[tor]
-    if limit is None:
-        lmax = np.full(tor.size, float(_TOROID_BINS[-1]))
-    else:
-        lmax = np.floor((limit[tor] - start[tor] + layer_tape[tor]) / step + 1e-9)
-        # no more layers are needed than the turns over the smallest capacity an allowed layer has
-        top = _f(layer_centre_m(start[tor], np.maximum(lmax, 1.0) - 1.0, lh[tor], layer_tape[tor]))
-        cap_min = np.floor(_f(geometry.toroid_inner_circumference_m(fm.id_m[tor], top)) / pitch[tor] + 1e-9)
-        need = np.where(cap_min >= 1, np.ceil(turns[tor] / np.maximum(cap_min, 1.0)), lmax)
-        lmax = np.clip(np.minimum(lmax, need), 1.0, _TOROID_BINS[-1])
+    lmax = _toroid_layer_bound(fm, tor, turns, pitch, lh, start, layer_tape, limit)
     t = turns[tor]
     n = tor.size
     length = np.zeros(n)

@@ -154,7 +154,7 @@ class InductorRun:
         built = lay_out(spec, parts, states, self.cat)
         f = spec.frequency_hz
         frs = section_frs(built, states, f, temp.hot_c, "sine", {self.w.name: 1.0}) if built.ok else {}
-        delta_b = mg.inductance_full_bias_h * c.ripple / (mg.turns * parts.ae_m2)
+        delta_b = float(K.ripple_flux_t(mg.inductance_full_bias_h, c.ripple, mg.turns, parts.ae_m2))
         k, a, b = mat.steinmetz_k, mat.steinmetz_alpha, mat.steinmetz_beta
         if c.ac:
             pv = float(K.core_loss_w_m3("sine", f, mg.b_peak_t, 0.5, k, a, b))
