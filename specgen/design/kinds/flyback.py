@@ -52,6 +52,7 @@ from ..state import (
     WireChoice,
 )
 from ..wires import choose_wire
+from .base import frequency_text as _freq
 
 DCM_MARGIN = 0.8             # DCM: L_p at 80 % of the boundary at the lowest line (common practice)
 HARMONICS = 39               # harmonics of each winding's current for its AC factor (as kernel.SQUARE_HARMONICS)
@@ -337,10 +338,6 @@ def _core_loss_w_m3(delta_b_t: float, op: fb.OperatingPoint, freq_hz: float, k: 
         times = [0.0, t_on, period]
         flux = [0.0, delta_b_t, 0.0]
     return float(coreloss.igse_piecewise_linear_w_m3(np.array(times), np.array(flux), k, alpha, beta))
-
-
-def _freq(hz: float) -> str:
-    return f"{hz / 1e3:g} kHz" if hz >= 1e3 else f"{hz:g} Hz"
 
 
 class FlybackKind:

@@ -33,6 +33,8 @@ from ..state import (
     WindingState,
 )
 from ..wires import choose_wire
+from .base import flux_text as _fmt_t
+from .base import frequency_text as _freq
 
 BIAS_DROP_WARN_PCT = 50.0    # more than half the permeability gone at full current: a poor use of powder (common practice)
 
@@ -204,14 +206,6 @@ class InductorRun:
         return ElectricalSummary(b_peak_t=mg.b_peak_t, b_peak_max_t=mg.b_peak_max_t, flux_limit=mg.flux_limit,
                                  h_peak_a_m=n * c.i_pk / le, inductor=ind, ripple_rms={self.w.name: (c.i_dc, c.i_ac)},
                                  dc_current_a=ind.current_dc_a if not c.ac else 0.0, checks=tuple(extra))
-
-
-def _fmt_t(b: float) -> str:
-    return f"{b:.3f} T" if b < 1.0 else f"{b:.2f} T"
-
-
-def _freq(hz: float) -> str:
-    return f"{hz / 1e3:g} kHz" if hz >= 1e3 else f"{hz:g} Hz"
 
 
 class InductorKind:

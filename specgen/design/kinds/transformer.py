@@ -32,6 +32,8 @@ from ..state import (
     WireChoice,
 )
 from ..wires import choose_wire
+from .base import flux_text as _fmt_t
+from .base import frequency_text as _freq
 
 MAGNETIZING_WARN = 0.35      # magnetizing current above this share of the primary current (common practice)
 MAX_SCAN = 60                # loss-limited search: at most this many primary-turn candidates
@@ -370,14 +372,6 @@ class TransformerRun:
 
 def _band(asked: float, tol: tuple[float, float]) -> str:
     return f"{asked:g} V -{tol[0] * 100:g}/+{tol[1] * 100:g} % ({asked * (1 - tol[0]):.3f}-{asked * (1 + tol[1]):.3f} V)"
-
-
-def _fmt_t(b: float) -> str:
-    return f"{b:.3f} T" if b < 1.0 else f"{b:.2f} T"
-
-
-def _freq(hz: float) -> str:
-    return f"{hz / 1e3:g} kHz" if hz >= 1e3 else f"{hz:g} Hz"
 
 
 class TransformerKind:
