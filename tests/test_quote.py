@@ -36,6 +36,7 @@ from specgen.catalog.loader import load_catalog
 from specgen.design.result import Check
 from specgen.design.spec import load_spec
 from specgen.errors import DesignFailed, SpecError
+from specgen.prices import price_list
 
 DEMO = Path(__file__).resolve().parent.parent / "specgen" / "demo"
 ISSUED = dt.date(2026, 11, 2)
@@ -232,9 +233,10 @@ def test_unit_price_falls_as_quantity_rises(cat, designs, part):
 @pytest.mark.parametrize("part", ["BH-1042", "BH-2210", "BH-3305", "BH-4120", "BH-5018"])
 def test_copper_plus_and_minus_20_percent_move_only_the_copper_share(cat, designs, part):
     _path, _spec, d = designs[part]
-    base = qm.material_lines(d, cat)
+    prices = price_list(cat, d)
+    base = qm.material_lines(d, prices)
     for factor in (Decimal("0.8"), Decimal("1.2")):
-        moved = qm.material_lines(d, cat, factor)
+        moved = qm.material_lines(d, prices, factor)
         for a, b in zip(base, moved):
             if a.copper:
                 assert b.amount == a.amount * factor           # exactly, in Decimal
