@@ -93,13 +93,14 @@ class Side:
         d = loaded.design
         status = loaded.release.status
         ok = loaded.release.ok if status == "released" else None
-        entry = revision.history_entry(loaded.data) if status == "released" else None
-        entry = entry if isinstance(entry, Mapping) else {}
+        # the last history entry of this revision, as the Design carries it (typed)
+        entry = next((e for e in reversed(d.history) if e.revision == d.revision), None) \
+            if status == "released" else None
         return cls(name=loaded.name, part=d.part, title=d.title, revision=d.revision or "-", status=status,
                    fingerprint=d.fingerprint, release_ok=ok,
                    release_problems=tuple(loaded.release.problems),
-                   recorded=loaded.release.recorded, released_on=str(entry.get("date") or ""),
-                   released_by=str(entry.get("by") or ""), release_note=str(entry.get("note") or "").strip())
+                   recorded=loaded.release.recorded, released_on=entry.date if entry else "",
+                   released_by=entry.by if entry else "", release_note=entry.note.strip() if entry else "")
 
     @property
     def release_text(self) -> str:
