@@ -343,6 +343,17 @@ def test_time_model_is_the_shop_figures_typed_at_load(cat):
     assert model.bobbin_turns_per_minute == Decimal(600) and model.per_winding_s == Decimal(90)
 
 
+@pytest.mark.parametrize("table,kind", [("bobbins", "bobbin"), ("wires", "wire")])
+def test_a_stock_item_the_catalogue_does_not_price_is_refused_by_name(cat, designs, table, kind):
+    # the price list carries only what the catalogue has; the quote names the missing item and its key
+    _path, spec, d = designs["BH-1042"]
+    item = next(m.id for m in d.materials if m.kind == kind)
+    with pytest.raises(SpecError) as err:
+        qm.build_quote(spec, d, dataclasses.replace(cat, **{table: {}}), (100,), issued=ISSUED)
+    assert str(err.value).count(f"the catalogue has no {kind} '{item}' to price") == 1
+    assert err.value.path == f"{table}.{item}"
+
+
 def test_profit_margin_of_100_percent_is_refused(cat):
     shop = dataclasses.replace(cat.shop, profit_margin=Decimal(1))
     with pytest.raises(SpecError, match="profit margin"):
