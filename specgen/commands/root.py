@@ -59,6 +59,21 @@ def demo_cmd(out: Path = typer.Option(Path("specgen-demo"), "--out", metavar="DI
     run_demo(out, catalog, echo=typer.echo)
 
 
+@app.command("schema")
+@guarded
+def schema_cmd(kind: str = typer.Argument("spec", metavar="[spec|catalog|requirement]",
+                                          help="Which file: a part spec (default), a catalogue file or a requirement.")):
+    """Print the JSON Schema of a spec, a catalogue file or a requirement file, for an editor's completion."""
+    import json
+
+    from ..errors import SpecError
+    from ..schema import KINDS, schema
+
+    if kind not in KINDS:
+        raise SpecError(f"unknown kind '{kind}'; one of {', '.join(KINDS)}", path="KIND")
+    typer.echo(json.dumps(schema(kind), indent=2, ensure_ascii=False))
+
+
 # commands that live in their own modules (catalogue, work orders, register, quotes, revisions, search)
 for _name in ("catalog", "orders", "workorder", "quote", "revision_cmds", "search"):
     _mod = importlib.import_module(f"specgen.commands.{_name}")
