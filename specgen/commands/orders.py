@@ -15,6 +15,7 @@ from typing import Any
 
 import typer
 
+from specgen.commands._common import WholeHelpGroup
 from specgen.errors import SpecError
 from specgen.register import (
     QUOTE_STATES,
@@ -30,6 +31,7 @@ from specgen.register import (
 
 app = typer.Typer(
     name="orders",
+    cls=WholeHelpGroup,
     help="The shop's register of work orders and quotes: list, show, change state, stale numbers, trace, export.",
     no_args_is_help=True,
 )

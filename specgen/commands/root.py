@@ -12,11 +12,11 @@ from pathlib import Path
 import typer
 
 from .. import __version__
-from ._common import guarded
+from ._common import WholeHelpGroup, guarded
 from .options import CatalogOpt, JsonOpt
 
 # rich_markup_mode=None: plain help, so the quick commands do not import rich (~50 ms)
-app = typer.Typer(name="specgen", no_args_is_help=True, add_completion=False, pretty_exceptions_enable=False,
+app = typer.Typer(name="specgen", cls=WholeHelpGroup, no_args_is_help=True, add_completion=False, pretty_exceptions_enable=False,
                   rich_markup_mode=None,
                   help="Specs, calculations, work orders and quotes for custom wound magnetics.")
 
