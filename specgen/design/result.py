@@ -335,6 +335,7 @@ class FloorData:
     outline: CoreOutline
     pins: PinLayout
     varnish: VarnishCure | None
+    core_wrap: TapeWrap | None = None   # toroid: the tape wrapped on the bare core before the first winding
 
     def section(self, winding: str, index: int) -> SectionTapes:
         for s in self.sections:

@@ -327,6 +327,18 @@ def build_context(design, settings, *, number: str, qty: int, due: str | None = 
         steps.append({"n": n, "kind": "gap", "heading": f"Prepare the core: air gap {fmt_mm(ind.gap_m)}",
                       "lines": lines, "rows": [], "layers": [], "dot": ""})
 
+    wrap = d.floor.core_wrap
+    if toroid and wrap is not None:
+        n += 1
+        steps.append({"n": n, "kind": "core", "heading": "Insulate the core before winding",
+                      "lines": [f"Wrap the bare core with {wrap.id} ({wrap.name}, {fmt_mm(wrap.width_m)} wide): "
+                                f"{wrap.layers} layer{'s' if wrap.layers != 1 else ''}, each half-lapped "
+                                f"(every turn covers half of the one before), over the inner and outer edges, "
+                                f"no gaps at the bore.",
+                                "This wrap is the insulation between every winding and the core: inspect it for "
+                                "tears or bare spots before the first turn, and replace it if damaged."],
+                      "rows": [], "layers": [], "dot": ""})
+
     order = _sections_in_order(d)
     last_order = order[-1][1].order if order else 0
     for w, s in order:
