@@ -231,6 +231,10 @@ def input_changes(old_data: Mapping, new_data: Mapping) -> list[InputChange]:
 
 # -- shop-floor results --
 
+#: Units shown with an engineering prefix (``present.si``), by the unit key ``present.quantity`` takes.
+_PREFIXED = {"ohm": "Ω", "Ω": "Ω", "H": "H", "A": "A", "V": "V", "W": "W", "Hz": "Hz", "F": "F"}
+
+
 def fmt(v: Any, unit: str) -> str:
     """A result in shop units (``specgen.present.quantity``): ohm -> mΩ/Ω, H -> µH/mH, m -> mm, ..."""
     return present.quantity(v, unit)
@@ -349,6 +353,8 @@ def result_changes(old_d, new_d, old_cost: Any = None, new_cost: Any = None) -> 
         nv, nu = new.get(key, (None, None))
         unit = nu or ou or "text"
         ot, nt = fmt(ov, ou or unit), fmt(nv, nu or unit)
+        if ou == nu and unit in _PREFIXED and all(isinstance(v, (int, float)) for v in (ov, nv)):
+            ot, nt = present.si_set([ov, nv], _PREFIXED[unit])     # old and new read with one prefix
         if ot != nt:
             out.append(ResultChange(group=key[0], quantity=key[1], old=ov, new=nv, unit=unit,
                                     old_text=ot, new_text=nt))

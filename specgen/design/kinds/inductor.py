@@ -16,6 +16,7 @@ from dataclasses import dataclass
 from ...catalog.models import Catalog
 from ...physics import gap as gapmod
 from ...physics import permeability
+from ...present import si
 from .. import kernel as K
 from ..build import copper_lengths_m, lay_out, section_frs, winding_fr
 from ..flux import b_sat_hot_t, flux_limit
@@ -97,7 +98,7 @@ class InductorRun:
         n = self.w.turns or permeability.turns_for_biased_inductance(c.target_h, c.i_dc if not c.ac else c.i_op_pk,
                                                                      ae, le, mu, a, b, cc)
         if n is None:
-            raise spec_error(spec, f"{parts.core.id} cannot reach {c.target_h * 1e6:.4g} µH at "
+            raise spec_error(spec, f"{parts.core.id} cannot reach {si(c.target_h, 'H', keep_zeros=False)} at "
                                    f"{c.i_dc:g} A: the permeability rolls off faster than turns add; use a "
                                    f"larger core or a lower-permeability powder", "core", "id")
         bias = c.i_dc if not c.ac else 0.0
@@ -115,7 +116,7 @@ class InductorRun:
         spec, parts, c, req, w = self.spec, self.parts, self.c, self.req, self.w
         ae, le, mu, G = parts.ae_m2, parts.le_m, parts.material.mu_initial, parts.window_breadth_m
         limit = flux_limit(spec, self.cat, parts.material, temp.hot_c)
-        what = f"{c.target_h * 1e6:.4g} µH at {c.i_pk:g} A"
+        what = f"{si(c.target_h, 'H', keep_zeros=False)} at {c.i_pk:g} A"
         if req.gap in ("fixed", "none"):
             lg = float(req.gap_m or 0.0) if req.gap == "fixed" else 0.0
             n = w.turns or int(K.turns_for_inductance(c.target_h, ae, le, mu, lg, G))
@@ -194,11 +195,11 @@ class InductorRun:
         lfull = mg.inductance_full_bias_h
         if lfull < c.target_h * (1 - tol):
             extra.append(Check("fail", "inductance",
-                               f"built inductance {lfull * 1e6:.4g} µH is below the {c.target_h * 1e6:.4g} µH "
+                               f"built inductance {si(lfull, 'H')} is below the {si(c.target_h, 'H', keep_zeros=False)} "
                                f"required: add turns or reduce the gap"))
         else:
-            extra.append(Check("pass", "inductance", f"L {lfull * 1e6:.4g} µH at "
-                                                     f"{ind.current_dc_a:g} A against {c.target_h * 1e6:.4g} µH required"))
+            target = si(c.target_h, "H", keep_zeros=False)
+            extra.append(Check("pass", "inductance", f"L {si(lfull, 'H')} at {ind.current_dc_a:g} A against {target} required"))
         if powder and mg.bias_drop_pct > BIAS_DROP_WARN_PCT:
             extra.append(Check("warn", "dc_bias", f"{mg.bias_drop_pct:.0f} % of the permeability is lost at "
                                                   f"{c.i_dc:g} A (H = {ind.h_dc_a_m:.0f} A/m): a larger core or a lower-"
