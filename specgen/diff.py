@@ -97,16 +97,16 @@ class Side:
         d = loaded.design
         status = loaded.release.status
         ok = loaded.release.ok if status == "released" else None
-        entry = revision.history_entry(loaded.data) if status == "released" else None
-        entry = entry if isinstance(entry, Mapping) else {}
+        # the last history entry of this revision, as the Design carries it (typed)
+        entry = next((e for e in reversed(d.history) if e.revision == d.revision), None) \
+            if status == "released" else None
         return cls(name=loaded.name, part=d.part, title=d.title, revision=d.revision or "-", status=status,
                    fingerprint=d.fingerprint, release_ok=ok,
                    release_problems=tuple(loaded.release.problems),
-                   recorded=loaded.release.recorded, released_on=str(entry.get("date") or ""),
-                   released_by=str(entry.get("by") or ""), release_note=str(entry.get("note") or "").strip(),
-                   supersedes=str(entry.get("supersedes") or ""), effective=str(entry.get("effective") or ""),
-                   open_orders=(tuple(str(n) for n in entry["open_orders"])
-                                if isinstance(entry.get("open_orders"), list) else None))
+                   recorded=loaded.release.recorded, released_on=entry.date if entry else "",
+                   released_by=entry.by if entry else "", release_note=entry.note.strip() if entry else "",
+                   supersedes=entry.supersedes if entry else "", effective=entry.effective if entry else "",
+                   open_orders=entry.open_orders if entry else None)
 
     @property
     def effectivity(self) -> str:
@@ -264,6 +264,10 @@ def input_changes(old_data: Mapping, new_data: Mapping) -> list[InputChange]:
 
 # -- shop-floor results --
 
+#: Units shown with an engineering prefix (``present.si``), by the unit key ``present.quantity`` takes.
+_PREFIXED = {"ohm": "Ω", "Ω": "Ω", "H": "H", "A": "A", "V": "V", "W": "W", "Hz": "Hz", "F": "F"}
+
+
 def fmt(v: Any, unit: str) -> str:
     """A result in shop units (``specgen.present.quantity``): ohm -> mΩ/Ω, H -> µH/mH, m -> mm, ..."""
     return present.quantity(v, unit)
@@ -382,6 +386,8 @@ def result_changes(old_d, new_d, old_cost: Any = None, new_cost: Any = None) -> 
         nv, nu = new.get(key, (None, None))
         unit = nu or ou or "text"
         ot, nt = fmt(ov, ou or unit), fmt(nv, nu or unit)
+        if ou == nu and unit in _PREFIXED and all(isinstance(v, (int, float)) for v in (ov, nv)):
+            ot, nt = present.si_set([ov, nv], _PREFIXED[unit])     # old and new read with one prefix
         if ot != nt:
             out.append(ResultChange(group=key[0], quantity=key[1], old=ov, new=nv, unit=unit,
                                     old_text=ot, new_text=nt))

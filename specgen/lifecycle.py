@@ -25,7 +25,7 @@ from dataclasses import asdict, dataclass
 from pathlib import Path
 from typing import TYPE_CHECKING, Any
 
-from . import revision
+from . import revision, revision_git
 from .design.acceptance import AcceptedWarning, WarningNote
 from .errors import DesignFailed, SpecError
 from .freetext import MAX_LOT_CHARS, MAX_NOTE_CHARS, check_free_text
@@ -377,10 +377,10 @@ def _git_precheck(path: Path, tag: str) -> None:
     what = str(path)
     # the same checks git_commit_and_tag makes, run before the release edit so that a refused
     # commit never leaves a released but uncommitted file behind
-    top, _ = revision._repo_path(path, what)
-    if revision._git(["rev-parse", "--verify", "--quiet", f"refs/tags/{tag}"], top, what).returncode == 0:
+    top, _ = revision_git.repo_path(path, what)
+    if revision_git.run_git(["rev-parse", "--verify", "--quiet", f"refs/tags/{tag}"], top, what).returncode == 0:
         raise SpecError(f"git tag '{tag}' already exists; a released revision is tagged once", file=what)
-    if revision._git(["var", "GIT_COMMITTER_IDENT"], top, what).returncode != 0:
+    if revision_git.run_git(["var", "GIT_COMMITTER_IDENT"], top, what).returncode != 0:
         raise SpecError("git does not know who you are: set user.name and user.email", file=what)
 
 

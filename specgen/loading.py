@@ -230,6 +230,8 @@ def load_yaml(path: str | os.PathLike, what: str = "YAML file") -> Any:
 
 _MISSING = object()
 _PLAIN_NUMBER = re.compile(r"[+-]?(?:[0-9]+(?:\.[0-9]*)?|\.[0-9]+)(?:[eE][+-]?[0-9]+)?")
+#: The same, as text (the JSON Schema's pattern for a number written in quotes).
+PLAIN_NUMBER_PATTERN = _PLAIN_NUMBER.pattern
 
 
 #: Keys the spec, requirement and catalogue files used to spell otherwise, by where they stand: old key -> the
@@ -243,6 +245,11 @@ RENAMED_KEYS: dict[str, dict[str, str]] = {
     "shop": {"margin": "margin (the profit on the selling price) was renamed profit_margin"},
     "windings": {"match": "match was renamed same_turns_as (the winding whose turns this one repeats)"},
 }
+
+
+#: While ``specgen.schema`` traces the loaders to write the JSON Schema: the recorder every Reader reports
+#: the keys it reads to (their type, limits and whether they have a default). None otherwise.
+TRACER: Any = None
 
 
 class Reader:
@@ -262,6 +269,13 @@ class Reader:
         self._seen: set = set()
         if not isinstance(data, dict):
             raise self.error(f"expected a mapping of keys, got {_describe(data)}")
+        if TRACER is not None:
+            TRACER.open(self)
+
+    def _note(self, key: str, kind: str, default: Any, **info: Any) -> None:
+        """Tell the schema tracer (when one runs) what this key is: what the JSON Schema is written from."""
+        if TRACER is not None:
+            TRACER.note(self, key, kind, default is _MISSING, info)
 
     # -- locations --
     def _key_path(self, key: str) -> str:
@@ -289,10 +303,23 @@ class Reader:
         return SpecError(f"is required; did you mean it by '{near}' (line {line})?", file=self.file, line=line,
                          path=self._key_path(key))
 
-    def has(self, key: str) -> bool:
+    def has(self, key: str, probe: bool = True) -> bool:
+        if probe and TRACER is not None:
+            TRACER.probe(self, key)
         return key in self.data and self.data[key] is not None
 
     def raw(self, key: str, default: Any = _MISSING) -> Any:
+        """The value as written (no type check): the key's schema is left open."""
+        self._note(key, "any", default)
+        return self._value(key, default)
+
+    def checked_raw(self, key: str, kind: str, default: Any = _MISSING) -> Any:
+        """The value as written, for a loader that checks it itself; ``kind`` names its form for the schema
+        (one of the accessors' kinds: 'percent', 'amount', 'text', ...)."""
+        self._note(key, kind, default)
+        return self._value(key, default)
+
+    def _value(self, key: str, default: Any = _MISSING) -> Any:
         self._seen.add(key)
         if key not in self.data or self.data[key] is None:
             if default is _MISSING:
@@ -304,7 +331,8 @@ class Reader:
     def quantity(self, key: str, dimension: str, default: Any = _MISSING, *,
                  positive: bool = True, allow_zero: bool = False,
                  minimum: float | None = None, maximum: float | None = None) -> float:
-        value = self.raw(key, default)
+        self._note(key, "quantity", default, dimension=dimension)
+        value = self._value(key, default)
         if value is default and default is not _MISSING:
             return value
         try:
@@ -322,7 +350,8 @@ class Reader:
 
     def number(self, key: str, default: Any = _MISSING, *, minimum: float | None = None,
                maximum: float | None = None, integer: bool = False) -> float:
-        value = self.raw(key, default)
+        self._note(key, "integer" if integer else "number", default, minimum=minimum, maximum=maximum)
+        value = self._value(key, default)
         if value is default and default is not _MISSING:
             return value
         if isinstance(value, bool) or not isinstance(value, (int, float)):
@@ -350,7 +379,8 @@ class Reader:
         return self.number(key, default, minimum=minimum, maximum=maximum, integer=True)  # type: ignore[return-value]
 
     def text(self, key: str, default: Any = _MISSING, *, max_len: int = 2000) -> str:
-        value = self.raw(key, default)
+        self._note(key, "text", default, max_len=max_len)
+        value = self._value(key, default)
         if value is default and default is not _MISSING:
             return value
         if isinstance(value, bool) or isinstance(value, (dict, list)):
@@ -368,7 +398,8 @@ class Reader:
 
     def choice(self, key: str, choices: Iterable[str], default: Any = _MISSING) -> str:
         choices = list(choices)
-        value = self.raw(key, default)
+        self._note(key, "choice", default, choices=tuple(choices))
+        value = self._value(key, default)
         if value is default and default is not _MISSING:
             return value
         text = str(value).strip().lower() if not isinstance(value, (dict, list)) else None
@@ -377,7 +408,8 @@ class Reader:
         return text
 
     def boolean(self, key: str, default: Any = _MISSING) -> bool:
-        value = self.raw(key, default)
+        self._note(key, "boolean", default)
+        value = self._value(key, default)
         if isinstance(value, bool):
             return value
         raise self.error(f"expected true or false, got {_describe(value)}", key)
@@ -386,7 +418,8 @@ class Reader:
         """Money: read as Decimal from its text, never through a float."""
         from decimal import Decimal, InvalidOperation
 
-        value = self.raw(key, default)
+        self._note(key, "amount", default)
+        value = self._value(key, default)
         if value is default and default is not _MISSING:
             return value if value is None else Decimal(str(value))
         if isinstance(value, bool) or isinstance(value, (dict, list)):
@@ -401,7 +434,8 @@ class Reader:
 
     def percent(self, key: str, default: Any = _MISSING, *, maximum: float = 1.0) -> float:
         """A fraction written '3 %' (or a plain number 0.03), zero or more, at most ``maximum``."""
-        value = self.raw(key, default)
+        self._note(key, "percent", default)
+        value = self._value(key, default)
         if value is default and default is not _MISSING:
             return float(value)
         text = str(value).strip()
@@ -416,7 +450,8 @@ class Reader:
     def tolerance_pair(self, key: str, default: tuple[float, float] | None) -> tuple[float, float] | None:
         """A tolerance band ``{minus: 0 %, plus: 3 %}`` as fractions (minus, plus), each 0..50 %."""
         if not self.has(key):
-            self.raw(key, None)
+            self._note(key, "mapping", None)
+            self._value(key, None)
             return default
         sub = self.mapping(key)
         pair = (sub.percent("minus", maximum=0.5), sub.percent("plus", maximum=0.5))
@@ -432,7 +467,8 @@ class Reader:
     def mapping(self, key: str, default: None) -> Reader | None: ...
 
     def mapping(self, key: str, default: Any = _MISSING) -> Reader | None:
-        value = self.raw(key, default)
+        self._note(key, "mapping", default)
+        value = self._value(key, default)
         if value is default and default is not _MISSING:
             return value
         if not isinstance(value, dict):
@@ -441,7 +477,8 @@ class Reader:
 
     def items(self, key: str, default: Any = _MISSING, *, min_items: int = 0) -> list:
         """A list of mappings, each returned as a Reader located at its item."""
-        value = self.raw(key, default)
+        self._note(key, "mappings", default, min_items=min_items)
+        value = self._value(key, default)
         if value is default and default is not _MISSING:
             return value
         if not isinstance(value, list):
@@ -454,7 +491,8 @@ class Reader:
 
     def list_of(self, key: str, default: Any = _MISSING) -> list:
         """A list of scalars (raw values, with their lines via item_line())."""
-        value = self.raw(key, default)
+        self._note(key, "list", default)
+        value = self._value(key, default)
         if value is default and default is not _MISSING:
             return value
         if not isinstance(value, list):
@@ -471,6 +509,8 @@ class Reader:
         """Report the first key nobody read: almost always a typo, or a key spelt as it used to be
         (``renamed``: old key -> the one-line message naming the new one)."""
         allowed = self._seen | set(also_allowed)
+        if TRACER is not None:
+            TRACER.close(self, also_allowed)
         for key in self.data:
             if renamed and key in renamed and key not in allowed:
                 raise self.error(renamed[key], key)

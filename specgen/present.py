@@ -70,6 +70,26 @@ def si(value: float | None, unit: str, digits: int = 4, *, keep_zeros: bool = Tr
     return f"{text} {_PREFIXES[exp]}{unit}"
 
 
+def si_set(values: Sequence[float | None], unit: str, digits: int = 4) -> list[str]:
+    """Figures read side by side (a nominal and its limits) with one prefix, that of the largest:
+    [1.039, 0.9349, 1.143] Ω -> '1.039 Ω', '0.9349 Ω', '1.143 Ω' (never '934.9 mΩ' beside '1.143 Ω').
+
+    ``digits`` significant figures each; None -> '—'.
+    """
+    present_values = [abs(v) for v in values if v is not None and v != 0 and math.isfinite(v)]
+    if not present_values:
+        return [si(v, unit, digits) for v in values]
+    head = si(max(present_values), unit, digits)
+    prefix = head.split(" ", 1)[1][: -len(unit)] if unit else ""
+    exp = next((e for e, p in _PREFIXES.items() if p == prefix), 0)
+    return [MISSING if v is None else f"{sig(v / 10.0 ** exp, digits)} {prefix}{unit}" for v in values]
+
+
+def frequency(hz: float) -> str:
+    """'50 Hz', '100 kHz', '65 kHz' (``si`` with the trailing zeros dropped: a frequency is stated, not measured)."""
+    return si(hz, "Hz", keep_zeros=False)
+
+
 def mm(value_m: float | None) -> str:
     """A bench length in millimetres, to a tenth or a hundredth as the size needs: '0.35 mm', '4.2 mm', '120 mm'."""
     if value_m is None:

@@ -1,7 +1,9 @@
-"""The quote's cost model: pure functions over a Design, the catalogue and the shop figures.
+"""The quote's cost model: pure functions over a Design and a ``PriceList`` (prices and shop figures).
 
-Everything here reads the ``Design`` (lengths, masses, turns, layers) and catalogue prices; nothing
-recomputes physics, so the quote prices exactly what the work order builds. Money is ``Decimal``
+Everything here reads the ``Design`` (lengths, masses, turns, layers) and the catalogue's prices as
+``specgen.prices.price_list`` read them once; nothing here opens the catalogue (only ``build_quote``, the
+entry point, hands it to ``price_list`` and the release gate) and nothing recomputes physics, so the
+quote prices exactly what the work order builds. Money is ``Decimal``
 throughout. Floats from the Design enter as ``Decimal(repr(x))`` (the shortest decimal that reads
 back as the same float) and nothing is rounded until the unit price.
 
@@ -75,10 +77,14 @@ import math
 from collections.abc import Iterable
 from dataclasses import dataclass, field
 from decimal import ROUND_HALF_UP, Decimal, InvalidOperation
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
-from .catalog.models import LaborFigures
 from .errors import DesignFailed, SpecError
+
+if TYPE_CHECKING:
+    from .catalog.models import LaborFigures
+    from .lifecycle import ReleaseVerdict
+    from .prices import PriceList
 
 CENT = Decimal("0.01")
 COPPER_LOW = Decimal("0.8")
@@ -116,10 +122,6 @@ def cents(amount: Decimal) -> Decimal:
 
 # ------------------------------------------------------------------------------------------------ time model
 
-#: The shop's labor figures, typed and range-checked when the catalogue loads (``catalog.models``).
-TimeModel = LaborFigures
-
-
 def time_model(shop) -> LaborFigures:
     """The quote's time model: ``shop.labor``, already parsed and checked by the catalogue loader."""
     return shop.labor
@@ -142,57 +144,50 @@ class CostLine:
     note: str = ""
 
 
-def _entry(cat, table: str, item_id: str, what: str):
-    obj = getattr(cat, table).get(item_id)
-    if obj is None:
-        raise SpecError(f"the catalogue has no {what} '{item_id}' to price", path=f"{table}.{item_id}")
-    return obj
-
-
-def material_lines(design, cat, copper_factor: Decimal = Decimal(1)) -> list[CostLine]:
+def material_lines(design, prices: PriceList, copper_factor: Decimal = Decimal(1)) -> list[CostLine]:
     """Price every ``Design.materials`` line per unit (see the module docstring for each rule)."""
-    shop = cat.shop
+    shop = prices.shop
     scrap = Decimal(1) + shop.scrap_wire
     out: list[CostLine] = []
     for m in design.materials:
         kind = m.kind
         qty = dec(m.quantity)
         if kind == "wire":
-            w = _entry(cat, "wires", m.id, "wire")
+            w = prices.price("wires", m.id, "wire")
             if m.mass_kg is None:
                 raise SpecError(f"the design gives no mass for wire '{m.id}'", path="materials")
-            copper = w.conductor == "copper"
-            price = w.price_per_kg * (copper_factor if copper else Decimal(1))
+            copper = w.copper
+            price = w.rate * (copper_factor if copper else Decimal(1))
             rate = price * scrap
             mass = dec(m.mass_kg)
             out.append(CostLine(kind, m.id, m.description, mass, "kg", rate, mass * rate, copper,
                                 f"{qty.quantize(Decimal('0.01'))} m; {plain(shop.scrap_wire * 100)} % scrap allowance"))
         elif kind in ("laminations", "core"):
-            c = _entry(cat, "cores", m.id, "core")
-            if c.price_unit == "kg":
+            c = prices.price("cores", m.id, "core")
+            if c.per_kg:
                 if m.mass_kg is None:
                     raise SpecError(f"core '{m.id}' is priced per kg but the design gives no mass",
                                     path="materials")
                 mass = dec(m.mass_kg)
-                out.append(CostLine(kind, m.id, m.description, mass, "kg", c.price, mass * c.price,
+                out.append(CostLine(kind, m.id, m.description, mass, "kg", c.rate, mass * c.rate,
                                     note=f"{m.quantity:g} {m.unit}" if kind == "laminations" else ""))
             else:
                 sets = Decimal(design.core.count) if kind == "laminations" else qty
-                out.append(CostLine(kind, m.id, m.description, sets, "sets", c.price, sets * c.price))
+                out.append(CostLine(kind, m.id, m.description, sets, "sets", c.rate, sets * c.rate))
         elif kind == "bobbin":
-            b = _entry(cat, "bobbins", m.id, "bobbin")
-            out.append(CostLine(kind, m.id, m.description, qty, "pcs", b.price, qty * b.price))
+            b = prices.price("bobbins", m.id, "bobbin")
+            out.append(CostLine(kind, m.id, m.description, qty, "pcs", b.rate, qty * b.rate))
         elif kind == "tape":
-            t = _entry(cat, "tapes", m.id, "tape")
+            t = prices.price("tapes", m.id, "tape")
             area = qty * dec(t.width_m)
-            out.append(CostLine(kind, m.id, m.description, area, "m2", t.price_per_m2, area * t.price_per_m2,
+            out.append(CostLine(kind, m.id, m.description, area, "m2", t.rate, area * t.rate,
                                 note=f"{qty.quantize(Decimal('0.01'))} m x {t.width_m * 1e3:g} mm"))
         elif kind == "sleeving":
-            s = _entry(cat, "sleevings", m.id, "sleeving")
-            out.append(CostLine(kind, m.id, m.description, qty, "m", s.price_per_m, qty * s.price_per_m))
+            s = prices.price("sleevings", m.id, "sleeving")
+            out.append(CostLine(kind, m.id, m.description, qty, "m", s.rate, qty * s.rate))
         elif kind == "varnish":
-            v = _entry(cat, "varnishes", m.id, "varnish")
-            out.append(CostLine(kind, m.id, m.description, qty, "l", v.price_per_litre, qty * v.price_per_litre))
+            v = prices.price("varnishes", m.id, "varnish")
+            out.append(CostLine(kind, m.id, m.description, qty, "l", v.rate, qty * v.rate))
         else:   # clips and any hardware the catalogue has no price for: shown, not invented
             out.append(CostLine(kind, m.id, m.description, qty, m.unit, Decimal(0), Decimal(0),
                                 note="no catalogue price: not charged"))
@@ -219,7 +214,7 @@ class TimeLine:
     seconds: Decimal
 
 
-def wire_factor(wire_kind: str, overall_diameter_m: float, model: TimeModel) -> tuple[Decimal, list[str]]:
+def wire_factor(wire_kind: str, overall_diameter_m: float, model: LaborFigures) -> tuple[Decimal, list[str]]:
     """Slow-down factor of one wire on the winder and the reasons (fine, heavy, Litz)."""
     factor = Decimal(1)
     why = []
@@ -236,7 +231,7 @@ def wire_factor(wire_kind: str, overall_diameter_m: float, model: TimeModel) -> 
     return factor, why
 
 
-def labor_lines(design, model: TimeModel) -> list[TimeLine]:
+def labor_lines(design, model: LaborFigures) -> list[TimeLine]:
     """Run time per unit (no setup), one line per operation; see the module docstring."""
     toroid = design.core.shape == "toroid"
     tpm = model.toroid_turns_per_minute if toroid else model.bobbin_turns_per_minute
@@ -379,23 +374,16 @@ def lot_material(lines: Iterable[CostLine], quantity: int, terms, scrap: Decimal
     return total, saved
 
 
-def _terms(shop):
-    from .catalog.models import QuoteTerms
-
-    docs = getattr(shop, "documents", None)
-    return docs.terms if docs is not None else QuoteTerms()
-
-
-def price_breaks(design, cat, quantities: Iterable[int],
-                 model: TimeModel | None = None) -> list[PriceBreak]:
-    model = model or time_model(cat.shop)
-    shop = cat.shop
-    terms = _terms(shop)
+def price_breaks(design, prices: PriceList, quantities: Iterable[int],
+                 model: LaborFigures | None = None) -> list[PriceBreak]:
+    model = model or time_model(prices.shop)
+    shop = prices.shop
+    terms = prices.terms
     settled_s = run_seconds(labor_lines(design, model))
     setup_s = dec(shop.setup_time_s)
-    lines = material_lines(design, cat)
-    lines_low = material_lines(design, cat, COPPER_LOW)
-    lines_high = material_lines(design, cat, COPPER_HIGH)
+    lines = material_lines(design, prices)
+    lines_low = material_lines(design, prices, COPPER_LOW)
+    lines_high = material_lines(design, prices, COPPER_HIGH)
     out = []
     for q in quantities:
         learning = learning_factor(q, terms.learning_first_unit, terms.learning_rate)
@@ -583,9 +571,20 @@ def _summary(design) -> dict:
 
 def build_quote(spec, design, cat, quantities: Iterable[int], *, nre: Decimal | None = None,
                 valid_days: int = 30, issued: _dt.date | None = None, allow_failed: bool = False) -> Quote:
-    """The whole quote for one part: refuses failed designs and obsolete revisions (module docstring)."""
+    """The whole quote for one part: the catalogue's prices read once (``prices.price_list``), the one
+    release gate run (``specgen.lifecycle``), then ``quote_design`` prices the Design against them."""
     from .lifecycle import release_gate
+    from .prices import price_list
 
+    return quote_design(spec, design, price_list(cat, design), release_gate(spec, design, cat), quantities,
+                        nre=nre, valid_days=valid_days, issued=issued, allow_failed=allow_failed)
+
+
+def quote_design(spec, design, prices: PriceList, verdict: ReleaseVerdict, quantities: Iterable[int], *,
+                 nre: Decimal | None = None, valid_days: int = 30, issued: _dt.date | None = None,
+                 allow_failed: bool = False) -> Quote:
+    """The quote from the Design, its prices and its release verdict: refuses failed designs, obsolete
+    revisions and broken releases (module docstring); reads no catalogue."""
     if design.failed and not allow_failed:
         raise DesignFailed(f"{design.part} rev {design.revision} has failed design checks: not quoted "
                            f"(fix the design first; a quote must not promise a part the shop will refuse)",
@@ -596,16 +595,15 @@ def build_quote(spec, design, cat, quantities: Iterable[int], *, nre: Decimal | 
     quantities = tuple(quantities)
     if not quantities:
         raise SpecError("no quantity breaks", path="--qty")
-    shop = cat.shop
+    shop = prices.shop
     _check_profit_margin(shop)
     model = time_model(shop)
-    materials = material_lines(design, cat)
+    materials = material_lines(design, prices)
     labor = labor_lines(design, model)
-    breaks = price_breaks(design, cat, quantities, model)
+    breaks = price_breaks(design, prices, quantities, model)
     issued = issued or _dt.date.today()
-    # the one release gate (specgen.lifecycle): a broken release is refused as the work order refuses
-    # it; a draft is quoted as budgetary; the change summary (allow_failed) prices whatever it is given
-    verdict = release_gate(spec, design, cat)
+    # the one release gate's verdict: a broken release is refused as the work order refuses it; a
+    # draft is quoted as budgetary; the change summary (allow_failed) prices whatever it is given
     budgetary = budgetary_detail = None
     if verdict.broken and not allow_failed:
         raise verdict.refusal("before quoting")
@@ -628,7 +626,7 @@ def build_quote(spec, design, cat, quantities: Iterable[int], *, nre: Decimal | 
         copper_per_unit=copper_total(materials), labor_rate=shop.labor_rate, overhead=shop.overhead,
         profit_margin=shop.profit_margin, scrap_wire=shop.scrap_wire, notes=tuple(notes), design_summary=_summary(design),
         design=design, shop_documents=getattr(shop, "documents", None),
-        customer_party=cat.customer(design.customer) if hasattr(cat, "customer") else None)
+        customer_party=prices.customer)
 
 
 # ------------------------------------------------------------------------------------------------ text

@@ -14,8 +14,8 @@ def _table(headers: list, rows: list, align: str | None = None) -> str:
 
 
 def freq(hz: float) -> str:
-    """'50 Hz', '100 kHz' (``specgen.present.si``, trailing zeros dropped)."""
-    return present.si(hz, "Hz", keep_zeros=False)
+    """'50 Hz', '100 kHz' (``specgen.present.frequency``)."""
+    return present.frequency(hz)
 
 
 def waveform_text(d: Design) -> str:
@@ -74,8 +74,7 @@ def design_report(d: Design) -> str:
              + f", fringing F {i.fringing_factor:.3f}"],
             ["AL, energy", f"{present.si(i.al_nh * 1e-9, 'H')}/turn², {present.si(i.energy_j, 'J')}"],
             ["DC bias", f"H_dc {i.h_dc_a_m:.4g} A/m, roll-off {i.bias_drop_pct:.1f} %"],
-            ["current", f"{i.current_dc_a:g} A, ripple {i.ripple_a:g} A p-p, peak {i.current_peak_a:g} A; "
-                        f"ΔB {i.delta_b_t * 1e3:.1f} mT"],
+            _current_row(i),
         ]
     if d.current_transformer is not None:
         core_rows += _ct_rows(d.current_transformer)
@@ -128,6 +127,17 @@ def design_report(d: Design) -> str:
     return "\n".join(out)
 
 
+def _current_row(i: Any) -> list[str]:
+    """A DC choke: its DC current, the ripple on it and the flux swing the ripple makes. An AC reactor (no DC
+    bias) carries the whole sine: its rms and peak current and the peak-to-peak flux swing of the sine, which
+    is twice the peak flux (not a ripple: 2.7 T p-p on a 1.34 T peak is the sine going from -B_pk to +B_pk)."""
+    if i.b_dc_t > 0:
+        return ["current", f"{present.si(i.current_dc_a, 'A')} DC, ripple {present.si(i.ripple_a, 'A')} p-p, peak "
+                           f"{present.si(i.current_peak_a, 'A')}; ripple flux swing ΔB {present.si(i.delta_b_t, 'T')} p-p"]
+    return ["current", f"{present.si(i.current_dc_a, 'A')} rms AC, peak {present.si(i.current_peak_a, 'A')}; "
+                       f"flux {present.si(i.delta_b_t / 2, 'T')} peak, {present.si(i.delta_b_t, 'T')} p-p over a cycle"]
+
+
 def _ct_rows(ct: Any) -> list[list[str]]:
     """A current transformer's own figures (the Design's ``current_transformer``)."""
     return [
@@ -146,13 +156,13 @@ def _flyback_rows(d: Design) -> list[list[str]]:
     assert fb is not None
     gap = d.inductor.gap_arrangement if d.inductor is not None else ""
     return [
-        ["L_p, gap", f"{fb.inductance_h * 1e6:.4g} µH, gap {fb.gap_m * 1e3:.2f} mm ({gap})"],
+        ["L_p, gap", f"{present.si(fb.inductance_h, 'H')}, gap {fb.gap_m * 1e3:.2f} mm ({gap})"],
         ["reflected, switch", f"V_R {fb.reflected_voltage_v:.4g} V; V_in max + V_R = {fb.switch_voltage_v:.4g} V "
                               f"before the leakage spike"],
         ["power", f"{fb.output_power_w:.4g} W out (rectifier drops included), {fb.input_power_w:.4g} W in at "
                   f"efficiency {fb.efficiency_estimate:g}"],
         ["flux", f"B_pk {fb.b_peak_t:.3f} T, swing {fb.delta_b_t:.3f} T"],
-        ["clamp", f"{fb.clamp_energy_j * 1e6:.4g} µJ per cycle from the leakage, {fb.clamp_power_w:.3g} W at the "
+        ["clamp", f"{present.si(fb.clamp_energy_j, 'J')} per cycle from the leakage, {fb.clamp_power_w:.3g} W at the "
                   f"switching frequency"],
         ["currents", "; ".join(f"{w.name} {w.peak_current_a:.3g} A peak, {w.rms_current_a:.3g} A rms"
                                for w in fb.windings)],

@@ -1,4 +1,5 @@
-"""Revision control of specs: revision letters, the content fingerprint, release edits, git.
+"""Revision control of specs: revision letters, the release check, release edits (the content fingerprint
+lives in ``revision_fingerprint``, git in ``revision_git``; both re-exported here).
 
 Everything here works on raw YAML data (plain mappings and lists as any YAML loader returns
 them) and on files; nothing here knows the spec model or the design engine.
@@ -22,24 +23,8 @@ is one nobody has released yet. ``release_revision`` decides the letter a releas
 
 Fingerprint
 -----------
-``fingerprint(spec, catalog_entries)`` is SHA-256 over ``canonical(...)`` of the spec's content and
-every catalogue entry the design used, so a change of a catalogue entry changes the fingerprint of
-each part built from it. The top-level keys ``history``, ``status`` and ``revision`` are left out:
-they describe the release, not what is released. Releasing (which writes exactly those three
-keys) therefore does not change what was fingerprinted, and ``verify`` can recompute the
-fingerprint from the released file and compare it with the one in its history entry; marking a
-spec obsolete does not disturb it either. The revision letter is tied to the fingerprint by the
-history entry that records both. The hashed payload is ``{"scheme": FINGERPRINT_SCHEME, "spec":
-<content>, "catalog": {id: entry}}``; the scheme string keeps a later change of these rules from
-ever matching an old fingerprint by accident. A release may also record ``parts:``, a short
-fingerprint per top-level spec key and per catalogue entry (``component_fingerprints``), so that
-``check_release`` can say *what* changed, not only that something did.
-
-``canonical`` normalises what a reader would not call a change: mapping order, surrounding and
-repeated whitespace in strings (so ``"230  V"`` == ``"230 V"``, and re-wrapping a note does not
-count), Unicode composition (NFC), ``120.0`` == ``120``. List order is kept: the order of
-windings and layers is the build order. ``"230V"`` and ``"230 V"`` stay different (a unit string
-is not parsed here; such an edit after release is reported, which errs on the safe side).
+See ``revision_fingerprint``: SHA-256 over a canonical form of the spec's content and every catalogue
+entry its design used; ``history``, ``status`` and ``revision`` are left out, so releasing does not change it.
 
 Editing a spec file
 -------------------
@@ -58,32 +43,32 @@ go beside each other, or after the first top-level key.
 References
 ----------
 ASME Y14.35, Revision of Engineering Drawings and Associated Documents (letters, from memory).
-FIPS 180-4, Secure Hash Standard (SHA-256), via Python's hashlib.
-RFC 8259 (JSON) for the canonical text, via Python's json module.
 """
 
 from __future__ import annotations
 
 import datetime as _dt
-import hashlib
 import json
-import math
 import os
 import re
-import sys
-import unicodedata
 from collections.abc import Mapping, Sequence
-from collections.abc import Set as AbstractSet
 from dataclasses import dataclass
-from decimal import Decimal
-from pathlib import Path
-from typing import TYPE_CHECKING, Any
+from typing import Any
 
 from . import revision_letters as _letters
 from .errors import SpecError
-
-if TYPE_CHECKING:      # subprocess and the atomic writer load only when git runs or a file is written
-    import subprocess
+from .revision_fingerprint import (
+    EXCLUDED_KEYS,
+    FINGERPRINT_SCHEME,
+    canonical,
+    changed_components,
+    component_fingerprints,
+    fingerprint,
+    normalise,
+    short,
+    spec_content,
+)
+from .revision_git import git_commit_and_tag, read_rev, release_tag, split_ref
 
 # ----------------------------------------------------------------------------------------------
 # Revision letters
@@ -176,175 +161,6 @@ def release_revision(status: str | None, revision: str | None, history: Any = No
         raise SpecError(f"this draft is revision {revision}, but the last released revision is "
                         f"{last}, so the next is {next_revision(last)}", path="revision")
     return revision
-
-
-# ----------------------------------------------------------------------------------------------
-# Canonical form and fingerprint
-
-#: Top-level spec keys that describe the release rather than the part (see module docstring).
-EXCLUDED_KEYS = frozenset({"history", "status", "revision"})
-#: Goes into every fingerprint so a future change of the normalisation rules cannot collide.
-FINGERPRINT_SCHEME = "specgen-fingerprint-1"
-
-_WS = re.compile(r"\s+")
-
-
-def _norm_str(text: str) -> str:
-    return _WS.sub(" ", unicodedata.normalize("NFC", str(text))).strip()
-
-
-def _is_ruamel_bool(obj: Any) -> bool:
-    mod = sys.modules.get("ruamel.yaml.scalarbool")
-    return mod is not None and isinstance(obj, mod.ScalarBoolean)
-
-
-def _norm_number(x: float) -> Any:
-    if math.isnan(x):
-        return {"$float": "nan"}
-    if math.isinf(x):
-        return {"$float": "inf" if x > 0 else "-inf"}
-    if x.is_integer() and abs(x) < 2 ** 63:
-        return int(x)   # 120.0 and 120 are the same turn count; -0.0 becomes 0
-    return float(x)
-
-
-def _norm_key(key: Any) -> str:
-    if isinstance(key, str):
-        return _norm_str(key)
-    value = normalise(key)
-    if isinstance(value, str):
-        return value
-    return json.dumps(value, sort_keys=True, separators=(",", ":"), ensure_ascii=False)
-
-
-def normalise(obj: Any, path: str = "", line: int | None = None) -> Any:
-    """``obj`` as plain JSON types with the normalisation rules of ``canonical`` applied.
-
-    Accepts any Mapping and Sequence (PyYAML, ruamel.yaml or our own dict/list subclasses),
-    str, int, float, bool, None, Decimal, date/datetime and sets.
-    """
-    if obj is None or isinstance(obj, bool):
-        return obj
-    if _is_ruamel_bool(obj):
-        return bool(obj)
-    if isinstance(obj, str):
-        return _norm_str(obj)
-    if isinstance(obj, int):
-        return int(obj)
-    if isinstance(obj, float):
-        return _norm_number(float(obj))
-    if isinstance(obj, Decimal):
-        return _norm_number(float(obj))
-    if isinstance(obj, (_dt.date, _dt.time)):   # datetime is a date
-        return obj.isoformat()
-    if isinstance(obj, Mapping):
-        out: dict[str, Any] = {}
-        for key, value in obj.items():
-            k = _norm_key(key)
-            where = f"{path}.{k}" if path else k
-            at = (getattr(obj, "key_lines", None) or {}).get(key, line)    # the loader's key lines
-            if k in out:
-                raise SpecError(f"two keys read as {k!r} once spaces are normalised", line=at, path=where)
-            out[k] = normalise(value, where, at)
-        return out
-    if isinstance(obj, AbstractSet):
-        items = [normalise(v, path, line) for v in obj]
-        return sorted(items, key=lambda v: json.dumps(v, sort_keys=True, ensure_ascii=False))
-    if isinstance(obj, Sequence) and not isinstance(obj, (bytes, bytearray)):
-        lines = getattr(obj, "item_lines", None) or [line] * len(obj)
-        return [normalise(v, f"{path}[{i}]", lines[i] if i < len(lines) else line) for i, v in enumerate(obj)]
-    value = getattr(obj, "value", None)   # ruamel TaggedScalar and the like
-    if isinstance(value, str):
-        return _norm_str(value)
-    what = "binary data (a !!binary value)" if isinstance(obj, (bytes, bytearray)) else \
-        f"a value of type {type(obj).__name__}"
-    raise SpecError(f"cannot fingerprint {what}; write it as text", line=line, path=path or None)
-
-
-def canonical(obj: Any) -> bytes:
-    """Canonical UTF-8 JSON of ``obj``: sorted keys, no whitespace, normalised values.
-
-    Two inputs a reader would call the same (different key order, ``"230  V"`` vs ``"230 V"``,
-    ``120.0`` vs ``120``) give the same bytes; list order is kept (winding order matters).
-    """
-    return json.dumps(normalise(obj), sort_keys=True, separators=(",", ":"),
-                      ensure_ascii=False, allow_nan=False).encode("utf-8")
-
-
-def spec_content(spec_data: Mapping) -> dict:
-    """The spec without the keys that describe its release (``EXCLUDED_KEYS``)."""
-    if not isinstance(spec_data, Mapping):
-        raise SpecError("a spec is a mapping of keys")
-    return {k: v for k, v in spec_data.items() if k not in EXCLUDED_KEYS}
-
-
-def fingerprint(spec_data: Mapping, catalog_entries: Mapping[str, Mapping]) -> str:
-    """SHA-256 hex of the spec's content and of every catalogue entry the design used.
-
-    ``catalog_entries`` maps each catalogue id the design used to its raw YAML mapping, as
-    ``specgen.api.catalog_entries`` builds it: what changes the part and nothing else. Covered: the
-    whole spec except ``history``, ``status`` and ``revision`` (module docstring); each catalogue
-    entry the design read, without its ``source`` text and prices; the shop figures the design
-    reads (current densities, bulge factor, lead length, flux limit, hot-spot margin, hipot and
-    insulation-resistance rules, test tolerances). Not covered: the shop's name, currency, rates,
-    margin and labor times, the number format, where the register lives, any ``source:`` text.
-
-    References: FIPS 180-4 (SHA-256) through hashlib.
-    """
-    # each side normalised on its own so an error names the spec's key path (or the catalogue entry);
-    # normalising again inside canonical() changes nothing
-    lines = getattr(spec_data, "key_lines", None) or {}
-    content: dict[str, Any] = {}
-    for key, value in spec_content(spec_data).items():
-        k = _norm_key(key)
-        if k in content:
-            raise SpecError(f"two keys read as {k!r} once spaces are normalised", line=lines.get(key), path=k)
-        content[k] = normalise(value, k, lines.get(key))
-    payload = {"scheme": FINGERPRINT_SCHEME, "spec": normalise(content),
-               "catalog": normalise(dict(catalog_entries or {}), "catalog")}
-    return hashlib.sha256(canonical(payload)).hexdigest()
-
-
-def short(fp: str) -> str:
-    """The first 12 hex digits of a fingerprint, for documents and messages."""
-    return str(fp)[:12]
-
-
-def component_fingerprints(spec_data: Mapping, catalog_entries: Mapping[str, Mapping]
-                           ) -> dict[str, str]:
-    """Short fingerprints of each part of the input: ``spec/<top-level key>``, ``catalog/<id>``.
-
-    Stored (optionally) with a release as ``parts:``, they let ``check_release`` say *what*
-    changed after the release; the full fingerprint stays the integrity check.
-    """
-    out = {}
-    for key, value in spec_content(spec_data).items():
-        name = f"spec/{_norm_key(key)}"
-        out[name] = short(hashlib.sha256(canonical([name, value])).hexdigest())
-    for cid, entry in (catalog_entries or {}).items():
-        name = f"catalog/{_norm_key(cid)}"
-        out[name] = short(hashlib.sha256(canonical([name, entry])).hexdigest())
-    return dict(sorted(out.items()))
-
-
-def _component_label(name: str) -> str:
-    kind, _, what = name.partition("/")
-    return f"catalogue entry {what}" if kind == "catalog" else what
-
-
-def changed_components(recorded: Mapping[str, Any], current: Mapping[str, str]) -> list[str]:
-    """What differs between recorded and current ``component_fingerprints``, one phrase each."""
-    out = []
-    for name in sorted(set(recorded) | set(current)):
-        label = _component_label(name)
-        if name not in current:
-            gone = "removed" if name.startswith("spec/") else "no longer used"
-            out.append(f"{label} {gone}")
-        elif name not in recorded:
-            out.append(f"{label} added" if name.startswith("spec/") else f"{label} now used")
-        elif str(recorded[name]) != current[name]:
-            out.append(f"{label} changed")
-    return out
 
 
 @dataclass(frozen=True)
@@ -652,7 +468,7 @@ class _Doc:
             elif isinstance(value, list) and value and all(isinstance(v, Mapping) for v in value):
                 lines.append(f"{lead}{key}:")
                 pad = " " * (dash_col + 1 + len(gap) + map_indent)
-                for item in value:        # one block mapping per item, every value a quoted string
+                for item in value:        # one block mapping per item
                     for j, (k, v) in enumerate(item.items()):
                         mark = "- " if j == 0 else "  "
                         lines.append(f"{pad}{mark}{_yaml_scalar(str(k))}: {_yaml_scalar(str(v))}")
@@ -873,135 +689,6 @@ def start_next_draft_file(path: str | os.PathLike) -> str:
 
 
 # ----------------------------------------------------------------------------------------------
-# Git
-
-def _git(args: Sequence[str], cwd: str | os.PathLike, what: str | None = None
-         ) -> subprocess.CompletedProcess:
-    import subprocess
-
-    env = dict(os.environ, LC_ALL="C", GIT_TERMINAL_PROMPT="0")
-    try:
-        return subprocess.run(["git", *args], cwd=cwd, capture_output=True, env=env,
-                              timeout=120)
-    except FileNotFoundError:
-        raise SpecError("git is not installed (needed for FILE@REV and --commit)",
-                        file=what) from None
-    except subprocess.TimeoutExpired:
-        raise SpecError(f"git {args[0]} did not finish within 120 s", file=what) from None
-
-
-def _git_message(proc: subprocess.CompletedProcess) -> str:
-    lines = [ln.strip() for ln in proc.stderr.decode("utf-8", "replace").splitlines()
-             if ln.strip() and not ln.startswith("hint:")]
-    msg = lines[-1] if lines else proc.stdout.decode("utf-8", "replace").strip()
-    return re.sub(r"^(fatal|error): ", "", msg)
-
-
-def _repo_path(path: Path, what: str) -> tuple[str, str]:
-    """(work tree top level, path relative to it in POSIX form) for a file that may not exist."""
-    folder = path.parent if str(path.parent) else Path(".")
-    if not folder.is_dir():
-        raise SpecError(f"no such folder '{folder}'", file=what)
-    proc = _git(["rev-parse", "--show-toplevel"], folder, what)
-    if proc.returncode != 0:
-        raise SpecError("is not inside a git work tree", file=what)
-    top = os.path.realpath(proc.stdout.decode("utf-8").strip())
-    full = os.path.join(os.path.realpath(folder), path.name)
-    rel = os.path.relpath(full, top)
-    if rel.startswith(".."):
-        raise SpecError("is outside its git work tree", file=what)
-    return top, Path(rel).as_posix()
-
-
-def split_ref(spec_ref: str) -> tuple[str, str | None]:
-    """``PATH@GITREV`` -> (PATH, GITREV); a plain path, or an existing file with '@', -> (PATH, None).
-
-    A rev may itself hold '@' (``HEAD@{1}``): the split is at the first '@' whose left side is
-    an existing file, else at the first '@'.
-    """
-    if "@" not in spec_ref or Path(spec_ref).is_file():
-        return spec_ref, None
-    cuts = [i for i, c in enumerate(spec_ref) if c == "@"]
-    cut = next((i for i in cuts if Path(spec_ref[:i]).is_file()), cuts[0])
-    return spec_ref[:cut], spec_ref[cut + 1:]
-
-
-def read_rev(spec_ref: str) -> tuple[str, str]:
-    """(display name, text) of a spec given as a path or as ``PATH@GITREV``.
-
-    The git form reads the file as it was in that revision (``git show REV:path``, run in the
-    file's repository); the file need not exist in the work tree any more. Not a repository,
-    an unknown revision or a file missing from it are SpecErrors of one line.
-    """
-    from .loading import decode_text, limit_for, read_text, too_big
-
-    path_str, rev = split_ref(str(spec_ref))
-    if rev is None:
-        return path_str, read_text(path_str, "spec")
-    display = f"{path_str}@{rev}"
-    if not path_str:
-        raise SpecError("expected PATH@GITREV, the path is missing", file=display)
-    if not rev:
-        raise SpecError("expected PATH@GITREV, the revision after '@' is missing", file=display)
-    if rev.startswith("-") or any(c in rev for c in "\n\r\0"):
-        raise SpecError(f"'{rev}' is not a git revision", file=display)
-    top, rel = _repo_path(Path(path_str), display)
-    proc = _git(["rev-parse", "--verify", "--quiet", f"{rev}^{{commit}}"], top, display)
-    if proc.returncode != 0:
-        raise SpecError(f"unknown git revision '{rev}'", file=display)
-    commit = proc.stdout.decode().strip()
-    obj = f"{commit}:{rel}"
-    proc = _git(["cat-file", "-t", obj], top, display)
-    if proc.returncode != 0:
-        raise SpecError(f"{rel} is not in git revision {rev}", file=display)
-    if proc.stdout.decode().strip() != "blob":
-        raise SpecError(f"{rel} is a folder in git revision {rev}, expected a spec file",
-                        file=display)
-    limit = limit_for("spec")                # the same limit as a spec read from the work tree
-    proc = _git(["cat-file", "-s", obj], top, display)
-    size = int(proc.stdout.decode().strip() or 0) if proc.returncode == 0 else 0
-    if size > limit:
-        raise SpecError(too_big(size, "spec", limit), file=display)
-    proc = _git(["cat-file", "blob", obj], top, display)
-    if proc.returncode != 0:
-        raise SpecError(f"git could not read it: {_git_message(proc)}", file=display)
-    if len(proc.stdout) > limit:             # the size asked first, checked again on what came back
-        raise SpecError(too_big(len(proc.stdout), "spec", limit), file=display)
-    return display, decode_text(proc.stdout, display)
-
-
-def release_tag(part: str, revision: str) -> str:
-    """A tag name for a release, e.g. ``BH-1042-rev-B`` (spaces become '-')."""
-    return f"{_WS.sub('-', str(part).strip())}-rev-{revision}"
-
-
-def git_commit_and_tag(path: str | os.PathLike, message: str, tag: str) -> str:
-    """Commit just this spec file and tag the commit (annotated); never pushes.
-
-    Other changes in the work tree, staged or not, are left out of the commit (``git commit
-    -- path`` commits only that path). Refused before anything is done: not a git work tree,
-    an invalid or existing tag, no git identity. Returns the new commit's hash.
-    """
-    p = Path(path)
-    what = str(path)
-    if not p.is_file():
-        raise SpecError("no such spec file", file=what)
-    top, rel = _repo_path(p, what)
-    if not tag or tag.startswith("-") or \
-            _git(["check-ref-format", f"refs/tags/{tag}"], top, what).returncode != 0:
-        raise SpecError(f"'{tag}' is not a valid git tag name", file=what)
-    if _git(["rev-parse", "--verify", "--quiet", f"refs/tags/{tag}"], top, what).returncode == 0:
-        raise SpecError(f"git tag '{tag}' already exists; a released revision is tagged once",
-                        file=what)
-    if _git(["var", "GIT_COMMITTER_IDENT"], top, what).returncode != 0:
-        raise SpecError("git does not know who you are: set user.name and user.email",
-                        file=what)
-    for args in (["add", "--", rel], ["commit", "-q", "-m", message, "--", rel],
-                 ["tag", "-a", "-m", message, tag, "HEAD"]):
-        proc = _git(args, top, what)
-        if proc.returncode != 0:
-            raise SpecError(f"git {args[0]} failed: {_git_message(proc)}", file=what)
-    return _git(["rev-parse", "HEAD"], top, what).stdout.decode().strip()
 
 
 __all__ = [

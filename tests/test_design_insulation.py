@@ -145,3 +145,20 @@ def test_tie_pin_across_a_barrier_and_a_section_on_one_pin_refused(cat):
         _variant(cat, "BH-2210", ('    section_pins: ["2"]', '    section_pins: ["1"]'))
     with pytest.raises(SpecError, match="lead 'H1' is already used"):
         _variant(cat, "BH-4120", ("    start: X1", "    start: H1"))
+
+
+def test_the_toroid_work_order_insulates_the_core_before_the_first_winding(cat):
+    """The core wrap is a step of its own before any winding (the barrier to the core counts on it)."""
+    from specgen.documents.settings import DocumentSettings
+    from specgen.documents.workorder import build_context
+    ok = design_file(DEMOS["BH-4120"], cat=cat)
+    assert ok.floor.core_wrap is not None and ok.floor.core_wrap.id == "TAPE-PET50-19MM"
+    steps = build_context(ok, DocumentSettings.from_shop(cat.shop), number="WO-TEST", qty=1)["steps"]
+    first = steps[0]
+    assert first["heading"].startswith("Insulate the core") and "TAPE-PET50-19MM" in first["lines"][0]
+    assert "2 layers, each half-lapped" in first["lines"][0]
+    assert all(s["kind"] != "wind" for s in steps[:1]) and any(s["kind"] == "wind" for s in steps[1:])
+    bare = _variant(cat, "BH-4120", ("  core_wrap: {tape: TAPE-PET50-19MM, layers: 2}", ""))
+    assert bare.floor.core_wrap is None
+    assert not any(s["heading"].startswith("Insulate the core") for s in
+                   build_context(bare, DocumentSettings.from_shop(cat.shop), number="WO-TEST", qty=1)["steps"])

@@ -1,8 +1,10 @@
 """The documents are built from the Design (and a few shop figures) alone, never from the catalogue.
 
-Architecture checks, not engineering ones: an AST walk of every documents module for an import of
-``specgen.catalog`` or a read of a ``cat`` object, and a work order rendered in a fresh interpreter where
-``specgen.catalog`` cannot be imported at all, byte-equal to the one rendered with the catalogue loaded.
+Architecture checks, not engineering ones: an AST walk of every documents module and of the quote's cost
+model for an import of ``specgen.catalog`` or a read of a ``cat`` object; a work order rendered in a fresh
+interpreter where ``specgen.catalog`` cannot be imported at all, byte-equal to the one rendered with the
+catalogue loaded; and the quotes and a change summary priced and rendered where the catalogue cannot be
+loaded, byte-equal too.
 """
 
 from __future__ import annotations
@@ -22,13 +24,17 @@ from specgen.design.spec import load_spec
 from specgen.documents import workorder as wo
 from specgen.documents.settings import DocumentSettings
 
-DOCUMENTS = Path(specgen.__file__).parent / "documents"
+PACKAGE = Path(specgen.__file__).parent
+DOCUMENTS = PACKAGE / "documents"
+#: Every documents module, and the quote's cost model (the quote and the change summary's costs).
+MODULES = [*sorted(DOCUMENTS.glob("*.py")), PACKAGE / "quote.py"]
 
-#: The issue flow, which loads the catalogue to run the design and the release gate before a
-#: document is made, still lives beside the work order; these functions (and only these) may read it.
+#: The entry points, which load the catalogue to run the design and the release gate (and, for the
+#: quote, read the prices once) before a document is made; these functions (and only these) may read it.
 ISSUE_FLOW = {
-    "workorder.py": {"preflight", "issue_from_design", "issue_work_order"},
-    "batch.py": {"issue_batch"},
+    "documents/workorder.py": {"preflight", "issue_from_design", "issue_work_order"},
+    "documents/batch.py": {"issue_batch"},
+    "quote.py": {"build_quote"},
 }
 
 
@@ -50,23 +56,38 @@ def _catalogue_reads(tree: ast.AST, module: str) -> list[str]:
     return found
 
 
+def _type_checking_only(node: ast.stmt) -> bool:
+    """``if TYPE_CHECKING:``: imports for annotations only, never run, so they read nothing."""
+    return isinstance(node, ast.If) and isinstance(node.test, ast.Name) and node.test.id == "TYPE_CHECKING" \
+        and not node.orelse
+
+
 def _without_issue_flow(tree: ast.Module, allowed: set[str]) -> ast.Module:
-    body = [n for n in tree.body if not (isinstance(n, ast.FunctionDef) and n.name in allowed)]
+    body = [n for n in tree.body if not (isinstance(n, ast.FunctionDef) and n.name in allowed)
+            and not _type_checking_only(n)]
     return ast.Module(body=body, type_ignores=[])
 
 
-@pytest.mark.parametrize("path", sorted(DOCUMENTS.glob("*.py")), ids=lambda p: p.name)
+def _name(path: Path) -> str:
+    return path.relative_to(PACKAGE).as_posix()
+
+
+@pytest.mark.parametrize("path", MODULES, ids=_name)
 def test_documents_modules_do_not_read_the_catalogue(path):
     tree = ast.parse(path.read_text(encoding="utf-8"))
-    allowed = ISSUE_FLOW.get(path.name, set())
+    allowed = ISSUE_FLOW.get(_name(path), set())
     assert {n.name for n in tree.body if isinstance(n, ast.FunctionDef)} >= allowed    # the list stays true
-    assert _catalogue_reads(_without_issue_flow(tree, allowed), path.name) == []
+    assert _catalogue_reads(_without_issue_flow(tree, allowed), _name(path)) == []
 
 
 def test_the_walk_finds_a_catalogue_read():
     # the check itself can fail: a document function that looks a tape up is caught
     bad = ast.parse("from ..catalog.loader import load_catalog\ndef f(design, cat):\n    return cat.tapes\n")
     assert len(_catalogue_reads(bad, "x.py")) == 3
+    # an annotation-only import is left out, the same import at run time is not
+    typed = ast.parse("if TYPE_CHECKING:\n    from .catalog.models import Shop\n"
+                      "if RUNTIME:\n    from .catalog.models import Shop\n")
+    assert len(_catalogue_reads(_without_issue_flow(typed, set()), "x.py")) == 1
 
 
 @pytest.fixture(scope="module")
@@ -114,3 +135,54 @@ def test_the_floor_records_carry_what_the_drawings_need(demo):
                     # the build's own rule: a toroid's tape is half-lapped (twice its thickness per wrap)
                     assert wrap.build_m == pytest.approx(cat.tapes[wrap.id].thickness_m * wrap.layers
                                                          * (2.0 if d.core.shape == "toroid" else 1.0), rel=1e-12)
+
+
+def test_quotes_and_change_summary_render_where_the_catalogue_cannot_be_loaded(tmp_path):
+    # the quote priced from the Design, its PriceList and its release verdict, and a change summary,
+    # in an interpreter where the catalogue loader cannot be imported: the same HTML as here
+    import datetime as dt
+
+    from specgen import diff, quote
+    from specgen.documents.change_doc import change_html
+    from specgen.documents.quote_doc import render_quote_html
+    from specgen.lifecycle import release_gate
+    from specgen.prices import price_list
+
+    cat = load_catalog(None)
+    issued = dt.date(2026, 12, 2)
+    items = []
+    for p in api.demo_specs():
+        spec = load_spec(p)
+        d = api.run_design(spec, cat)
+        items.append((spec, d, price_list(cat, d), release_gate(spec, d, cat)))
+    demo = Path(specgen.__file__).parent / "demo"
+    summary = diff.compare_refs(str(demo / "BH-2210.yaml"), str(demo / "BH-1042.yaml"), cat)
+    blob = tmp_path / "inputs.pickle"
+    blob.write_bytes(pickle.dumps((items, summary)))
+    script = (
+        "import datetime, pickle, sys\n"
+        "sys.modules['specgen.catalog.loader'] = None   # the catalogue cannot be loaded\n"
+        "from specgen.quote import quote_design\n"
+        "from specgen.documents.quote_doc import render_quote_html\n"
+        "from specgen.documents.change_doc import change_html\n"
+        f"items, summary = pickle.loads(open({str(blob)!r}, 'rb').read())\n"
+        "out = []\n"
+        "for spec, d, prices, verdict in items:\n"
+        "    q = quote_design(spec, d, prices, verdict, (10, 500), issued=datetime.date(2026, 12, 2),\n"
+        "                     allow_failed=True)\n"
+        "    out += [render_quote_html(q), render_quote_html(q, True)]\n"
+        "out.append(change_html(summary))\n"
+        "assert 'specgen.api' not in sys.modules         # (it imports the loader)\n"
+        f"open({str(tmp_path / 'out.pickle')!r}, 'wb').write(pickle.dumps(out))\n"
+    )
+    run = subprocess.run([sys.executable, "-c", script], capture_output=True, text=True, timeout=300)
+    assert run.returncode == 0, run.stderr[-2000:]
+    alone = pickle.loads((tmp_path / "out.pickle").read_bytes())
+    here = []
+    for spec, _d, _prices, _verdict in items:
+        q = quote.build_quote(spec, _d, cat, (10, 500), issued=issued, allow_failed=True)
+        here += [render_quote_html(q), render_quote_html(q, True)]
+    here.append(change_html(summary))
+    assert alone == here
+    # the summary did compare the costs, priced through the quote's PriceList
+    assert summary.cost_note == "" and "unit price at a lot of 100" in alone[-1]

@@ -103,5 +103,5 @@ def test_every_work_order_terminates_the_leads_and_marks_the_part(cat, designs, 
 
 def test_counts_on_the_work_order_read_in_the_right_number(cat, designs):
     html = wo.render_work_order_html(designs["BH-3305"], DocumentSettings.from_shop(cat.shop), number="WO-T-1", qty=10)
-    assert "2 pieces per set" in html and not re.search(r"\w\(s\)", html)
+    assert "2 halves to a set" in html and not re.search(r"\w\(s\)", html)
     assert wo.in_number("1 set(s) of 2 piece(s)") == "1 set of 2 pieces"

@@ -36,6 +36,7 @@ from specgen.catalog.loader import load_catalog
 from specgen.design.result import Check
 from specgen.design.spec import load_spec
 from specgen.errors import DesignFailed, SpecError
+from specgen.prices import price_list
 
 DEMO = Path(__file__).resolve().parent.parent / "specgen" / "demo"
 ISSUED = dt.date(2026, 11, 2)
@@ -232,9 +233,10 @@ def test_unit_price_falls_as_quantity_rises(cat, designs, part):
 @pytest.mark.parametrize("part", ["BH-1042", "BH-2210", "BH-3305", "BH-4120", "BH-5018"])
 def test_copper_plus_and_minus_20_percent_move_only_the_copper_share(cat, designs, part):
     _path, _spec, d = designs[part]
-    base = qm.material_lines(d, cat)
+    prices = price_list(cat, d)
+    base = qm.material_lines(d, prices)
     for factor in (Decimal("0.8"), Decimal("1.2")):
-        moved = qm.material_lines(d, cat, factor)
+        moved = qm.material_lines(d, prices, factor)
         for a, b in zip(base, moved):
             if a.copper:
                 assert b.amount == a.amount * factor           # exactly, in Decimal
@@ -339,6 +341,17 @@ def test_time_model_is_the_shop_figures_typed_at_load(cat):
     model = qm.time_model(cat.shop)
     assert model is cat.shop.labor
     assert model.bobbin_turns_per_minute == Decimal(600) and model.per_winding_s == Decimal(90)
+
+
+@pytest.mark.parametrize("table,kind", [("bobbins", "bobbin"), ("wires", "wire")])
+def test_a_stock_item_the_catalogue_does_not_price_is_refused_by_name(cat, designs, table, kind):
+    # the price list carries only what the catalogue has; the quote names the missing item and its key
+    _path, spec, d = designs["BH-1042"]
+    item = next(m.id for m in d.materials if m.kind == kind)
+    with pytest.raises(SpecError) as err:
+        qm.build_quote(spec, d, dataclasses.replace(cat, **{table: {}}), (100,), issued=ISSUED)
+    assert str(err.value).count(f"the catalogue has no {kind} '{item}' to price") == 1
+    assert err.value.path == f"{table}.{item}"
 
 
 def test_profit_margin_of_100_percent_is_refused(cat):

@@ -89,7 +89,7 @@ def _pct(r: Reader, key: str, default=None, maximum: Decimal = Decimal(10)) -> D
     """A fraction written '45 %' (or a plain number 0.45), kept as Decimal, from 0 to ``maximum``."""
     from decimal import InvalidOperation
 
-    value = r.raw(key, default)
+    value = r.checked_raw(key, "percent") if default is None else r.checked_raw(key, "percent", default)
     if value is default and default is not None:
         return Decimal(str(default))
     text = str(value).strip()

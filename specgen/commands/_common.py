@@ -19,8 +19,24 @@ import sys
 from collections.abc import Iterator
 
 import typer
+from typer.core import TyperGroup
 
 from ..errors import DesignFailed, SpecError
+
+
+class WholeHelpGroup(TyperGroup):
+    """A command group whose help lists each command with the whole first sentence of its description
+    (click's own list cuts it at the terminal width and ends it with '...'); long lines wrap instead."""
+
+    def format_commands(self, ctx, formatter) -> None:
+        rows = []
+        for name in self.list_commands(ctx):
+            cmd = self.get_command(ctx, name)
+            if cmd is not None and not cmd.hidden:
+                rows.append((name, cmd.get_short_help_str(limit=10_000)))
+        if rows:
+            with formatter.section("Commands"):
+                formatter.write_dl(rows)
 
 
 class _PipeSafe(io.TextIOBase):

@@ -7,10 +7,10 @@ from pathlib import Path
 import typer
 
 from ..errors import SpecError
-from ._common import guarded, print_json
+from ._common import WholeHelpGroup, guarded, print_json
 from .options import CatalogOpt, CsvOpt, JsonOpt, print_csv
 
-app = typer.Typer(name="catalog", no_args_is_help=True, rich_markup_mode=None,
+app = typer.Typer(name="catalog", cls=WholeHelpGroup, no_args_is_help=True, rich_markup_mode=None,
                   help="The shop's stock: list, show, check.")
 
 KINDS = ("wires", "cores", "bobbins", "materials", "tapes", "sleevings", "varnishes")
@@ -25,12 +25,11 @@ def kind_table(kind: str) -> str:
     return table
 
 
-@app.command("list")
+# the kinds in the help come from KINDS (typer leaves an argument's own help out of the plain help)
+@app.command("list", help=f"List one kind of catalogue item. KIND is one of: {', '.join(KINDS)} (or the singular).")
 @guarded
 def catalog_list(kind: str = typer.Argument(..., metavar="KIND"), catalog: Path | None = CatalogOpt,
                  as_json: bool = JsonOpt, as_csv: bool = CsvOpt):
-    """List one kind of catalogue item. KIND is one of: wires, cores, bobbins, materials, tapes,
-    sleevings, varnishes (or the singular)."""
     from .. import load_catalog
     from ..catalog import views
 

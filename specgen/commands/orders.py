@@ -15,6 +15,7 @@ from typing import Any
 
 import typer
 
+from specgen.commands._common import WholeHelpGroup
 from specgen.errors import SpecError, escape_controls
 from specgen.freetext import check_free_text, check_name
 from specgen.register import (
@@ -31,6 +32,7 @@ from specgen.register import (
 
 app = typer.Typer(
     name="orders",
+    cls=WholeHelpGroup,
     help="The shop's register of work orders and quotes: list, show, change state, stale numbers, trace, export.",
     no_args_is_help=True,
 )

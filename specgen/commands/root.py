@@ -12,11 +12,11 @@ from pathlib import Path
 import typer
 
 from .. import __version__
-from ._common import guarded
+from ._common import WholeHelpGroup, guarded
 from .options import CatalogOpt, JsonOpt
 
 # rich_markup_mode=None: plain help, so the quick commands do not import rich (~50 ms)
-app = typer.Typer(name="specgen", no_args_is_help=True, add_completion=False, pretty_exceptions_enable=False,
+app = typer.Typer(name="specgen", cls=WholeHelpGroup, no_args_is_help=True, add_completion=False, pretty_exceptions_enable=False,
                   rich_markup_mode=None,
                   help="Specs, calculations, work orders and quotes for custom wound magnetics.")
 
@@ -57,6 +57,21 @@ def demo_cmd(out: Path = typer.Option(Path("specgen-demo"), "--out", metavar="DI
     from ..demo import run_demo
 
     run_demo(out, catalog, echo=typer.echo)
+
+
+@app.command("schema")
+@guarded
+def schema_cmd(kind: str = typer.Argument("spec", metavar="[spec|catalog|requirement]",
+                                          help="Which file: a part spec (default), a catalogue file or a requirement.")):
+    """Print the JSON Schema of a spec, a catalogue file or a requirement file, for an editor's completion."""
+    import json
+
+    from ..errors import SpecError
+    from ..schema import KINDS, schema
+
+    if kind not in KINDS:
+        raise SpecError(f"unknown kind '{kind}'; one of {', '.join(KINDS)}", path="KIND")
+    typer.echo(json.dumps(schema(kind), indent=2, ensure_ascii=False))
 
 
 # commands that live in their own modules (catalogue, work orders, register, quotes, revisions, search)

@@ -50,8 +50,9 @@ def run_demo(out: Path, catalog=None, echo=print) -> dict:
         designs[spec.part] = (path, spec, d)
         write_atomic(out / "designs" / f"{spec.part}.txt", design_report(d) + "\n")
         write_atomic(out / "designs" / f"{spec.part}.json", json.dumps(d.to_dict(), indent=2, ensure_ascii=False) + "\n")
-        echo(f"{spec.part:8} {d.title[:56]:56} {'FAIL' if d.failed else 'ok':4} {len(d.warnings)} warning(s), "
-             f"hot spot {d.hot_spot_c:.0f} °C")
+        echo(f"{spec.part:8} {'FAIL' if d.failed else 'ok':4} hot spot {d.hot_spot_c:3.0f} °C  {d.title}")
+        for w in d.warnings:             # every warning is shown, in full
+            echo(f"{'':8} warning: {w.message}")
 
     echo("== work orders")
     (out / "workorders").mkdir(exist_ok=True)

@@ -39,7 +39,7 @@ def _numbers(obj: Any, key: str = "") -> Iterator[tuple[str, float]]:
         yield key, float(obj)
 
 
-def outside_range(data: dict) -> Iterator[tuple[str, float, units.Dimension, float]]:
+def outside_range(data: dict[str, Any]) -> Iterator[tuple[str, float, units.Dimension, float]]:
     """(field, value, dimension, largest) of each finite result in ``data`` (a Design's ``to_dict()``)
     outside its dimension's physical range; non-finite values are the caller's (they are never valid)."""
     for key, value in _numbers(data):

@@ -13,6 +13,7 @@ from ..catalog.models import Catalog
 from .acceptance import AcceptedWarning
 from .build import tape_factor
 from .result import CoreOutline, FloorData, HistoryEntry, PinLayout, SectionTapes, TapeWrap, VarnishCure, WindingResult
+from .spec import TapeUse
 from .state import BuiltWindow, Parts
 
 
@@ -76,10 +77,14 @@ def varnish_cure(cat: Catalog, varnish_id: str | None) -> VarnishCure | None:
 
 
 def floor_data(cat: Catalog, parts: Parts, built: BuiltWindow, windings: Iterable[WindingResult],
-               varnish_id: str | None) -> FloorData:
+               varnish_id: str | None, core_wrap: TapeUse | None = None) -> FloorData:
     ws = tuple(windings)
+    wrap = None
+    if core_wrap is not None and parts.core.is_toroid:
+        # half-lapped, so each wrap builds two thicknesses (the same factor the build and the barrier count)
+        wrap = tape_wrap(cat, core_wrap.tape, core_wrap.layers, 2.0)
     return FloorData(sections=section_tapes(cat, parts, built, ws), outline=core_outline(parts),
-                     pins=pin_layout(parts, ws), varnish=varnish_cure(cat, varnish_id))
+                     pins=pin_layout(parts, ws), varnish=varnish_cure(cat, varnish_id), core_wrap=wrap)
 
 
 def history_entries(history: Iterable[Mapping[str, object]]) -> tuple[HistoryEntry, ...]:
@@ -89,7 +94,9 @@ def history_entries(history: Iterable[Mapping[str, object]]) -> tuple[HistoryEnt
                               fingerprint=str(e.get("fingerprint", "") or ""),
                               accepted=tuple(a for a in _items(e.get("accepted")) if isinstance(a, AcceptedWarning)),
                               supersedes=str(e.get("supersedes", "") or ""),
-                              effective=str(e.get("effective", "") or "")) for e in history)
+                              effective=str(e.get("effective", "") or ""),
+                              open_orders=(tuple(str(n) for n in _items(e.get("open_orders")))
+                                           if e.get("open_orders") is not None else None)) for e in history)
 
 
 def _items(value: object) -> tuple[object, ...]:

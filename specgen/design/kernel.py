@@ -4,7 +4,8 @@ Every function takes floats or numpy arrays (broadcast together, one element per
 for all-scalar input, else an array of the broadcast shape; "scalar" below marks arguments that must be one
 value (a material's Steinmetz coefficients, a waveform name). The physics lives in ``specgen.physics``; the
 kernel composes it with the shop's rules (``limits``). Kind codes in arrays: ``FORMER_CODE`` and
-``WIRE_CODE``.
+``WIRE_CODE``. Laying the wire lives in ``kernel_winding``, the copper's resistance in ``kernel_copper``; this
+module re-exports both, so callers read every step as ``kernel.<name>``.
 
 Flux and turns
   b_sat_t(b_sat_25c_t, b_sat_100c_t, temp_c)                        B_sat at a temperature
@@ -22,6 +23,12 @@ Flux and turns
   magnetizing_current_a(v, freq_hz, inductance_h, waveform, duty)    (rms, peak)
   output_voltage_ok(asked_v, delivered_v, minus, plus)              delivered within asked -minus/+plus
   secondary_turns_within(np_turns, v_primary, asked_v, drop_fraction, minus, plus)  Ns meeting it, 0: none
+  primary_current_a(p_out_w, efficiency, v_primary, i_magnetizing_a)  load referred in quadrature with I_mag
+  secondary_turns_for_voltage(np_turns, v_primary, want_v)           open-circuit whole turns
+  loaded_output_v(ratio, v_primary_after_drop, load_a, r_secondary_ohm, x_drop_v)  full-load voltage
+  secondary_turns_to_add(want_v, loaded_v, volts_per_turn)           the drop made up, whole turns
+  ripple_flux_t(inductance_h, ripple_a, turns, ae_m2)               peak-to-peak flux of a ripple
+  least_loss_turns(n0, beta, core_w, copper_w, max_ratio)            core loss ~ N^-beta against copper ~ N^2
 Winding
   pitch_and_height(wire, strands) / wire_geometry(wire, strands) / stack_wires(geometries)   (scalar wire)
   mean_turn_length_m(former_kind, centre_m, ...)                     MLT at a layer's centre line
@@ -48,18 +55,45 @@ Loss and temperature
 from __future__ import annotations
 
 import math
-from collections.abc import Mapping, Sequence
-from dataclasses import dataclass
-from typing import TYPE_CHECKING, Any, TypeAlias
+from collections.abc import Mapping
+from typing import Any
 
 import numpy as np
 import numpy.typing as npt
 
-from ..physics import coreloss, dowell, faraday, geometry, thermal
+from ..physics import coreloss, faraday, thermal
 from ..physics import gap as gapmod
 from ..physics import wire as wiremod
-from ..physics.layers import layer_fr
+from ..physics._types import Arr, ArrayLike
+from ..physics._types import all_scalar as _scalar
+from ..physics._types import as_array as _f
+from ..physics._types import out as _out
 from ..physics.permeability import bias_fit_fraction
+from .kernel_copper import (
+    Harmonics,
+    copper_loss_w,
+    current_harmonics,
+    dc_resistance_ohm,
+    layer_ac_factor,
+    layer_delta,
+    layer_porosity,
+    section_ac_factor,
+    skin_depth_m,
+)
+from .kernel_winding import (
+    FORMER_CODE,
+    WIRE_CODE,
+    FormerArrays,
+    SectionWinding,
+    WireGeometry,
+    layer_capacity,
+    layer_centre_m,
+    mean_turn_length_m,
+    pitch_and_height,
+    stack_wires,
+    wind_section,
+    wire_geometry,
+)
 from .limits import (
     COOLING_RISE_FACTOR,
     FIRST_GUESS_RISE_K,
@@ -80,9 +114,6 @@ from .limits import (
 )
 from .state import ThermalState
 
-if TYPE_CHECKING:
-    from ..catalog.models import Wire
-
 __all__ = [
     "COOLING_RISE_FACTOR", "FIRST_GUESS_RISE_K", "FORMER_CODE", "GAP_STEP_M", "LITZ_POROSITY_FACTOR",
     "LITZ_STRAND_MAX_SKIN_DEPTHS", "MAX_BUNDLES_LITZ", "MAX_HOT_C", "MAX_STRANDS_ROUND", "MAX_STRANDS_TIW",
@@ -93,31 +124,20 @@ __all__ = [
     "current_harmonics", "dc_resistance_ohm", "first_guess_thermal", "flux_limit_source", "flux_limit_t", "gap_for_inductance_m",
     "gapped_turns_and_gap", "hot_spot_c", "layer_ac_factor", "layer_capacity", "layer_centre_m", "layer_delta",
     "layer_porosity", "magnetizing_current_a", "mean_turn_length_m", "output_voltage_ok", "secondary_turns_within",
+    "least_loss_turns", "loaded_output_v", "primary_current_a", "ripple_flux_t", "secondary_turns_for_voltage",
+    "secondary_turns_to_add",
     "pitch_and_height", "powder_flux_t", "round_gap_down_m",
     "section_ac_factor", "skin_depth_m", "stack_wires", "temperature_rise_k", "thermal_state",
     "turns_for_inductance", "turns_for_peak_flux", "turns_for_voltage", "unipolar_swing_t", "whole_turns",
     "wind_section", "wire_geometry",
 ]
 
-Arr: TypeAlias = float | npt.NDArray[np.float64]
-ArrayLike = npt.ArrayLike
 MU0_H_M = wiremod.MU0_H_M
-FORMER_CODE = {"rect": 0, "round": 1, "toroid": 2}
-WIRE_CODE = {"round": 0, "litz": 1, "tiw": 2, "foil": 3, "strip": 4}
-_TOROID = FORMER_CODE["toroid"]
 
 
-def _f(x: Any) -> npt.NDArray[np.float64]:
-    return np.asarray(x, dtype=float)
-
-
-def _out(x: Any) -> Arr:
-    a = np.asarray(x, dtype=float)
-    return float(a) if a.ndim == 0 else a
-
-
-def _scalar(*xs: Any) -> bool:
-    return all(np.ndim(x) == 0 for x in xs)
+def _float(x: Any) -> float:
+    """One value (a Python or numpy scalar) as a float, for the scalar paths."""
+    return float(x)
 
 
 # ================================================================================================ flux and turns
@@ -213,11 +233,12 @@ def _gap_bisect(target_h: npt.NDArray[np.float64], n: npt.NDArray[np.float64], a
     out[closed] = (k / target_h - le / mu)[closed]
     b = np.flatnonzero(reach & ~closed)
     if b.size:
+        nb, aeb, leb, mub, wb, tb = n[b], ae[b], le[b], mu[b], window[b], target_h[b]
         lo = np.log(1e-12 * upper[b])
         hi = np.log(upper[b])
         for _ in range(64):
             mid = 0.5 * (lo + hi)
-            above = _f(gapmod.inductance_gapped_h(n[b], ae[b], le[b], mu[b], np.exp(mid), window[b])) >= target_h[b]
+            above = _f(gapmod.inductance_gapped_h(nb, aeb, leb, mub, np.exp(mid), wb)) >= tb
             lo = np.where(above, mid, lo)
             hi = np.where(above, hi, mid)
         out[b] = np.exp(0.5 * (lo + hi))
@@ -314,401 +335,6 @@ def magnetizing_current_a(v: ArrayLike, freq_hz: ArrayLike, inductance_h: ArrayL
     return _out(pk * np.sqrt(d / 3.0)), _out(pk)
 
 
-# ================================================================================================ winding
-
-@dataclass(frozen=True, slots=True)
-class WireGeometry:
-    """What the build and the AC factor read of a wire with its strands in hand (floats, or arrays for rows)."""
-    kind: Any                     # WIRE_CODE (int, or an int array)
-    strand_diameter_m: Arr        # bare strand (round, litz, tiw)
-    strand_overall_m: Arr         # insulated strand (litz porosity)
-    thickness_m: Arr              # foil, strip
-    width_m: Arr
-    strands_in_hand: Arr
-    sub_layers: Arr               # Litz: strand layers per bundle layer, round(sqrt(strands)); else 1
-    copper_area_m2: Arr           # all strands in hand
-    pitch_m: Arr                  # along the layer per turn
-    layer_height_m: Arr
-    one_turn_per_layer: Any       # bool (foil), or a bool array
-
-
-def pitch_and_height(wire: Wire, strands: int) -> tuple[float, float, bool]:
-    """(pitch along the layer, layer height, one turn per layer) of a wire with ``strands`` in hand side by
-    side: foil is one full-width turn per layer; strip and round wire lie side by side."""
-    if wire.kind == "foil":
-        return wire.width_m, wire.thickness_m, True
-    if wire.kind == "strip":
-        return wire.overall_width_m * strands, wire.overall_thickness_m, False
-    return wire.overall_diameter_m * strands, wire.overall_diameter_m, False
-
-
-def wire_geometry(wire: Wire, strands: int) -> WireGeometry:
-    """A catalogue wire with its strands in hand as the kernel reads it (scalar)."""
-    pitch, height, foil = pitch_and_height(wire, strands)
-    k = max(1, int(round(math.sqrt(wire.strands)))) if wire.kind == "litz" else 1
-    return WireGeometry(kind=WIRE_CODE.get(wire.kind, 0), strand_diameter_m=wire.strand_diameter_m,
-                        strand_overall_m=wire.strand_overall_m or wire.overall_diameter_m,
-                        thickness_m=wire.thickness_m, width_m=wire.width_m, strands_in_hand=float(strands),
-                        sub_layers=float(k), copper_area_m2=wire.copper_area_m2 * strands, pitch_m=pitch,
-                        layer_height_m=height, one_turn_per_layer=foil)
-
-
-def stack_wires(geometries: Sequence[WireGeometry]) -> WireGeometry:
-    """Rows of wire geometries as one record of arrays (for the search's option tables)."""
-    def col(name: str, dtype: Any = float) -> Any:
-        return np.array([getattr(g, name) for g in geometries], dtype=dtype)
-    return WireGeometry(kind=col("kind", np.int8), strand_diameter_m=col("strand_diameter_m"),
-                        strand_overall_m=col("strand_overall_m"), thickness_m=col("thickness_m"),
-                        width_m=col("width_m"), strands_in_hand=col("strands_in_hand"), sub_layers=col("sub_layers"),
-                        copper_area_m2=col("copper_area_m2"), pitch_m=col("pitch_m"),
-                        layer_height_m=col("layer_height_m"), one_turn_per_layer=col("one_turn_per_layer", bool))
-
-
-def mean_turn_length_m(former_kind: Any, centre_m: ArrayLike, *, tube_width_m: ArrayLike = 0.0,
-                       tube_depth_m: ArrayLike = 0.0, od_m: ArrayLike = 0.0, id_m: ArrayLike = 0.0,
-                       core_height_m: ArrayLike = 0.0) -> Arr:
-    """Mean length of a turn whose centre line is ``centre_m`` out from the former: an offset rectangle
-    (rect tube), a circle (round tube) or the toroid's section perimeter grown by the build
-    (``physics.geometry``). ``former_kind``: 'rect' | 'round' | 'toroid' or FORMER_CODE values per row."""
-    if isinstance(former_kind, str):
-        if former_kind == "rect":
-            return _out(geometry.mlt_rect_m(tube_width_m, tube_depth_m, centre_m))
-        if former_kind == "round":
-            return _out(geometry.mlt_round_m(tube_width_m, centre_m))
-        return _out(geometry.toroid_turn_length_m(od_m, id_m, core_height_m, centre_m))
-    code = np.asarray(former_kind)
-    rect = geometry.mlt_rect_m(tube_width_m, tube_depth_m, centre_m)
-    rnd = geometry.mlt_round_m(tube_width_m, centre_m)
-    with np.errstate(invalid="ignore", divide="ignore"):
-        tor = geometry.toroid_turn_length_m(od_m, id_m, core_height_m, centre_m)
-    return _out(np.where(code == 0, rect, np.where(code == 1, rnd, tor)))
-
-
-def layer_centre_m(start_m: Arr, index: Arr, layer_height_m: Arr, layer_tape_m: Arr) -> Arr:
-    """Build from the former to the centre line of layer ``index`` (0-based) of a section starting at
-    ``start_m``: each layer its height, the layer tape between layers. (Plain arithmetic: floats stay floats,
-    arrays broadcast.)"""
-    return start_m + index * (layer_height_m + layer_tape_m) + layer_height_m / 2.0
-
-
-def layer_capacity(former_kind: Any, pitch_m: ArrayLike, usable_m: ArrayLike, id_m: ArrayLike, centre_m: ArrayLike,
-                   one_turn_per_layer: Any = False) -> tuple[Arr, Arr]:
-    """(turns one layer holds, room along it [m]). Bobbin: floor(usable breadth / pitch) (1e-9 slack),
-    foil one turn if it fits the breadth; room = the usable breadth. Toroid: the wire's centre line runs on
-    the layer's inner face, so the layer holds floor(pi (ID - 2 centre) / pitch) and room is that
-    circumference. ``former_kind``: a name (one former, floats) or FORMER_CODE per row."""
-    if isinstance(former_kind, str) and _scalar(pitch_m, usable_m, id_m, centre_m, one_turn_per_layer):
-        # one former, one layer (the engine's layer-by-layer build): the same rule without array overhead
-        p1 = float(np.asarray(pitch_m))
-        if former_kind == "toroid":
-            c1 = float(geometry.toroid_inner_circumference_m(id_m, centre_m))
-            return float(max(math.floor(c1 / p1 + 1e-9), 0)), c1
-        u1 = float(np.asarray(usable_m))
-        if one_turn_per_layer:
-            return (1.0 if p1 <= u1 + 1e-12 else 0.0), u1
-        return (float(math.floor(u1 / p1 + 1e-9)) if u1 > 0 else 0.0), u1
-    pitch, usable = _f(pitch_m), _f(usable_m)
-    code = FORMER_CODE[former_kind] if isinstance(former_kind, str) else np.asarray(former_kind)
-    with np.errstate(divide="ignore", invalid="ignore"):
-        flat = np.where(usable > 0, np.floor(usable / pitch + 1e-9), 0.0)
-        flat = np.where(one_turn_per_layer, np.where(pitch <= usable + 1e-12, 1.0, 0.0), flat)
-        circ = _f(geometry.toroid_inner_circumference_m(id_m, centre_m))
-        ring = np.maximum(np.floor(circ / pitch + 1e-9), 0.0)
-    tor = np.asarray(code) == _TOROID
-    return _out(np.where(tor, ring, flat)), _out(np.where(tor, circ, usable))
-
-
-@dataclass(frozen=True, slots=True)
-class FormerArrays:
-    """Formers as rows: kind (FORMER_CODE int array) and their dimensions [m]."""
-    kind: npt.NDArray[np.int8]
-    tube_width_m: npt.NDArray[np.float64]
-    tube_depth_m: npt.NDArray[np.float64]
-    breadth_m: npt.NDArray[np.float64]
-    od_m: npt.NDArray[np.float64]
-    id_m: npt.NDArray[np.float64]
-    core_height_m: npt.NDArray[np.float64]
-
-    def take(self, idx: Any) -> FormerArrays:
-        return FormerArrays(self.kind[idx], self.tube_width_m[idx], self.tube_depth_m[idx], self.breadth_m[idx],
-                            self.od_m[idx], self.id_m[idx], self.core_height_m[idx])
-
-
-@dataclass(frozen=True, slots=True)
-class SectionWinding:
-    """Sections laid as rows (``wind_section``): ok, first-layer capacity, layers, turns in the last layer,
-    build after the last layer, copper length without leads, usable breadth (toroid: first circumference)."""
-    ok: npt.NDArray[np.bool_]
-    turns_per_layer: npt.NDArray[np.float64]
-    layers: npt.NDArray[np.float64]
-    last_layer_turns: npt.NDArray[np.float64]
-    end_build_m: npt.NDArray[np.float64]
-    copper_length_m: npt.NDArray[np.float64]
-    usable_breadth_m: npt.NDArray[np.float64]
-
-
-_TOROID_BINS = (4, 16, 64, 256, 1024)
-
-
-def wind_section(former: FormerArrays, turns: ArrayLike, pitch_m: ArrayLike, layer_height_m: ArrayLike,
-                 start_m: ArrayLike, margin_m: ArrayLike, layer_tape_m: ArrayLike, one_turn_per_layer: ArrayLike,
-                 limit_m: ArrayLike | None = None) -> SectionWinding:
-    """Lay one section per row from ``start_m`` outwards (``layer_tape_m`` already x the tape factor).
-
-    Bobbin: every full layer holds the same ``layer_capacity`` and the MLT is affine in the build, so the
-    layers' copper is their count times the MLT at their mean centre (closed form). Toroid: each layer's
-    capacity shrinks with the hole; layers are laid as a rows x layers matrix (cumulative capacity against
-    the turns), at most as many as fit below ``limit_m`` (rows needing more are not ok), and a layer that
-    holds no turn ends the section (not ok). The engine's ``build.wind_section`` lays the same layers one
-    by one with the same ``layer_centre_m``, ``layer_capacity`` and ``mean_turn_length_m``."""
-    t_all = np.atleast_1d(_f(turns))
-    n = t_all.shape[0]
-
-    def row(x: ArrayLike) -> npt.NDArray[np.float64]:
-        return np.broadcast_to(_f(x), (n,)).astype(float)
-    pitch, lh, start, margin, lt = row(pitch_m), row(layer_height_m), row(start_m), row(margin_m), row(layer_tape_m)
-    foil = np.broadcast_to(np.asarray(one_turn_per_layer, dtype=bool), (n,))
-    out = {k: np.zeros(n) for k in ("cap", "layers", "last", "end", "length", "usable")}
-    ok_all = np.zeros(n, dtype=bool)
-    kind = former.kind
-    bob = np.flatnonzero(kind != _TOROID)
-    if bob.size:
-        usable = former.breadth_m[bob] - 2.0 * margin[bob]
-        cap, _room = layer_capacity(kind[bob], pitch[bob], usable, 0.0, 0.0, foil[bob])
-        cap = _f(cap)
-        t = t_all[bob]
-        ok = (cap >= 1) & (t > 0)
-        capc = np.maximum(cap, 1.0)
-        layers = np.ceil(t / capc)
-        last = t - (layers - 1.0) * capc
-        s0, h, tape = start[bob], lh[bob], lt[bob]
-        c_last = _f(layer_centre_m(s0, layers - 1.0, h, tape))
-        c_mean = s0 + h / 2.0 + (h + tape) * (layers - 2.0) / 2.0
-
-        def mlt(c: npt.NDArray[np.float64]) -> npt.NDArray[np.float64]:
-            return _f(mean_turn_length_m(kind[bob], c, tube_width_m=former.tube_width_m[bob],
-                                         tube_depth_m=former.tube_depth_m[bob]))
-
-        out["length"][bob] = capc * (layers - 1.0) * mlt(c_mean) + last * mlt(c_last)
-        out["end"][bob] = s0 + layers * h + (layers - 1.0) * tape
-        out["cap"][bob], out["layers"][bob], out["last"][bob] = cap, layers, last
-        out["usable"][bob], ok_all[bob] = usable, ok
-    tor = np.flatnonzero(kind == _TOROID)
-    if tor.size:
-        limit = None if limit_m is None else row(limit_m)
-        _wind_toroid(former, tor, t_all, pitch, lh, start, lt, foil, limit, out, ok_all)
-    return SectionWinding(ok=ok_all, turns_per_layer=out["cap"], layers=out["layers"], last_layer_turns=out["last"],
-                          end_build_m=out["end"], copper_length_m=out["length"], usable_breadth_m=out["usable"])
-
-
-def _wind_toroid(fm: FormerArrays, tor: npt.NDArray[np.intp], turns: npt.NDArray[np.float64],
-                 pitch: npt.NDArray[np.float64], lh: npt.NDArray[np.float64], start: npt.NDArray[np.float64],
-                 layer_tape: npt.NDArray[np.float64], foil: npt.NDArray[np.bool_],
-                 limit: npt.NDArray[np.float64] | None, out: dict[str, npt.NDArray[np.float64]],
-                 ok_out: npt.NDArray[np.bool_]) -> None:
-    step = lh[tor] + layer_tape[tor]
-    if limit is None:
-        lmax = np.full(tor.size, float(_TOROID_BINS[-1]))
-    else:
-        lmax = np.floor((limit[tor] - start[tor] + layer_tape[tor]) / step + 1e-9)
-        # no more layers are needed than the turns over the smallest capacity an allowed layer has
-        top = _f(layer_centre_m(start[tor], np.maximum(lmax, 1.0) - 1.0, lh[tor], layer_tape[tor]))
-        cap_min = np.floor(_f(geometry.toroid_inner_circumference_m(fm.id_m[tor], top)) / pitch[tor] + 1e-9)
-        need = np.where(cap_min >= 1, np.ceil(turns[tor] / np.maximum(cap_min, 1.0)), lmax)
-        lmax = np.clip(np.minimum(lmax, need), 1.0, _TOROID_BINS[-1])
-    lo = 0
-    for hi in _TOROID_BINS:
-        sel = tor[(lmax > lo) & (lmax <= hi)]
-        lo = hi
-        if not sel.size:
-            continue
-        lm = lmax[np.searchsorted(tor, sel)]
-        m = int(lm.max())
-        j = np.arange(m, dtype=float)[None, :]
-        allowed = j < lm[:, None]
-        centre = _f(layer_centre_m(start[sel][:, None], j, lh[sel][:, None], layer_tape[sel][:, None]))
-        idm = fm.id_m[sel][:, None]
-        cap, circ = layer_capacity("toroid", pitch[sel][:, None], 0.0, idm, centre)
-        cap = np.where(allowed, _f(cap), 0.0)
-        circ = _f(circ)
-        dead = np.cumsum(cap < 1, axis=1) > 0     # a layer holding no turn ends the section
-        cap = np.where(dead, 0.0, cap)
-        cum = np.cumsum(cap, axis=1)
-        t = turns[sel]
-        reach = cum >= t[:, None]
-        ok = reach[:, -1] & (t > 0) & ~foil[sel]
-        layers = np.where(ok, np.argmax(reach, axis=1) + 1.0, 1.0)
-        li = (layers - 1).astype(np.int64)
-        rows = np.arange(sel.size)
-        before = np.where(li > 0, cum[rows, np.maximum(li - 1, 0)], 0.0)
-        last = t - before
-        nturn = np.where(j < (layers - 1.0)[:, None], cap, 0.0)
-        nturn[rows, li] = last
-        tl = _f(mean_turn_length_m("toroid", centre, od_m=fm.od_m[sel][:, None], id_m=idm,
-                                   core_height_m=fm.core_height_m[sel][:, None]))
-        out["length"][sel] = np.sum(nturn * tl, axis=1)
-        out["end"][sel] = start[sel] + layers * lh[sel] + (layers - 1.0) * layer_tape[sel]
-        out["layers"][sel], out["last"][sel] = layers, last
-        out["cap"][sel], out["usable"][sel], ok_out[sel] = cap[:, 0], circ[:, 0], ok
-
-
-def dc_resistance_ohm(copper_area_m2: ArrayLike, length_m: ArrayLike, temp_c: ArrayLike,
-                      conductor: str | Sequence[str] | npt.NDArray[np.str_] = "copper") -> Arr:
-    """DC resistance R = rho(T) l / A of a winding's copper at a temperature (IEC 60028 / IEC 60889).
-
-    ``conductor``: one name for every row, or a name per row ('copper', 'aluminium')."""
-    if isinstance(conductor, str):
-        return _out(_f(wiremod.resistance_per_m_ohm(copper_area_m2, temp_c, conductor)) * _f(length_m))
-    names = np.asarray(conductor)
-    out = np.zeros(np.broadcast_shapes(names.shape, np.shape(copper_area_m2), np.shape(length_m), np.shape(temp_c)))
-    for name in np.unique(names):
-        sel = np.broadcast_to(names == name, out.shape)
-        r = _f(wiremod.resistance_per_m_ohm(copper_area_m2, temp_c, str(name))) * _f(length_m)
-        out = np.where(sel, np.broadcast_to(r, out.shape), out)
-    return out
-
-
-def skin_depth_m(freq_hz: ArrayLike, temp_c: ArrayLike, conductor: str = "copper") -> Arr:
-    """Skin depth in the conductor at its temperature (``physics.wire.skin_depth_m``); infinite at DC."""
-    return _out(wiremod.skin_depth_m(freq_hz, wiremod.resistivity_ohm_m(temp_c, conductor)))
-
-
-@dataclass(frozen=True, slots=True)
-class Harmonics:
-    """Harmonic orders of a current and their share of its loss (weights sum to 1)."""
-    orders: npt.NDArray[np.float64]
-    weights: npt.NDArray[np.float64]
-
-
-def current_harmonics(waveform: str) -> Harmonics:
-    """A square-wave current's odd harmonics weighted 1/n^2 (its power spectrum, SQUARE_HARMONICS); any other
-    waveform: the fundamental alone."""
-    orders = np.array(SQUARE_HARMONICS if waveform == "square" else (1,), dtype=float)
-    w = 1.0 / orders ** 2
-    return Harmonics(orders, w / w.sum())
-
-
-def _layer_porosity(wire: WireGeometry, turns_in_layer: Any, usable_m: Any) -> npt.NDArray[np.float64]:
-    """Copper fraction across a layer, Dowell's eta: round/tiw turns x strands x d over the usable breadth;
-    Litz the strand porosity x LITZ_POROSITY_FACTOR; foil its width over the breadth; strip like round."""
-    usable = _f(usable_m)
-    room = np.maximum(usable, 1e-9)
-
-    def litz() -> Any:
-        return _f(dowell.porosity(wire.strand_diameter_m, wire.strand_overall_m)) * LITZ_POROSITY_FACTOR
-
-    def foil() -> Any:
-        return np.minimum(1.0, _f(wire.width_m) / np.maximum(usable, _f(wire.width_m)))
-
-    def side_by_side(size: Arr) -> Any:
-        return np.minimum(1.0, _f(turns_in_layer) * _f(wire.strands_in_hand) * _f(size) / room)
-
-    if np.ndim(wire.kind) == 0:         # one wire (the engine): only its own rule
-        kind = int(wire.kind)
-        if kind == WIRE_CODE["litz"]:
-            return _f(litz())
-        if kind == WIRE_CODE["foil"]:
-            return _f(foil())
-        return _f(side_by_side(wire.width_m if kind == WIRE_CODE["strip"] else wire.strand_diameter_m))
-    kinds = np.asarray(wire.kind)
-    with np.errstate(divide="ignore", invalid="ignore"):
-        lz = np.where(kinds == 1, litz(), 0.0)
-        fo = foil()
-    return _f(np.where(kinds == 1, lz, np.where(kinds == 3, fo, np.where(kinds == 4, side_by_side(wire.width_m),
-                                                                          side_by_side(wire.strand_diameter_m)))))
-
-
-def _layer_delta(wire: WireGeometry, skin: Any, eta: Any) -> npt.NDArray[np.float64]:
-    """Dowell's Delta: the equivalent foil of a round strand (round, tiw, Litz), t/delta for foil and strip."""
-    if np.ndim(wire.kind) == 0:
-        if int(wire.kind) in (WIRE_CODE["foil"], WIRE_CODE["strip"]):
-            return _f(dowell.foil_delta(wire.thickness_m, skin, eta))
-        return _f(dowell.round_wire_delta(wire.strand_diameter_m, skin, eta))
-    kind = np.asarray(wire.kind)
-    flat = (kind == 3) | (kind == 4)
-    with np.errstate(divide="ignore", invalid="ignore"):
-        rnd = _f(dowell.round_wire_delta(wire.strand_diameter_m, skin, eta))
-        foil = _f(dowell.foil_delta(wire.thickness_m, skin, eta))
-    return np.where(flat, foil, rnd)
-
-
-def layer_porosity(wire: WireGeometry, turns_in_layer: ArrayLike, usable_m: ArrayLike) -> npt.NDArray[np.float64]:
-    """Dowell's porosity eta of a layer of this wire (see ``_layer_porosity``); one wire or a wire per row."""
-    return _layer_porosity(wire, turns_in_layer, usable_m)
-
-
-def layer_delta(wire: WireGeometry, skin_depth: ArrayLike, porosity: ArrayLike) -> npt.NDArray[np.float64]:
-    """Dowell's Delta of a layer of this wire at a skin depth and porosity (see ``_layer_delta``)."""
-    return _layer_delta(wire, skin_depth, porosity)
-
-
-def layer_ac_factor(wire: WireGeometry, turns_in_layer: ArrayLike, usable_m: ArrayLike, skin_depth: ArrayLike,
-                    f_inner: ArrayLike, f_outer: ArrayLike, harmonics: Harmonics) -> Arr:
-    """Rac/Rdc of one layer between the enclosed ampere-turns f_inner and f_outer (Dowell's layer form,
-    ``physics.layers.layer_fr``), weighted over the current's harmonics (skin depth / sqrt(n) each).
-    ``wire``: one wire (floats) for every row, or a wire per row (``stack_wires``).
-
-    A layer of Litz bundles is k = round(sqrt(strands)) layers of strands (common practice approximation):
-    the MMF steps evenly across them and the factor is their mean."""
-    eta = _layer_porosity(wire, turns_in_layer, usable_m)[..., None]
-    skin = _f(skin_depth)[..., None] / np.sqrt(harmonics.orders)          # rows x harmonics
-    # a wire per row: its fields get the harmonics axis too
-    wide = wire if np.ndim(wire.kind) == 0 else WireGeometry(
-        **{f: np.asarray(getattr(wire, f))[..., None] for f in WireGeometry.__dataclass_fields__})
-    d = _layer_delta(wide, skin, eta)                                      # rows x harmonics
-    k = _f(wire.sub_layers)
-    if k.size and float(k.max()) == 1.0:                                   # no Litz: one layer of conductors
-        fr1 = _f(layer_fr(d, _f(f_inner)[..., None], _f(f_outer)[..., None]))
-        return _out(fr1 @ harmonics.weights)
-    rows = np.broadcast_shapes(np.shape(turns_in_layer), np.shape(usable_m), np.shape(skin_depth),
-                               np.shape(f_inner), np.shape(f_outer), np.shape(wire.kind))
-    k = np.broadcast_to(k, rows)
-    kmax = int(k.max()) if k.size else 1
-    j = np.arange(kmax, dtype=float)
-    kk = k[..., None]
-    f1 = np.broadcast_to(_f(f_inner), rows)[..., None]
-    f2 = np.broadcast_to(_f(f_outer), rows)[..., None]
-    span = f2 - f1
-    one = kk == 1.0
-    a = np.where(one, f1, f1 + span * j / kk)                              # rows x sub-layers
-    b = np.where(one, f2, f1 + span * (j + 1.0) / kk)
-    fr = _f(layer_fr(d[..., None], a[..., None, :], b[..., None, :]))     # rows x harmonics x sub-layers
-    used = (j < kk)[..., None, :]
-    mean = np.where(used, fr, 0.0).sum(axis=-1) / kk
-    return _out(mean @ harmonics.weights)
-
-
-def section_ac_factor(wire: WireGeometry, layers: ArrayLike, turns_per_layer: ArrayLike, usable_m: ArrayLike,
-                      skin_depth: ArrayLike, f_start: ArrayLike, f_end: ArrayLike, harmonics: Harmonics) -> Arr:
-    """Mean AC factor of a section whose layers step the MMF evenly from f_start to f_end, in closed form.
-
-    ``layer_fr`` is affine in a = (F1^2 + F2^2)/(F2 - F1)^2 and b = 4 F1 F2/(F2 - F1)^2, and a = 1 + b/2 for
-    every layer, so the mean over L layers is layer_fr at faces (f*, f* + 1) with 4 f*(f* + 1) = mean b
-    (Litz: L x k strand layers). The porosity is the full layer's (``turns_per_layer``), the mean unweighted
-    by layer length: the search's screening form; the engine takes each layer with ``layer_ac_factor``."""
-    kind = np.asarray(wire.kind)
-    L = np.maximum(np.where(kind == 1, _f(layers) * _f(wire.sub_layers), _f(layers)), 1.0)
-    span = _f(f_end) - _f(f_start)
-    ok = np.abs(span) > 1e-12
-    step = np.where(ok, span, 1.0) / L
-    u0 = _f(f_start) / step
-    mean_u = u0 + (L - 1.0) / 2.0
-    mean_u2 = u0 * u0 + u0 * (L - 1.0) + (L - 1.0) * (2.0 * L - 1.0) / 6.0
-    fstar = (-1.0 + np.sqrt(np.maximum(1.0 + 4.0 * (mean_u2 + mean_u), 0.0))) / 2.0
-    eta = _layer_porosity(wire, np.maximum(_f(turns_per_layer), 1.0), np.maximum(_f(usable_m), 1e-9))
-    fr = np.zeros(np.broadcast_shapes(fstar.shape, eta.shape))
-    for n, w in zip(harmonics.orders, harmonics.weights):
-        d = _layer_delta(wire, _f(skin_depth) / math.sqrt(float(n)), eta)
-        fr = fr + w * _f(layer_fr(d, fstar, fstar + 1.0))
-    return _out(np.where(ok, fr, 1.0))
-
-
-def copper_loss_w(dcr_ohm: ArrayLike, fr: ArrayLike, i_ac_rms_a: ArrayLike, i_dc_a: ArrayLike = 0.0) -> Arr:
-    """Copper loss I_dc^2 R + I_ac^2 R Fr: the DC part sees the DC resistance, the AC part the AC factor."""
-    r = _f(dcr_ohm)
-    return _out(_f(i_dc_a) ** 2 * r + _f(i_ac_rms_a) ** 2 * r * _f(fr))
-
-
 # ================================================================================================ output voltage
 
 def output_voltage_ok(asked_v: ArrayLike, delivered_v: ArrayLike, minus: ArrayLike, plus: ArrayLike) -> Any:
@@ -734,6 +360,66 @@ def secondary_turns_within(np_turns: ArrayLike, v_primary: ArrayLike, asked_v: A
         lo = np.maximum(1.0, np.ceil(v * (1.0 - _f(minus)) / e - 1e-9))
         hi = np.floor(v * (1.0 + _f(plus)) / e + 1e-9)
     return _out(np.where((lo <= hi) & np.isfinite(lo) & (e > 0), lo, 0.0))
+
+
+def primary_current_a(p_out_w: ArrayLike, efficiency: ArrayLike, v_primary: ArrayLike,
+                      i_magnetizing_a: ArrayLike) -> Arr:
+    """The primary's rms current: the load referred to the primary, P_out / (eta V_p), in quadrature with the
+    magnetizing current (a resistive load's current is in phase with the voltage, the magnetizing current
+    lags it by 90 degrees; McLyman, transformer design, primary current)."""
+    if _scalar(p_out_w, efficiency, v_primary, i_magnetizing_a):
+        return math.hypot(_float(p_out_w) / _float(efficiency) / _float(v_primary), _float(i_magnetizing_a))
+    return _out(np.hypot(_f(p_out_w) / _f(efficiency) / _f(v_primary), _f(i_magnetizing_a)))
+
+
+def secondary_turns_for_voltage(np_turns: ArrayLike, v_primary: ArrayLike, want_v: ArrayLike) -> Arr:
+    """A secondary's whole turns for ``want_v`` at open circuit from ``np_turns`` on ``v_primary`` (the turns
+    ratio, rounded up; at least one). The full-load drop is then made up by ``secondary_turns_to_add``."""
+    if _scalar(np_turns, v_primary, want_v):
+        return float(max(1, math.ceil(_float(np_turns) * _float(want_v) / _float(v_primary) - 1e-9)))
+    return whole_turns(_f(np_turns) * _f(want_v) / _f(v_primary))
+
+
+def loaded_output_v(ratio: ArrayLike, v_primary_after_drop: ArrayLike, load_a: ArrayLike,
+                    r_secondary_ohm: ArrayLike, x_drop_v: ArrayLike = 0.0) -> Arr:
+    """A secondary's full-load voltage: the turns ratio x the primary voltage left after the primary's own
+    drop, less the secondary's resistive drop in phase with a resistive load; a leakage drop ``x_drop_v``
+    (referred to this winding) is in quadrature: sqrt(e^2 - x^2) - I R (McLyman, regulation)."""
+    if _scalar(ratio, v_primary_after_drop, load_a, r_secondary_ohm, x_drop_v):
+        e, x = _float(ratio) * _float(v_primary_after_drop), _float(x_drop_v)
+        v = e if x == 0.0 else math.sqrt(max(e * e - x * x, 0.0))
+        return v - _float(load_a) * _float(r_secondary_ohm)
+    ea, xa = _f(ratio) * _f(v_primary_after_drop), _f(x_drop_v)
+    va = ea if not xa.any() else np.sqrt(np.maximum(ea * ea - xa * xa, 0.0))
+    return _out(va - _f(load_a) * _f(r_secondary_ohm))
+
+
+def secondary_turns_to_add(want_v: ArrayLike, loaded_v: ArrayLike, volts_per_turn: ArrayLike) -> Arr:
+    """Turns to add to a secondary that delivers ``loaded_v`` at full load, below ``want_v``: the shortfall
+    over the volts per turn, rounded up, at least one (each added turn adds its volts less a little more drop,
+    so the caller lays the build again and repeats)."""
+    if _scalar(want_v, loaded_v, volts_per_turn):
+        return float(max(1, math.ceil((_float(want_v) - _float(loaded_v)) / _float(volts_per_turn) - 1e-9)))
+    return _out(np.maximum(1.0, np.ceil((_f(want_v) - _f(loaded_v)) / _f(volts_per_turn) - 1e-9)))
+
+
+def ripple_flux_t(inductance_h: ArrayLike, ripple_a: ArrayLike, turns: ArrayLike, ae_m2: ArrayLike) -> Arr:
+    """Peak-to-peak flux density of a current ripple, dB = L dI / (N Ae) (Faraday's law over the ripple)."""
+    if _scalar(inductance_h, ripple_a, turns, ae_m2):
+        return _float(inductance_h) * _float(ripple_a) / (_float(turns) * _float(ae_m2))
+    return _out(_f(inductance_h) * _f(ripple_a) / (_f(turns) * _f(ae_m2)))
+
+
+def least_loss_turns(n0: ArrayLike, beta: ArrayLike, core_w: ArrayLike, copper_w: ArrayLike,
+                     max_ratio: float) -> Arr:
+    """Whole primary turns of least total loss near n0: core loss falls as N^-beta and copper loss rises as
+    N^2, so the sum is least at N = n0 (beta P_core / (2 P_cu))^(1/(beta + 2)) (McLyman, the optimum of core
+    and copper loss), held between n0 and ``max_ratio`` x n0."""
+    b, pc, pcu = _f(beta), _f(core_w), _f(copper_w)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        ratio = (b * pc / (2.0 * pcu)) ** (1.0 / (b + 2.0))
+    ratio = np.clip(np.nan_to_num(ratio, nan=1.0, posinf=max_ratio), 1.0, max_ratio)
+    return _out(np.asarray(np.ceil(_f(n0) * ratio - 1e-9), dtype=float))
 
 
 # ================================================================================================ loss and temperature

@@ -218,5 +218,5 @@ def finish(spec: Spec, cat: Catalog, parts: Parts, kind: PartKind, ev: Evaluatio
         inductor=s.inductor, catalog_ids=catalog_ids(spec, parts, windings), iterations=iterations,
         notes=spec.notes, history=history_entries(spec.history), insulation=insulation,
         current_transformer=s.current_transformer, flyback=s.flyback,
-        floor=floor_data(cat, parts, ev.built, windings, spec.varnish),
+        floor=floor_data(cat, parts, ev.built, windings, spec.varnish, getattr(spec, "core_wrap", None)),
     )

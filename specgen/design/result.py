@@ -330,6 +330,7 @@ class HistoryEntry:
     accepted: tuple[AcceptedWarning, ...] = ()   # design warnings accepted by name at this release
     supersedes: str = ""             # the revision this release superseded ('' for a first release)
     effective: str = ""              # when it took over: next-order | now | lot <reference> ('' if not recorded)
+    open_orders: tuple[str, ...] | None = None   # the superseded revision's open work orders (None: not looked)
 
 
 @record(slots=True)
@@ -339,6 +340,7 @@ class FloorData:
     outline: CoreOutline
     pins: PinLayout
     varnish: VarnishCure | None
+    core_wrap: TapeWrap | None = None   # toroid: the tape wrapped on the bare core before the first winding
 
     def section(self, winding: str, index: int) -> SectionTapes:
         for s in self.sections:

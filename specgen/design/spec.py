@@ -553,7 +553,8 @@ def _history(r: Reader) -> tuple[dict[str, Any], ...]:
             "note": h.text("note", ""), "fingerprint": h.text("fingerprint", ""),
             "accepted": tuple(_accepted(a) for a in h.items("accepted", [])),
             "supersedes": h.text("supersedes", ""), "effective": h.text("effective", "", max_len=200),
-            "open_orders": tuple(str(n) for n in h.list_of("open_orders", [])),
+            # None: the release looked in no register (or predates the record)
+            "open_orders": tuple(str(n) for n in h.list_of("open_orders")) if h.has("open_orders") else None,
         })
         h.done(("parts",))     # per-key fingerprints written by `specgen release`
     return tuple(out)

@@ -106,7 +106,7 @@ def materials_per_unit(state: DesignState, core: CoreResult) -> list[MaterialLin
                                 core.mass_kg, note=f"stack {(core.stack_m or 0.0) * 1e3:g} mm, E and I pieces"))
     else:
         out.append(MaterialLine("core", c.id, f"{c.shape} core {c.id}, {m.name}", spec.core_count, "sets",
-                                core.mass_kg, note=f"{c.pieces} piece(s) per set"))
+                                core.mass_kg, note=_pieces_to_a_set(c.pieces)))
     if parts.bobbin is not None:
         b = parts.bobbin
         out.append(MaterialLine("bobbin", b.id, f"bobbin {b.id}, {len(b.pins)} pins", 1, "pcs", None))
@@ -168,3 +168,13 @@ def materials_per_unit(state: DesignState, core: CoreResult) -> list[MaterialLin
         out.append(MaterialLine("varnish", v.id, v.name, volume * v.winding_volume_share * 1e3, "l", None,
                                 note=f"{v.winding_volume_share:.0%} of the winding volume (common practice)"))
     return out
+
+
+def _pieces_to_a_set(pieces: int) -> str:
+    """How the stores count a core: '2 halves to a set' (E, ETD, PQ, pot and RM cores come as mated halves),
+    'one piece' (a toroid), 'n pieces to a set' otherwise."""
+    if pieces == 2:
+        return "2 halves to a set"
+    if pieces == 1:
+        return "one piece"
+    return f"{pieces} pieces to a set"

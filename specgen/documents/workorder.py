@@ -155,15 +155,20 @@ def _materials(design, qty: int, scrap: float) -> list:
 
 
 def _limit_row(lim, fmt) -> dict:
+    """``fmt``: a unit (the nominal and its limits then share one prefix, ``present.si_set``) or a formatter."""
+    if isinstance(fmt, str):
+        nominal, low, high = present.si_set([lim.nominal, lim.low, lim.high], fmt)
+    else:
+        nominal = fmt(lim.nominal)
+        low, high = (fmt(v) if v is not None else "—" for v in (lim.low, lim.high))
     return {"name": lim.name, "item": lim.item, "condition": lim.condition, "pins": _pins_of(lim.condition),
-            "nominal": fmt(lim.nominal), "low": fmt(lim.low) if lim.low is not None else "—",
-            "high": fmt(lim.high) if lim.high is not None else "—"}
+            "nominal": nominal, "low": low, "high": high}
 
 
 def _inductance_fmt(lim):
     if lim.name.startswith("AL"):
         return lambda v: f"{sig(v * 1e9, 4)} nH/turn²"
-    return fmt_henry
+    return "H"
 
 
 def _svg_width_mm(svg) -> float:
@@ -300,7 +305,7 @@ def build_context(design, settings, *, number: str, qty: int, due: str | None = 
                  + (f", stack {fmt_mm(d.core.stack_m)}" if d.core.stack_m and not toroid else "")),
         ("Bobbin", d.core.bobbin if d.core.bobbin else "none (toroid, wound on the core)"),
         ("Windings", ", ".join(f"{w.name} {w.turns} t" for w in d.windings)),
-        ("Operating", f"{d.frequency_hz:g} Hz, insulation class {d.insulation_class_c}"),
+        ("Operating", f"{present.frequency(d.frequency_hz)}, insulation class {d.insulation_class_c}"),
     ]
 
     # ---- floor steps: gap, windings in build order, core assembly, varnish
@@ -326,6 +331,18 @@ def build_context(design, settings, *, number: str, qty: int, due: str | None = 
                          f"(nominal {f(al_limit.nominal)}). Reject or re-grind a set outside this.")
         steps.append({"n": n, "kind": "gap", "heading": f"Prepare the core: air gap {fmt_mm(ind.gap_m)}",
                       "lines": lines, "rows": [], "layers": [], "dot": ""})
+
+    wrap = d.floor.core_wrap
+    if toroid and wrap is not None:
+        n += 1
+        steps.append({"n": n, "kind": "core", "heading": "Insulate the core before winding",
+                      "lines": [f"Wrap the bare core with {wrap.id} ({wrap.name}, {fmt_mm(wrap.width_m)} wide): "
+                                f"{wrap.layers} layer{'s' if wrap.layers != 1 else ''}, each half-lapped "
+                                f"(every turn covers half of the one before), over the inner and outer edges, "
+                                f"no gaps at the bore.",
+                                "This wrap is the insulation between every winding and the core: inspect it for "
+                                "tears or bare spots before the first turn, and replace it if damaged."],
+                      "rows": [], "layers": [], "dot": ""})
 
     order = _sections_in_order(d)
     last_order = order[-1][1].order if order else 0
@@ -435,9 +452,9 @@ def build_context(design, settings, *, number: str, qty: int, due: str | None = 
 
     # ---- tests
     t = d.tests
-    dcr = [_limit_row(l, fmt_ohm) for l in t.dcr]
+    dcr = [_limit_row(l, "Ω") for l in t.dcr]
     ratio = [_limit_row(l, fmt_ratio if l.unit == ":1" else lambda v: fmt_eng(v, "A")) for l in t.ratio]
-    ocv = [_limit_row(l, fmt_volt) for l in t.open_circuit]
+    ocv = [_limit_row(l, "V") for l in t.open_circuit]
     inductance = [_limit_row(l, _inductance_fmt(l)) for l in t.inductance]
     hipot = [{"between": h.between, "rating": h.rating, "working": fmt_test_volt(h.working_voltage_v),
               "type_v": fmt_test_volt(h.type_voltage_v), "type_s": fmt_seconds(h.type_duration_s),

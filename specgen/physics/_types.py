@@ -2,7 +2,7 @@
 
 from __future__ import annotations
 
-from typing import TypeAlias
+from typing import Any, TypeAlias
 
 import numpy as np
 import numpy.typing as npt
@@ -17,3 +17,13 @@ def out(x: ArrayLike) -> Arr:
     """A Python float for a 0-d result, the array otherwise."""
     a = np.asarray(x, dtype=float)
     return float(a) if a.ndim == 0 else a
+
+
+def as_array(x: ArrayLike) -> FloatArray:
+    """``x`` as a float array (0-d for a scalar)."""
+    return np.asarray(x, dtype=float)
+
+
+def all_scalar(*xs: Any) -> bool:
+    """Whether every argument is one value (no array dimension)."""
+    return all(np.ndim(x) == 0 for x in xs)

@@ -578,3 +578,37 @@ def _out(x: ArrayLike) -> Arr:
     """A Python float for a 0-d result, the array otherwise."""
     x = np.asarray(x, dtype=float)
     return float(x) if x.ndim == 0 else x
+
+
+def part_outline_m(shape: str, dims: dict[str, float], coating_m: float, stack_m: float | None,
+                   bulged_build_m: ArrayLike) -> tuple[FloatArray, FloatArray, FloatArray]:
+    """Bounding box of an assembled part, sorted largest first (length, width, height) [m].
+
+    The same conventions as ``outer_surface_area_m2``: EI - the lamination outline x (stack + 2 window
+    widths, the coil standing proud of the stack); E-types - width x height x max(depth, centre leg + 2
+    window builds); POT/RM - the cylinder's box; toroid - the core over its coating plus the bulged winding
+    build on every face. ``bulged_build_m`` may be an array (toroids).
+
+    References
+    ----------
+    Geometry of the assembled part (bounding box).
+    """
+    d = dims
+    b = np.asarray(bulged_build_m, dtype=float)
+    sides: tuple[float | FloatArray, ...]
+    if shape == "EI":
+        e = ei_dims(d)
+        sides = (e["tongue"] + 2 * e["window_width"] + 2 * e["leg"], e["window_height"] + 2 * e["yoke"],
+                 (stack_m or 0.0) + 2 * e["window_width"])
+    elif shape == "toroid":
+        o = d["od"] + 2 * coating_m + 2 * b
+        sides = (o, o, d["height"] + 2 * coating_m + 2 * b)
+    elif shape in ("POT", "RM"):
+        sides = (d["outer_diameter"], d["outer_diameter"], d["height"])
+    else:
+        build = window_height_m(shape, d)
+        centre = d["centre_leg_diameter"] if shape in ("ETD", "PQ") else d.get("centre_leg_depth", d["depth"])
+        sides = (d["width"], d["height"], max(d["depth"], centre + 2 * build))
+    arr = np.broadcast_arrays(*[np.asarray(x, dtype=float) for x in sides])
+    stacked = -np.sort(-np.stack(arr), axis=0)
+    return stacked[0], stacked[1], stacked[2]

@@ -79,6 +79,18 @@ def round_area_m2(diameter_m: ArrayLike) -> Arr:
     return _out(np.pi * d * d / 4.0)
 
 
+def round_diameter_m(area_m2: ArrayLike) -> Arr:
+    """Diameter of a round conductor of cross-sectional area A, d = sqrt(4 A / pi) [m] (``round_area_m2``
+    inverted).
+
+    References
+    ----------
+    Elementary geometry.
+    """
+    a = np.asarray(area_m2, dtype=float)
+    return _out(np.sqrt(4.0 * a / np.pi))
+
+
 def resistivity_ohm_m(temp_c: ArrayLike, conductor: str = "copper") -> Arr:
     """Resistivity at a temperature, linear model rho_T = rho20 (1 + alpha20 (T - 20)).
 

@@ -303,7 +303,7 @@ def wire_options(cat: Catalog, current_a: float, density_a_m2: float, freq_hz: f
     target = i / density_a_m2
     delta = float(K.skin_depth_m(freq_hz, K.WIRE_CHOICE_TEMP_C)) if skin_limited else math.inf
     limit = K.STRAND_MAX_SKIN_DEPTHS * delta
-    single_d = math.sqrt(4.0 * target / math.pi)
+    single_d = float(wiremod.round_diameter_m(target))
     strands_needed = single_d > min(limit, heavy_m)
     out: list[WireOption] = []
 
@@ -345,31 +345,8 @@ def option_rows(options: list[WireOption], cat: Catalog) -> OptionRows:
 
 def outline_m(core: Core, stack_m: float | None, bulged_build_m: float | FloatArray
               ) -> tuple[FloatArray, FloatArray, FloatArray]:
-    """Bounding box of the assembled part, sorted largest first (length, width, height) [m].
-
-    The same conventions as ``geometry.outer_surface_area_m2``: EI - lamination outline x (stack + 2
-    window widths, the coil standing proud of the stack); E-types - width x height x max(depth, centre leg
-    + 2 window builds); POT/RM - the cylinder's box; toroid - the core over its coating plus the bulged
-    winding build on every face. ``bulged_build_m`` may be an array (toroids)."""
-    d = core.dims
-    s = core.shape
-    b = np.asarray(bulged_build_m, dtype=float)
-    dims: tuple[float | FloatArray, ...]
-    if s == "EI":
-        e = geometry.ei_dims(d)
-        dims = (e["tongue"] + 2 * e["window_width"] + 2 * e["leg"], e["window_height"] + 2 * e["yoke"],
-                (stack_m or 0.0) + 2 * e["window_width"])
-    elif s == "toroid":
-        c = core.coating_m
-        o = d["od"] + 2 * c + 2 * b
-        dims = (o, o, d["height"] + 2 * c + 2 * b)
-    elif s in ("POT", "RM"):
-        dims = (d["outer_diameter"], d["outer_diameter"], d["height"])
-    else:
-        build = geometry.window_height_m(s, d)
-        centre = d["centre_leg_diameter"] if s in ("ETD", "PQ") else d.get("centre_leg_depth", d["depth"])
-        dims = (d["width"], d["height"], max(d["depth"], centre + 2 * build))
-    arr = np.broadcast_arrays(*[np.asarray(x, dtype=float) for x in dims])
-    stacked = -np.sort(-np.stack(arr), axis=0)
-    return stacked[0], stacked[1], stacked[2]
+    """Bounding box of the assembled part, sorted largest first (length, width, height) [m]
+    (``geometry.part_outline_m`` of the core's shape and dimensions). ``bulged_build_m`` may be an array
+    (toroids)."""
+    return geometry.part_outline_m(core.shape, core.dims, core.coating_m, stack_m, bulged_build_m)
 

@@ -102,8 +102,9 @@ def material_cost(design: Design, cat: Catalog) -> Decimal:
     else wire mass x price x (1 + scrap) + core + bobbin from catalogue prices."""
     try:
         from .. import quote
+        from ..prices import price_list
 
-        return quote.material_total(quote.material_lines(design, cat))
+        return quote.material_total(quote.material_lines(design, price_list(cat, design)))
     except (ImportError, AttributeError):
         pass
     total = Decimal(0)

@@ -237,7 +237,7 @@ def choke_magnetics(ctx: SearchContext, ch: ChokeSetup, ci: IntArray, temp_c: Fl
         pc = ci[p]
         turns[p], l_built[p] = ch.pow.turns[pc], ch.pow.inductance_h[pc]
         b_pk[p], b_max[p] = ch.pow.b_pk_t[pc], ch.pow.b_max_t[pc]
-    delta_b = l_built * c.ripple / (turns * ae)
+    delta_b = np.asarray(K.ripple_flux_t(l_built, c.ripple, turns, ae), dtype=np.float64)
     pv = ctx.materials.core_loss_w_m3(cr.material[ci], delta_b, ctx.req.frequency_hz, "ripple", ctx.req.duty)
     return ChokeMagnetics(turns=turns, gap_m=lg, inductance_h=l_built, b_pk_t=b_pk, b_max_t=b_max,
                           delta_b_t=delta_b, core_loss_w_m3=pv)

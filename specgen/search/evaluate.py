@@ -196,7 +196,7 @@ def _secondary_turns(ctx: SearchContext, ci: IntArray, opts: list[OptionRows], n
     passes; only the rows that changed are laid out again); matched windings take the larger count."""
     windings = ctx.req.windings
     loads = [j for j, w in enumerate(windings) if w.role != "primary"]
-    turns = [np_.copy() if w.role == "primary" else np.maximum(1.0, np.ceil(np_ * w.voltage_v / ctx.vp - 1e-9))
+    turns = [np_.copy() if w.role == "primary" else np.asarray(K.secondary_turns_for_voltage(np_, ctx.vp, w.voltage_v))
              for w in windings]
     by_name = {w.name: j for j, w in enumerate(windings)}
     build = build_rows(ctx, ci, opts, turns, primary)
@@ -214,9 +214,9 @@ def _secondary_turns(ctx: SearchContext, ci: IntArray, opts: list[OptionRows], n
         for j in loads:
             w = windings[j]
             rs = resistance_ohm(opts[j], lengths[j], ts, todo)
-            v_loaded = tt[j] / np_t * v_prim - w.load_current_a * rs
+            v_loaded = K.loaded_output_v(tt[j] / np_t, v_prim, w.load_current_a, rs)
             need = ok_t & (v_loaded < w.voltage_v - 1e-9) & (tt[j] <= K.MAX_TURNS)
-            add = np.maximum(1.0, np.ceil((w.voltage_v - v_loaded) / (v_prim / np_t) - 1e-9))
+            add = K.secondary_turns_to_add(w.voltage_v, v_loaded, v_prim / np_t)
             tt[j] = np.where(need, tt[j] + add, tt[j])
             changed |= need
         for j in loads:
@@ -265,7 +265,7 @@ def _transformer_rows(ctx: SearchContext, ci: IntArray, oi: list[IntArray], np_:
     imag = ctx.magnetizing_a(np.asarray(faraday.magnetizing_inductance_h(np_, ae, c.le_m[ci], c.mu_working[ci])))
     turns, build = _secondary_turns(ctx, ci, opts, np_, t_start, primary)
     lengths = [s.length_m + 2.0 * ctx.lead_m for s in build.sections]
-    ip = np.hypot(ctx.p_out / eta / ctx.vp, imag)
+    ip = np.asarray(K.primary_current_a(ctx.p_out, eta, ctx.vp, imag))
     b_pk = np.asarray(faraday.b_peak_t(ctx.vp, f, np_, ae, req.waveform, req.duty))
     core_w = ctx.materials.core_loss_w_m3(mi, b_pk, f, req.waveform, req.duty) * c.ve_m3[ci]
     # the AC factor only where it can matter: rows that fit and that the core loss alone does not overheat
@@ -278,12 +278,12 @@ def _transformer_rows(ctx: SearchContext, ci: IntArray, oi: list[IntArray], np_:
         total = np.zeros(rows)
         for w, opt, length, fr in zip(req.windings, opts, lengths, frs):
             i = primary_a[0] if w.role == "primary" else w.load_current_a
-            total += i * i * resistance_ohm(opt, length, hot) * fr
+            total += K.copper_loss_w(resistance_ohm(opt, length, hot), fr, i)
         return total
 
     def efficiency(total_w: FloatArray, active: BoolArray) -> None:
         eta = ctx.p_out / (ctx.p_out + total_w)
-        primary_a[0] = np.where(active, np.hypot(ctx.p_out / eta / ctx.vp, imag), primary_a[0])
+        primary_a[0] = np.where(active, K.primary_current_a(ctx.p_out, eta, ctx.vp, imag), primary_a[0])
 
     th = thermal_loop(ctx, copper, core_w, surface, t_start.copy(), efficiency)
     limit = ctx.swing_t(ctx.flux_limit_t(mi, th.hot_c), mi)
@@ -344,14 +344,10 @@ def eval_choke(ctx: SearchContext, ci: IntArray, oi: list[IntArray], mag: ChokeM
 # ------------------------------------------------------------------------------------------------ both
 
 def _least_loss_turns(ctx: SearchContext, ci: IntArray, res: RowResult) -> FloatArray:
-    """The analytic least-loss primary turns N = n0 (beta P_core / (2 P_cu))^(1/(beta + 2)) (core loss
-    ~ N^-beta, copper loss ~ N^2), at most ``SCAN_MAX_RATIO`` n0: the vector stage's stand-in for the
-    engine's scan of primary turns."""
+    """The least-loss primary turns (``kernel.least_loss_turns``), at most ``SCAN_MAX_RATIO`` n0: the vector
+    stage's stand-in for the engine's scan of primary turns."""
     beta = ctx.materials.beta[ctx.cores.material[ci]]
-    with np.errstate(divide="ignore", invalid="ignore"):
-        ratio = (beta * res.core_w / (2.0 * res.copper_w)) ** (1.0 / (beta + 2.0))
-    ratio = np.clip(np.nan_to_num(ratio, nan=1.0, posinf=SCAN_MAX_RATIO), 1.0, SCAN_MAX_RATIO)
-    return np.asarray(np.ceil(ctx.np0[ci] * ratio - 1e-9), dtype=float)
+    return np.asarray(K.least_loss_turns(ctx.np0[ci], beta, res.core_w, res.copper_w, SCAN_MAX_RATIO), dtype=float)
 
 
 def evaluate_rows(ctx: SearchContext, ci: IntArray, oi: list[IntArray], second_pass: bool = True) -> RowResult:

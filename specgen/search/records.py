@@ -89,17 +89,30 @@ def flag(cond: Any, bit: Fail) -> IntArray:
 R = TypeVar("R", bound="RowArrays")
 
 
+_FIELD_NAMES: dict[type, tuple[str, ...] | None] = {}
+
+
+def _record_fields(value: Any) -> tuple[str, ...] | None:
+    """The field names of a dataclass record (cached per type: the vector stage takes rows thousands of times),
+    None for anything else."""
+    cls = type(value)
+    names = _FIELD_NAMES.get(cls, ())
+    if names == ():
+        names = tuple(f.name for f in fields(value)) if is_dataclass(value) and not isinstance(value, type) else None
+        _FIELD_NAMES[cls] = names
+    return names
+
+
 def _take(value: Any, idx: Any) -> Any:
     if isinstance(value, np.ndarray):
         return value[..., idx]
     if isinstance(value, RowArrays):
         return value.take(idx)
-    if is_dataclass(value) and not isinstance(value, type):      # the kernel's records of arrays
-        return type(value)(**{f.name: _take(getattr(value, f.name), idx) for f in fields(value)})
+    names = _record_fields(value)
+    if names is not None:      # the kernel's records of arrays
+        return type(value)(**{n: _take(getattr(value, n), idx) for n in names})
     if isinstance(value, tuple):
         return tuple(_take(v, idx) for v in value)
-    if isinstance(value, np.ndarray):
-        return value[..., idx]
     return value
 
 
@@ -108,14 +121,12 @@ def _put(value: Any, idx: Any, sub: Any) -> None:
         value[..., idx] = sub
     elif isinstance(value, RowArrays):
         value.put(idx, sub)
-    elif is_dataclass(value) and not isinstance(value, type):
-        for f in fields(value):
-            _put(getattr(value, f.name), idx, getattr(sub, f.name))
+    elif (names := _record_fields(value)) is not None:
+        for n in names:
+            _put(getattr(value, n), idx, getattr(sub, n))
     elif isinstance(value, tuple):
         for v, s in zip(value, sub):
             _put(v, idx, s)
-    elif isinstance(value, np.ndarray):
-        value[..., idx] = sub
 
 
 class RowArrays:
@@ -124,11 +135,11 @@ class RowArrays:
     __slots__ = ()
 
     def take(self: R, idx: Any) -> R:
-        return type(self)(**{f.name: _take(getattr(self, f.name), idx) for f in fields(self)})  # type: ignore[arg-type]
+        return type(self)(**{n: _take(getattr(self, n), idx) for n in _record_fields(self) or ()})
 
     def put(self, idx: Any, sub: RowArrays) -> None:
-        for f in fields(self):  # type: ignore[arg-type]
-            _put(getattr(self, f.name), idx, getattr(sub, f.name))
+        for n in _record_fields(self) or ():
+            _put(getattr(self, n), idx, getattr(sub, n))
 
 
 @dataclass(frozen=True, slots=True)

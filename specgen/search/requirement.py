@@ -11,6 +11,7 @@ from typing import Any
 
 from ..errors import SpecError
 from ..loading import RENAMED_KEYS, Reader, load_yaml
+from ..present import si
 
 KINDS = ("transformer", "inductor")
 RATINGS = ("functional", "basic", "reinforced")
@@ -110,7 +111,7 @@ class Requirement:
         f = f"{self.frequency_hz / 1e3:g} kHz" if self.frequency_hz >= 1e3 else f"{self.frequency_hz:g} Hz"
         if self.choke is not None:
             c = self.choke
-            return (f"choke {c.inductance_h * 1e6:.4g} µH at {c.current_dc_a:g} A DC, ripple "
+            return (f"choke {si(c.inductance_h, 'H', keep_zeros=False)} at {c.current_dc_a:g} A DC, ripple "
                     f"{c.ripple_a:g} A p-p at {f}")
         p = self.primary
         outs = ", ".join(f"{w.voltage_v:g} V {w.load_current_a:.3g} A" for w in self.loads)

@@ -183,11 +183,11 @@ def _winding_alone(ctx: SearchContext, g: int, cores: IntArray, opt_idx: IntArra
         w = req.windings[j]
         if w.role == "primary":
             lm = np.asarray(faraday.magnetizing_inductance_h(np_, c.ae_m2[ci], c.le_m[ci], c.mu_working[ci]))
-            cur = np.hypot(ctx.p_out / req.efficiency_guess / ctx.vp, ctx.magnetizing_a(lm))
+            cur = np.asarray(K.primary_current_a(ctx.p_out, req.efficiency_guess, ctx.vp, ctx.magnetizing_a(lm)))
             turns = np_
         else:
             cur = np.full(ci.size, w.load_current_a)
-            turns = np.maximum(1.0, np.ceil(np_ * w.voltage_v / ctx.vp - 1e-9))
+            turns = np.asarray(K.secondary_turns_for_voltage(np_, ctx.vp, w.voltage_v))
     avail = c.available_m[ci]
     limit = (avail * (1.0 + FIT_SLACK) + 1e-12) / ctx.bulge
     fm = c.former.take(ci)

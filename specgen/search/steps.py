@@ -16,7 +16,6 @@ import numpy as np
 
 from ..catalog.models import Material
 from ..design import kernel as K
-from ..physics.layers import layer_fr
 from .records import FloatArray, FormerKind, IntArray, OptionRows, SectionRows
 
 Harmonics = K.Harmonics
@@ -72,33 +71,8 @@ def _wire_rows(g: K.WireGeometry, idx: Any = None, column: bool = False) -> K.Wi
 
 def layer_ac_factor_rows(g: K.WireGeometry, turns_in_layer: Any, usable_m: Any, skin_depth: Any, f_inner: Any,
                          f_outer: Any, harm: Harmonics) -> FloatArray:
-    """``kernel.layer_ac_factor`` for rows that each have their own wire (the kernel's composition - the
-    porosity and Delta of ``kernel._layer_porosity`` / ``_layer_delta``, Dowell's ``layer_fr``, the harmonic
-    weights, a Litz layer's mean over its strand layers - with the harmonics axis added to the wire's fields
-    too; the kernel's own function takes one wire at a time). Rows with one strand layer per layer skip the
-    strand-layer axis."""
-    shape = np.broadcast_shapes(np.shape(turns_in_layer), np.shape(usable_m), np.shape(skin_depth),
-                                np.shape(f_inner), np.shape(f_outer), np.shape(g.kind))
-    eta = K.layer_porosity(g, turns_in_layer, usable_m)[..., None]               # rows x 1
-    skin = _f(skin_depth)[..., None] / np.sqrt(harm.orders)                        # rows x harmonics
-    wide = K.WireGeometry(**{f: np.asarray(getattr(g, f))[..., None] for f in g.__dataclass_fields__})
-    d = K.layer_delta(wide, skin, eta)                                            # rows x harmonics
-    f1 = np.broadcast_to(_f(f_inner), shape)
-    f2 = np.broadcast_to(_f(f_outer), shape)
-    k = np.broadcast_to(_f(g.sub_layers), shape)
-    if not (k > 1).any():
-        fr = _f(layer_fr(d, f1[..., None], f2[..., None]))
-        return _f(fr @ harm.weights)
-    j = np.arange(int(k.max()), dtype=np.float64)
-    kk = k[..., None]
-    span = (f2 - f1)[..., None]
-    one = kk == 1.0
-    a = np.where(one, f1[..., None], f1[..., None] + span * j / kk)                # rows x strand layers
-    b = np.where(one, f2[..., None], f1[..., None] + span * (j + 1.0) / kk)
-    fr = _f(layer_fr(d[..., None], a[..., None, :], b[..., None, :]))              # rows x harmonics x strand layers
-    used = (j < kk)[..., None, :]
-    mean = np.where(used, fr, 0.0).sum(axis=-1) / kk
-    return _f(mean @ harm.weights)
+    """``kernel.layer_ac_factor`` for rows that each have their own wire, as a float array."""
+    return _f(K.layer_ac_factor(g, turns_in_layer, usable_m, skin_depth, f_inner, f_outer, harm))
 
 
 def _bobbin_fr(g: K.WireGeometry, fm: FormerRows, sec: SectionRows, lh: FloatArray, lt: FloatArray,
@@ -147,7 +121,16 @@ def _toroid_fr(g: K.WireGeometry, fm: FormerRows, sec: SectionRows, turns: Float
     layers matrix from the kernel's layer centre, capacity and turn length, then the kernel's layer factor
     on every layer, weighted by its copper length. Rows are binned by layer count to bound the matrix."""
     out = np.ones(turns.shape)
-    lo = 0
+    lone = np.flatnonzero(sec.layers == 1.0)
+    if lone.size:       # one layer: its own factor (weighted by its own length, as below), no layer matrix
+        c0 = _f(K.layer_centre_m(sec.start_m[lone], 0.0, lh[lone], lt[lone]))
+        length = turns[lone] * _f(K.mean_turn_length_m("toroid", c0, od_m=fm.od_m[lone], id_m=fm.id_m[lone],
+                                                       core_height_m=fm.core_height_m[lone]))
+        f1 = f_start[lone] + 0.0 * current[lone]
+        fr = layer_ac_factor_rows(_wire_rows(g, lone), turns[lone], sec.usable_m[lone], delta[lone], f1,
+                                  f1 + turns[lone] * current[lone], harm)
+        out[lone] = fr * length / length
+    lo = 1
     for hi in _TOROID_BINS:
         sel = np.flatnonzero((sec.layers > lo) & (sec.layers <= hi))
         lo = hi

@@ -295,3 +295,21 @@ def test_pq_outer_legs_carry_the_post_cross_section():
     assert post <= ep.ae_m2 <= 1.25 * post
     assert ep.ae_m2 == pytest.approx(190e-6, rel=0.15)
     assert ep.le_m == pytest.approx(88e-3, rel=0.15)
+
+
+def test_part_outline_boxes():
+    # bounding boxes by elementary geometry, largest side first
+    pot = dict(outer_diameter=30 * MM, inner_diameter=25 * MM, post_diameter=12 * MM, height=20 * MM,
+               window_height=13 * MM)
+    assert [float(x) for x in g.part_outline_m("POT", pot, 0.0, None, 0.0)] == pytest.approx(
+        [30 * MM, 30 * MM, 20 * MM])
+    # a toroid over a 0.2 mm coating and a 3 mm build on every face
+    tor = {"od": 0.04, "id": 0.02, "height": 0.015}
+    a, b, c = g.part_outline_m("toroid", tor, 0.2 * MM, None, np.array([3 * MM, 0.0]))
+    assert a == pytest.approx([40.4 * MM + 6 * MM, 40.4 * MM]) and b == pytest.approx(a)
+    assert c == pytest.approx([15.4 * MM + 6 * MM, 15.4 * MM])
+    # an E core's coil stands proud of the depth by its window build on both sides of the centre leg
+    e = dict(width=42 * MM, height=42 * MM, depth=15 * MM, window_width=29.5 * MM, window_height=29.6 * MM,
+             centre_leg_width=12.2 * MM)
+    box = [float(x) for x in g.part_outline_m("E", e, 0.0, None, 0.0)]
+    assert box == pytest.approx([42 * MM, 42 * MM, 15 * MM + 2 * 8.65 * MM])

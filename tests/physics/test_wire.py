@@ -109,3 +109,16 @@ def test_skin_depth_dc_and_arrays():
 def test_mu0_matches_si_2019_within_1e_9():
     # scipy.constants.mu_0 is the SI-2019 measured value
     assert wire.MU0_H_M == pytest.approx(constants.mu_0, rel=1e-9)
+
+
+@pytest.mark.parametrize("gauge", [10, 18, 24, 30])
+def test_round_diameter_inverts_the_area_of_astm_b258_sizes(gauge):
+    # ASTM B258: the nominal area of an AWG size is that of a circle of its nominal diameter
+    d = wire.awg_diameter_m(gauge)
+    assert wire.round_diameter_m(wire.round_area_m2(d)) == pytest.approx(d, rel=1e-12)
+
+
+def test_round_diameter_of_one_square_millimetre():
+    # 1 mm^2 of solid round conductor is 1.128 mm across (d = sqrt(4 A / pi); numpy's own pi)
+    assert wire.round_diameter_m(1e-6) * 1e3 == pytest.approx(1.1284, abs=1e-4)
+    assert np.allclose(wire.round_diameter_m(np.array([1e-6, 4e-6])), 2.0 * np.sqrt(np.array([1e-6, 4e-6]) / np.pi))

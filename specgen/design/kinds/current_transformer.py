@@ -29,6 +29,7 @@ from ..result import Check, CurrentTransformerResult, Limit
 from ..spec import CurrentTransformerReq, Spec, Winding
 from ..state import DesignState, ElectricalSummary, Evaluation, KindTests, Parts, ThermalState, WindingState, WireChoice
 from ..wires import choose_wire
+from .base import frequency_text as _freq
 
 # The open-secondary hazard, on the work order and the test sheet (every instrument-transformer text warns of
 # it; the applicable standard, e.g. IEC 61869-2 and the installation's safety rules, decides the practice).
@@ -178,10 +179,6 @@ def _shape_checks(ct: CurrentTransformerResult) -> list[Check]:
                                    f"and the ratio and phase errors above assume a sine. A unipolar current needs "
                                    f"a reset each cycle (a diode and a reset resistor or Zener across the "
                                    f"secondary); check the flux at the longest on-time")]
-
-
-def _freq(hz: float) -> str:
-    return f"{hz / 1e3:g} kHz" if hz >= 1e3 else f"{hz:g} Hz"
 
 
 class CurrentTransformerKind:

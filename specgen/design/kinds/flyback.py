@@ -33,6 +33,7 @@ from ...catalog.models import Catalog
 from ...physics import coreloss
 from ...physics import flyback as fb
 from ...physics import gap as gapmod
+from ...present import si
 from .. import kernel as K
 from ..build import copper_lengths_m, lay_out, leakage_h
 from ..flux import b_sat_hot_t, flux_limit
@@ -52,6 +53,7 @@ from ..state import (
     WireChoice,
 )
 from ..wires import choose_wire
+from .base import frequency_text as _freq
 
 DCM_MARGIN = 0.8             # DCM: L_p at 80 % of the boundary at the lowest line (common practice)
 HARMONICS = 39               # harmonics of each winding's current for its AC factor (as kernel.SQUARE_HARMONICS)
@@ -129,8 +131,8 @@ class FlybackRun:
         ae, le, mu, g = parts.ae_m2, parts.le_m, parts.material.mu_initial, parts.window_breadth_m
         lg = float(K.gap_for_inductance_m(self.l_target, n_p, ae, le, mu, g))
         if math.isnan(lg):
-            raise spec_error(spec, f"{parts.core.id} cannot reach L_p {self.l_target * 1e6:.4g} µH with {n_p} primary "
-                                   f"turns even ungapped: a core with a higher AL", "core", "id")
+            raise spec_error(spec, f"{parts.core.id} cannot reach L_p {si(self.l_target, 'H', keep_zeros=False)} with "
+                                   f"{n_p} primary turns even ungapped: a core with a higher AL", "core", "id")
         lg = float(K.round_gap_down_m(lg))
         l_built = float(gapmod.inductance_gapped_h(n_p, ae, le, mu, lg, g if lg > 0 else None))
         return out, lg, l_built
@@ -337,10 +339,6 @@ def _core_loss_w_m3(delta_b_t: float, op: fb.OperatingPoint, freq_hz: float, k: 
         times = [0.0, t_on, period]
         flux = [0.0, delta_b_t, 0.0]
     return float(coreloss.igse_piecewise_linear_w_m3(np.array(times), np.array(flux), k, alpha, beta))
-
-
-def _freq(hz: float) -> str:
-    return f"{hz / 1e3:g} kHz" if hz >= 1e3 else f"{hz:g} Hz"
 
 
 class FlybackKind:

@@ -16,6 +16,7 @@ from dataclasses import dataclass
 from ...catalog.models import Catalog
 from ...physics import gap as gapmod
 from ...physics import permeability
+from ...present import si
 from .. import kernel as K
 from ..build import copper_lengths_m, lay_out, section_frs, winding_fr
 from ..flux import b_sat_hot_t, flux_limit
@@ -33,6 +34,8 @@ from ..state import (
     WindingState,
 )
 from ..wires import choose_wire
+from .base import flux_text as _fmt_t
+from .base import frequency_text as _freq
 
 BIAS_DROP_WARN_PCT = 50.0    # more than half the permeability gone at full current: a poor use of powder (common practice)
 
@@ -95,7 +98,7 @@ class InductorRun:
         n = self.w.turns or permeability.turns_for_biased_inductance(c.target_h, c.i_dc if not c.ac else c.i_op_pk,
                                                                      ae, le, mu, a, b, cc)
         if n is None:
-            raise spec_error(spec, f"{parts.core.id} cannot reach {c.target_h * 1e6:.4g} µH at "
+            raise spec_error(spec, f"{parts.core.id} cannot reach {si(c.target_h, 'H', keep_zeros=False)} at "
                                    f"{c.i_dc:g} A: the permeability rolls off faster than turns add; use a "
                                    f"larger core or a lower-permeability powder", "core", "id")
         bias = c.i_dc if not c.ac else 0.0
@@ -113,7 +116,7 @@ class InductorRun:
         spec, parts, c, req, w = self.spec, self.parts, self.c, self.req, self.w
         ae, le, mu, G = parts.ae_m2, parts.le_m, parts.material.mu_initial, parts.window_breadth_m
         limit = flux_limit(spec, self.cat, parts.material, temp.hot_c)
-        what = f"{c.target_h * 1e6:.4g} µH at {c.i_pk:g} A"
+        what = f"{si(c.target_h, 'H', keep_zeros=False)} at {c.i_pk:g} A"
         if req.gap in ("fixed", "none"):
             lg = float(req.gap_m or 0.0) if req.gap == "fixed" else 0.0
             n = w.turns or int(K.turns_for_inductance(c.target_h, ae, le, mu, lg, G))
@@ -154,7 +157,7 @@ class InductorRun:
         built = lay_out(spec, parts, states, self.cat)
         f = spec.frequency_hz
         frs = section_frs(built, states, f, temp.hot_c, "sine", {self.w.name: 1.0}) if built.ok else {}
-        delta_b = mg.inductance_full_bias_h * c.ripple / (mg.turns * parts.ae_m2)
+        delta_b = float(K.ripple_flux_t(mg.inductance_full_bias_h, c.ripple, mg.turns, parts.ae_m2))
         k, a, b = mat.steinmetz_k, mat.steinmetz_alpha, mat.steinmetz_beta
         if c.ac:
             pv = float(K.core_loss_w_m3("sine", f, mg.b_peak_t, 0.5, k, a, b))
@@ -192,11 +195,11 @@ class InductorRun:
         lfull = mg.inductance_full_bias_h
         if lfull < c.target_h * (1 - tol):
             extra.append(Check("fail", "inductance",
-                               f"built inductance {lfull * 1e6:.4g} µH is below the {c.target_h * 1e6:.4g} µH "
+                               f"built inductance {si(lfull, 'H')} is below the {si(c.target_h, 'H', keep_zeros=False)} "
                                f"required: add turns or reduce the gap"))
         else:
-            extra.append(Check("pass", "inductance", f"L {lfull * 1e6:.4g} µH at "
-                                                     f"{ind.current_dc_a:g} A against {c.target_h * 1e6:.4g} µH required"))
+            target = si(c.target_h, "H", keep_zeros=False)
+            extra.append(Check("pass", "inductance", f"L {si(lfull, 'H')} at {ind.current_dc_a:g} A against {target} required"))
         if powder and mg.bias_drop_pct > BIAS_DROP_WARN_PCT:
             extra.append(Check("warn", "dc_bias", f"{mg.bias_drop_pct:.0f} % of the permeability is lost at "
                                                   f"{c.i_dc:g} A (H = {ind.h_dc_a_m:.0f} A/m): a larger core or a lower-"
@@ -204,14 +207,6 @@ class InductorRun:
         return ElectricalSummary(b_peak_t=mg.b_peak_t, b_peak_max_t=mg.b_peak_max_t, flux_limit=mg.flux_limit,
                                  h_peak_a_m=n * c.i_pk / le, inductor=ind, ripple_rms={self.w.name: (c.i_dc, c.i_ac)},
                                  dc_current_a=ind.current_dc_a if not c.ac else 0.0, checks=tuple(extra))
-
-
-def _fmt_t(b: float) -> str:
-    return f"{b:.3f} T" if b < 1.0 else f"{b:.2f} T"
-
-
-def _freq(hz: float) -> str:
-    return f"{hz / 1e3:g} kHz" if hz >= 1e3 else f"{hz:g} Hz"
 
 
 class InductorKind:

@@ -32,6 +32,8 @@ from ..state import (
     WireChoice,
 )
 from ..wires import choose_wire
+from .base import flux_text as _fmt_t
+from .base import frequency_text as _freq
 
 MAGNETIZING_WARN = 0.35      # magnetizing current above this share of the primary current (common practice)
 MAX_SCAN = 60                # loss-limited search: at most this many primary-turn candidates
@@ -134,7 +136,7 @@ class TransformerRun:
             elif w.role == "shield":
                 turns, current = (w.turns or 1), 0.0
             else:
-                turns = w.turns or max(1, math.ceil(np_turns * self.lowest_v(w) / self.vp - 1e-9))
+                turns = w.turns or int(K.secondary_turns_for_voltage(np_turns, self.vp, self.lowest_v(w)))
                 if turns > K.MAX_TURNS:
                     raise too_many_turns(self.spec, turns, f"winding {w.name} at {w.voltage_v:g} V", "windings", i,
                                          "voltage")
@@ -179,9 +181,8 @@ class TransformerRun:
                 rs = _dcr(st, lengths[w.name], temp.hot_c)
                 ratio = st.turns / np_turns
                 # resistive drops in phase with a resistive load, the leakage drop in quadrature
-                e = ratio * (vp - i_ref * rp)
                 x_drop = ratio * i_ref * x_lk * (st.current_a * st.turns) / max(i_ref * np_turns, 1e-12)
-                v_loaded = math.sqrt(max(e * e - x_drop * x_drop, 0.0)) - st.current_a * rs
+                v_loaded = float(K.loaded_output_v(ratio, vp - i_ref * rp, st.current_a, rs, x_drop))
                 loaded[w.name] = v_loaded
                 want = self.lowest_v(w)
                 if w.turns is None and v_loaded < want - 1e-9:
@@ -192,7 +193,7 @@ class TransformerRun:
                                                f"add more drop than voltage on core {spec.core_id}", "windings",
                                          st.index, "voltage")
                     before[w.name] = v_loaded
-                    add = max(1, math.ceil((want - v_loaded) / volts_per_turn - 1e-9))
+                    add = int(K.secondary_turns_to_add(want, v_loaded, volts_per_turn))
                     if st.turns + add > K.MAX_TURNS:
                         raise too_many_turns(spec, st.turns + add, f"winding {w.name} at {w.voltage_v:g} V",
                                              "windings", st.index, "voltage")
@@ -213,7 +214,7 @@ class TransformerRun:
         f, wf = spec.frequency_hz, spec.waveform
         lm = float(faraday.magnetizing_inductance_h(np_turns, parts.ae_m2, parts.le_m, mat.mu_working))
         imag, imag_pk = (float(x) for x in K.magnetizing_current_a(self.vp, f, lm, wf, spec.duty))
-        ip = math.hypot(self.p_out / eta / self.vp, imag)
+        ip = float(K.primary_current_a(self.p_out, eta, self.vp, imag))
         if not self.wires:
             self.pick_wires(ip)
         states = self.initial_states(np_turns, ip)
@@ -371,14 +372,6 @@ class TransformerRun:
 
 def _band(asked: float, tol: tuple[float, float]) -> str:
     return f"{asked:g} V -{tol[0] * 100:g}/+{tol[1] * 100:g} % ({asked * (1 - tol[0]):.3f}-{asked * (1 + tol[1]):.3f} V)"
-
-
-def _fmt_t(b: float) -> str:
-    return f"{b:.3f} T" if b < 1.0 else f"{b:.2f} T"
-
-
-def _freq(hz: float) -> str:
-    return f"{hz / 1e3:g} kHz" if hz >= 1e3 else f"{hz:g} Hz"
 
 
 class TransformerKind:
