@@ -22,7 +22,7 @@ from typing import Any
 
 from starlette.applications import Starlette
 from starlette.requests import Request
-from starlette.responses import FileResponse, HTMLResponse, JSONResponse, RedirectResponse, Response
+from starlette.responses import HTMLResponse, JSONResponse, RedirectResponse, Response
 from starlette.routing import Route
 
 from specgen.errors import SpecError
@@ -36,6 +36,9 @@ from .store import StationStore
 from .users import User, load_users, verify_password
 
 LOCAL_HOSTS = ("127.0.0.1", "localhost", "::1")
+#: Turns of the event loop a commit waits for other posts to join it (each turn lets every request
+#: already received run to its own wait; a few turns cost microseconds, not a timer's milliseconds).
+BATCH_YIELDS = 4
 HEADERS = {
     "Content-Security-Policy": "default-src 'none'; script-src 'self'; style-src 'self'; img-src 'self' data:; "
                                "form-action 'self'; base-uri 'none'; frame-ancestors 'none'; connect-src 'self'",
@@ -64,6 +67,48 @@ def check_listening(config: StationConfig, users: dict[str, User]) -> None:
                         "user (--users FILE; add one with --add-user)")
 
 
+class PostQueue:
+    """Readings posted at the same moment are written in one transaction (one commit, one fsync),
+    each post in its own savepoint (:meth:`StationStore.record_batch`). The writer runs on the event
+    loop's thread, like every other use of the register's connection."""
+
+    def __init__(self, station: Station):
+        self.station = station
+        self._queue: asyncio.Queue[tuple[tuple[str, str, Any, str, str | None], asyncio.Future[Any]]] | None = None
+        self._task: asyncio.Task[None] | None = None
+
+    async def submit(self, number: str, serial: str, verdicts: Any, by: str, reason: str | None) -> list[int]:
+        if self._queue is None:
+            self._queue = asyncio.Queue()
+            self._task = asyncio.get_running_loop().create_task(self._run())
+        done: asyncio.Future[Any] = asyncio.get_running_loop().create_future()
+        await self._queue.put(((number, serial, verdicts, by, reason), done))
+        result = await done
+        if isinstance(result, BaseException):
+            raise result
+        return list(result)
+
+    async def _run(self) -> None:
+        assert self._queue is not None
+        while True:
+            batch = [await self._queue.get()]
+            for _ in range(BATCH_YIELDS):       # let the posts already read off the sockets join this commit
+                await asyncio.sleep(0)
+            while not self._queue.empty():
+                batch.append(self._queue.get_nowait())
+            try:
+                results: list[Any] = self.station.store.record_batch([item for item, _ in batch])
+            except Exception as err:            # the whole transaction failed: every post hears why
+                results = [err] * len(batch)
+            for (_, done), result in zip(batch, results):
+                if not done.done():
+                    done.set_result(result)
+
+    def stop(self) -> None:
+        if self._task is not None:
+            self._task.cancel()
+
+
 class Station:
     """The app's state: the register, the parts, the users and the sessions."""
 
@@ -80,6 +125,8 @@ class Station:
         self.env = jinja_env()
         self.static_dir = templates_dir() / "station"
         self._register: Register | None = None
+        self._static: dict[str, tuple[bytes, str]] = {}
+        self.posts = PostQueue(self)
 
     @property
     def store(self) -> StationStore:
@@ -88,9 +135,20 @@ class Station:
         return StationStore(self._register)
 
     def close(self) -> None:
+        self.posts.stop()
         if self._register is not None:
             self._register.close()
             self._register = None
+
+    def static_file(self, name: str) -> tuple[bytes, str] | None:
+        """(content, type) of one of the app's own files (CSS, JS), or None; only files of that folder."""
+        if name not in self._static:
+            path = (self.static_dir / name).resolve()
+            types = {".css": "text/css", ".js": "text/javascript"}
+            if path.parent != self.static_dir.resolve() or not path.is_file() or path.suffix not in types:
+                return None
+            self._static[name] = (path.read_bytes(), types[path.suffix])
+        return self._static[name]
 
     def lot(self, number: str) -> Lot:
         return self.parts.lot(self.store.register.get(number))
@@ -272,7 +330,10 @@ def _cells(lot: Lot, piece: Any) -> list[dict[str, str]]:
     out = []
     for col in lot.columns:
         e = piece.readings.get(col.key)
-        out.append({"text": plan.show_value(col, e.judged_si) if e else "", "verdict": e.verdict if e else ""})
+        text = plan.show_value(col, e.judged_si) if e else ""
+        if e and col.kind != "check":
+            text = text.rsplit(" ", 1)[0]            # the unit is in the column's heading
+        out.append({"text": text, "verdict": e.verdict if e else ""})
     return out
 
 
@@ -343,8 +404,8 @@ async def save_readings(st: Station, request: Request) -> Response:
         errors[""] = "nothing typed: enter at least one reading"
     if not errors:
         try:
-            st.store.record_readings(lot.order.number, serial, verdicts, request.state.session.user,
-                                     reason=form.get("reason") or None)
+            await st.posts.submit(lot.order.number, serial, verdicts, request.state.session.user,
+                                  form.get("reason") or None)
         except SpecError as err:
             errors[""] = str(err)
     if errors:
@@ -434,11 +495,12 @@ async def compare_page(st: Station, request: Request) -> Response:
 
 
 async def static(st: Station, request: Request) -> Response:
-    name = request.path_params["name"]
-    path = (st.static_dir / name).resolve()
-    if path.parent != st.static_dir.resolve() or not path.is_file() or path.suffix not in (".css", ".js"):
+    """The app's own CSS and JavaScript, read once and served from memory."""
+    found = st.static_file(request.path_params["name"])
+    if found is None:
         return Response("not found", status_code=404, media_type="text/plain")
-    return FileResponse(path, headers={"Cache-Control": "max-age=3600"})
+    body, media_type = found
+    return Response(body, media_type=media_type, headers={"Cache-Control": "max-age=3600"})
 
 
 def create_app(config: StationConfig) -> Starlette:

@@ -25,7 +25,7 @@ from typing import Any
 from markupsafe import Markup, escape
 
 from . import plan
-from .model import Entry, TestColumn
+from .model import Entry, Column
 from .store import StationStore
 
 OFFSET_FLAG = 0.05           # a mean 5 % off the prediction is worth a look (common practice)
@@ -37,7 +37,7 @@ LEAD_SHARE_NAMED = 0.15      # leads above this share of a winding's wire: name 
 class Quantity:
     key: str
     label: str
-    column: TestColumn
+    column: Column
     values_si: tuple[float, ...]
     n: int
     mean_si: float | None
@@ -130,13 +130,13 @@ def likely_input(key: str, label: str, design: Any | None) -> str:
     return "no model input: check the turns wound and the test set-up"
 
 
-def _column(entries: list[Entry]) -> TestColumn:
+def _column(entries: list[Entry]) -> Column:
     e = entries[-1]
     shown, factor = plan.shown_unit(e.unit or "", e.nominal_si or e.low_si) if e.unit else ("", 1.0)
     kind = "dcr" if e.item.startswith("dcr/") else ("check" if not e.unit else "value")
     if kind == "check":
         shown = "ok/fail"
-    return TestColumn(e.item, e.label or e.item, kind, e.unit or "", e.nominal_si, e.low_si, e.high_si, "", shown, factor)
+    return Column(e.item, e.label or e.item, kind, e.unit or "", e.nominal_si, e.low_si, e.high_si, "", shown, factor)
 
 
 def _quantity(key: str, entries: list[tuple[str, Entry]], design: Any | None) -> Quantity:
@@ -226,11 +226,11 @@ def histogram_svg(q: Quantity, width: int = 380, height: int = 210) -> Markup:
     styles = {"low": ("#b00", "4 3"), "high": ("#b00", "4 3"), "predicted": ("#0b4f8a", ""), "mean": ("#111", "2 2")}
     if q.mean_si is not None:
         marks.append(("mean", q.mean_si))
-    for i, (name, v) in enumerate(marks):
-        if v is None:
+    for i, (name, mark) in enumerate(marks):
+        if mark is None:
             continue
         colour, dash = styles[name]
-        xv = x(v * f)
+        xv = x(mark * f)
         dash_attr = f' stroke-dasharray="{dash}"' if dash else ""
         parts.append(f'<line x1="{xv:.1f}" y1="{top - 6}" x2="{xv:.1f}" y2="{bottom}" stroke="{colour}" '
                      f'stroke-width="2"{dash_attr}/>')

@@ -16,8 +16,8 @@ from specgen.physics.wire import resistance_at_temp_ohm
 from specgen.register import Order, Register
 
 from .lots import floor_steps
-from .model import TestColumn, Verdict
-from .plan import judge, test_columns
+from .model import Column, Verdict
+from .plan import judge, station_columns
 from .store import StationStore
 from .users import add_user
 
@@ -38,7 +38,7 @@ def demo_users(path: Path) -> None:
         add_user(path, name, role, DEMO_PASSWORD)
 
 
-def _reading(col: TestColumn, rng: random.Random, temp_c: float) -> float:
+def _reading(col: Column, rng: random.Random, temp_c: float) -> float:
     if col.kind == "check":
         return 1.0
     if col.nominal is None:                     # insulation resistance: log-uniform, well above the minimum
@@ -62,7 +62,7 @@ def fill_lot(store: StationStore, order: Order, design: Any, cat: Any, *, seed: 
             lots = DEMO_LOTS[m.kind]
             store.record_material(order.number, m.id, m.kind, lots[taken.get(m.kind, 0) % len(lots)], "wren")
             taken[m.kind] = taken.get(m.kind, 0) + 1
-    columns = test_columns(design)
+    columns = station_columns(design)
     pieces = []
     for serial in (str(i) for i in range(1, min(tested, order.qty) + 1)):
         temp = round(rng.uniform(21.0, 26.0), 1)

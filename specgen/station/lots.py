@@ -14,8 +14,8 @@ from typing import Any
 from specgen.errors import SpecError
 from specgen.register import Order
 
-from .model import TestColumn
-from .plan import test_columns
+from .model import Column
+from .plan import station_columns
 
 
 @dataclasses.dataclass(frozen=True, slots=True)
@@ -33,14 +33,14 @@ class Step:
 class Lot:
     order: Order
     design: Any
-    columns: tuple[TestColumn, ...]
+    columns: tuple[Column, ...]
     steps: tuple[Step, ...]
 
     @property
     def serials(self) -> list[str]:
         return [str(i) for i in range(1, self.order.qty + 1)]
 
-    def column(self, key: str) -> TestColumn:
+    def column(self, key: str) -> Column:
         for c in self.columns:
             if c.key == key:
                 return c
@@ -112,5 +112,5 @@ class PartsLibrary:
                 raise SpecError(f"{order.number} was issued from {order.part} rev {order.revision} with fingerprint "
                                 f"{order.fingerprint[:12]}; the spec found now gives {design.fingerprint[:12]}: "
                                 "the spec or the catalogue changed since, so its limits cannot be used")
-            self._lots[key] = Lot(order, design, test_columns(design), floor_steps(design, self.cat, order))
+            self._lots[key] = Lot(order, design, station_columns(design), floor_steps(design, self.cat, order))
         return self._lots[key]

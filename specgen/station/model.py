@@ -60,7 +60,7 @@ COLUMNS = ("entry_id", "number", "kind", "serial", "item", "label", "value_si", 
 
 
 @dataclasses.dataclass(frozen=True, slots=True)
-class TestColumn:
+class Column:
     """One test a station runs on every piece, with the Design's limits (SI) and how it is typed in.
 
     ``kind``: ``value`` (a number compared with ``low``/``high``), ``dcr`` (a resistance read at the
@@ -83,7 +83,7 @@ class TestColumn:
 class Verdict:
     """One reading judged against its column: the value as read, the value compared (DCR at 20 degC)."""
 
-    column: TestColumn
+    column: Column
     value_si: float
     temp_c: float | None
     judged_si: float

@@ -18,7 +18,7 @@ from specgen.errors import SpecError
 from specgen.physics.wire import resistance_at_temp_ohm
 from specgen.units import UnitError, parse
 
-from .model import TestColumn, Verdict
+from .model import Column, Verdict
 
 #: The SI units of the plan's limits and the dimension a typed unit is checked against.
 _DIMENSIONS = {"ohm": "resistance", "H": "inductance", "V": "voltage", "A": "current"}
@@ -43,10 +43,10 @@ def shown_unit(unit: str, nominal: float | None) -> tuple[str, float]:
     return prefix + _SYMBOLS[unit], 1.0 / scale
 
 
-def test_columns(design: Any) -> tuple[TestColumn, ...]:
+def station_columns(design: Any) -> tuple[Column, ...]:
     """Every test of the Design's plan as a station column, in the order of the printed test record."""
     plan = design.tests
-    cols: list[TestColumn] = []
+    cols: list[Column] = []
     for field in dataclasses.fields(plan):
         value = getattr(plan, field.name)
         if not isinstance(value, tuple) or not value or not all(hasattr(v, "nominal") for v in value):
@@ -56,28 +56,28 @@ def test_columns(design: Any) -> tuple[TestColumn, ...]:
             shown, factor = shown_unit(lim.unit, lim.nominal)
             if lim.name.startswith("AL") and lim.unit == "H":
                 shown += "/turn²"
-            cols.append(TestColumn(key=f"{field.name}/{lim.name}/{lim.item}", label=f"{lim.name} {lim.item}",
+            cols.append(Column(key=f"{field.name}/{lim.name}/{lim.item}", label=f"{lim.name} {lim.item}",
                                    kind=kind, unit=lim.unit, nominal=lim.nominal, low=lim.low, high=lim.high,
                                    condition=lim.condition, shown_unit=shown, shown_factor=factor))
     ir_min = plan.insulation_resistance_min_ohm
     shown, factor = shown_unit("ohm", ir_min)
-    cols.append(TestColumn(key="ir", label="insulation resistance", kind="value", unit="ohm", nominal=None,
+    cols.append(Column(key="ir", label="insulation resistance", kind="value", unit="ohm", nominal=None,
                            low=ir_min, high=None, condition=f"{plan.insulation_resistance_v:.0f} V d.c.",
                            shown_unit=shown, shown_factor=factor))
     for h in plan.hipot:
-        cols.append(TestColumn(key=f"hipot/{h.between}", label=f"hipot {h.between}", kind="check", unit="",
+        cols.append(Column(key=f"hipot/{h.between}", label=f"hipot {h.between}", kind="check", unit="",
                                nominal=None, low=None, high=None,
                                condition=f"{present.test_volts(h.routine_voltage_v)} a.c. for "
                                          f"{present.seconds(h.routine_duration_s)}, trip "
                                          f"{present.milliamps(h.trip_current_a)}",
                                shown_unit="ok/fail", shown_factor=1.0))
     if plan.polarity:
-        cols.append(TestColumn(key="polarity", label="polarity", kind="check", unit="", nominal=None, low=None,
+        cols.append(Column(key="polarity", label="polarity", kind="check", unit="", nominal=None, low=None,
                                high=None, condition="; ".join(plan.polarity), shown_unit="ok/fail", shown_factor=1.0))
     return tuple(cols)
 
 
-def show_value(column: TestColumn, value_si: float | None) -> str:
+def show_value(column: Column, value_si: float | None) -> str:
     """A value in the column's typing unit, 4 significant figures."""
     if value_si is None:
         return "—"
@@ -86,7 +86,7 @@ def show_value(column: TestColumn, value_si: float | None) -> str:
     return f"{present.sig(value_si * column.shown_factor, 4)} {column.shown_unit}".rstrip()
 
 
-def limits_text(column: TestColumn) -> str:
+def limits_text(column: Column) -> str:
     if column.kind == "check":
         return "ok"
     low, high = column.low, column.high
@@ -99,7 +99,7 @@ def limits_text(column: TestColumn) -> str:
     return "record"
 
 
-def parse_reading(column: TestColumn, text: str) -> float:
+def parse_reading(column: Column, text: str) -> float:
     """A typed reading to SI: a bare number is in the column's unit; a number with a unit is checked
     against the column's dimension ("12.5 mohm" in a DCR column). ok/fail for a check column."""
     raw = " ".join(str(text).split())
@@ -140,7 +140,7 @@ def parse_temperature(text: str) -> float:
     return temp
 
 
-def judge(column: TestColumn, value_si: float, temp_c: float | None) -> Verdict:
+def judge(column: Column, value_si: float, temp_c: float | None) -> Verdict:
     """Compare one reading with the Design's limits; a DCR is first referred to 20 degC (IEC 60028)."""
     if column.kind == "check":
         return Verdict(column, value_si, None, value_si, value_si >= 0.5)
@@ -153,7 +153,7 @@ def judge(column: TestColumn, value_si: float, temp_c: float | None) -> Verdict:
     return Verdict(column, value_si, temp_c if column.kind == "dcr" else None, judged, passed)
 
 
-def judge_form(columns: Sequence[TestColumn], typed: Mapping[str, str], temp_text: str | None
+def judge_form(columns: Sequence[Column], typed: Mapping[str, str], temp_text: str | None
                ) -> tuple[list[Verdict], dict[str, str]]:
     """Judge what a tester typed for one serial: the verdicts of the filled-in columns and, per
     column key (``temp`` for the temperature), the one-line error of what could not be read."""

@@ -15,7 +15,7 @@ from specgen.errors import SpecError
 
 from . import plan
 from .lots import Lot
-from .model import Entry, TestColumn
+from .model import Entry, Column
 from .store import StationStore
 
 CSV_HEADER = ("work_order", "part", "revision", "serial", "entry", "kind", "test", "reading", "unit", "winding_temp_c",
@@ -33,7 +33,7 @@ def _row(lot: Lot, e: Entry) -> list[Any]:
         return base + [e.label or e.item, "", "", "", "", "", "", e.verdict or "", e.action or "", e.lot or "",
                        e.reason or "", e.replaces or "", e.by, e.at]
 
-    def shown(v: float | None, column: TestColumn = col) -> str:
+    def shown(v: float | None, column: Column = col) -> str:
         return "" if v is None else plan.show_value(column, v).rsplit(" ", 1)[0]
 
     return base + [e.label, shown(e.value_si), col.shown_unit, "" if e.temp_c is None else e.temp_c,
