@@ -108,7 +108,7 @@ class Tablet(threading.Thread):
                 self._request(conn, "GET", f"/wo/{self.number}/steps?n={1 + i % 5}")
             self._post(conn, csrf, first=True)
             self.gates[0].wait()
-            for i in range(ROUNDS):
+            for _ in range(ROUNDS):
                 status, _, t = self._request(conn, "GET", "/static/station.css")
                 self.times["static"].append(t)
             self.gates[1].wait()
@@ -116,7 +116,7 @@ class Tablet(threading.Thread):
                 status, _, t = self._request(conn, "GET", f"/wo/{self.number}/steps?n={1 + i % 5}")
                 self.times["step"].append(t)
             self.gates[2].wait()
-            for i in range(ROUNDS):
+            for _ in range(ROUNDS):
                 self.times["reading"].append(self._post(conn, csrf, first=False))
         except Exception as err:  # reported by the benchmark, which fails the figure
             self.error = f"{type(err).__name__}: {err}"

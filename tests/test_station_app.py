@@ -8,12 +8,12 @@ import time
 
 import pytest
 from starlette.testclient import TestClient
+from station_helpers import PASSWORD, make_lot
 
 from specgen.errors import SpecError
 from specgen.register import Register
 from specgen.station.app import StationConfig, create_app
 from specgen.station.store import StationStore
-from station_helpers import PASSWORD, make_lot
 
 
 @pytest.fixture

@@ -15,10 +15,10 @@ import shutil
 from pathlib import Path
 
 import pytest
+from station_helpers import PASSWORD, make_lot
 
 from specgen.station.app import StationConfig
 from specgen.station.plan import station_columns
-from station_helpers import PASSWORD, make_lot
 
 CHROMIUM = Path(os.environ.get("SPECGEN_CHROMIUM", "/usr/bin/chromium"))
 SKIP = "Chromium not installed (tools/sysdeps.sh installs the chromium package): station browser test skipped"

@@ -7,13 +7,13 @@ from __future__ import annotations
 import sqlite3
 
 import pytest
+from station_helpers import make_lot
 
 from specgen.errors import SpecError
 from specgen.register import SCHEMA_VERSION, Register
 from specgen.station.lots import floor_steps
 from specgen.station.plan import judge, judge_form, parse_reading, station_columns
 from specgen.station.store import StationStore
-from station_helpers import make_lot
 
 
 @pytest.fixture

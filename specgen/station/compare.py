@@ -25,7 +25,7 @@ from typing import Any
 from markupsafe import Markup, escape
 
 from . import plan
-from .model import Entry, Column
+from .model import Column, Entry
 from .store import StationStore
 
 OFFSET_FLAG = 0.05           # a mean 5 % off the prediction is worth a look (common practice)

@@ -15,7 +15,7 @@ from specgen.errors import SpecError
 
 from . import plan
 from .lots import Lot
-from .model import Entry, Column
+from .model import Column, Entry
 from .store import StationStore
 
 CSV_HEADER = ("work_order", "part", "revision", "serial", "entry", "kind", "test", "reading", "unit", "winding_temp_c",
