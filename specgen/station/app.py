@@ -282,7 +282,7 @@ async def lot_page(st: Station, request: Request) -> Response:
     lot = st.lot(request.path_params["number"])
     store = st.store
     signed = store.signoffs(lot.order.number)
-    pieces = store.pieces(lot.order.number, lot.serials)
+    pieces = store.pieces(lot.order.number, lot.serials, lot.keys)
     counts: dict[str, int] = {}
     for p in pieces:
         counts[p.status] = counts.get(p.status, 0) + 1
@@ -339,7 +339,7 @@ def _cells(lot: Lot, piece: Any) -> list[dict[str, str]]:
 
 async def test_table(st: Station, request: Request) -> Response:
     lot = st.lot(request.path_params["number"])
-    pieces = st.store.pieces(lot.order.number, lot.serials)
+    pieces = st.store.pieces(lot.order.number, lot.serials, lot.keys)
     rows = [{"serial": p.serial, "status": p.status, "status_text": STATUS_WORDS[p.status], "cells": _cells(lot, p)}
             for p in pieces]
     return st.page(request, "test_table.html", lot=lot, order=lot.order, rows=rows,
@@ -357,7 +357,7 @@ async def serial_page(st: Station, request: Request, *, typed: dict[str, str] | 
                       errors: dict[str, str] | None = None, status: int = 200) -> Response:
     lot = st.lot(request.path_params["number"])
     serial = _serial(lot, request)
-    piece = st.store.piece(lot.order.number, serial)
+    piece = st.store.piece(lot.order.number, serial, lot.keys)
     history = st.store.entries(lot.order.number, serial=serial)
     temps = [e.temp_c for e in piece.readings.values() if e.temp_c is not None]
     fields = []

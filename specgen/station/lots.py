@@ -40,6 +40,10 @@ class Lot:
     def serials(self) -> list[str]:
         return [str(i) for i in range(1, self.order.qty + 1)]
 
+    @property
+    def keys(self) -> tuple[str, ...]:
+        return tuple(c.key for c in self.columns)
+
     def column(self, key: str) -> Column:
         for c in self.columns:
             if c.key == key:

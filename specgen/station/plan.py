@@ -99,6 +99,21 @@ def limits_text(column: Column) -> str:
     return "record"
 
 
+def limits_bare(column: Column) -> str:
+    """The limits as bare numbers in the column's unit ("95.18–116.3", "≥ 2.712"), for a table whose
+    heading names the unit."""
+    if column.kind == "check":
+        return "ok"
+    bare = lambda v: present.sig(v * column.shown_factor, 4)  # noqa: E731
+    if column.low is not None and column.high is not None:
+        return f"{bare(column.low)}–{bare(column.high)}"
+    if column.low is not None:
+        return f"≥ {bare(column.low)}"
+    if column.high is not None:
+        return f"≤ {bare(column.high)}"
+    return ""
+
+
 def parse_reading(column: Column, text: str) -> float:
     """A typed reading to SI: a bare number is in the column's unit; a number with a unit is checked
     against the column's dimension ("12.5 mohm" in a DCR column). ok/fail for a check column."""

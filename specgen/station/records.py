@@ -21,6 +21,8 @@ from .store import StationStore
 CSV_HEADER = ("work_order", "part", "revision", "serial", "entry", "kind", "test", "reading", "unit", "winding_temp_c",
               "at_20c", "low", "high", "verdict", "action", "lot", "reason", "replaces", "by", "at")
 MAX_IMPORT_BYTES = 2_000_000
+#: A piece's status as the report prints it (short enough for its column).
+REPORT_STATUS = {"needs-disposition": "FAIL", "untested": "—"}
 _SERIAL_NAMES = ("serial", "s/n", "sn", "serial number")
 _TEMP_NAMES = ("temp_c", "temperature", "winding_temp_c", "winding temperature", "temp")
 
@@ -111,7 +113,7 @@ def lot_pdf(store: StationStore, lot: Lot) -> bytes:
     """The lot's test report: one row per piece with its current readings, status and disposition."""
     from specgen.documents.render import html_to_pdf, render_html
 
-    pieces = store.pieces(lot.order.number, lot.serials)
+    pieces = store.pieces(lot.order.number, lot.serials, lot.keys)
     rows = []
     for p in pieces:
         cells = []
@@ -120,10 +122,10 @@ def lot_pdf(store: StationStore, lot: Lot) -> bytes:
             cells.append({"text": plan.show_value(col, e.judged_si).rsplit(" ", 1)[0] if e and col.kind != "check"
                           else (plan.show_value(col, e.judged_si) if e else ""), "verdict": e.verdict if e else ""})
         temps = [e.temp_c for e in p.readings.values() if e.temp_c is not None]
-        rows.append({"serial": p.serial, "status": p.status, "cells": cells, "temp": f"{temps[-1]:g}" if temps else "",
+        rows.append({"serial": p.serial, "status": REPORT_STATUS.get(p.status, p.status), "cells": cells, "temp": f"{temps[-1]:g}" if temps else "",
                      "disposition": f"{p.disposition.action}: {p.disposition.reason}" if p.disposition else ""})
     materials = store.materials(lot.order.number)
     html = render_html("station/report.html", lot=lot, order=lot.order, rows=rows,
-                       limits=[plan.limits_text(c) for c in lot.columns], materials=materials,
+                       limits=[plan.limits_bare(c) for c in lot.columns], materials=materials,
                        alpha=f"{lot.design.tests.alpha_per_k:g}", signoffs=store.signoffs(lot.order.number))
     return html_to_pdf(html)

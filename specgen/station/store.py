@@ -243,7 +243,7 @@ class StationStore:
         return self.current(self.entries(number, "material"))
 
     @classmethod
-    def _piece(cls, rows: list[Entry], serial: str) -> PieceState:
+    def _piece(cls, rows: list[Entry], serial: str, expected: Sequence[str] = ()) -> PieceState:
         current = cls.current(rows)
         readings = {e.item: e for e in current if e.kind == "reading"}
         disposals = [e for e in current if e.kind == "disposition"]
@@ -257,20 +257,24 @@ class StationStore:
             newest_fail = max(e.entry_id for e in failing)
             disposed = last is not None and last.entry_id > newest_fail
             status = (last.action or "retest") if disposed and last is not None else "needs-disposition"
+        elif any(key not in readings for key in expected):
+            status = "partial"
         else:
             status = "pass"
         return PieceState(serial, readings, last, status)
 
-    def piece(self, number: str, serial: str) -> PieceState:
-        return self._piece(self.entries(number, serial=serial), serial)
+    def piece(self, number: str, serial: str, expected: Sequence[str] = ()) -> PieceState:
+        """Where one serial stands; ``expected``: the keys of every test of the lot (a piece with some
+        of them unread is ``partial``, not ``pass``)."""
+        return self._piece(self.entries(number, serial=serial), serial, expected)
 
-    def pieces(self, number: str, serials: Sequence[str]) -> list[PieceState]:
+    def pieces(self, number: str, serials: Sequence[str], expected: Sequence[str] = ()) -> list[PieceState]:
         """Every serial of the lot, in order, from one read of the register."""
         rows = [e for e in self.entries(number) if e.serial is not None]
         by_serial: dict[str, list[Entry]] = {}
         for e in rows:
             by_serial.setdefault(e.serial or "", []).append(e)
-        return [self._piece(by_serial.get(s, []), s) for s in serials]
+        return [self._piece(by_serial.get(s, []), s, expected) for s in serials]
 
     def where_used(self, lot: str) -> list[tuple[Order, list[Entry], list[str]]]:
         """Recall: every work order that took material from ``lot`` (a reel, batch or roll), the
