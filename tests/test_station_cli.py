@@ -10,6 +10,7 @@ import subprocess
 
 import numpy as np
 import pytest
+from station_helpers import make_lot
 from typer.testing import CliRunner
 
 from specgen.cli import app
@@ -17,7 +18,6 @@ from specgen.register import Register
 from specgen.station.compare import Quantity, histogram_svg
 from specgen.station.plan import judge, station_columns
 from specgen.station.store import StationStore
-from station_helpers import make_lot
 
 
 def _fill(lot, offsets: dict[str, float], serials: range, seed: int = 7) -> dict[str, list[float]]:

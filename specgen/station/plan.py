@@ -104,7 +104,7 @@ def limits_bare(column: Column) -> str:
     heading names the unit."""
     if column.kind == "check":
         return "ok"
-    bare = lambda v: present.sig(v * column.shown_factor, 4)  # noqa: E731
+    bare = lambda v: present.sig(v * column.shown_factor, 4)
     if column.low is not None and column.high is not None:
         return f"{bare(column.low)}–{bare(column.high)}"
     if column.low is not None:

@@ -122,7 +122,8 @@ def lot_pdf(store: StationStore, lot: Lot) -> bytes:
             cells.append({"text": plan.show_value(col, e.judged_si).rsplit(" ", 1)[0] if e and col.kind != "check"
                           else (plan.show_value(col, e.judged_si) if e else ""), "verdict": e.verdict if e else ""})
         temps = [e.temp_c for e in p.readings.values() if e.temp_c is not None]
-        rows.append({"serial": p.serial, "status": REPORT_STATUS.get(p.status, p.status), "cells": cells, "temp": f"{temps[-1]:g}" if temps else "",
+        rows.append({"serial": p.serial, "status": REPORT_STATUS.get(p.status, p.status), "cells": cells,
+                     "temp": f"{temps[-1]:g}" if temps else "",
                      "disposition": f"{p.disposition.action}: {p.disposition.reason}" if p.disposition else ""})
     materials = store.materials(lot.order.number)
     html = render_html("station/report.html", lot=lot, order=lot.order, rows=rows,
