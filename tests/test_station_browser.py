@@ -129,6 +129,10 @@ def test_a_whole_lot_in_the_browser(browser_context, tmp_path):
         statuses = page.locator("table.lot td.status").all_inner_texts()
         assert statuses[:4] == ["pass", "to rework", "pass", "not tested"]
         _screens(page, shots, "tester-lot")
+        page.goto(f"{base}/part/{lot.design.part}/compare")
+        assert page.locator("table.compare tr").count() == len(columns) + 1
+        assert page.locator(".plots svg").count() == len(columns)
+        _screens(page, shots, "compare")
         page.goto(f"{base}/wo/{lot.number}")
         with page.expect_download() as download:
             page.click("text=Record as CSV")

@@ -96,6 +96,8 @@ def test_where_used_answers_the_recall_question(lot, tmp_path):
     assert (order["number"], order["materials"], order["serials_tested"]) == (lot.number, [wire.id], ["1", "2"])
     r = _run("station", "where-used", "R-0000", "--register", lot.register)
     assert r.exit_code == 0 and "no work order recorded material lot R-0000" in r.output
+    r = _run("orders", "where-used", "R-2291", "--material", "--register", lot.register)
+    assert r.exit_code == 0 and r.output.startswith(lot.number) and "serials with records: 1, 2" in r.output
 
 
 @pytest.mark.skipif(shutil.which("pdftotext") is None, reason="pdftotext (poppler-utils) not installed")

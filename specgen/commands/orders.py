@@ -255,14 +255,24 @@ def stale(
 
 @app.command("where-used")
 def where_used(
-    part: str = typer.Argument(..., help="Part number."),
+    part: str = typer.Argument(..., help="Part number (with --material: a material lot such as a wire reel)."),
     revision: str | None = typer.Option(None, "--revision", help="Only this revision."),
+    material: bool = typer.Option(False, "--material",
+                                  help="The argument is a material lot (wire reel, core batch, tape roll): list the "
+                                       "work orders and serials the station recorded it against."),
     as_json: bool = typer.Option(False, "--json", help="Print JSON."),
     register: str | None = _register_opt(), catalog: Path | None = _catalog_opt(), verbose: bool = _verbose_opt(),
 ) -> None:
-    """Traceability: the work orders and lots built from a part or one revision (voids left out)."""
+    """Traceability: the work orders and lots built from a part or one revision (voids left out); with
+    --material, the work orders and serials that used a material lot."""
     def action() -> None:
         where = _locate(register, catalog)
+        if material:
+            from .station import material_use
+
+            with _open(where, verbose) as reg:
+                typer.echo(material_use(reg, part, as_json))
+            return
         with _open(where, verbose) as reg:
             orders = reg.where_used(part, revision)
         if as_json:

@@ -114,32 +114,38 @@ def compare(
     _run(action)
 
 
+def material_use(reg: Any, lot: str, as_json: bool) -> str:
+    """The answer to "which work orders and serials used this lot?" as text or JSON."""
+    from specgen.station.store import StationStore
+
+    found = StationStore(reg).where_used(lot)
+    if as_json:
+        return json.dumps({"lot": lot, "orders": [
+            {**o.to_dict(), "materials": [e.item for e in used], "serials_tested": serials}
+            for o, used, serials in found]}, indent=2)
+    if not found:
+        return f"no work order recorded material lot {lot}"
+    lines = []
+    for o, used, serials in found:
+        tested = f"; serials with records: {', '.join(serials)}" if serials else "; no serial tested yet"
+        lines.append(f"{o.number}  {o.part} rev {o.revision}  lot {o.lot or '-'}  qty {o.qty} (serials 1-{o.qty})  "
+                     f"{o.state}  used as {', '.join(e.item for e in used)}{tested}")
+    return "\n".join(lines)
+
+
 @app.command("where-used")
 def where_used(
     lot: str = typer.Argument(..., help="A material lot: wire reel, core batch, tape roll (as on its label)."),
     as_json: bool = typer.Option(False, "--json", help="Print JSON."),
     register: str | None = _register_opt(), catalog: Path | None = _catalog_opt(),
 ) -> None:
-    """Recall: which work orders and serials used a material lot."""
+    """Recall: which work orders and serials used a material lot (as `orders where-used LOT --material`)."""
     def action() -> None:
         from specgen.register import Register
-        from specgen.station.store import StationStore
 
         where = _locate(register, catalog)
         with Register.open(where.target, read_only=True) as reg:
-            found = StationStore(reg).where_used(lot)
-        if as_json:
-            typer.echo(json.dumps({"lot": lot, "orders": [
-                {**o.to_dict(), "materials": [e.item for e in used], "serials_tested": serials}
-                for o, used, serials in found]}, indent=2))
-            return
-        if not found:
-            typer.echo(f"no work order recorded material lot {lot}")
-            return
-        for o, used, serials in found:
-            tested = f"; serials with records: {', '.join(serials)}" if serials else "; no serial tested yet"
-            typer.echo(f"{o.number}  {o.part} rev {o.revision}  lot {o.lot or '-'}  qty {o.qty} (serials 1-{o.qty})  "
-                       f"{o.state}  used as {', '.join(e.item for e in used)}{tested}")
+            typer.echo(material_use(reg, lot, as_json))
     _run(action)
 
 

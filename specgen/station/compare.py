@@ -78,7 +78,10 @@ class Quantity:
 
     @property
     def offset_text(self) -> str:
-        return "—" if self.offset is None else f"{self.offset * 100:+.1f} %"
+        if self.offset is None:
+            return "—"
+        pct = self.offset * 100
+        return "0.0 %" if abs(pct) < 0.05 else f"{pct:+.1f} %"       # never "-0.0 %"
 
     @property
     def yield_text(self) -> str:
