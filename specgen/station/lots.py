@@ -53,9 +53,11 @@ class Lot:
 
 def floor_steps(design: Any, cat: Any, order: Order) -> tuple[Step, ...]:
     """The work order's steps in floor order (wind, terminate, assemble, varnish, mark)."""
+    from specgen.documents.settings import DocumentSettings
     from specgen.documents.workorder import build_context
 
-    ctx = build_context(design, cat, number=order.number, qty=order.qty, due=order.due, lot=order.lot)
+    ctx = build_context(design, DocumentSettings.from_shop(cat.shop), number=order.number, qty=order.qty, due=order.due,
+                        lot=order.lot)
     out = []
     for s in ctx["steps"]:
         lines = list(s["lines"])
