@@ -14,6 +14,7 @@ the session's CSRF token.
 from __future__ import annotations
 
 import asyncio
+import concurrent.futures
 import contextlib
 import dataclasses
 from collections.abc import AsyncIterator, Awaitable, Callable
@@ -69,13 +70,16 @@ def check_listening(config: StationConfig, users: dict[str, User]) -> None:
 
 class PostQueue:
     """Readings posted at the same moment are written in one transaction (one commit, one fsync),
-    each post in its own savepoint (:meth:`StationStore.record_batch`). The writer runs on the event
-    loop's thread, like every other use of the register's connection."""
+    each post in its own savepoint (:meth:`StationStore.record_batch`). The writes run on one thread
+    of their own with a connection of its own, so the event loop serves pages (and gathers the next
+    batch) while a commit waits for the disk."""
 
     def __init__(self, station: Station):
         self.station = station
         self._queue: asyncio.Queue[tuple[tuple[str, str, Any, str, str | None], asyncio.Future[Any]]] | None = None
         self._task: asyncio.Task[None] | None = None
+        self._pool = concurrent.futures.ThreadPoolExecutor(max_workers=1, thread_name_prefix="station-writer")
+        self._register: Register | None = None          # opened and used on the writer thread only
 
     async def submit(self, number: str, serial: str, verdicts: Any, by: str, reason: str | None) -> list[int]:
         if self._queue is None:
@@ -88,18 +92,24 @@ class PostQueue:
             raise result
         return list(result)
 
+    def _write(self, items: list[tuple[str, str, Any, str, str | None]]) -> list[Any]:
+        if self._register is None:
+            self._register = Register.open(self.station.config.register, create=False)
+        try:
+            return list(StationStore(self._register).record_batch(items))
+        except Exception as err:                # the whole transaction failed: every post hears why
+            return [err] * len(items)
+
     async def _run(self) -> None:
         assert self._queue is not None
+        loop = asyncio.get_running_loop()
         while True:
             batch = [await self._queue.get()]
             for _ in range(BATCH_YIELDS):       # let the posts already read off the sockets join this commit
                 await asyncio.sleep(0)
             while not self._queue.empty():
                 batch.append(self._queue.get_nowait())
-            try:
-                results: list[Any] = self.station.store.record_batch([item for item, _ in batch])
-            except Exception as err:            # the whole transaction failed: every post hears why
-                results = [err] * len(batch)
+            results = await loop.run_in_executor(self._pool, self._write, [item for item, _ in batch])
             for (_, done), result in zip(batch, results):
                 if not done.done():
                     done.set_result(result)
@@ -107,6 +117,14 @@ class PostQueue:
     def stop(self) -> None:
         if self._task is not None:
             self._task.cancel()
+
+        def close() -> None:
+            if self._register is not None:
+                self._register.close()
+                self._register = None
+
+        self._pool.submit(close)
+        self._pool.shutdown(wait=True)
 
 
 class Station:
@@ -265,6 +283,9 @@ async def login(st: Station, request: Request) -> Response:
 
 
 async def logout(st: Station, request: Request) -> Response:
+    form = await _form(request)
+    if not Sessions.csrf_ok(request.state.session, form.get("csrf")):
+        return st.error(request, "the form's security token is missing or stale: reload the page", 403)
     st.sessions.end(request.state.session.token)
     response = _redirect("/login")
     response.delete_cookie(SESSION_COOKIE, path="/")
@@ -531,6 +552,7 @@ def create_app(config: StationConfig) -> Starlette:
     ]
     @contextlib.asynccontextmanager
     async def lifespan(_app: Starlette) -> AsyncIterator[None]:
+        st.parts.parts()                       # design every part once, before the first tablet waits for it
         yield
         st.close()
 

@@ -38,4 +38,21 @@
       .catch(function () {});
   }
   form.addEventListener("input", function () { clearTimeout(timer); timer = setTimeout(check, 150); });
+  // A row pasted from a meter's or a spreadsheet's export fills this input and the ones after it, in
+  // the order of the table.
+  var inputs = Array.prototype.slice.call(form.querySelectorAll("tr[data-key] input"));
+  inputs.forEach(function (input, at) {
+    input.addEventListener("paste", function (ev) {
+      var text = (ev.clipboardData || window.clipboardData).getData("text");
+      // tabs, new lines or semicolons separate values; commas only where none of those is used (a
+      // comma may be a decimal mark: "105,7<tab>3,10")
+      var separator = /[\t\r\n;]/.test(text) ? /[\t\r\n;]+/ : /,/;
+      var values = text.split(separator).map(function (v) { return v.trim(); })
+        .filter(function (v) { return v !== ""; });
+      if (values.length < 2) { return; }
+      ev.preventDefault();
+      values.forEach(function (v, i) { if (inputs[at + i]) { inputs[at + i].value = v; } });
+      check();
+    });
+  });
 })();
