@@ -75,6 +75,10 @@ def _run(action: Callable[[], None]) -> None:
         raise typer.Exit(2) from None
 
 
+# the same options and error handling for the station's commands (commands/station.py)
+register_opt, catalog_opt, locate, run_guarded = _register_opt, _catalog_opt, _locate, _run
+
+
 def _table(headers: tuple[str, ...], rows: Sequence[tuple[str, ...]]) -> list[str]:
     widths = [max(len(h), *(len(r[i]) for r in rows)) if rows else len(h) for i, h in enumerate(headers)]
     lines = ["  ".join(h.ljust(w) for h, w in zip(headers, widths)).rstrip()]

@@ -13,7 +13,10 @@ import typer
 
 from specgen.errors import SpecError
 
-from .orders import _catalog_opt, _locate, _register_opt, _run
+from .orders import catalog_opt as _catalog_opt
+from .orders import locate as _locate
+from .orders import register_opt as _register_opt
+from .orders import run_guarded as _run
 
 app = typer.Typer(name="station", no_args_is_help=True,
                   help="The bench and test station's records: measured against predicted, material lots, CSV, PDF.")
