@@ -20,6 +20,7 @@ SESSION_COOKIE = "station_session"
 IDLE_S = 12 * 3600.0
 FIRST_DELAY_S, MAX_DELAY_S = 0.25, 8.0
 MAX_SESSIONS = 10_000
+MAX_FAILURE_KEYS = 10_000
 
 
 @dataclasses.dataclass(slots=True)
@@ -69,6 +70,9 @@ class Sessions:
         """Record one more failure for each key; the delay its answer waits (the largest count wins)."""
         count = 0
         now = time.monotonic()
+        if len(self._failures) >= MAX_FAILURE_KEYS:      # names made up by the thousand must not fill memory
+            for key in sorted(self._failures, key=lambda k: self._failures[k][1])[: MAX_FAILURE_KEYS // 10]:
+                del self._failures[key]
         for key in keys:
             n, _ = self._failures.get(key, (0, now))
             self._failures[key] = (n + 1, now)
