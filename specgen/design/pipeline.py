@@ -217,6 +217,6 @@ def finish(spec: Spec, cat: Catalog, parts: Parts, kind: PartKind, ev: Evaluatio
         output_power_w=s.output_power_w, checks=tuple(checks), tests=tests, materials=tuple(materials),
         inductor=s.inductor, catalog_ids=catalog_ids(spec, parts, windings), iterations=iterations,
         notes=spec.notes, history=history_entries(spec.history), insulation=insulation,
-        current_transformer=s.current_transformer, flyback=s.flyback,
+        current_transformer=s.current_transformer, flyback=s.flyback, connections=s.connections, loads=s.loads,
         floor=floor_data(cat, parts, ev.built, windings, spec.varnish, getattr(spec, "core_wrap", None)),
     )

@@ -10,6 +10,7 @@ from typing import Any
 
 from ..records import record
 from .vocab import CheckLevel
+from .windings_result import ConnectionResult, LoadResult, extend_dict
 
 
 @record
@@ -446,6 +447,8 @@ class Design:
     floor: FloorData | None = None   # None only for a Design built outside the pipeline
     current_transformer: CurrentTransformerResult | None = None
     flyback: FlybackResult | None = None
+    connections: tuple[ConnectionResult, ...] = ()   # several primaries: how they join, the flux of each
+    loads: tuple[LoadResult, ...] = ()               # secondaries' declared loads and their rms currents
 
     @property
     def failed(self) -> list[Check]:
@@ -548,6 +551,7 @@ class Design:
                 "phase_error_max_deg": ct.phase_error_max_deg, "knee_burden_ohm": ct.knee_burden_ohm,
                 "core_loss_current_a": ct.core_loss_current_a, "current_shape": ct.current_shape,
             })
+        extend_dict(out, self.connections, self.loads)
         if self.flyback is not None:
             out.update(_flyback_dict(self.flyback))
             per = {w.name: w for w in self.flyback.windings}

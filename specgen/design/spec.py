@@ -26,6 +26,7 @@ from typing import TYPE_CHECKING, Any, cast
 from ..errors import SpecError
 from ..loading import RENAMED_KEYS, Reader, first_unsafe_char, load_yaml, parse_yaml
 from ..records import record
+from .connections import Connection, Load, check_loads, parse_connections, parse_load
 from .limits import MAX_TURNS
 from .vocab import Cooling, Waveform
 
@@ -87,6 +88,7 @@ class Winding:
     voltage_tolerance: tuple[float, float] | None = None   # (minus, plus) fractions; None: the shop's
     line: int | None = None
     path: str = ""
+    load: Load | None = None         # what a secondary feeds (None: resistive, the current as given)
 
 
 @record
@@ -154,6 +156,7 @@ class Spec:
     data: Any = field(compare=False, repr=False, default_factory=dict)   # the parsed YAML, for fingerprints
     current_transformer: CurrentTransformerReq | None = None
     flyback: FlybackReq | None = None
+    connections: tuple[Connection, ...] = ()   # several primaries: how they are joined outside the part
 
     def winding(self, name: str) -> Winding:
         for w in self.windings:
@@ -207,6 +210,7 @@ def _winding(r: Reader, kind: str) -> Winding:
         turns=turns, margin_m=r.quantity("margin", "length", None, allow_zero=True),
         lead_sleeving=r.text("lead_sleeving", None), same_turns_as=r.text("same_turns_as", None),
         voltage_tolerance=r.tolerance_pair("voltage_tolerance", None), line=r.line, path=r.path,
+        load=parse_load(r, role),
     )
     r.done(renamed=RENAMED_KEYS["windings"])
     if w.start == w.finish:
@@ -269,6 +273,8 @@ def parse_spec(data: Any, name: str) -> Spec:
     windings = tuple(_winding(w, kind) for w in wreaders)
     names = [w.name for w in windings]
     _check_windings(r, kind, windings, wreaders)
+    connections = parse_connections(r, windings) if kind == "transformer" else ()
+    check_loads(kind, windings, wreaders)
     order = _build_order(r, windings)
     ins = r.mapping("insulation", None)
     layer_tape = winding_tape = outer_wrap = core_wrap = None
@@ -312,7 +318,7 @@ def parse_spec(data: Any, name: str) -> Spec:
         insulation_class_c=cls, flux_limit_t=flux_limit_t, efficiency_guess=efficiency_guess,
         layer_tape=layer_tape, winding_tape=winding_tape, outer_wrap=outer_wrap, margin_m=margin_m,
         margin_tape=margin_tape, sleeving=sleeving, varnish=varnish, barriers=barriers, core_wrap=core_wrap,
-        insulation_basis=basis,
+        insulation_basis=basis, connections=connections,
     )
     core.done(("gap", "gap_arrangement"))
     r.done()
@@ -336,12 +342,16 @@ def _check_windings(r: Reader, kind: str, windings: tuple[Winding, ...], wreader
             raise wreaders[i].error("'core' is reserved for barriers to the core", "name")
     if kind == "transformer":
         prim = [w for w in windings if w.role == "primary"]
-        if len(prim) != 1:
-            raise r.error(f"a transformer needs exactly one primary winding, found {len(prim)}", "windings")
-        p = prim[0]
-        pr = wreaders[windings.index(p)]
-        if p.voltage_v is None and p.turns is None:
-            raise pr.error("the primary needs its voltage", "voltage")
+        if not prim:
+            raise r.error("a transformer needs a primary winding", "windings")
+        if len(prim) > 1 and not r.has("connections"):
+            raise r.error(f"a transformer with {len(prim)} primaries needs 'connections' (series or parallel, "
+                          f"and the mains voltage each serves)", "windings")
+        if len(prim) == 1 and r.has("connections"):
+            raise r.error("'connections' join several primaries; this transformer has one", "connections")
+        for p in prim:
+            if p.voltage_v is None and (p.turns is None or len(prim) > 1):
+                raise wreaders[windings.index(p)].error("the primary needs its voltage", "voltage")
         for w, wr in zip(windings, wreaders):
             if w.role in ("secondary", "auxiliary"):
                 if w.voltage_v is None:
