@@ -90,10 +90,15 @@ def expected_links(mode: str, ends: list[tuple[str, str]]) -> tuple[tuple[str, s
     return tuple(p for s, f in ends[1:] for p in ((first[0], s), (first[1], f)))
 
 
-def parse_connections(r: Reader, windings: tuple[object, ...]) -> tuple[Connection, ...]:
-    """The ``connections`` list, every mistake located (see the module docstring)."""
+def parse_connections(r: Reader, kind: str, windings: tuple[object, ...],
+                      wreaders: list[Reader]) -> tuple[Connection, ...]:
+    """The ``connections`` list of a transformer, every mistake located (see the module docstring); the
+    windings' loads checked against each other first (``check_loads``)."""
     from .spec import Winding
 
+    check_loads(kind, windings, wreaders)
+    if kind != "transformer":
+        return ()
     ws = [w for w in windings if isinstance(w, Winding)]
     prims = {w.name: w for w in ws if w.role == "primary"}
     if not r.has("connections"):

@@ -26,7 +26,7 @@ from typing import TYPE_CHECKING, Any, cast
 from ..errors import SpecError
 from ..loading import RENAMED_KEYS, Reader, first_unsafe_char, load_yaml, parse_yaml
 from ..records import record
-from .connections import Connection, Load, check_loads, parse_connections, parse_load
+from .connections import Connection, Load, parse_connections, parse_load
 from .limits import MAX_TURNS
 from .vocab import Cooling, Waveform
 
@@ -273,8 +273,7 @@ def parse_spec(data: Any, name: str) -> Spec:
     windings = tuple(_winding(w, kind) for w in wreaders)
     names = [w.name for w in windings]
     _check_windings(r, kind, windings, wreaders)
-    connections = parse_connections(r, windings) if kind == "transformer" else ()
-    check_loads(kind, windings, wreaders)
+    connections = parse_connections(r, kind, windings, wreaders)
     order = _build_order(r, windings)
     ins = r.mapping("insulation", None)
     layer_tape = winding_tape = outer_wrap = core_wrap = None
