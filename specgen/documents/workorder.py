@@ -22,6 +22,7 @@ from pathlib import Path
 
 from .. import present
 from ..errors import DesignFailed, SpecError
+from .connections_doc import connections_context
 from .settings import DocumentSettings
 
 UNCONTROLLED = "Printed copies are uncontrolled: check the revision before use"
@@ -485,6 +486,7 @@ def build_context(design, settings, *, number: str, qty: int, due: str | None = 
         "pin_word": pin_word, "paper": CSS_PAPER[settings.paper], "side_margin_mm": SIDE_MARGIN_MM,
         "insulation": _insulation_rows(d),
     }
+    ctx["connections"] = connections_context(d)
     ctx.update(_drawings(d, settings))
     return ctx
 
