@@ -162,3 +162,82 @@ def test_several_primaries_need_connections():
     text = text[:text.index("connections:")] + text[text.index("insulation:"):]
     with pytest.raises(SpecError, match="needs 'connections'"):
         load_spec_text(text, "bad.yaml")
+
+
+# ------------------------------------------------------------------------------------- wound together
+def test_bifilar_pair_is_equal_by_construction(dual):
+    # S2 is wound with S1 (two wires in hand): the same layers, so the same length, DCR, Fr and voltage;
+    # wound one after the other they came out one layer against two (35.25 V against 35.17 V on the report)
+    s1, s2 = _w(dual, "S1"), _w(dual, "S2")
+    assert s1.turns == s2.turns and s1.layers == s2.layers
+    assert s1.length_m == pytest.approx(s2.length_m, rel=1e-12)
+    assert s1.dcr_20c_ohm == pytest.approx(s2.dcr_20c_ohm, rel=1e-12)
+    assert s1.voltage_v == pytest.approx(s2.voltage_v, rel=1e-12)
+    assert s1.fr == pytest.approx(s2.fr, rel=1e-12)
+    sec1, sec2 = s1.sections[0], s2.sections[0]
+    assert sec1.order == sec2.order and sec1.start_build_m == sec2.start_build_m
+    assert sec1.wound_with == "S2" and sec2.wound_with == "S1"
+    out = {w["name"]: w for w in dual.to_dict()["windings"]}
+    assert out["S2"]["wound_with"] == "S1" and out["S1"]["wound_with"] == "S2"
+    assert any(lim.item == "S1:S2" for lim in dual.tests.ratio)
+
+
+def test_bifilar_layers_hold_both_wires(dual):
+    # each layer holds as many turns of each wire as half a layer of one wire would: the pitch is two wires
+    s1 = _w(dual, "S1")
+    text = DUAL.read_text(encoding="utf-8").replace("    wound_with: S1", "    same_turns_as: S1")
+    from specgen.catalog.loader import load_catalog
+    from specgen.design.pipeline import design
+
+    apart = design(load_spec_text(text, "apart.yaml"), load_catalog(CATALOG))
+    one = _w(apart, "S1")
+    if one.wire == s1.wire:
+        assert s1.turns_per_layer == one.turns_per_layer // 2
+    # the two wound apart differ (the second sits on a larger turn length)
+    assert _w(apart, "S1").length_m != pytest.approx(_w(apart, "S2").length_m, rel=1e-6)
+
+
+def test_bifilar_work_order_step():
+    from specgen.catalog.loader import load_catalog
+    from specgen.documents.settings import DocumentSettings
+    from specgen.documents.workorder import render_work_order_html
+
+    d = design_file(DUAL, CATALOG)
+    html = render_work_order_html(d, DocumentSettings.from_shop(load_catalog(CATALOG).shop), number="WO-TEST",
+                                  qty=5)
+    assert "Wind S1 and S2 together (bifilar)" in html
+    assert "two wires in hand" in html
+    assert "Wind S2" not in html.replace("Wind S1 and S2", "")
+
+
+@pytest.mark.parametrize("old,new,words,path", [
+    ("    wound_with: S1", "    wound_with: S9", "names no other winding", "windings[3].wound_with"),
+    ("    wire: auto\n    start: \"9\"", "    wire: CU-0.50-G2\n    start: \"9\"", "share one wire",
+     "windings[3].wire"),
+])
+def test_bad_bifilar_is_located(old, new, words, path):
+    text = DUAL.read_text(encoding="utf-8").replace(old, new, 1)
+    with pytest.raises(SpecError, match=words) as err:
+        load_spec_text(text, "bad.yaml")
+    assert err.value.path == path
+
+
+# ------------------------------------------------------------------------------------- several frequencies
+def test_a_part_for_50_and_60_hz_is_designed_at_the_lowest():
+    # Faraday: the flux is highest at the lowest frequency, so 50 Hz sets the turns; Steinmetz
+    # (P = k f^alpha B^beta with beta > alpha for steel) makes 50 Hz at its higher flux the worse core loss
+    from specgen.catalog.loader import load_catalog
+    from specgen.design.pipeline import design
+
+    cat = load_catalog(CATALOG)
+    text = DUAL.read_text(encoding="utf-8")
+    both = design(load_spec_text(text.replace("frequency: 60 Hz", "frequency: [60 Hz, 50 Hz]"), "both.yaml"), cat)
+    at50 = design(load_spec_text(text.replace("frequency: 60 Hz", "frequency: 50 Hz"), "at50.yaml"), cat)
+    assert both.frequency_hz == 50.0 and both.frequencies_hz == (50.0, 60.0)
+    assert _w(both, "P1").turns == _w(at50, "P1").turns
+    assert both.losses.core_w == pytest.approx(at50.losses.core_w, rel=1e-9)
+    check = next(c for c in both.checks if c.code == "frequencies")
+    assert "core loss and temperature at 50 Hz" in check.message
+    ocv = next(lim for lim in both.tests.open_circuit if lim.item == "S1")
+    assert "50 Hz" in ocv.condition and "also serves 60 Hz" in ocv.condition
+    assert both.to_dict()["frequencies_hz"] == [50.0, 60.0]

@@ -119,7 +119,7 @@ def _sections(spec: Spec, built: BuiltWindow, ev: Evaluation[Any], w: Winding) -
                            start_pin=sp, finish_pin=fp, fr=ev.frs.get((w.name, s.index), 1.0),
                            layer_tape=spec.layer_tape.tape if layered and spec.layer_tape else None,
                            layer_tape_layers=spec.layer_tape.layers if layered and spec.layer_tape else 0,
-                           margin_tape=spec.margin_tape if s.margin_m > 0 else None))
+                           margin_tape=spec.margin_tape if s.margin_m > 0 else None, wound_with=s.wound_with))
     return tuple(out)
 
 
@@ -218,5 +218,6 @@ def finish(spec: Spec, cat: Catalog, parts: Parts, kind: PartKind, ev: Evaluatio
         inductor=s.inductor, catalog_ids=catalog_ids(spec, parts, windings), iterations=iterations,
         notes=spec.notes, history=history_entries(spec.history), insulation=insulation,
         current_transformer=s.current_transformer, flyback=s.flyback, connections=s.connections, loads=s.loads,
+        frequencies_hz=spec.frequencies_hz,
         floor=floor_data(cat, parts, ev.built, windings, spec.varnish, getattr(spec, "core_wrap", None)),
     )

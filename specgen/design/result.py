@@ -50,6 +50,7 @@ class Section:
     layer_tape: str | None = None    # tape between the layers of this section
     layer_tape_layers: int = 0
     margin_tape: str | None = None   # built up in the margins each side
+    wound_with: str | None = None    # bifilar: the winding laid turn by turn in the same layers
 
 
 @record
@@ -449,6 +450,7 @@ class Design:
     flyback: FlybackResult | None = None
     connections: tuple[ConnectionResult, ...] = ()   # several primaries: how they join, the flux of each
     loads: tuple[LoadResult, ...] = ()               # secondaries' declared loads and their rms currents
+    frequencies_hz: tuple[float, ...] = ()           # several frequencies served (frequency_hz the lowest)
 
     @property
     def failed(self) -> list[Check]:
@@ -505,6 +507,7 @@ class Design:
                     "layers": [{"turns": l.turns, "mlt_mm": l.mlt_m * 1e3,
                                 "build_mm": l.build_to_centre_m * 1e3} for l in s.layers],
                     "start_pin": s.start_pin, "finish_pin": s.finish_pin, "fr": s.fr,
+                    **({"wound_with": s.wound_with} if s.wound_with else {}),
                 } for s in w.sections],
             } for w in self.windings],
             "build": {
@@ -551,7 +554,7 @@ class Design:
                 "phase_error_max_deg": ct.phase_error_max_deg, "knee_burden_ohm": ct.knee_burden_ohm,
                 "core_loss_current_a": ct.core_loss_current_a, "current_shape": ct.current_shape,
             })
-        extend_dict(out, self.connections, self.loads)
+        extend_dict(out, self.connections, self.loads, self.frequencies_hz)
         if self.flyback is not None:
             out.update(_flyback_dict(self.flyback))
             per = {w.name: w for w in self.flyback.windings}

@@ -89,6 +89,7 @@ class Winding:
     line: int | None = None
     path: str = ""
     load: Load | None = None         # what a secondary feeds (None: resistive, the current as given)
+    wound_with: str | None = None    # bifilar: wound together with this winding, turn by turn in its layers
 
 
 @record
@@ -157,6 +158,7 @@ class Spec:
     current_transformer: CurrentTransformerReq | None = None
     flyback: FlybackReq | None = None
     connections: tuple[Connection, ...] = ()   # several primaries: how they are joined outside the part
+    frequencies_hz: tuple[float, ...] = ()     # a part for several mains frequencies (frequency_hz the lowest)
 
     def winding(self, name: str) -> Winding:
         for w in self.windings:
@@ -210,7 +212,7 @@ def _winding(r: Reader, kind: str) -> Winding:
         turns=turns, margin_m=r.quantity("margin", "length", None, allow_zero=True),
         lead_sleeving=r.text("lead_sleeving", None), same_turns_as=r.text("same_turns_as", None),
         voltage_tolerance=r.tolerance_pair("voltage_tolerance", None), line=r.line, path=r.path,
-        load=parse_load(r, role),
+        load=parse_load(r, role), wound_with=r.text("wound_with", None, max_len=40),
     )
     r.done(renamed=RENAMED_KEYS["windings"])
     if w.start == w.finish:
@@ -240,6 +242,32 @@ def _winding(r: Reader, kind: str) -> Winding:
     return w
 
 
+def _frequencies(op: Reader, kind: str) -> tuple[float, tuple[float, ...]]:
+    """The operating frequency, or a transformer's list of them (50 and 60 Hz): (the lowest, all of them)."""
+    from .. import units
+
+    raw = op.raw("frequency")
+    if isinstance(raw, list):
+        if kind != "transformer" or len(raw) < 2:
+            raise op.error("several frequencies are for a transformer (a list of two or more, like "
+                           "[50 Hz, 60 Hz]); give one frequency here", "frequency")
+        out = []
+        for i, item in enumerate(raw):
+            try:
+                out.append(units.parse(item, "frequency"))
+            except units.UnitError as err:
+                raise op.item_error("frequency", i, str(err)) from None
+        values = tuple(sorted(set(out)))
+    else:
+        values = (op.quantity("frequency", "frequency"),)
+    for f in values:
+        if f > 50e6:
+            raise op.error("frequency above 50 MHz is outside what this tool models", "frequency")
+        if f < 1.0:
+            raise op.error("frequency below 1 Hz; for DC chokes give the ripple frequency", "frequency")
+    return values[0], (values if len(values) > 1 else ())
+
+
 def _section(r: Reader, key: str) -> Reader:
     """A required mapping (``Reader.mapping`` raises a located error when it is missing)."""
     sub = r.mapping(key)
@@ -255,11 +283,7 @@ def parse_spec(data: Any, name: str) -> Spec:
     waveform = cast(Waveform, op.choice("waveform", WAVEFORMS, "sine"))
     ins_class = op.raw("insulation_class", 130)
     cls = insulation_class(op, ins_class)
-    freq = op.quantity("frequency", "frequency")
-    if freq > 50e6:
-        raise op.error("frequency above 50 MHz is outside what this tool models", "frequency")
-    if freq < 1.0:
-        raise op.error("frequency below 1 Hz; for DC chokes give the ripple frequency", "frequency")
+    freq, freqs = _frequencies(op, kind)
     ambient = op.quantity("ambient", "temperature", 25.0)
     if not -60.0 <= ambient <= 200.0:
         raise op.error(f"ambient {ambient:g} degC is outside -60..200 degC", "ambient")
@@ -317,7 +341,7 @@ def parse_spec(data: Any, name: str) -> Spec:
         insulation_class_c=cls, flux_limit_t=flux_limit_t, efficiency_guess=efficiency_guess,
         layer_tape=layer_tape, winding_tape=winding_tape, outer_wrap=outer_wrap, margin_m=margin_m,
         margin_tape=margin_tape, sleeving=sleeving, varnish=varnish, barriers=barriers, core_wrap=core_wrap,
-        insulation_basis=basis, connections=connections,
+        insulation_basis=basis, connections=connections, frequencies_hz=freqs,
     )
     core.done(("gap", "gap_arrangement"))
     r.done()
@@ -370,6 +394,7 @@ def _check_windings(r: Reader, kind: str, windings: tuple[Winding, ...], wreader
             raise wreaders[0].error("an inductor has no output voltage to hold: voltage_tolerance is for a "
                                     "transformer's secondary and auxiliary windings", "voltage_tolerance")
 
+    _check_bifilar(kind, windings, wreaders)
     for w, wr in zip(windings, wreaders):
         if w.same_turns_as is not None:
             other = next((o for o in windings if o.name == w.same_turns_as), None)
@@ -378,6 +403,31 @@ def _check_windings(r: Reader, kind: str, windings: tuple[Winding, ...], wreader
             if other.role != w.role or other.voltage_v != w.voltage_v:
                 raise wr.error(f"only a winding of the same role and voltage can have the same turns as {w.same_turns_as}",
                                "same_turns_as")
+
+
+def _check_bifilar(kind: str, windings: tuple[Winding, ...], wreaders: list[Reader]) -> None:
+    """A winding wound with another: a transformer's, one section each, one wire, equal turns, one partner."""
+    by_name = {w.name: w for w in windings}
+    taken: dict[str, str] = {}
+    for w, wr in zip(windings, wreaders):
+        if w.wound_with is None:
+            continue
+        lead = by_name.get(w.wound_with)
+        if lead is None or lead is w:
+            raise wr.error(f"'{w.wound_with}' names no other winding", "wound_with")
+        if kind != "transformer":
+            raise wr.error(f"'wound_with' is read for a transformer's windings, not by kind {kind}", "wound_with")
+        if lead.wound_with is not None or lead.name in taken:
+            raise wr.error(f"{lead.name} is already wound with another winding: a bifilar pair is two windings, "
+                           f"named once on the second", "wound_with")
+        if w.sections != 1 or lead.sections != 1:
+            raise wr.error("windings wound together are one section each", "wound_with")
+        if w.wire != lead.wire and not w.wire.startswith("auto"):
+            raise wr.error(f"windings wound together share one wire: {w.name} gives {w.wire}, {lead.name} "
+                           f"{lead.wire}", "wire")
+        if w.turns is not None and lead.turns is not None and w.turns != lead.turns:
+            raise wr.error(f"windings wound together have the same turns ({w.turns} against {lead.turns})", "turns")
+        taken[lead.name] = w.name
 
 
 RESERVED_NAMES = ("all", "core")
@@ -413,9 +463,10 @@ def insulation_class(r: Reader, value: object) -> int:
 
 def _build_order(r: Reader, windings: tuple[Winding, ...]) -> tuple[tuple[str, int], ...]:
     by_name = {w.name: w for w in windings}
+    followers = {w.name for w in windings if w.wound_with}    # laid in their partner's layers, not on their own
     if not r.has("build_order"):
         r.raw("build_order", None)
-        return tuple((w.name, k) for w in windings for k in range(1, w.sections + 1))
+        return tuple((w.name, k) for w in windings if w.name not in followers for k in range(1, w.sections + 1))
     raw = r.list_of("build_order")
     order = []
     for i, item in enumerate(raw):
@@ -424,6 +475,9 @@ def _build_order(r: Reader, windings: tuple[Winding, ...]) -> tuple[tuple[str, i
         if name not in by_name:
             raise r.item_error("build_order", i, f"'{text}' names no winding (windings: {', '.join(by_name)})")
         w = by_name[name]
+        if name in followers:
+            raise r.item_error("build_order", i, f"'{text}' is wound with {w.wound_with}: it goes where "
+                                                 f"{w.wound_with} goes; leave it out of build_order")
         if sec:
             if not sec.isdigit() or not 1 <= int(sec) <= w.sections:
                 raise r.item_error("build_order", i, f"'{text}': winding {name} has sections 1..{w.sections}")
@@ -433,7 +487,7 @@ def _build_order(r: Reader, windings: tuple[Winding, ...]) -> tuple[tuple[str, i
                 raise r.item_error("build_order", i, f"'{text}': winding {name} is in {w.sections} sections; "
                                                      f"name them {name}.1 .. {name}.{w.sections}")
             order.append((name, 1))
-    want = {(w.name, k) for w in windings for k in range(1, w.sections + 1)}
+    want = {(w.name, k) for w in windings if w.name not in followers for k in range(1, w.sections + 1)}
     if len(set(order)) != len(order):
         raise r.error("a section appears twice in build_order", "build_order")
     missing = want - set(order)

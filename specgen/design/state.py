@@ -121,6 +121,7 @@ class BuiltSection:
     margin_m: float
     tape_after: str | None
     tape_after_layers: int
+    wound_with: str | None = None  # bifilar: the partner laid turn by turn in the same layers
 
 
 @record(slots=True)

@@ -42,8 +42,11 @@ class LoadResult:
 
 
 def extend_dict(out: dict[str, Any], connections: tuple[ConnectionResult, ...],
-                loads: tuple[LoadResult, ...]) -> None:
-    """Add the connection and load keys to a Design's JSON (``Design.to_dict``) where the part has them."""
+                loads: tuple[LoadResult, ...], frequencies_hz: tuple[float, ...] = ()) -> None:
+    """Add the connection, load and frequency keys to a Design's JSON (``Design.to_dict``) where the part has
+    them."""
+    if frequencies_hz:
+        out["frequencies_hz"] = list(frequencies_hz)
     if connections:
         out["connections"] = [{
             "name": c.name, "primaries": list(c.primaries), c.mode: list(c.primaries),
@@ -55,6 +58,12 @@ def extend_dict(out: dict[str, Any], connections: tuple[ConnectionResult, ...],
             names = [c.name for c in connections if w["name"] in c.primaries]
             if names:
                 w["connection"] = names
+    for w in out["windings"]:
+        mates = {s.get("wound_with") for s in w.get("sections", [])} - {None}
+        for s in w.get("sections", []):
+            s.pop("wound_with", None)
+        if mates:
+            w["wound_with"] = sorted(mates)[0]
     per = {ld.winding: ld for ld in loads}
     if per:
         for w in out["windings"]:

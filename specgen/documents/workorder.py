@@ -116,6 +116,17 @@ def _sections_in_order(design) -> list:
     return [(w, s) for _o, w, s in out]
 
 
+def _bifilar_slot(design, w, s) -> tuple[int, int]:
+    """(place, of) of a winding's wire among those wound together in a layer: (0, 1) alone; a bifilar pair's
+    first (the one in the build order) (0, 2), its partner (1, 2)."""
+    if s.wound_with is None:
+        return 0, 1
+    names = [x.name for x in design.windings]
+    first = min(w.name, s.wound_with, key=lambda n: (min(x.order for x in next(
+        y for y in design.windings if y.name == n).sections), names.index(n)))
+    return (0, 2) if w.name == first else (1, 2)
+
+
 def _pins_of(condition: str) -> str:
     m = re.match(r"pins\s+(\S+)", condition or "")
     return m.group(1).rstrip(",") if m else ""
@@ -215,7 +226,7 @@ def _drawings(design, settings) -> dict:
             round_wire=w.wire_kind in ("round", "litz", "tiw"), tape_after=s.tape_after,
             tape_after_m=tapes.after.build_m if tapes.after else 0.0,
             layer_tape_m=tapes.between_layers.build_m if tapes.between_layers else 0.0,
-            colour_index=index[w.name]))
+            colour_index=index[w.name], slot=_bifilar_slot(design, w, s)))
     outline = floor.outline
     if toroid:
         window_svg, scale = _fit_to_text_width(
@@ -238,6 +249,26 @@ _LEAD_PREP = {
     "foil": "Solder the lead strap to the foil across its full width before the first turn is covered.",
     "strip": "Strip the strip's ends and form them before soldering.",
 }
+
+
+def bifilar_rows(rows: list, w, mate, pin_word: str) -> tuple[list, str, list]:
+    """A step that winds two windings together (bifilar): both starts and finishes, two wires in hand."""
+    out = []
+    for label, value, style in rows:
+        if label == f"Start {pin_word}":
+            value = f"{w.start} ({w.name}) and {mate.start} ({mate.name})   ● DOT at {w.dot_pin} and {mate.dot_pin}"
+        elif label == f"Finish {pin_word}":
+            value = f"{w.finish} ({w.name}) and {mate.finish} ({mate.name})"
+        elif label == "Layers":
+            value = f"{value}, of each wire"
+        elif label == "Wire":
+            value = f"{w.wire}: {w.wire_label}, two wires in hand ({w.name} and {mate.name}) side by side"
+        out.append((label, value, style))
+    heading = f"Wind {w.name} and {mate.name} together (bifilar)"
+    lines = [f"Wind {w.name} and {mate.name} together, two wires in hand, side by side in every layer; keep "
+             f"them flat and never let them cross. Mark the {mate.name} wire at its start (a sleeve or a pen "
+             f"mark) so the ends can be told apart; {mate.name}'s dot is at {pin_word} {mate.dot_pin}."]
+    return out, heading, lines
 
 
 def termination_step(d, n: int) -> dict:
@@ -347,7 +378,13 @@ def build_context(design, settings, *, number: str, qty: int, due: str | None = 
 
     order = _sections_in_order(d)
     last_order = order[-1][1].order if order else 0
+    by_name = {w.name: w for w in d.windings}
+    wound: set[tuple[str, int]] = set()
     for w, s in order:
+        if s.wound_with is not None and (s.wound_with, s.index) in wound:
+            continue                       # bifilar: wound in its partner's step
+        wound.add((w.name, s.index))
+        mate = by_name.get(s.wound_with) if s.wound_with else None
         n += 1
         label = section_label(w, s)
         first_sec = s.index == 1
@@ -398,8 +435,11 @@ def build_context(design, settings, *, number: str, qty: int, due: str | None = 
             beyond = "beyond the pin" if not toroid else "free lead"
             rows.append(("Leads", f"{fmt_mm(lead_m)} {beyond} at the {' and '.join(ends)}{sleeve}", ""))
         heading = f"Wind {label}" + (f" (section {s.index} of {len(w.sections)})" if len(w.sections) > 1 else "")
+        lines = []
+        if mate is not None:
+            rows, heading, lines = bifilar_rows(rows, w, mate, pin_word)
         steps.append({"n": n, "kind": "wind", "heading": heading, "turns": s.turns, "winding": w.name,
-                      "wire": w.wire, "rows": rows, "dot": dot, "lines": [],
+                      "wire": w.wire, "rows": rows, "dot": dot, "lines": lines,
                       "layers": [{"index": l.index, "turns": l.turns} for l in s.layers]})
 
     if not toroid:          # leads go onto the pins before the core closes the bobbin

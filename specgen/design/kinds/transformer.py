@@ -64,6 +64,7 @@ class TransformerPass:
     leakage_h: float
     loads: dict[str, LoadResult]
     connections: tuple[ConnectionResult, ...] = ()
+    core_w_m3_by_hz: dict[float, float] | None = None   # core loss density at each frequency served
 
 
 def _balanced(spec: Spec, states: dict[str, WindingState], np_turns: int,
@@ -142,6 +143,12 @@ class TransformerRun:
                 self.wires[w.name] = choose_wire(cat, 0.05, self.density, 0.0, K.WIRE_CHOICE_TEMP_C, "auto")
             else:
                 self.wires[w.name] = choose_wire(cat, current, self.density, f, K.WIRE_CHOICE_TEMP_C, w.wire, w.strands)
+        for w in spec.windings:          # wound together: one wire, sized for the larger of the two currents
+            if w.wound_with is not None:
+                lead = next(x for x in spec.windings if x.name == w.wound_with)
+                big = lead if (ip if lead.role == "primary" else self.load_current.get(lead.name, 0.0)) >= \
+                    (ip if w.role == "primary" else self.load_current.get(w.name, 0.0)) else w
+                self.wires[w.name] = self.wires[lead.name] = self.wires[big.name]
 
     def initial_states(self, np_turns: int, ip: float) -> dict[str, WindingState]:
         states: dict[str, WindingState] = {}
@@ -215,10 +222,11 @@ class TransformerRun:
                         raise too_many_turns(spec, st.turns + add, f"winding {w.name} at {w.voltage_v:g} V",
                                              "windings", st.index, "voltage")
                     states[w.name], changed = replace(st, turns=st.turns + add), True
-            for w in self.loads:      # matched pairs wind the larger of their two turn counts
-                if w.same_turns_as and states[w.same_turns_as].turns != states[w.name].turns:
-                    n = max(states[w.same_turns_as].turns, states[w.name].turns)
-                    states[w.same_turns_as] = replace(states[w.same_turns_as], turns=n)
+            for w in self.loads:      # matched and bifilar pairs wind the larger of their two turn counts
+                mate = w.same_turns_as or w.wound_with
+                if mate and states[mate].turns != states[w.name].turns:
+                    n = max(states[mate].turns, states[w.name].turns)
+                    states[mate] = replace(states[mate], turns=n)
                     states[w.name] = replace(states[w.name], turns=n)
                     changed = True
             if not changed:
@@ -248,7 +256,15 @@ class TransformerRun:
                                                 i_ac, i_dc))
         b_pk = float(faraday.b_peak_t(self.vp, f, np_turns, parts.ae_m2, wf, spec.duty))
         b_pk_max = float(faraday.b_peak_t(self.vp_max, f, np_turns, parts.ae_m2, wf, spec.duty))
+        # several frequencies: the flux is highest at the lowest (f); the core loss is taken at the worst one,
+        # each frequency with its own flux
+        by_f = {fx: float(K.core_loss_w_m3(wf, fx, float(faraday.b_peak_t(self.vp, fx, np_turns, parts.ae_m2, wf,
+                                                                             spec.duty)),
+                                           spec.duty, mat.steinmetz_k, mat.steinmetz_alpha, mat.steinmetz_beta))
+                for fx in spec.frequencies_hz[1:]}
         pv = float(K.core_loss_w_m3(wf, f, b_pk, spec.duty, mat.steinmetz_k, mat.steinmetz_alpha, mat.steinmetz_beta))
+        by_f[f] = pv
+        pv = max(by_f.values())
         open_v = {w.name: self.vp * states[w.name].turns / np_turns for w in self.loads}
         first_half = next((n for n, ld in self.load_result.items() if ld.load == "centre_tapped"), None)
         amps = LD.interval_currents(self.load_result, first_half) if first_half else None
@@ -257,7 +273,7 @@ class TransformerRun:
         conns = connection_results(spec.connections, self.vp_max / self.vp if self.vp else 1.0, f, np_turns,
                                    parts.ae_m2, wf, spec.duty)
         detail = TransformerPass(np_turns, eta, lm, imag, imag_pk, b_pk, b_pk_max, loaded, open_v, l_lk,
-                                 dict(self.load_result), conns)
+                                 dict(self.load_result), conns, by_f)
         return Evaluation(states, built, frs, copper, pv * parts.ve_m3, pv, detail)
 
     def frs(self, built: BuiltWindow, states: dict[str, WindingState], np_turns: int,
@@ -420,6 +436,13 @@ class TransformerRun:
                 reg = (p.open_v[w.name] - p.loaded_v[w.name]) / p.loaded_v[w.name] * 100.0
                 regulation = reg if regulation is None else max(regulation, reg)
         extra = [self.voltage_check(w, p) for w in self.loads]
+        if self.spec.frequencies_hz and p.core_w_m3_by_hz:
+            worst = max(p.core_w_m3_by_hz, key=lambda x: p.core_w_m3_by_hz[x] if p.core_w_m3_by_hz else 0.0)
+            served = " and ".join(_freq(x) for x in self.spec.frequencies_hz)
+            extra.append(Check("pass", "frequencies",
+                               f"serves {served}: flux checked at {_freq(self.spec.frequency_hz)} (the lowest, the "
+                               f"highest flux), core loss and temperature at {_freq(worst)} (the worst: "
+                               f"{p.core_w_m3_by_hz[worst] / 1e3:.3g} kW/m³)"))
         primary = ev.windings[self.prim.name]
         share = p.imag_a / self.halves / primary.current_a if primary.current_a > 0 else 0.0   # per half
         if share > MAGNETIZING_WARN:
@@ -441,6 +464,12 @@ class TransformerRun:
 
 def _band(asked: float, tol: tuple[float, float]) -> str:
     return f"{asked:g} V -{tol[0] * 100:g}/+{tol[1] * 100:g} % ({asked * (1 - tol[0]):.3f}-{asked * (1 + tol[1]):.3f} V)"
+
+
+def _also(spec: Spec) -> str:
+    """A test condition's note on a part for several frequencies: it is tested at the lowest."""
+    rest = [_freq(x) for x in spec.frequencies_hz if x != spec.frequency_hz]
+    return f" (tested at the lowest frequency; the part also serves {', '.join(rest)})" if rest else ""
 
 
 class TransformerKind:
@@ -503,6 +532,12 @@ class TransformerKind:
                                    low=r * (1 - tol["ratio"]), high=r * (1 + tol["ratio"]), unit=":1",
                                    condition=f"halves, {prim.turns} : {w.turns} turns; {prim.name} driven, "
                                              f"{w.name} open"))
+            mate = next((x for x in windings if x.name == w.name), None)
+            bifilar = next((s.wound_with for s in (mate.sections if mate else ()) if s.wound_with), None)
+            if w.role in ("secondary", "auxiliary") and bifilar and spec.winding(w.name).wound_with == bifilar:
+                ratio.append(Limit(name="turns ratio", item=f"{bifilar}:{w.name}", nominal=1.0,
+                                   low=1 - tol["ratio"], high=1 + tol["ratio"], unit=":1",
+                                   condition=f"wound together, {w.turns} : {w.turns} turns; {bifilar} driven"))
             if w.role in ("secondary", "auxiliary"):
                 r = prim.turns / w.turns
                 ratio.append(Limit(name="turns ratio", item=f"{prim.name}:{w.name}", nominal=r,
@@ -514,7 +549,7 @@ class TransformerKind:
                                      low=v * (1 - tol["open_circuit_voltage"]),
                                      high=v * (1 + tol["open_circuit_voltage"]), unit="V",
                                      condition=f"{prim.name} at {s.voltages[prim.name]:.4g} V, "
-                                               f"{_freq(spec.frequency_hz)}, no load"))
+                                               f"{_freq(spec.frequency_hz)}, no load" + _also(spec)))
         for w in windings:
             if w is prim or not w.finish:
                 continue
