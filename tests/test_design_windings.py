@@ -241,3 +241,20 @@ def test_a_part_for_50_and_60_hz_is_designed_at_the_lowest():
     ocv = next(lim for lim in both.tests.open_circuit if lim.item == "S1")
     assert "50 Hz" in ocv.condition and "also serves 60 Hz" in ocv.condition
     assert both.to_dict()["frequencies_hz"] == [50.0, 60.0]
+
+
+def test_a_transformer_winding_without_a_role_is_located():
+    # found by the spec fuzzer: a winding with `role: null` reached the engine and raised KeyError
+    text = DUAL.read_text(encoding="utf-8")
+    i = text.index("  - name: S2\n    role: secondary")
+    text = text[:i] + text[i:].replace("    role: secondary", "    role: null", 1)
+    with pytest.raises(SpecError, match="needs its role") as err:
+        load_spec_text(text, "bad.yaml")
+    assert err.value.path == "windings[3].role"
+
+
+def test_a_winding_named_like_a_non_number_is_refused():
+    # found by the spec fuzzer: 'winding inf' in a check message reads as a non-finite figure
+    text = DUAL.read_text(encoding="utf-8").replace("  - name: S1\n", "  - name: inf\n", 1)
+    with pytest.raises(SpecError, match="reads as a number"):
+        load_spec_text(text, "bad.yaml")

@@ -384,6 +384,9 @@ def _check_windings(r: Reader, kind: str, windings: tuple[Winding, ...], wreader
             if w.voltage_tolerance is not None and w.role not in ("secondary", "auxiliary"):
                 raise wr.error(f"a {w.role} winding has no output voltage to hold: voltage_tolerance is for "
                                f"secondary and auxiliary windings", "voltage_tolerance")
+            if w.role is None:
+                raise wr.error("a transformer's winding needs its role: primary, secondary, auxiliary or shield",
+                               "role")
             if w.role == "main":
                 raise wr.error("role 'main' is for inductors; a transformer's windings are primary, "
                                "secondary, auxiliary or shield", "role")
@@ -420,6 +423,8 @@ def _check_bifilar(kind: str, windings: tuple[Winding, ...], wreaders: list[Read
         if lead.wound_with is not None or lead.name in taken:
             raise wr.error(f"{lead.name} is already wound with another winding: a bifilar pair is two windings, "
                            f"named once on the second", "wound_with")
+        if w.role != lead.role:
+            raise wr.error(f"only a winding of the same role can be wound with {lead.name}", "wound_with")
         if w.sections != 1 or lead.sections != 1:
             raise wr.error("windings wound together are one section each", "wound_with")
         if w.wire != lead.wire and not w.wire.startswith("auto"):
@@ -445,6 +450,8 @@ def winding_name_problem(name: str) -> str | None:
     for c in ".+,:[]{}#":
         if c in name:
             return f"winding name '{name}' carries '{c}', which the spec uses between names (P.1, S1+S2)"
+    if name.lower() in ("nan", "inf", "infinity"):
+        return f"winding name '{name}' reads as a number that is not one; name it otherwise"
     if name.lower() in RESERVED_NAMES:
         return f"'{name}' is reserved ('all' windings, the 'core') and cannot name a winding"
     return None
