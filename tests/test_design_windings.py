@@ -258,3 +258,74 @@ def test_a_winding_named_like_a_non_number_is_refused():
     text = DUAL.read_text(encoding="utf-8").replace("  - name: S1\n", "  - name: inf\n", 1)
     with pytest.raises(SpecError, match="reads as a number"):
         load_spec_text(text, "bad.yaml")
+# ------------------------------------------------------------------------------------------------- taps
+TAPPED = """part: BH-T160
+title: Tapped primary fixture 0-208-230-240 V to 24 V
+revision: A
+status: draft
+customer: Brindle Hollow Coil Works (test fixture)
+kind: transformer
+core: {id: EI-125, stack: 32 mm}
+operating: {frequency: 60 Hz, waveform: sine, ambient: 40 degC, cooling: natural, insulation_class: 130 (B)}
+windings:
+  - name: P
+    role: primary
+    voltage: 240 V
+    voltage_max: 254 V
+    wire: auto
+    start: "1"
+    finish: "4"
+    taps:
+      - {voltage: 208 V, pin: "2"}
+      - {voltage: 230 V, pin: "3"}
+  - {name: S, role: secondary, voltage: 24 V, current: 2 A, wire: auto, start: "7", finish: "8"}
+insulation:
+  layer_tape: {tape: TAPE-PET25-44MM, layers: 1}
+  winding_tape: {tape: TAPE-PET50-44.5MM, layers: 2}
+  margin: 2 mm
+  margin_tape: TAPE-MARGIN-2MM
+"""
+
+
+def test_taps_named_by_voltage():
+    # Faraday: volts per turn are the same along the winding, so a tap's turn is N V_tap / V (whole turns)
+    from specgen.catalog.loader import load_catalog
+    from specgen.design.pipeline import design
+
+    d = design(load_spec_text(TAPPED, "tapped.yaml"), load_catalog(CATALOG))
+    p = _w(d, "P")
+    by = {t.voltage_v: t for t in d.taps}
+    for v in (208.0, 230.0):
+        t = by[v]
+        assert t.turn == round(p.turns * v / 240.0)
+        before = sum(l.turns for l in p.sections[0].layers[: t.layer - 1])
+        assert before + t.turn_in_layer == t.turn
+        assert t.b_peak_max_t == pytest.approx(d.b_peak_max_t * v / 240.0 * p.turns / t.turn, rel=1e-12)
+    out = d.to_dict()["windings"][0]["taps"]
+    assert [(x["voltage_v"], x["pin"]) for x in out] == [(208.0, "2"), (230.0, "3")]
+    assert {"voltage_v", "turn", "pin"} <= set(out[0])
+    assert [lim.item for lim in d.tests.ratio if lim.name == "tap ratio"] == ["P 1-2", "P 1-3"]
+
+
+@pytest.mark.parametrize("old,new,words,path", [
+    ("{voltage: 230 V, pin: \"3\"}", "{voltage: 250 V, pin: \"3\"}", "beyond the winding", "windings[0].taps[1]"),
+    ("{voltage: 230 V, pin: \"3\"}", "{voltage: 230 V, pin: \"2\"}", "already used", "windings[0].taps[1]"),
+])
+def test_bad_taps_are_located(old, new, words, path):
+    text = TAPPED.replace(old, new, 1)
+    with pytest.raises(SpecError, match=words) as err:
+        load_spec_text(text, "bad.yaml")
+    assert err.value.path == path
+    assert err.value.line == next(i for i, t in enumerate(text.splitlines(), 1) if new in t)
+
+
+def test_uneven_sections_say_how_they_were_split():
+    # BH-2210's primary is in two sections; 31 turns do not divide by two
+    d = design_file(ROOT / "specgen" / "demo" / "BH-2210.yaml", CATALOG)
+    p = _w(d, "P")
+    assert p.turns % 2 == 1
+    note = next(c for c in d.checks if c.code == "sections")
+    a, b = (s.turns for s in p.sections)
+    assert a == b + 1 and f"{a} + {b}" in note.message and "section 1 one turn more" in note.message
+    dual = design_file(DUAL, CATALOG)
+    assert not [c for c in dual.checks if c.code == "sections"]

@@ -10,7 +10,7 @@ from typing import Any
 
 from ..records import record
 from .vocab import CheckLevel
-from .windings_result import ConnectionResult, LoadResult, extend_dict
+from .windings_result import ConnectionResult, LoadResult, TapResult, extend_dict
 
 
 @record
@@ -451,6 +451,7 @@ class Design:
     connections: tuple[ConnectionResult, ...] = ()   # several primaries: how they join, the flux of each
     loads: tuple[LoadResult, ...] = ()               # secondaries' declared loads and their rms currents
     frequencies_hz: tuple[float, ...] = ()           # several frequencies served (frequency_hz the lowest)
+    taps: tuple[TapResult, ...] = ()                 # taps named by voltage, at their whole turns
 
     @property
     def failed(self) -> list[Check]:
@@ -554,7 +555,7 @@ class Design:
                 "phase_error_max_deg": ct.phase_error_max_deg, "knee_burden_ohm": ct.knee_burden_ohm,
                 "core_loss_current_a": ct.core_loss_current_a, "current_shape": ct.current_shape,
             })
-        extend_dict(out, self.connections, self.loads, self.frequencies_hz)
+        extend_dict(out, self.connections, self.loads, self.frequencies_hz, self.taps)
         if self.flyback is not None:
             out.update(_flyback_dict(self.flyback))
             per = {w.name: w for w in self.flyback.windings}

@@ -28,6 +28,7 @@ from ..loading import RENAMED_KEYS, Reader, first_unsafe_char, load_yaml, parse_
 from ..records import record
 from .connections import Connection, Load, parse_connections, parse_load
 from .limits import MAX_TURNS
+from .taps import Tap, check_taps, parse_taps
 from .vocab import Cooling, Waveform
 
 if TYPE_CHECKING:
@@ -90,6 +91,7 @@ class Winding:
     path: str = ""
     load: Load | None = None         # what a secondary feeds (None: resistive, the current as given)
     wound_with: str | None = None    # bifilar: wound together with this winding, turn by turn in its layers
+    taps: tuple[Tap, ...] = ()       # leads brought out at the turns that give these voltages
 
 
 @record
@@ -212,12 +214,13 @@ def _winding(r: Reader, kind: str) -> Winding:
         turns=turns, margin_m=r.quantity("margin", "length", None, allow_zero=True),
         lead_sleeving=r.text("lead_sleeving", None), same_turns_as=r.text("same_turns_as", None),
         voltage_tolerance=r.tolerance_pair("voltage_tolerance", None), line=r.line, path=r.path,
-        load=parse_load(r, role), wound_with=r.text("wound_with", None, max_len=40),
+        load=parse_load(r, role), wound_with=r.text("wound_with", None, max_len=40), taps=parse_taps(r),
     )
     r.done(renamed=RENAMED_KEYS["windings"])
     if w.start == w.finish:
         raise r.error(f"starts and finishes on the same pin '{w.start}'", "finish")
     chain = [w.start, *spins, w.finish]
+    check_taps(r, w.voltage_v, role, w.taps, chain)
     for k in range(sections):
         if chain[k] is not None and chain[k] == chain[k + 1]:
             raise r.error(f"section {k + 1} would start and finish on pin '{chain[k]}'",

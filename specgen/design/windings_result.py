@@ -41,12 +41,33 @@ class LoadResult:
     vdc_over_vpk: float | None = None   # bridge_capacitor: the DC output over the peak winding voltage
 
 
+@record
+class TapResult:
+    """A tap as built: the turn it comes out at and where that turn lies."""
+    winding: str
+    voltage_v: float
+    turn: int                        # counted from the winding's start
+    pin: str
+    section: int                     # 1-based section of the winding
+    layer: int                       # 1-based layer within that section
+    turn_in_layer: int               # 1-based
+    actual_v: float                  # the voltage the whole turn gives (nominal)
+    b_peak_max_t: float | None = None   # a primary fed at the tap: the flux at the top of its range
+
+
 def extend_dict(out: dict[str, Any], connections: tuple[ConnectionResult, ...],
-                loads: tuple[LoadResult, ...], frequencies_hz: tuple[float, ...] = ()) -> None:
+                loads: tuple[LoadResult, ...], frequencies_hz: tuple[float, ...] = (),
+                taps: tuple[TapResult, ...] = ()) -> None:
     """Add the connection, load and frequency keys to a Design's JSON (``Design.to_dict``) where the part has
     them."""
     if frequencies_hz:
         out["frequencies_hz"] = list(frequencies_hz)
+    for w in out["windings"]:
+        mine = [t for t in taps if t.winding == w["name"]]
+        if mine:
+            w["taps"] = [{"voltage_v": t.voltage_v, "turn": t.turn, "pin": t.pin, "section": t.section,
+                          "layer": t.layer, "turn_in_layer": t.turn_in_layer, "actual_v": t.actual_v,
+                          "b_peak_max_t": t.b_peak_max_t} for t in mine]
     if connections:
         out["connections"] = [{
             "name": c.name, "primaries": list(c.primaries), c.mode: list(c.primaries),

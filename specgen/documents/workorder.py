@@ -271,6 +271,13 @@ def bifilar_rows(rows: list, w, mate, pin_word: str) -> tuple[list, str, list]:
     return out, heading, lines
 
 
+def tap_line(t, w, pin_word: str) -> str:
+    """Where a tap comes out, in the winder's count: the layer and the turn in it."""
+    sleeve = f", sleeved with {w.lead_sleeving}" if w.lead_sleeving else ""
+    return (f"TAP {t.voltage_v:g} V: at turn {t.turn_in_layer} of layer {t.layer} (turn {t.turn} of {w.name}) "
+            f"bring out a loop of the wire to {pin_word} {t.pin} without cutting it{sleeve}; then wind on.")
+
+
 def termination_step(d, n: int) -> dict:
     """Lead termination: each winding's ends to their pins (or a toroid's free leads), from the Design."""
     toroid = d.core.shape == "toroid"
@@ -280,7 +287,8 @@ def termination_step(d, n: int) -> dict:
         ties = [s.finish_pin for s in w.sections[:-1]]
         tie = f"; tie {word}{'s' if len(ties) > 1 else ''} {', '.join(ties)} between its sections" if ties else ""
         dot = f" (dot at {w.dot_pin})" if w.dot_pin else ""
-        lines.append(f"{w.name}: start on {word} {w.start}, finish on {word} {w.finish}{dot}{tie}.")
+        taps = "".join(f"; its {t.voltage_v:g} V tap on {word} {t.pin}" for t in d.taps if t.winding == w.name)
+        lines.append(f"{w.name}: start on {word} {w.start}, finish on {word} {w.finish}{dot}{tie}{taps}.")
     for kind in dict.fromkeys(w.wire_kind for w in d.windings):
         lines.append(_LEAD_PREP.get(kind, _LEAD_PREP["round"]))
     sleeved = sorted({w.lead_sleeving for w in d.windings if w.lead_sleeving})
@@ -435,9 +443,10 @@ def build_context(design, settings, *, number: str, qty: int, due: str | None = 
             beyond = "beyond the pin" if not toroid else "free lead"
             rows.append(("Leads", f"{fmt_mm(lead_m)} {beyond} at the {' and '.join(ends)}{sleeve}", ""))
         heading = f"Wind {label}" + (f" (section {s.index} of {len(w.sections)})" if len(w.sections) > 1 else "")
-        lines = []
+        lines = [tap_line(t, w, pin_word) for t in d.taps if t.winding == w.name and t.section == s.index]
         if mate is not None:
-            rows, heading, lines = bifilar_rows(rows, w, mate, pin_word)
+            rows, heading, more = bifilar_rows(rows, w, mate, pin_word)
+            lines = more + lines
         steps.append({"n": n, "kind": "wind", "heading": heading, "turns": s.turns, "winding": w.name,
                       "wire": w.wire, "rows": rows, "dot": dot, "lines": lines,
                       "layers": [{"index": l.index, "turns": l.turns} for l in s.layers]})
