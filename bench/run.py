@@ -127,6 +127,14 @@ def register() -> None:
         print("register: PostgreSQL not installed (tools/sysdeps.sh installs it); its figure is left out")
 
 
+def station() -> None:
+    import station_bench
+
+    for name, (value, base) in station_bench.bench().items():
+        report(f"station: {name} p95, 20 tablets / static file p95", value / base, 3.0,
+               f"{value * 1e3:.1f} ms vs {base * 1e3:.1f} ms")
+
+
 def main() -> None:
     print(f"specgen benchmarks on {os.cpu_count()} CPU(s), {sys.version.split()[0]}")
     quick_commands()
@@ -135,6 +143,7 @@ def main() -> None:
     search()
     batch()
     register()
+    station()
     print("\nsummary")
     for line in RESULTS:
         print(" ", line)

@@ -80,6 +80,9 @@ def pytest_terminal_summary(terminalreporter):
     if count:
         terminalreporter.write_line(f"{count} PostgreSQL register tests skipped: no PostgreSQL server on this "
                                     "machine (tools/sysdeps.sh installs it)")
+    if any("Chromium not installed" in str(getattr(r, "longrepr", "")) for r in skipped):
+        terminalreporter.write_line("station browser test skipped: no Chromium at /usr/bin/chromium "
+                                    "(tools/sysdeps.sh installs the chromium package)")
 
 
 # Modules whose tests render PDFs, start processes, kill them or fuzz: all their tests are marked slow,
@@ -87,7 +90,8 @@ def pytest_terminal_summary(terminalreporter):
 SLOW_MODULES = {
     "test_batch", "test_kill", "test_fuzz", "test_workorder", "test_quote", "test_register", "test_diff",
     "test_release", "test_revision", "test_safe_render", "test_drawings", "test_search", "test_new",
-    "test_bad_inputs", "test_cli_design", "test_csvsafe", "test_spec_errors",
+    "test_bad_inputs", "test_cli_design", "test_csvsafe", "test_spec_errors", "test_station_app",
+    "test_station_browser", "test_station_store", "test_station_cli",
 }
 
 

@@ -28,7 +28,16 @@ def test_specgen_demo_writes_every_document(tmp_path):
         assert json.loads((out / "designs" / f"{part}.json").read_text())["part"] == part
         assert (out / "designs" / f"{part}.txt").read_text().startswith(part)
     pdfs = sorted((out / "workorders").glob("*.pdf"))
-    assert len(pdfs) == len(parts)
+    assert len(pdfs) == len(parts) + 1                  # and a second lot of one part for the station
+    from specgen.register import Register
+    from specgen.station.store import StationStore
+
+    with Register.open(out / "workorders" / "specgen-register.sqlite", read_only=True) as reg:
+        store = StationStore(reg)
+        lots = {o.part: o for o in reg.list() if store.entries(o.number, "reading")}
+        assert set(parts) <= set(lots)                  # every demo part has a tested lot
+        assert store.where_used("R-2291")
+    assert (out / "station-users.yaml").is_file()
     quotes = sorted(p for p in (out / "quotes").glob("*.pdf") if not p.stem.endswith("-internal"))
     assert len(quotes) == len(parts)
     changes = sorted((out / "changes").glob("*.pdf"))

@@ -22,15 +22,26 @@ if ! ls /usr/lib/postgresql/*/bin/initdb >/dev/null 2>&1; then
   pg=" postgresql"
   add postgresql "the register's tests start a throwaway server on a local socket"
 fi
+browser=""
+if ! test -x /usr/bin/chromium; then
+  browser=" chromium"
+  add chromium "the station's browser test drives the distribution's Chromium (no browser is downloaded)"
+fi
 [ -z "$need" ] && exit 0
 if [ "$(id -u)" = 0 ] && command -v apt-get >/dev/null 2>&1; then
   echo "sysdeps: running apt-get as root to install system packages specgen needs ($why)"
   export DEBIAN_FRONTEND=noninteractive
   apt-get update -qq >/dev/null && apt-get install -y -qq $need >/dev/null || {
     echo "sysdeps: apt-get failed; run: sudo apt-get install -y$need" >&2; exit 1; }
-elif [ "$need" = "$pg" ]; then
-  # only the server is missing: specgen runs without it; its tests of the server back end are skipped
-  echo "sysdeps: no PostgreSQL server: the register's PostgreSQL tests will be skipped (sudo apt-get install -y postgresql)" >&2
+elif [ "$need" = "$pg$browser" ]; then
+  # only the server or the browser is missing: specgen runs without them; the tests that need them are skipped
+  if [ -n "$pg" ]; then
+    echo "sysdeps: no PostgreSQL server: the register's PostgreSQL tests will be skipped (sudo apt-get install -y postgresql)" >&2
+  fi
+  if [ -n "$browser" ]; then
+    echo "sysdeps: no Chromium: the station's browser test will be skipped (sudo apt-get install -y chromium)" >&2
+  fi
+  exit 0
 else
   echo "sysdeps: missing system packages ($why). Run:  sudo apt-get install -y$need" >&2
   echo "sysdeps: (on other systems install Pango >= 1.44, poppler-utils, qpdf, sqlite3 and a PostgreSQL server with your package manager)" >&2

@@ -82,6 +82,10 @@ def _safe(value: object) -> str:
     return escape_controls(str(value))
 
 
+# the same options and error handling for the station's commands (commands/station.py)
+register_opt, catalog_opt, locate, run_guarded = _register_opt, _catalog_opt, _locate, _run
+
+
 def _table(headers: tuple[str, ...], rows: Sequence[tuple[str, ...]]) -> list[str]:
     rows = [tuple(_safe(c) for c in row) for row in rows]
     widths = [max(len(h), *(len(r[i]) for r in rows)) if rows else len(h) for i, h in enumerate(headers)]
@@ -267,14 +271,24 @@ def stale(
 
 @app.command("where-used")
 def where_used(
-    part: str = typer.Argument(..., help="Part number."),
+    part: str = typer.Argument(..., help="Part number (with --material: a material lot such as a wire reel)."),
     revision: str | None = typer.Option(None, "--revision", help="Only this revision."),
+    material: bool = typer.Option(False, "--material",
+                                  help="The argument is a material lot (wire reel, core batch, tape roll): list the "
+                                       "work orders and serials the station recorded it against."),
     as_json: bool = typer.Option(False, "--json", help="Print JSON."),
     register: str | None = _register_opt(), catalog: Path | None = _catalog_opt(), verbose: bool = _verbose_opt(),
 ) -> None:
-    """Traceability: the work orders and lots built from a part or one revision (voids left out)."""
+    """Traceability: the work orders and lots built from a part or one revision (voids left out); with
+    --material, the work orders and serials that used a material lot."""
     def action() -> None:
         where = _locate(register, catalog)
+        if material:
+            from .station import material_use
+
+            with _open(where, verbose) as reg:
+                typer.echo(material_use(reg, part, as_json))
+            return
         with _open(where, verbose) as reg:
             orders = reg.where_used(part, revision)
         if as_json:

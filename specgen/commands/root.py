@@ -75,7 +75,7 @@ def schema_cmd(kind: str = typer.Argument("spec", metavar="[spec|catalog|require
 
 
 # commands that live in their own modules (catalogue, work orders, register, quotes, revisions, search)
-for _name in ("catalog", "orders", "workorder", "quote", "revision_cmds", "search"):
+for _name in ("catalog", "orders", "workorder", "quote", "revision_cmds", "search", "station"):
     _mod = importlib.import_module(f"specgen.commands.{_name}")
     if hasattr(_mod, "register"):
         _mod.register(app)

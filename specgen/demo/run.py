@@ -58,6 +58,13 @@ def run_demo(out: Path, catalog=None, echo=print) -> dict:
     (out / "workorders").mkdir(exist_ok=True)
     demo_workorders(designs, out / "workorders", out / "workorders" / "specgen-register.sqlite", echo, cat=cat)
 
+    echo("== the bench and test station")
+    from ..station.demo import DEMO_PASSWORD, demo_station
+
+    users = demo_station(out / "workorders" / "specgen-register.sqlite", designs, cat, out, echo)
+    echo(f"  try: specgen serve --register {out / 'workorders' / 'specgen-register.sqlite'} --users {users} "
+         f"--parts {Path(demo_specs()[0]).parent}  (users wren, tamsin, ellis; password {DEMO_PASSWORD})")
+
     echo("== quotes")
     (out / "quotes").mkdir(exist_ok=True)
     demo_quotes(designs, cat, out / "quotes", echo)

@@ -83,6 +83,7 @@ def lay_out(spec: Spec, parts: Parts, states: Mapping[str, WindingState], cat: C
     h = 0.0
     out: list[BuiltSection] = []
     last = len(spec.build_order) - 1
+    followers = {w.wound_with: w.name for w in spec.windings if w.wound_with}   # leader -> the one wound with it
     for order, (name, k) in enumerate(spec.build_order):
         st = states[name]
         w = st.spec
@@ -90,7 +91,9 @@ def lay_out(spec: Spec, parts: Parts, states: Mapping[str, WindingState], cat: C
         turns = st.turns // n_sec + (1 if k <= st.turns % n_sec else 0)
         if turns <= 0:
             return BuiltWindow(tuple(out), h, False, f"winding {name} section {k} has no turns")
-        pitch, lh, foil = K.pitch_and_height(st.wire, st.strands)
+        partner = followers.get(name)
+        # wound together: both wires side by side in every layer, so a turn takes the pitch of both
+        pitch, lh, foil = K.pitch_and_height(st.wire, st.strands + (states[partner].strands if partner else 0))
         margin = w.margin_m if w.margin_m is not None else spec.margin_m
         if former.kind == "toroid":
             margin = 0.0
@@ -111,7 +114,9 @@ def lay_out(spec: Spec, parts: Parts, states: Mapping[str, WindingState], cat: C
             h += (cat.tapes[wrap.tape].thickness_m * wrap.layers * tf) if wrap else 0.0
         else:
             h += wt * tf
-        out.append(BuiltSection(name, k, order + 1, sb, margin, tape_id, tape_layers))
+        out.append(BuiltSection(name, k, order + 1, sb, margin, tape_id, tape_layers, partner))
+        if partner is not None:        # the same layers, turn for turn (equal turns are held by the kind)
+            out.append(BuiltSection(partner, k, order + 1, sb, margin, None, 0, name))
     return BuiltWindow(tuple(out), h, True, "")
 
 
@@ -141,8 +146,16 @@ def section_frs(built: BuiltWindow, states: Mapping[str, WindingState], freq_hz:
     for s in built.sections:
         st = states[s.winding]
         sb = s.build
+        if s.wound_with is not None and (s.wound_with, s.index) in out:
+            out[(s.winding, s.index)] = out[(s.wound_with, s.index)]   # bifilar: the same layers, the same field
+            continue
         current = st.current_a * signs.get(s.winding, 1.0)
-        geo = K.wire_geometry(st.wire, st.strands)
+        hands = st.strands
+        if s.wound_with is not None:       # both wires' currents step the MMF across each shared layer
+            mate = states[s.wound_with]
+            current += mate.current_a * signs.get(s.wound_with, 1.0)
+            hands += mate.strands
+        geo = K.wire_geometry(st.wire, hands)
         turns = [layer.turns for layer in sb.layers]
         faces = [mmf]
         for t in turns:
@@ -173,9 +186,13 @@ def leakage_h(built: BuiltWindow, former: Former, currents: Mapping[str, float],
     mmf = 0.0
     h = 0.0
     breadths: list[float] = []
+    laid: set[tuple[str, int]] = set()
     for s in built.sections:
         sb = s.build
-        current = currents.get(s.winding, 0.0)
+        if s.wound_with is not None and (s.wound_with, s.index) in laid:
+            continue                       # bifilar: its layers were counted with its partner's
+        laid.add((s.winding, s.index))
+        current = currents.get(s.winding, 0.0) + (currents.get(s.wound_with, 0.0) if s.wound_with else 0.0)
         breadths.append(sb.usable_breadth_m)
         for layer in sb.layers:
             start = layer.build_to_centre_m - sb.layer_height_m / 2.0

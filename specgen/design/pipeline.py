@@ -40,6 +40,7 @@ from .state import (
     ThermalState,
     WindingState,
 )
+from .taps import section_notes, tap_checks, tap_results, with_tap_tests
 from .tests_plan import materials_per_unit, test_plan
 
 _LEVEL_ORDER = {"fail": 0, "warn": 1, "pass": 2}
@@ -119,7 +120,7 @@ def _sections(spec: Spec, built: BuiltWindow, ev: Evaluation[Any], w: Winding) -
                            start_pin=sp, finish_pin=fp, fr=ev.frs.get((w.name, s.index), 1.0),
                            layer_tape=spec.layer_tape.tape if layered and spec.layer_tape else None,
                            layer_tape_layers=spec.layer_tape.layers if layered and spec.layer_tape else 0,
-                           margin_tape=spec.margin_tape if s.margin_m > 0 else None))
+                           margin_tape=spec.margin_tape if s.margin_m > 0 else None, wound_with=s.wound_with))
     return tuple(out)
 
 
@@ -199,9 +200,12 @@ def finish(spec: Spec, cat: Catalog, parts: Parts, kind: PartKind, ev: Evaluatio
     state = DesignState(spec=spec, cat=cat, parts=parts, windings=tuple(windings), states=ev.windings, built=ev.built,
                         build=build, losses=losses, temp=temp, summary=summary)
     insulation, insulation_checks = coordinate(state)
-    checks = kind.flux_checks(state) + run_checks(state) + insulation_checks + list(summary.checks)
+    taps = tap_results(spec.windings, windings, summary.b_peak_max_t)
+    checks = (kind.flux_checks(state) + run_checks(state) + insulation_checks + list(summary.checks)
+              + tap_checks(taps, summary.flux_limit.value_t) + section_notes(windings))
     checks.sort(key=lambda c: _LEVEL_ORDER[c.level])
-    tests = test_plan(state, kind.test_limits(state), insulation)
+    tests = with_tap_tests(test_plan(state, kind.test_limits(state), insulation), taps, windings,
+                           cat.shop.tolerances["ratio"])
     materials = materials_per_unit(state, core)
     s = summary
     return Design(
@@ -217,6 +221,7 @@ def finish(spec: Spec, cat: Catalog, parts: Parts, kind: PartKind, ev: Evaluatio
         output_power_w=s.output_power_w, checks=tuple(checks), tests=tests, materials=tuple(materials),
         inductor=s.inductor, catalog_ids=catalog_ids(spec, parts, windings), iterations=iterations,
         notes=spec.notes, history=history_entries(spec.history), insulation=insulation,
-        current_transformer=s.current_transformer, flyback=s.flyback,
+        current_transformer=s.current_transformer, flyback=s.flyback, connections=s.connections, loads=s.loads,
+        frequencies_hz=spec.frequencies_hz, taps=taps,
         floor=floor_data(cat, parts, ev.built, windings, spec.varnish, getattr(spec, "core_wrap", None)),
     )

@@ -175,9 +175,14 @@ def check_pins(spec: Spec, parts: Parts) -> None:
             if pin not in pins:
                 raise spec_error(spec, f"tie pin '{pin}' is not on bobbin {bobbin.id} "
                                        f"(pins {_pin_range(bobbin.pins)})", "windings", i, "section_pins")
+        for t in w.taps:
+            if t.pin not in pins:
+                raise spec_error(spec, f"tap pin '{t.pin}' is not on bobbin {bobbin.id} "
+                                       f"(pins {_pin_range(bobbin.pins)})", "windings", i, "taps", t.index, "pin")
     used: dict[str, str] = {}
     for i, w in enumerate(spec.windings):
-        keyed = [("start", w.start), ("finish", w.finish)] + [("section_pins", p) for p in w.section_pins]
+        keyed = ([("start", w.start), ("finish", w.finish)] + [("section_pins", p) for p in w.section_pins]
+                 + [("taps", t.pin) for t in w.taps])
         for key, pin in keyed:
             if pin is None:
                 continue

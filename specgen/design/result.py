@@ -11,6 +11,7 @@ from typing import Any
 from ..records import record
 from .acceptance import AcceptedWarning
 from .vocab import CheckLevel
+from .windings_result import ConnectionResult, LoadResult, TapResult, extend_dict
 
 
 @record
@@ -50,6 +51,7 @@ class Section:
     layer_tape: str | None = None    # tape between the layers of this section
     layer_tape_layers: int = 0
     margin_tape: str | None = None   # built up in the margins each side
+    wound_with: str | None = None    # bifilar: the winding laid turn by turn in the same layers
 
 
 @record
@@ -451,6 +453,10 @@ class Design:
     floor: FloorData | None = None   # None only for a Design built outside the pipeline
     current_transformer: CurrentTransformerResult | None = None
     flyback: FlybackResult | None = None
+    connections: tuple[ConnectionResult, ...] = ()   # several primaries: how they join, the flux of each
+    loads: tuple[LoadResult, ...] = ()               # secondaries' declared loads and their rms currents
+    frequencies_hz: tuple[float, ...] = ()           # several frequencies served (frequency_hz the lowest)
+    taps: tuple[TapResult, ...] = ()                 # taps named by voltage, at their whole turns
 
     @property
     def failed(self) -> list[Check]:
@@ -507,6 +513,7 @@ class Design:
                     "layers": [{"turns": l.turns, "mlt_mm": l.mlt_m * 1e3,
                                 "build_mm": l.build_to_centre_m * 1e3} for l in s.layers],
                     "start_pin": s.start_pin, "finish_pin": s.finish_pin, "fr": s.fr,
+                    **({"wound_with": s.wound_with} if s.wound_with else {}),
                 } for s in w.sections],
             } for w in self.windings],
             "build": {
@@ -553,6 +560,7 @@ class Design:
                 "phase_error_max_deg": ct.phase_error_max_deg, "knee_burden_ohm": ct.knee_burden_ohm,
                 "core_loss_current_a": ct.core_loss_current_a, "current_shape": ct.current_shape,
             })
+        extend_dict(out, self.connections, self.loads, self.frequencies_hz, self.taps)
         if self.flyback is not None:
             out.update(_flyback_dict(self.flyback))
             per = {w.name: w for w in self.flyback.windings}

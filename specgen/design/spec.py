@@ -27,7 +27,9 @@ from ..errors import SpecError
 from ..loading import RENAMED_KEYS, Reader, first_unsafe_char, load_yaml, parse_yaml
 from ..records import record
 from .acceptance import AcceptedWarning
+from .connections import Connection, Load, parse_connections, parse_load
 from .limits import MAX_TURNS
+from .taps import Tap, check_taps, parse_taps
 from .vocab import Cooling, Waveform
 
 if TYPE_CHECKING:
@@ -88,6 +90,9 @@ class Winding:
     voltage_tolerance: tuple[float, float] | None = None   # (minus, plus) fractions; None: the shop's
     line: int | None = None
     path: str = ""
+    load: Load | None = None         # what a secondary feeds (None: resistive, the current as given)
+    wound_with: str | None = None    # bifilar: wound together with this winding, turn by turn in its layers
+    taps: tuple[Tap, ...] = ()       # leads brought out at the turns that give these voltages
 
 
 @record
@@ -155,6 +160,8 @@ class Spec:
     data: Any = field(compare=False, repr=False, default_factory=dict)   # the parsed YAML, for fingerprints
     current_transformer: CurrentTransformerReq | None = None
     flyback: FlybackReq | None = None
+    connections: tuple[Connection, ...] = ()   # several primaries: how they are joined outside the part
+    frequencies_hz: tuple[float, ...] = ()     # a part for several mains frequencies (frequency_hz the lowest)
 
     def winding(self, name: str) -> Winding:
         for w in self.windings:
@@ -208,11 +215,13 @@ def _winding(r: Reader, kind: str) -> Winding:
         turns=turns, margin_m=r.quantity("margin", "length", None, allow_zero=True),
         lead_sleeving=r.text("lead_sleeving", None), same_turns_as=r.text("same_turns_as", None),
         voltage_tolerance=r.tolerance_pair("voltage_tolerance", None), line=r.line, path=r.path,
+        load=parse_load(r, role), wound_with=r.text("wound_with", None, max_len=40), taps=parse_taps(r),
     )
     r.done(renamed=RENAMED_KEYS["windings"])
     if w.start == w.finish:
         raise r.error(f"starts and finishes on the same pin '{w.start}'", "finish")
     chain = [w.start, *spins, w.finish]
+    check_taps(r, w.voltage_v, role, w.taps, chain)
     for k in range(sections):
         if chain[k] is not None and chain[k] == chain[k + 1]:
             raise r.error(f"section {k + 1} would start and finish on pin '{chain[k]}'",
@@ -237,6 +246,32 @@ def _winding(r: Reader, kind: str) -> Winding:
     return w
 
 
+def _frequencies(op: Reader, kind: str) -> tuple[float, tuple[float, ...]]:
+    """The operating frequency, or a transformer's list of them (50 and 60 Hz): (the lowest, all of them)."""
+    from .. import units
+
+    raw = op.raw("frequency")
+    if isinstance(raw, list):
+        if kind != "transformer" or len(raw) < 2:
+            raise op.error("several frequencies are for a transformer (a list of two or more, like "
+                           "[50 Hz, 60 Hz]); give one frequency here", "frequency")
+        out = []
+        for i, item in enumerate(raw):
+            try:
+                out.append(units.parse(item, "frequency"))
+            except units.UnitError as err:
+                raise op.item_error("frequency", i, str(err)) from None
+        values = tuple(sorted(set(out)))
+    else:
+        values = (op.quantity("frequency", "frequency"),)
+    for f in values:
+        if f > 50e6:
+            raise op.error("frequency above 50 MHz is outside what this tool models", "frequency")
+        if f < 1.0:
+            raise op.error("frequency below 1 Hz; for DC chokes give the ripple frequency", "frequency")
+    return values[0], (values if len(values) > 1 else ())
+
+
 def _section(r: Reader, key: str) -> Reader:
     """A required mapping (``Reader.mapping`` raises a located error when it is missing)."""
     sub = r.mapping(key)
@@ -252,11 +287,7 @@ def parse_spec(data: Any, name: str) -> Spec:
     waveform = cast(Waveform, op.choice("waveform", WAVEFORMS, "sine"))
     ins_class = op.raw("insulation_class", 130)
     cls = insulation_class(op, ins_class)
-    freq = op.quantity("frequency", "frequency")
-    if freq > 50e6:
-        raise op.error("frequency above 50 MHz is outside what this tool models", "frequency")
-    if freq < 1.0:
-        raise op.error("frequency below 1 Hz; for DC chokes give the ripple frequency", "frequency")
+    freq, freqs = _frequencies(op, kind)
     ambient = op.quantity("ambient", "temperature", 25.0)
     if not -60.0 <= ambient <= 200.0:
         raise op.error(f"ambient {ambient:g} degC is outside -60..200 degC", "ambient")
@@ -270,6 +301,7 @@ def parse_spec(data: Any, name: str) -> Spec:
     windings = tuple(_winding(w, kind) for w in wreaders)
     names = [w.name for w in windings]
     _check_windings(r, kind, windings, wreaders)
+    connections = parse_connections(r, kind, windings, wreaders)
     order = _build_order(r, windings)
     ins = r.mapping("insulation", None)
     layer_tape = winding_tape = outer_wrap = core_wrap = None
@@ -313,7 +345,7 @@ def parse_spec(data: Any, name: str) -> Spec:
         insulation_class_c=cls, flux_limit_t=flux_limit_t, efficiency_guess=efficiency_guess,
         layer_tape=layer_tape, winding_tape=winding_tape, outer_wrap=outer_wrap, margin_m=margin_m,
         margin_tape=margin_tape, sleeving=sleeving, varnish=varnish, barriers=barriers, core_wrap=core_wrap,
-        insulation_basis=basis,
+        insulation_basis=basis, connections=connections, frequencies_hz=freqs,
     )
     core.done(("gap", "gap_arrangement"))
     r.done()
@@ -337,12 +369,16 @@ def _check_windings(r: Reader, kind: str, windings: tuple[Winding, ...], wreader
             raise wreaders[i].error("'core' is reserved for barriers to the core", "name")
     if kind == "transformer":
         prim = [w for w in windings if w.role == "primary"]
-        if len(prim) != 1:
-            raise r.error(f"a transformer needs exactly one primary winding, found {len(prim)}", "windings")
-        p = prim[0]
-        pr = wreaders[windings.index(p)]
-        if p.voltage_v is None and p.turns is None:
-            raise pr.error("the primary needs its voltage", "voltage")
+        if not prim:
+            raise r.error("a transformer needs a primary winding", "windings")
+        if len(prim) > 1 and not r.has("connections"):
+            raise r.error(f"a transformer with {len(prim)} primaries needs 'connections' (series or parallel, "
+                          f"and the mains voltage each serves)", "windings")
+        if len(prim) == 1 and r.has("connections"):
+            raise r.error("'connections' join several primaries; this transformer has one", "connections")
+        for p in prim:
+            if p.voltage_v is None and (p.turns is None or len(prim) > 1):
+                raise wreaders[windings.index(p)].error("the primary needs its voltage", "voltage")
         for w, wr in zip(windings, wreaders):
             if w.role in ("secondary", "auxiliary"):
                 if w.voltage_v is None:
@@ -352,6 +388,9 @@ def _check_windings(r: Reader, kind: str, windings: tuple[Winding, ...], wreader
             if w.voltage_tolerance is not None and w.role not in ("secondary", "auxiliary"):
                 raise wr.error(f"a {w.role} winding has no output voltage to hold: voltage_tolerance is for "
                                f"secondary and auxiliary windings", "voltage_tolerance")
+            if w.role is None:
+                raise wr.error("a transformer's winding needs its role: primary, secondary, auxiliary or shield",
+                               "role")
             if w.role == "main":
                 raise wr.error("role 'main' is for inductors; a transformer's windings are primary, "
                                "secondary, auxiliary or shield", "role")
@@ -362,6 +401,7 @@ def _check_windings(r: Reader, kind: str, windings: tuple[Winding, ...], wreader
             raise wreaders[0].error("an inductor has no output voltage to hold: voltage_tolerance is for a "
                                     "transformer's secondary and auxiliary windings", "voltage_tolerance")
 
+    _check_bifilar(kind, windings, wreaders)
     for w, wr in zip(windings, wreaders):
         if w.same_turns_as is not None:
             other = next((o for o in windings if o.name == w.same_turns_as), None)
@@ -370,6 +410,33 @@ def _check_windings(r: Reader, kind: str, windings: tuple[Winding, ...], wreader
             if other.role != w.role or other.voltage_v != w.voltage_v:
                 raise wr.error(f"only a winding of the same role and voltage can have the same turns as {w.same_turns_as}",
                                "same_turns_as")
+
+
+def _check_bifilar(kind: str, windings: tuple[Winding, ...], wreaders: list[Reader]) -> None:
+    """A winding wound with another: a transformer's, one section each, one wire, equal turns, one partner."""
+    by_name = {w.name: w for w in windings}
+    taken: dict[str, str] = {}
+    for w, wr in zip(windings, wreaders):
+        if w.wound_with is None:
+            continue
+        lead = by_name.get(w.wound_with)
+        if lead is None or lead is w:
+            raise wr.error(f"'{w.wound_with}' names no other winding", "wound_with")
+        if kind != "transformer":
+            raise wr.error(f"'wound_with' is read for a transformer's windings, not by kind {kind}", "wound_with")
+        if lead.wound_with is not None or lead.name in taken:
+            raise wr.error(f"{lead.name} is already wound with another winding: a bifilar pair is two windings, "
+                           f"named once on the second", "wound_with")
+        if w.role != lead.role:
+            raise wr.error(f"only a winding of the same role can be wound with {lead.name}", "wound_with")
+        if w.sections != 1 or lead.sections != 1:
+            raise wr.error("windings wound together are one section each", "wound_with")
+        if w.wire != lead.wire and not w.wire.startswith("auto"):
+            raise wr.error(f"windings wound together share one wire: {w.name} gives {w.wire}, {lead.name} "
+                           f"{lead.wire}", "wire")
+        if w.turns is not None and lead.turns is not None and w.turns != lead.turns:
+            raise wr.error(f"windings wound together have the same turns ({w.turns} against {lead.turns})", "turns")
+        taken[lead.name] = w.name
 
 
 RESERVED_NAMES = ("all", "core")
@@ -387,10 +454,10 @@ def winding_name_problem(name: str) -> str | None:
     for c in ".+,:[]{}#":
         if c in name:
             return f"winding name '{name}' carries '{c}', which the spec uses between names (P.1, S1+S2)"
+    if name.lower() in ("nan", "inf", "infinity"):
+        return f"winding name '{name}' reads as a number that is not one; name it otherwise"
     if name.lower() in RESERVED_NAMES:
         return f"'{name}' is reserved ('all' windings, the 'core') and cannot name a winding"
-    if name.lower() in ("nan", "inf", "infinity"):     # 'winding nan' on a work order reads as a failed number
-        return f"winding name '{name}' reads as a number that is not one; use letters like P, S1 or AUX"
     return None
 
 
@@ -407,9 +474,10 @@ def insulation_class(r: Reader, value: object) -> int:
 
 def _build_order(r: Reader, windings: tuple[Winding, ...]) -> tuple[tuple[str, int], ...]:
     by_name = {w.name: w for w in windings}
+    followers = {w.name for w in windings if w.wound_with}    # laid in their partner's layers, not on their own
     if not r.has("build_order"):
         r.raw("build_order", None)
-        return tuple((w.name, k) for w in windings for k in range(1, w.sections + 1))
+        return tuple((w.name, k) for w in windings if w.name not in followers for k in range(1, w.sections + 1))
     raw = r.list_of("build_order")
     order = []
     for i, item in enumerate(raw):
@@ -418,6 +486,9 @@ def _build_order(r: Reader, windings: tuple[Winding, ...]) -> tuple[tuple[str, i
         if name not in by_name:
             raise r.item_error("build_order", i, f"'{text}' names no winding (windings: {', '.join(by_name)})")
         w = by_name[name]
+        if name in followers:
+            raise r.item_error("build_order", i, f"'{text}' is wound with {w.wound_with}: it goes where "
+                                                 f"{w.wound_with} goes; leave it out of build_order")
         if sec:
             if not sec.isdigit() or not 1 <= int(sec) <= w.sections:
                 raise r.item_error("build_order", i, f"'{text}': winding {name} has sections 1..{w.sections}")
@@ -427,7 +498,7 @@ def _build_order(r: Reader, windings: tuple[Winding, ...]) -> tuple[tuple[str, i
                 raise r.item_error("build_order", i, f"'{text}': winding {name} is in {w.sections} sections; "
                                                      f"name them {name}.1 .. {name}.{w.sections}")
             order.append((name, 1))
-    want = {(w.name, k) for w in windings for k in range(1, w.sections + 1)}
+    want = {(w.name, k) for w in windings if w.name not in followers for k in range(1, w.sections + 1)}
     if len(set(order)) != len(order):
         raise r.error("a section appears twice in build_order", "build_order")
     missing = want - set(order)

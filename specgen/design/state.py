@@ -19,6 +19,7 @@ if TYPE_CHECKING:
     from ..catalog.models import Bobbin, Catalog, Core, Material, Wire
     from .result import Build, Check, CurrentTransformerResult, FlybackResult, InductorResult, Layer, Limit, Losses, WindingResult
     from .spec import Spec, Winding
+    from .windings_result import ConnectionResult, LoadResult
 
 __all__ = ["CheckLevel", "Cooling", "FormerKind", "GapArrangement", "Waveform", "WireKind"]
 
@@ -120,6 +121,7 @@ class BuiltSection:
     margin_m: float
     tape_after: str | None
     tape_after_layers: int
+    wound_with: str | None = None  # bifilar: the partner laid turn by turn in the same layers
 
 
 @record(slots=True)
@@ -195,6 +197,8 @@ class ElectricalSummary:
     checks: tuple[Check, ...] = ()  # the kind's own, after the common checks
     current_transformer: CurrentTransformerResult | None = None
     flyback: FlybackResult | None = None
+    loads: tuple[LoadResult, ...] = ()               # a transformer's declared loads (``design.loads``)
+    connections: tuple[ConnectionResult, ...] = ()   # several primaries: each connection's flux
 
 
 @record(slots=True)

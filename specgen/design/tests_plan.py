@@ -134,6 +134,8 @@ def materials_per_unit(state: DesignState, core: CoreResult) -> list[MaterialLin
 
     for sec in built.sections:
         sb, margin, tape_id, tape_layers = sec.build, sec.margin_m, sec.tape_after, sec.tape_after_layers
+        if sec.wound_with is not None and spec.build_order and (sec.winding, sec.index) not in spec.build_order:
+            continue                       # bifilar: its partner's layers, tapes and margins already counted
         if spec.layer_tape and len(sb.layers) > 1:
             for layer in sb.layers[:-1]:
                 add_tape(spec.layer_tape.tape, wrap_length(spec.layer_tape.tape, layer.mlt_m, spec.layer_tape.layers))
@@ -163,6 +165,8 @@ def materials_per_unit(state: DesignState, core: CoreResult) -> list[MaterialLin
         volume = 0.0
         for sec in built.sections:
             sb = sec.build
+            if sec.wound_with is not None and (sec.winding, sec.index) not in spec.build_order:
+                continue                   # bifilar: the partner's layers hold both wires
             for layer in sb.layers:
                 volume += layer.turns_capacity * sb.pitch_m * sb.layer_height_m * layer.mlt_m
         out.append(MaterialLine("varnish", v.id, v.name, volume * v.winding_volume_share * 1e3, "l", None,

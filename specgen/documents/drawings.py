@@ -277,6 +277,7 @@ class SectionDraw:
     tape_after_m: float       # radial thickness of the tape after this section
     layer_tape_m: float       # between layers (0: none)
     colour_index: int = 0
+    slot: tuple[int, int] = (0, 1)   # (place, of) among windings wound together in one layer (bifilar: of 2)
 
 
 def choose_scale(real_w_mm: float, real_h_mm: float, max_w_mm: float, max_h_mm: float) -> float:
@@ -358,12 +359,13 @@ def window_section(breadth_m: float, available_m: float, bulged_m: float, sectio
             x_start = m if i % 2 == 0 else m + usable - width
             if circles_ok:
                 n = layer.turns * sec.strands
-                pitch = usable / (layer.capacity * sec.strands) if layer.capacity else d
+                place, of = sec.slot        # bifilar: the two wires alternate along the layer
+                pitch = usable / (layer.capacity * sec.strands * of) if layer.capacity else d
                 r = d * 1e3 * s / 2
                 cy = Y(layer.centre_m)
                 parts = []
                 for k in range(n):
-                    cx = X(x_start + pitch * (k + 0.5))
+                    cx = X(x_start + pitch * (k * of + place + 0.5))
                     parts.append(f'<circle cx="{_n(cx)}" cy="{_n(cy)}" r="{_n(r * 0.92)}"/>')
                 body.append(f'<g class="layer" data-section="{escape(sec.label)}" data-turns="{layer.turns}" '
                             f'fill="{colour}" fill-opacity="0.85" stroke="none">' + "".join(parts) + "</g>")
@@ -515,7 +517,8 @@ def _section_labels(body: list, labels: list, lx: float, upward: bool) -> None:
         body.append(f'<path d="M{_n(x + 0.5)} {_n(y)} L{_n(lx - 1)} {_n(y_label - 1)}" stroke="{colour}" '
                     f'stroke-width="0.3" fill="none"/>')
         nl = len(sec.layers)
-        body.append(_t(lx, y_label, f"{sec.order}. {sec.label}: {sec.turns} t, {nl} layer{'s' if nl != 1 else ''}",
+        body.append(_t(lx, y_label, f"{sec.order}. {sec.label}: {sec.turns} t, {nl} layer{'s' if nl != 1 else ''}"
+                       + (", bifilar" if sec.slot[1] > 1 else ""),
                        3.5, weight="bold", fill=colour, cls="section-label"))
         if sec.tape_after:
             body.append(_t(lx, y_label + 4.0, f"then {sec.tape_after}", 3.0, fill="#444"))

@@ -22,6 +22,7 @@ from pathlib import Path
 
 from .. import present
 from ..errors import DesignFailed, SpecError
+from .connections_doc import connections_context
 from .settings import DocumentSettings
 
 UNCONTROLLED = "Printed copies are uncontrolled: check the revision before use"
@@ -113,6 +114,17 @@ def _sections_in_order(design) -> list:
             out.append((s.order, w, s))
     out.sort(key=lambda t: t[0])
     return [(w, s) for _o, w, s in out]
+
+
+def _bifilar_slot(design, w, s) -> tuple[int, int]:
+    """(place, of) of a winding's wire among those wound together in a layer: (0, 1) alone; a bifilar pair's
+    first (the one in the build order) (0, 2), its partner (1, 2)."""
+    if s.wound_with is None:
+        return 0, 1
+    names = [x.name for x in design.windings]
+    first = min(w.name, s.wound_with, key=lambda n: (min(x.order for x in next(
+        y for y in design.windings if y.name == n).sections), names.index(n)))
+    return (0, 2) if w.name == first else (1, 2)
 
 
 def _pins_of(condition: str) -> str:
@@ -214,7 +226,7 @@ def _drawings(design, settings) -> dict:
             round_wire=w.wire_kind in ("round", "litz", "tiw"), tape_after=s.tape_after,
             tape_after_m=tapes.after.build_m if tapes.after else 0.0,
             layer_tape_m=tapes.between_layers.build_m if tapes.between_layers else 0.0,
-            colour_index=index[w.name]))
+            colour_index=index[w.name], slot=_bifilar_slot(design, w, s)))
     outline = floor.outline
     if toroid:
         window_svg, scale = _fit_to_text_width(
@@ -239,6 +251,33 @@ _LEAD_PREP = {
 }
 
 
+def bifilar_rows(rows: list, w, mate, pin_word: str) -> tuple[list, str, list]:
+    """A step that winds two windings together (bifilar): both starts and finishes, two wires in hand."""
+    out = []
+    for label, value, style in rows:
+        if label == f"Start {pin_word}":
+            value = f"{w.start} ({w.name}) and {mate.start} ({mate.name})   ● DOT at {w.dot_pin} and {mate.dot_pin}"
+        elif label == f"Finish {pin_word}":
+            value = f"{w.finish} ({w.name}) and {mate.finish} ({mate.name})"
+        elif label == "Layers":
+            value = f"{value}, of each wire"
+        elif label == "Wire":
+            value = f"{w.wire}: {w.wire_label}, two wires in hand ({w.name} and {mate.name}) side by side"
+        out.append((label, value, style))
+    heading = f"Wind {w.name} and {mate.name} together (bifilar)"
+    lines = [f"Wind {w.name} and {mate.name} together, two wires in hand, side by side in every layer; keep "
+             f"them flat and never let them cross. Mark the {mate.name} wire at its start (a sleeve or a pen "
+             f"mark) so the ends can be told apart; {mate.name}'s dot is at {pin_word} {mate.dot_pin}."]
+    return out, heading, lines
+
+
+def tap_line(t, w, pin_word: str) -> str:
+    """Where a tap comes out, in the winder's count: the layer and the turn in it."""
+    sleeve = f", sleeved with {w.lead_sleeving}" if w.lead_sleeving else ""
+    return (f"TAP {t.voltage_v:g} V: at turn {t.turn_in_layer} of layer {t.layer} (turn {t.turn} of {w.name}) "
+            f"bring out a loop of the wire to {pin_word} {t.pin} without cutting it{sleeve}; then wind on.")
+
+
 def termination_step(d, n: int) -> dict:
     """Lead termination: each winding's ends to their pins (or a toroid's free leads), from the Design."""
     toroid = d.core.shape == "toroid"
@@ -248,7 +287,8 @@ def termination_step(d, n: int) -> dict:
         ties = [s.finish_pin for s in w.sections[:-1]]
         tie = f"; tie {word}{'s' if len(ties) > 1 else ''} {', '.join(ties)} between its sections" if ties else ""
         dot = f" (dot at {w.dot_pin})" if w.dot_pin else ""
-        lines.append(f"{w.name}: start on {word} {w.start}, finish on {word} {w.finish}{dot}{tie}.")
+        taps = "".join(f"; its {t.voltage_v:g} V tap on {word} {t.pin}" for t in d.taps if t.winding == w.name)
+        lines.append(f"{w.name}: start on {word} {w.start}, finish on {word} {w.finish}{dot}{tie}{taps}.")
     for kind in dict.fromkeys(w.wire_kind for w in d.windings):
         lines.append(_LEAD_PREP.get(kind, _LEAD_PREP["round"]))
     sleeved = sorted({w.lead_sleeving for w in d.windings if w.lead_sleeving})
@@ -346,7 +386,13 @@ def build_context(design, settings, *, number: str, qty: int, due: str | None = 
 
     order = _sections_in_order(d)
     last_order = order[-1][1].order if order else 0
+    by_name = {w.name: w for w in d.windings}
+    wound: set[tuple[str, int]] = set()
     for w, s in order:
+        if s.wound_with is not None and (s.wound_with, s.index) in wound:
+            continue                       # bifilar: wound in its partner's step
+        wound.add((w.name, s.index))
+        mate = by_name.get(s.wound_with) if s.wound_with else None
         n += 1
         label = section_label(w, s)
         first_sec = s.index == 1
@@ -397,8 +443,12 @@ def build_context(design, settings, *, number: str, qty: int, due: str | None = 
             beyond = "beyond the pin" if not toroid else "free lead"
             rows.append(("Leads", f"{fmt_mm(lead_m)} {beyond} at the {' and '.join(ends)}{sleeve}", ""))
         heading = f"Wind {label}" + (f" (section {s.index} of {len(w.sections)})" if len(w.sections) > 1 else "")
+        lines = [tap_line(t, w, pin_word) for t in d.taps if t.winding == w.name and t.section == s.index]
+        if mate is not None:
+            rows, heading, more = bifilar_rows(rows, w, mate, pin_word)
+            lines = more + lines
         steps.append({"n": n, "kind": "wind", "heading": heading, "turns": s.turns, "winding": w.name,
-                      "wire": w.wire, "rows": rows, "dot": dot, "lines": [],
+                      "wire": w.wire, "rows": rows, "dot": dot, "lines": lines,
                       "layers": [{"index": l.index, "turns": l.turns} for l in s.layers]})
 
     if not toroid:          # leads go onto the pins before the core closes the bobbin
@@ -485,6 +535,7 @@ def build_context(design, settings, *, number: str, qty: int, due: str | None = 
         "pin_word": pin_word, "paper": CSS_PAPER[settings.paper], "side_margin_mm": SIDE_MARGIN_MM,
         "insulation": _insulation_rows(d),
     }
+    ctx["connections"] = connections_context(d)
     ctx.update(_drawings(d, settings))
     return ctx
 

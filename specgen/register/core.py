@@ -155,6 +155,21 @@ class Register:
     def _error(self, message: str) -> SpecError:
         return SpecError(message, file=self.shown)
 
+    # --- other record-keepers on the same database (the test station) -------------------------
+
+    def write_work(self, work: Callable[[Any], Any]) -> Any:
+        """Run ``work(cursor)`` in one serialised write transaction (``?`` placeholders, standard SQL);
+        for the modules that keep their own tables in the register (``specgen.station``)."""
+        return self._backend.write(work)
+
+    def read_work(self, work: Callable[[Any], Any]) -> Any:
+        """Run ``work(cursor)`` on one consistent snapshot (see :meth:`write_work`)."""
+        return self._backend.read(work)
+
+    def state_of(self, number: str) -> str:
+        """The state of work order ``number`` (a clear error for an unknown number)."""
+        return str(self._backend.read(lambda db: self._state_of(db, ORDERS, number)))
+
     # --- issuing ------------------------------------------------------------------------------
 
     def allocate(self, part: str, revision: str, fingerprint: str, qty: int, lot: str | None = None,

@@ -12,6 +12,9 @@ Versions
 3. clearer state names (``floor`` becomes ``in-work``), who made each change and whether it was a
    correction, the issuing process (host and id) so a killed issue can be recognised, drafts marked,
    the quote an order fulfils; quotes with their own numbers, files and history.
+4. the bench and test station's entries (``station_entries``): step sign-offs, readings with the winding
+   temperature and their verdict against the Design's limits, dispositions, material lots used. Append-only:
+   a trigger refuses any UPDATE or DELETE, and a correction is a new entry naming the one it replaces.
 """
 
 from __future__ import annotations
@@ -159,6 +162,44 @@ MIGRATIONS: dict[int, list[str | Dialects]] = {
         )""",
     ],
 }
+_STATION_ENTRIES = """CREATE TABLE station_entries (
+    entry_id INTEGER PRIMARY KEY,
+    number TEXT NOT NULL REFERENCES orders (number),
+    kind TEXT NOT NULL CHECK (kind IN ('signoff', 'reading', 'disposition', 'material')),
+    serial TEXT,
+    item TEXT NOT NULL,
+    label TEXT,
+    value_si DOUBLE PRECISION,
+    temp_c DOUBLE PRECISION,
+    judged_si DOUBLE PRECISION,
+    nominal_si DOUBLE PRECISION,
+    low_si DOUBLE PRECISION,
+    high_si DOUBLE PRECISION,
+    unit TEXT,
+    verdict TEXT CHECK (verdict IS NULL OR verdict IN ('pass', 'fail')),
+    action TEXT,
+    lot TEXT,
+    reason TEXT,
+    by_whom TEXT NOT NULL,
+    at TEXT NOT NULL,
+    replaces INTEGER REFERENCES station_entries (entry_id),
+    source TEXT NOT NULL DEFAULT 'station'
+)"""
+_APPEND_ONLY_MESSAGE = "station entries are append-only: a correction is a new entry"
+
+MIGRATIONS[4] = [
+    _STATION_ENTRIES,
+    "CREATE INDEX station_entries_order ON station_entries (number, kind)",
+    "CREATE INDEX station_entries_lot ON station_entries (kind, lot)",
+    Dialects(f"CREATE TRIGGER station_entries_no_update BEFORE UPDATE ON station_entries "
+             f"BEGIN SELECT RAISE(ABORT, '{_APPEND_ONLY_MESSAGE}'); END", None),
+    Dialects(f"CREATE TRIGGER station_entries_no_delete BEFORE DELETE ON station_entries "
+             f"BEGIN SELECT RAISE(ABORT, '{_APPEND_ONLY_MESSAGE}'); END", None),
+    Dialects(None, f"CREATE FUNCTION station_entries_append_only() RETURNS trigger LANGUAGE plpgsql AS "
+                   f"$$ BEGIN RAISE EXCEPTION '{_APPEND_ONLY_MESSAGE}'; END $$"),
+    Dialects(None, "CREATE TRIGGER station_entries_no_change BEFORE UPDATE OR DELETE ON station_entries "
+                   "FOR EACH ROW EXECUTE FUNCTION station_entries_append_only()"),
+]
 SCHEMA_VERSION = max(MIGRATIONS)
 
 

@@ -14,7 +14,9 @@ from dataclasses import dataclass, replace
 from ...catalog.models import Catalog
 from ...physics import faraday
 from .. import kernel as K
+from .. import loads as LD
 from ..build import copper_lengths_m, lay_out, leakage_h, section_frs, winding_fr
+from ..connections import connection_results
 from ..flux import b_sat_hot_t, flux_limit
 from ..resolve import spec_error, too_many_turns
 from ..result import Check, Limit
@@ -31,6 +33,7 @@ from ..state import (
     WindingState,
     WireChoice,
 )
+from ..windings_result import ConnectionResult, LoadResult
 from ..wires import choose_wire
 from .base import flux_text as _fmt_t
 from .base import frequency_text as _freq
@@ -59,14 +62,21 @@ class TransformerPass:
     loaded_v: dict[str, float]
     open_v: dict[str, float]
     leakage_h: float
+    loads: dict[str, LoadResult]
+    connections: tuple[ConnectionResult, ...] = ()
+    core_w_m3_by_hz: dict[float, float] | None = None   # core loss density at each frequency served
 
 
-def _balanced(spec: Spec, states: dict[str, WindingState], np_turns: int) -> dict[str, float]:
-    """Load currents with their MMF sign, balanced in ampere-turns: the primary carries sum(N_s I_s)/N_p."""
+def _balanced(spec: Spec, states: dict[str, WindingState], np_turns: int,
+              currents: dict[str, float] | None = None) -> dict[str, float]:
+    """Load currents with their MMF sign, balanced in ampere-turns: the k primaries each carry
+    sum(N_s I_s)/(k N_p). ``currents``: the loads' currents in one conduction interval (default: rms)."""
     loads = [w for w in spec.windings if w.role in ("secondary", "auxiliary")]
-    out = {w.name: -states[w.name].current_a for w in loads}
-    prim = next(w for w in spec.windings if w.role == "primary")
-    out[prim.name] = sum(states[w.name].current_a * states[w.name].turns for w in loads) / np_turns
+    amps = currents or {w.name: states[w.name].current_a for w in loads}
+    out = {w.name: -amps[w.name] for w in loads}
+    prims = [w for w in spec.windings if w.role == "primary"]
+    for prim in prims:
+        out[prim.name] = sum(amps[w.name] * states[w.name].turns for w in loads) / np_turns / len(prims)
     return out
 
 
@@ -84,18 +94,25 @@ class TransformerRun:
 
     def __init__(self, spec: Spec, cat: Catalog, parts: Parts) -> None:
         self.spec, self.cat, self.parts = spec, cat, parts
-        self.prim: Winding = next(w for w in spec.windings if w.role == "primary")
+        self.prims = [w for w in spec.windings if w.role == "primary"]
+        self.prim: Winding = self.prims[0]
+        self.halves = len(self.prims)       # equal primaries sharing the load (several: see ``connections``)
         self.loads = [w for w in spec.windings if w.role in ("secondary", "auxiliary")]
         self.vp = float(self.prim.voltage_v or 0.0)
         self.vp_max = self.prim.voltage_max_v or self.vp
         self.density = K.current_density_a_m2(cat.shop.current_density_a_m2, spec.cooling)
-        self.load_current = {w.name: (w.current_a if w.current_a is not None else (w.va or 0.0) / (w.voltage_v or 1.0))
-                             for w in self.loads}
-        self.p_out = sum((w.voltage_v or 0.0) * self.load_current[w.name] for w in self.loads)
+        self.set_loads({})
         if self.p_out <= 0:
             raise spec_error(spec, "the secondaries draw no power; give their currents", "windings")
         self.wires: dict[str, WireChoice] = {}
         self.search_span: tuple[int, int] = (0, 0)   # primary turns the volts-per-turn search looked at
+
+    def set_loads(self, rs_ratio: dict[str, float]) -> None:
+        """Each load's currents (``design.loads``) with R_s / R_L from the last build."""
+        self.load_result = LD.solve(self.loads, self.spec.frequency_hz, rs_ratio)
+        self.load_current = {n: ld.rms_current_a for n, ld in self.load_result.items()}
+        self.p_out = sum(ld.power_w for ld in self.load_result.values())
+        self.p_reflected = LD.reflected_w(self.load_result, {w.name: w.voltage_v or 0.0 for w in self.loads})
 
     # -- turns
     def swing_limit(self, limit: FluxLimit) -> FluxLimit:
@@ -126,6 +143,12 @@ class TransformerRun:
                 self.wires[w.name] = choose_wire(cat, 0.05, self.density, 0.0, K.WIRE_CHOICE_TEMP_C, "auto")
             else:
                 self.wires[w.name] = choose_wire(cat, current, self.density, f, K.WIRE_CHOICE_TEMP_C, w.wire, w.strands)
+        for w in spec.windings:          # wound together: one wire, sized for the larger of the two currents
+            if w.wound_with is not None:
+                lead = next(x for x in spec.windings if x.name == w.wound_with)
+                big = lead if (ip if lead.role == "primary" else self.load_current.get(lead.name, 0.0)) >= \
+                    (ip if w.role == "primary" else self.load_current.get(w.name, 0.0)) else w
+                self.wires[w.name] = self.wires[lead.name] = self.wires[big.name]
 
     def initial_states(self, np_turns: int, ip: float) -> dict[str, WindingState]:
         states: dict[str, WindingState] = {}
@@ -166,13 +189,14 @@ class TransformerRun:
             rp = _dcr(states[prim.name], lengths[prim.name], temp.hot_c)
             # the primary carries every load's current referred through its ratio, so its drop is shared
             i_ref = sum(states[w.name].current_a * states[w.name].turns / np_turns for w in self.loads)
+            i_half = i_ref / self.halves      # each of k equal primaries carries its share
             # leakage reactance referred to the primary (sine only: a square-wave drive loses volt-seconds
             # to the leakage instead, which the converter's duty absorbs)
             x_lk = (2.0 * math.pi * spec.frequency_hz * leakage_h(built, parts.former, _balanced(spec, states, np_turns),
                                                                   prim.name)) if spec.waveform == "sine" else 0.0
-            volts_per_turn = (vp - i_ref * rp) / np_turns
+            volts_per_turn = (vp - i_half * rp) / np_turns
             if not volts_per_turn > 0.0:
-                raise spec_error(spec, f"the primary's own resistance drop ({i_ref * rp:.3g} V at {i_ref:.3g} A) "
+                raise spec_error(spec, f"the primary's own resistance drop ({i_half * rp:.3g} V at {i_half:.3g} A) "
                                        f"reaches its {vp:g} V: the outputs cannot be delivered through "
                                        f"{np_turns} primary turns on core {spec.core_id}", "windings",
                                  spec.windings.index(prim), "voltage")
@@ -181,8 +205,8 @@ class TransformerRun:
                 rs = _dcr(st, lengths[w.name], temp.hot_c)
                 ratio = st.turns / np_turns
                 # resistive drops in phase with a resistive load, the leakage drop in quadrature
-                x_drop = ratio * i_ref * x_lk * (st.current_a * st.turns) / max(i_ref * np_turns, 1e-12)
-                v_loaded = float(K.loaded_output_v(ratio, vp - i_ref * rp, st.current_a, rs, x_drop))
+                x_drop = ratio * i_half * x_lk * (st.current_a * st.turns) / max(i_ref * np_turns, 1e-12)
+                v_loaded = float(K.loaded_output_v(ratio, vp - i_half * rp, st.current_a, rs, x_drop))
                 loaded[w.name] = v_loaded
                 want = self.lowest_v(w)
                 if w.turns is None and v_loaded < want - 1e-9:
@@ -198,10 +222,11 @@ class TransformerRun:
                         raise too_many_turns(spec, st.turns + add, f"winding {w.name} at {w.voltage_v:g} V",
                                              "windings", st.index, "voltage")
                     states[w.name], changed = replace(st, turns=st.turns + add), True
-            for w in self.loads:      # matched pairs wind the larger of their two turn counts
-                if w.same_turns_as and states[w.same_turns_as].turns != states[w.name].turns:
-                    n = max(states[w.same_turns_as].turns, states[w.name].turns)
-                    states[w.same_turns_as] = replace(states[w.same_turns_as], turns=n)
+            for w in self.loads:      # matched and bifilar pairs wind the larger of their two turn counts
+                mate = w.same_turns_as or w.wound_with
+                if mate and states[mate].turns != states[w.name].turns:
+                    n = max(states[mate].turns, states[w.name].turns)
+                    states[mate] = replace(states[mate], turns=n)
                     states[w.name] = replace(states[w.name], turns=n)
                     changed = True
             if not changed:
@@ -214,25 +239,64 @@ class TransformerRun:
         f, wf = spec.frequency_hz, spec.waveform
         lm = float(faraday.magnetizing_inductance_h(np_turns, parts.ae_m2, parts.le_m, mat.mu_working))
         imag, imag_pk = (float(x) for x in K.magnetizing_current_a(self.vp, f, lm, wf, spec.duty))
-        ip = float(K.primary_current_a(self.p_out, eta, self.vp, imag))
+        # the primary carries the loads referred (a rectifier's peaky current as its rms, ``design.loads``);
+        # k equal primaries share it (in parallel each carries 1/k, in series all carry 1/k of a single winding's)
+        ip = float(K.primary_current_a(self.p_reflected, eta, self.vp, imag)) / self.halves
         if not self.wires:
             self.pick_wires(ip)
         states = self.initial_states(np_turns, ip)
         built, loaded = self.wind(states, np_turns, temp)
-        frs = section_frs(built, states, f, temp.hot_c, wf, _signs(spec)) if built.ok else {}
+        frs = self.frs(built, states, np_turns, temp) if built.ok else {}
         lengths = copper_lengths_m(built, self.cat.shop.lead_length_m)
         copper = 0.0
         for name, st in states.items():
             if name in lengths:
+                i_dc, i_ac = LD.dc_ac_parts(self.load_result.get(name), st.current_a)
                 copper += float(K.copper_loss_w(_dcr(st, lengths[name], temp.hot_c), winding_fr(built, frs, name),
-                                                st.current_a))
+                                                i_ac, i_dc))
         b_pk = float(faraday.b_peak_t(self.vp, f, np_turns, parts.ae_m2, wf, spec.duty))
         b_pk_max = float(faraday.b_peak_t(self.vp_max, f, np_turns, parts.ae_m2, wf, spec.duty))
+        # several frequencies: the flux is highest at the lowest (f); the core loss is taken at the worst one,
+        # each frequency with its own flux
+        by_f = {fx: float(K.core_loss_w_m3(wf, fx, float(faraday.b_peak_t(self.vp, fx, np_turns, parts.ae_m2, wf,
+                                                                             spec.duty)),
+                                           spec.duty, mat.steinmetz_k, mat.steinmetz_alpha, mat.steinmetz_beta))
+                for fx in spec.frequencies_hz[1:]}
         pv = float(K.core_loss_w_m3(wf, f, b_pk, spec.duty, mat.steinmetz_k, mat.steinmetz_alpha, mat.steinmetz_beta))
+        by_f[f] = pv
+        pv = max(by_f.values())
         open_v = {w.name: self.vp * states[w.name].turns / np_turns for w in self.loads}
-        l_lk = leakage_h(built, parts.former, _balanced(spec, states, np_turns), self.prim.name) if built.ok else 0.0
-        detail = TransformerPass(np_turns, eta, lm, imag, imag_pk, b_pk, b_pk_max, loaded, open_v, l_lk)
+        first_half = next((n for n, ld in self.load_result.items() if ld.load == "centre_tapped"), None)
+        amps = LD.interval_currents(self.load_result, first_half) if first_half else None
+        l_lk = (leakage_h(built, parts.former, _balanced(spec, states, np_turns, amps), self.prim.name)
+                if built.ok else 0.0)
+        conns = connection_results(spec.connections, self.vp_max / self.vp if self.vp else 1.0, f, np_turns,
+                                   parts.ae_m2, wf, spec.duty)
+        detail = TransformerPass(np_turns, eta, lm, imag, imag_pk, b_pk, b_pk_max, loaded, open_v, l_lk,
+                                 dict(self.load_result), conns, by_f)
         return Evaluation(states, built, frs, copper, pv * parts.ve_m3, pv, detail)
+
+    def frs(self, built: BuiltWindow, states: dict[str, WindingState], np_turns: int,
+            temp: ThermalState) -> dict[tuple[str, int], float]:
+        """Fr of every section. Halves of a centre-tapped secondary conduct alternately: each interval's MMF
+        profile has one half carrying the DC current and the other none, and each half takes its Fr from
+        the interval it conducts in; every other winding the mean over the intervals."""
+        spec, f, wf = self.spec, self.spec.frequency_hz, self.spec.waveform
+        halves = [n for n, ld in self.load_result.items() if ld.load == "centre_tapped"]
+        if not halves:
+            return section_frs(built, states, f, temp.hot_c, wf, _signs(spec))
+        runs = {}
+        for half in halves:
+            amps = _balanced(spec, states, np_turns, LD.interval_currents(self.load_result, half))
+            now = {n: replace(st, current_a=abs(amps.get(n, st.current_a))) for n, st in states.items()}
+            runs[half] = section_frs(built, now, f, temp.hot_c, wf, _signs(spec))
+        out: dict[tuple[str, int], float] = {}
+        for key in runs[halves[0]]:
+            if key[0] in runs:
+                out[key] = runs[key[0]][key]
+            else:
+                out[key] = sum(r[key] for r in runs.values()) / len(runs)
+        return out
 
     def fits(self, ev: Evaluation[TransformerPass]) -> bool:
         return ev.built.ok and ev.built.height_m * self.cat.shop.bulge_factor <= self.parts.former.height_m
@@ -320,8 +384,25 @@ class TransformerRun:
 
     def again(self, previous: Evaluation[TransformerPass], temp: ThermalState) -> Evaluation[TransformerPass]:
         p = previous.detail
+        if any(ld.load in ("bridge_capacitor", "centre_tapped") for ld in p.loads.values()):
+            self.set_loads(self.source_ratios(previous, temp))
         eta = self.p_out / (self.p_out + previous.total_w) if previous.total_w > 0 else p.eta
         return self.evaluate(p.primary_turns, temp, eta)
+
+    def source_ratios(self, ev: Evaluation[TransformerPass], temp: ThermalState) -> dict[str, float]:
+        """R_s / R_L of each rectifier load: its winding's resistance plus the primaries' referred through the
+        ratio (k halves: one half's over k), over R_L = V_dc / I_dc."""
+        lengths = copper_lengths_m(ev.built, self.cat.shop.lead_length_m)
+        np_turns = ev.detail.primary_turns
+        rp = _dcr(ev.windings[self.prim.name], lengths.get(self.prim.name, 0.0), temp.hot_c) / self.halves
+        out = {}
+        for name, ld in ev.detail.loads.items():
+            st = ev.windings[name]
+            rs = _dcr(st, lengths.get(name, 0.0), temp.hot_c) + rp * (st.turns / np_turns) ** 2
+            vdc = (ld.vdc_over_vpk or 0.9) * math.sqrt(2.0) * (st.spec.voltage_v or 0.0)
+            if ld.dc_current_a > 0 and vdc > 0:
+                out[name] = rs / (vdc / ld.dc_current_a)
+        return out
 
     def voltage_check(self, w: Winding, p: TransformerPass) -> Check:
         """Output voltage: asked, delivered at full load and open circuit, against the winding's tolerance."""
@@ -355,23 +436,40 @@ class TransformerRun:
                 reg = (p.open_v[w.name] - p.loaded_v[w.name]) / p.loaded_v[w.name] * 100.0
                 regulation = reg if regulation is None else max(regulation, reg)
         extra = [self.voltage_check(w, p) for w in self.loads]
+        if self.spec.frequencies_hz and p.core_w_m3_by_hz:
+            worst = max(p.core_w_m3_by_hz, key=lambda x: p.core_w_m3_by_hz[x] if p.core_w_m3_by_hz else 0.0)
+            served = " and ".join(_freq(x) for x in self.spec.frequencies_hz)
+            extra.append(Check("pass", "frequencies",
+                               f"serves {served}: flux checked at {_freq(self.spec.frequency_hz)} (the lowest, the "
+                               f"highest flux), core loss and temperature at {_freq(worst)} (the worst: "
+                               f"{p.core_w_m3_by_hz[worst] / 1e3:.3g} kW/m³)"))
         primary = ev.windings[self.prim.name]
-        if primary.current_a > 0 and p.imag_a / primary.current_a > MAGNETIZING_WARN:
+        share = p.imag_a / self.halves / primary.current_a if primary.current_a > 0 else 0.0   # per half
+        if share > MAGNETIZING_WARN:
             extra.append(Check("warn", "magnetizing",
-                               f"magnetizing current {p.imag_a:.3g} A is {p.imag_a / primary.current_a:.0%} of the "
+                               f"magnetizing current {p.imag_a:.3g} A is {share:.0%} of the "
                                f"primary current: more primary turns, or a core material of higher permeability"))
         return ElectricalSummary(
             b_peak_t=p.b_peak_t, b_peak_max_t=p.b_peak_max_t,
             flux_limit=self.swing_limit(flux_limit(self.spec, self.cat, self.parts.material, temp.hot_c)),
             h_peak_a_m=float(faraday.h_field_a_m(p.primary_turns, p.imag_pk_a, self.parts.le_m)),
             magnetizing_inductance_h=p.lm_h, magnetizing_current_a=p.imag_a, leakage_inductance_h=p.leakage_h,
-            voltages={self.prim.name: self.vp, **p.loaded_v}, open_circuit=dict(p.open_v),
+            voltages={**{w.name: self.vp for w in self.prims}, **p.loaded_v}, open_circuit=dict(p.open_v),
             voltage_tolerance={w.name: self.tolerance(w) for w in self.loads}, efficiency=eff,
-            regulation_pct=regulation, output_power_w=self.p_out, checks=tuple(extra))
+            regulation_pct=regulation, output_power_w=self.p_out, checks=tuple(extra),
+            ripple_rms=({n: LD.dc_ac_parts(p.loads.get(n), st.current_a) for n, st in ev.windings.items()}
+                        if LD.has_loads(self.loads) else None),
+            loads=tuple(p.loads.values()) if LD.has_loads(self.loads) else (), connections=p.connections)
 
 
 def _band(asked: float, tol: tuple[float, float]) -> str:
     return f"{asked:g} V -{tol[0] * 100:g}/+{tol[1] * 100:g} % ({asked * (1 - tol[0]):.3f}-{asked * (1 + tol[1]):.3f} V)"
+
+
+def _also(spec: Spec) -> str:
+    """A test condition's note on a part for several frequencies: it is tested at the lowest."""
+    rest = [_freq(x) for x in spec.frequencies_hz if x != spec.frequency_hz]
+    return f" (tested at the lowest frequency; the part also serves {', '.join(rest)})" if rest else ""
 
 
 class TransformerKind:
@@ -428,6 +526,18 @@ class TransformerKind:
         if prim is None:
             return KindTests()
         for w in windings:
+            if w.role == "primary" and w is not prim:
+                r = prim.turns / w.turns      # halves of a several-primary part: equal turns
+                ratio.append(Limit(name="turns ratio", item=f"{prim.name}:{w.name}", nominal=r,
+                                   low=r * (1 - tol["ratio"]), high=r * (1 + tol["ratio"]), unit=":1",
+                                   condition=f"halves, {prim.turns} : {w.turns} turns; {prim.name} driven, "
+                                             f"{w.name} open"))
+            mate = next((x for x in windings if x.name == w.name), None)
+            bifilar = next((s.wound_with for s in (mate.sections if mate else ()) if s.wound_with), None)
+            if w.role in ("secondary", "auxiliary") and bifilar and spec.winding(w.name).wound_with == bifilar:
+                ratio.append(Limit(name="turns ratio", item=f"{bifilar}:{w.name}", nominal=1.0,
+                                   low=1 - tol["ratio"], high=1 + tol["ratio"], unit=":1",
+                                   condition=f"wound together, {w.turns} : {w.turns} turns; {bifilar} driven"))
             if w.role in ("secondary", "auxiliary"):
                 r = prim.turns / w.turns
                 ratio.append(Limit(name="turns ratio", item=f"{prim.name}:{w.name}", nominal=r,
@@ -439,7 +549,7 @@ class TransformerKind:
                                      low=v * (1 - tol["open_circuit_voltage"]),
                                      high=v * (1 + tol["open_circuit_voltage"]), unit="V",
                                      condition=f"{prim.name} at {s.voltages[prim.name]:.4g} V, "
-                                               f"{_freq(spec.frequency_hz)}, no load"))
+                                               f"{_freq(spec.frequency_hz)}, no load" + _also(spec)))
         for w in windings:
             if w is prim or not w.finish:
                 continue

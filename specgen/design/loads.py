@@ -1,0 +1,106 @@
+"""What each secondary's load makes it carry: rms current, form factor, real power, VA, conduction pattern.
+
+The shop's rules over ``physics.rectifier_loads``:
+
+- no ``load`` (or ``resistive``): the current given is the winding's rms current (form factor 1);
+- ``converter``: a bridge converter's secondary into a full-bridge rectifier and output choke, a square wave
+  of +-I_dc: rms I_dc, the square wave's harmonics for the AC factor;
+- ``bridge_capacitor``: Schade's capacitor-input circuit; R_L = V_dc / I_dc, R_s the winding resistances
+  referred to the secondary (the previous pass's; FIRST_RS_RATIO before the first build);
+- ``centre_tapped``: each half carries the DC load current in alternate half periods (duty 0.5, or the
+  bridge's pulses of one polarity with ``capacitance``). The halves conduct alternately, so the AC factor
+  of each half is found in the interval it conducts (``interval_currents``) and its DC part
+  (I_dc / 2 for a flat current) sees the DC resistance only.
+
+The primary carries the loads referred through their ratios: a resistive or bridge load's rms current, and a
+centre-tapped pair once, as one square wave of its DC current.
+"""
+
+from __future__ import annotations
+
+import math
+from collections.abc import Mapping, Sequence
+
+from ..physics import rectifier_loads as rl
+from .spec import Winding
+from .windings_result import LoadResult
+
+FIRST_RS_RATIO = 0.05        # R_s / R_L before the windings are built: a few percent regulation (common practice)
+SCHADE = "Schade, Proc. IRE 31(7) 1943: capacitor-input rectifier, solved for its steady state"
+CENTRE_TAP = "centre-tapped full wave: each half conducts alternately at duty 0.5 (Mohan, Undeland, Robbins, ch. 10)"
+RESISTIVE = "resistive: the current as given"
+CONVERTER = "bridge converter output into a choke: a square wave of the DC current"
+
+
+def load_type(w: Winding) -> str:
+    return w.load.type if w.load is not None else "resistive"
+
+
+def has_loads(windings: Sequence[Winding]) -> bool:
+    """Whether any winding declares a load (the part then reports its loads)."""
+    return any(w.load is not None for w in windings)
+
+
+def solve(loads: Sequence[Winding], freq_hz: float, rs_ratio: Mapping[str, float]) -> dict[str, LoadResult]:
+    """Each load winding's currents at this pass (``rs_ratio``: R_s / R_L by winding, from the last build)."""
+    out: dict[str, LoadResult] = {}
+    for w in loads:
+        v = w.voltage_v or 0.0
+        i = w.current_a if w.current_a is not None else (w.va or 0.0) / (v or 1.0)
+        kind = load_type(w)
+        cap = w.load.capacitance_f if w.load is not None else None
+        form, source, vratio, power = 1.0, RESISTIVE, None, v * i
+        if kind == "converter":
+            source = CONVERTER
+        elif kind == "bridge_capacitor" or (kind == "centre_tapped" and cap is not None):
+            r = max(rs_ratio.get(w.name, FIRST_RS_RATIO), 1e-4)
+            # R_L = V_dc / I_dc with V_dc = m sqrt(2) V; m from the last pass's ratio (0.9 to start)
+            m = 0.9
+            for _ in range(3):
+                r_load = m * math.sqrt(2.0) * v / i if i > 0 else 1e9
+                form, m = rl.bridge_capacitor_form(2.0 * math.pi * freq_hz * (cap or 0.0) * r_load, r)
+            vratio, power, source = m, m * math.sqrt(2.0) * v * i, SCHADE
+            if kind == "centre_tapped":
+                source = f"{CENTRE_TAP}; pulses by {SCHADE}"
+        if kind == "centre_tapped":
+            rms = rl.centre_tapped_half_rms_a(i, form if cap is not None else None)
+            power = power / 2.0 if cap is not None else v * i / 2.0      # each half delivers half the power
+            if cap is None:
+                source = CENTRE_TAP
+        else:
+            rms = i * form
+        out[w.name] = LoadResult(w.name, kind, i, rms, rms / i if i > 0 else 1.0, source, v * rms, power,
+                                 w.load.other_half if w.load is not None else None, vratio)
+    return out
+
+
+def reflected_w(loads: Mapping[str, LoadResult], voltages: Mapping[str, float]) -> float:
+    """The volt-amperes the primary carries for the loads (before efficiency): V x I_rms of a resistive or
+    bridge load, V x I_dc once for a centre-tapped pair (its halves reflect as one square wave)."""
+    total = 0.0
+    for ld in loads.values():
+        v = voltages.get(ld.winding, 0.0)
+        total += v * ld.dc_current_a / 2.0 * (ld.form_factor * math.sqrt(2.0)) if ld.load == "centre_tapped" \
+            else v * ld.rms_current_a
+    return total
+
+
+def dc_ac_parts(ld: LoadResult | None, rms_a: float) -> tuple[float, float]:
+    """(DC, AC rms) parts of a winding's current for the copper loss: a centre-tapped half's current is
+    DC I_dc/2 plus an AC rest; every other winding's is all AC."""
+    if ld is None or ld.load != "centre_tapped":
+        return 0.0, rms_a
+    dc = ld.dc_current_a / 2.0
+    return dc, math.sqrt(max(rms_a * rms_a - dc * dc, 0.0))
+
+
+def interval_currents(loads: Mapping[str, LoadResult], conducting: str) -> dict[str, float]:
+    """The load currents in the interval where ``conducting`` (a centre-tapped half) carries the DC current:
+    its other half carries none; every other load its rms current."""
+    out: dict[str, float] = {}
+    for name, ld in loads.items():
+        if ld.load == "centre_tapped":
+            out[name] = ld.dc_current_a if name == conducting else 0.0
+        else:
+            out[name] = ld.rms_current_a
+    return out
