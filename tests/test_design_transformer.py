@@ -257,12 +257,20 @@ def test_temperature_fail_above_the_insulation_class(cat):
     assert d.failed
 
 
+def _given_155_wires(text):
+    """BH-1042 with its `auto` wires replaced by the class-155 wires they would pick in a class-130 system
+    (`auto` picks class-180 wire itself in a class-180 system)."""
+    for wire in ("AWG27-G2", "CU-1.12-G2", "CU-1.12-G2"):
+        text = text.replace("wire: auto", f"wire: {wire}", 1)
+    return text
+
+
 def test_wire_class_fails_below_the_hot_spot(cat):
     """Class 180 (H) system at 135 degC ambient: the hot spot lands between the 155 degC enamel class
     and the 180 degC system limit, so every class-155 winding fails 'wire-class' (IEC 60085: a class is
     the material's highest continuous temperature) while 'temperature' itself does not fail."""
     text = _variant("BH-1042", "ambient: 40 degC", "ambient: 135 degC").replace("130 (B)", "180 (H)")
-    d = design_text(text, "BH-1042-h.yaml", cat)
+    d = design_text(_given_155_wires(text), "BH-1042-h.yaml", cat)
     assert 155.0 < d.hot_spot_c < 180.0
     assert _check(d, "temperature")[0].level != "fail"
     wire_fails = {c.message.split(":")[0] for c in _check(d, "wire-class") if c.level == "fail"}
@@ -272,7 +280,7 @@ def test_wire_class_fails_below_the_hot_spot(cat):
 
 def test_wire_class_warns_below_the_system_class(designs, cat):
     """Class 180 system, normal ambient: class-155 wire sits below the system class (warn), not the hot spot."""
-    d = design_text(_variant("BH-1042", "130 (B)", "180 (H)"), "BH-1042-h2.yaml", cat)
+    d = design_text(_given_155_wires(_variant("BH-1042", "130 (B)", "180 (H)")), "BH-1042-h2.yaml", cat)
     assert d.hot_spot_c < 155.0
     levels = {c.level for c in _check(d, "wire-class")}
     assert levels == {"warn"}
@@ -280,7 +288,7 @@ def test_wire_class_warns_below_the_system_class(designs, cat):
 
 def test_wire_class_message_says_what_to_do(cat):
     text = _variant("BH-1042", "ambient: 40 degC", "ambient: 135 degC").replace("130 (B)", "180 (H)")
-    d = design_text(text, "BH-1042-h.yaml", cat)
+    d = design_text(_given_155_wires(text), "BH-1042-h.yaml", cat)
     fail = next(c for c in d.checks if c.code == "wire-class" and c.level == "fail")
     assert re.search(r"\buse\b|\bchoose\b|class 180 wire", fail.message)
 

@@ -178,26 +178,27 @@ def _add_turns(text: str, winding: str, turns: int) -> str:
     if m is None:
         raise ValueError(f"winding {winding} not found")
     indent = m.group(1) + "  "
-    line = f"{indent}turns: {turns}               # fixed: more turns than rev B calculated\n"
+    line = f"{indent}turns: {turns}               # fixed: rev B calculated another count\n"
     return text[:m.end()] + line + text[m.end():]
 
 
-def _more_turns_that_pass(text: str, winding: str, turns: int, cat: Any, name: str) -> int:
-    """The fewest primary turns above ``turns`` whose design passes every check (the outputs' voltages must
-    stay in their bands, so one more turn is not always a part the shop can release)."""
+def _other_turns_that_pass(text: str, winding: str, turns: int, cat: Any, name: str) -> int:
+    """The nearest primary turns above ``turns`` whose design passes every check, else the nearest below (the
+    outputs' voltages must stay in their bands and the build must fit, so one more turn is not always a part
+    the shop can release: the loss scan may already sit at the top of what fits)."""
     from ..api import design_text
 
-    for n in range(turns + 1, turns + 40):
+    for n in [*range(turns + 1, turns + 40), *range(turns - 1, max(0, turns - 40), -1)]:
         if not design_text(_add_turns(text, winding, n), name, cat).failed:
             return n
-    raise ValueError(f"no primary turn count from {turns + 1} to {turns + 39} passes")
+    raise ValueError(f"no primary turn count from {max(1, turns - 39)} to {turns + 39} passes")
 
 
 def demo_change_summary(out_dir, cat, echo=print):
     """Write the demo's change summary of BH-2210 rev B -> rev C into ``out_dir``.
 
-    A throwaway git repository gets BH-2210 as shipped (rev B), then rev C: the next draft, one
-    more primary turn fixed with ``turns:``, released with ``specgen.lifecycle.release_spec``. The
+    A throwaway git repository gets BH-2210 as shipped (rev B), then rev C: the next draft, another
+    primary turn count fixed with ``turns:``, released with ``specgen.lifecycle.release_spec``. The
     summary compares the two commits. Returns the PDF path,
     or None (with a message) when git is not installed.
     """
@@ -228,10 +229,10 @@ def demo_change_summary(out_dir, cat, echo=print):
                        if w.role == "primary")
         start_next_draft_file(spec_path)                        # revision C, draft
         text = spec_path.read_text(encoding="utf-8")
-        turns = _more_turns_that_pass(text, primary.name, primary.turns, cat, str(spec_path))
+        turns = _other_turns_that_pass(text, primary.name, primary.turns, cat, str(spec_path))
         spec_path.write_text(_add_turns(text, primary.name, turns), encoding="utf-8")
-        release_spec(spec_path, by="T. Vance", date="2026-12-07", cat=cat,
-                     note=f"{turns} primary turns: lower flux at the top of the bus range")
+        why = "lower flux at the top of the bus range" if turns > primary.turns else "less copper in the window"
+        release_spec(spec_path, by="T. Vance", date="2026-12-07", cat=cat, note=f"{turns} primary turns: {why}")
         _git(repo, "commit", "-q", "-a", "-m", "BH-2210 rev C")
         summary = compare_refs(f"{spec_path}@HEAD~1", f"{spec_path}@HEAD", cat)
         # the throwaway repository is gone after this: the document names each side by its revision
@@ -261,7 +262,7 @@ def demo_shop(shop_dir, cat, designs: dict, echo=print) -> Path | None:
     """Lay out ``shop_dir`` as a shop keeps its parts, for trying the commands by hand.
 
     ``catalog/`` (a copy of the catalogue in use), ``parts/`` (the demo parts, committed to git as
-    shipped, then BH-2210 released again as revision C with one more primary turn, so that a diff has
+    shipped, then BH-2210 released again as revision C with another primary turn count, so that a diff has
     two revisions), ``requirements/`` (the search's requirement files) and ``orders.csv`` (a batch of
     work orders for the released parts, with its header row). The shop's register is created at its
     root by the first work order. An existing shop folder is replaced. Returns the folder, or None
@@ -297,10 +298,10 @@ def demo_shop(shop_dir, cat, designs: dict, echo=print) -> Path | None:
     primary = next(w for w in designs["BH-2210"][2].windings if w.role == "primary")
     start_next_draft_file(spec_path)
     text = spec_path.read_text(encoding="utf-8")
-    turns = _more_turns_that_pass(text, primary.name, primary.turns, cat, str(spec_path))
+    turns = _other_turns_that_pass(text, primary.name, primary.turns, cat, str(spec_path))
     spec_path.write_text(_add_turns(text, primary.name, turns), encoding="utf-8")
-    release_spec(spec_path, by="T. Vance", date="2026-12-07", cat=cat,
-                 note=f"{turns} primary turns: lower flux at the top of the bus range")
+    why = "lower flux at the top of the bus range" if turns > primary.turns else "less copper in the window"
+    release_spec(spec_path, by="T. Vance", date="2026-12-07", cat=cat, note=f"{turns} primary turns: {why}")
     _git(shop, "commit", "-q", "-a", "-m", "BH-2210 rev C")
     echo(f"demo shop in {shop}/: {len(designs)} parts in git, BH-2210 at revision C, "
          f"orders.csv for {len(released)} parts")

@@ -21,6 +21,7 @@ Flux and turns
   gapped_turns_and_gap(target_h, i_peak_a, b_limit_t, ae, le, mu, window_m, fixed_turns)  (N, gap)
   powder_flux_t(turns, current_a, le_m, mu_initial, a, b, c)         B = mu0 mu_i f(H) H
   magnetizing_current_a(v, freq_hz, inductance_h, waveform, duty)    (rms, peak)
+  core_loss_significant(core_w, copper_w, beta)                       the loss-limited turns scan applies
   output_voltage_ok(asked_v, delivered_v, minus, plus)              delivered within asked -minus/+plus
   secondary_turns_within(np_turns, v_primary, asked_v, drop_fraction, minus, plus)  Ns meeting it, 0: none
   primary_current_a(p_out_w, efficiency, v_primary, i_magnetizing_a)  load referred in quadrature with I_mag
@@ -96,6 +97,7 @@ from .kernel_winding import (
 )
 from .limits import (
     COOLING_RISE_FACTOR,
+    CORE_LOSS_SCAN_FRACTION,
     FIRST_GUESS_RISE_K,
     GAP_STEP_M,
     LITZ_POROSITY_FACTOR,
@@ -115,12 +117,13 @@ from .limits import (
 from .state import ThermalState
 
 __all__ = [
-    "COOLING_RISE_FACTOR", "FIRST_GUESS_RISE_K", "FORMER_CODE", "GAP_STEP_M", "LITZ_POROSITY_FACTOR",
+    "CORE_LOSS_SCAN_FRACTION", "COOLING_RISE_FACTOR", "FIRST_GUESS_RISE_K", "FORMER_CODE", "GAP_STEP_M", "LITZ_POROSITY_FACTOR",
     "LITZ_STRAND_MAX_SKIN_DEPTHS", "MAX_BUNDLES_LITZ", "MAX_HOT_C", "MAX_STRANDS_ROUND", "MAX_STRANDS_TIW",
     "MAX_TURNS", "MU0_H_M", "RIPPLE_SKIN_FRACTION", "SQUARE_HARMONICS", "STRAND_MAX_SKIN_DEPTHS",
     "THERMAL_MAX_PASSES", "THERMAL_SETTLED_K", "WIRE_CHOICE_TEMP_C", "WIRE_CODE",
     "FLUX_LIMIT_DESIGN", "FLUX_LIMIT_SHOP", "FLUX_LIMIT_SPEC", "FormerArrays", "Harmonics", "SectionWinding", "WireGeometry",
     "b_sat_t", "copper_loss_w", "core_loss_grouped_w_m3", "core_loss_w_m3", "current_density_a_m2",
+    "core_loss_significant",
     "current_harmonics", "dc_resistance_ohm", "first_guess_thermal", "flux_limit_source", "flux_limit_t", "gap_for_inductance_m",
     "gapped_turns_and_gap", "hot_spot_c", "layer_ac_factor", "layer_capacity", "layer_centre_m", "layer_delta",
     "layer_porosity", "magnetizing_current_a", "mean_turn_length_m", "output_voltage_ok", "secondary_turns_within",
@@ -336,6 +339,15 @@ def magnetizing_current_a(v: ArrayLike, freq_hz: ArrayLike, inductance_h: ArrayL
 
 
 # ================================================================================================ output voltage
+
+def core_loss_significant(core_w: ArrayLike, copper_w: ArrayLike, beta: ArrayLike) -> Any:
+    """Whether more primary turns may lower the total loss, so the loss-limited scan applies, at any frequency:
+    beta P_core >= CORE_LOSS_SCAN_FRACTION x 2 P_cu (d/dN of a N^-beta + b N^2 is negative while
+    beta P_core > 2 P_cu; McLyman, Transformer and Inductor Design Handbook, the least-loss condition). A bool
+    for scalar input, else a bool array."""
+    ok = _f(beta) * _f(core_w) >= CORE_LOSS_SCAN_FRACTION * 2.0 * _f(copper_w)
+    return bool(ok) if np.ndim(ok) == 0 else ok
+
 
 def output_voltage_ok(asked_v: ArrayLike, delivered_v: ArrayLike, minus: ArrayLike, plus: ArrayLike) -> Any:
     """Whether a winding delivers its voltage within tolerance: asked (1 - minus) <= delivered <= asked (1 + plus)

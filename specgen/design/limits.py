@@ -17,8 +17,17 @@ MAX_STRANDS_ROUND = 8          # strands in hand of round wire (shop practice: m
 MAX_BUNDLES_LITZ = 6           # Litz bundles in parallel (shop practice)
 MAX_STRANDS_TIW = 4            # triple-insulated wire in hand (shop practice; the search's limit)
 WIRE_CHOICE_TEMP_C = 100.0     # the skin depth for the strand limit at a typical hot copper temperature
-RIPPLE_SKIN_FRACTION = 0.2     # ripple rms below 20 % of DC: the DC current sets the wire, skin depth
-                               # ignored (common practice)
+RIPPLE_SKIN_FRACTION = 0.2     # a choke's ripple rms below 20 % of DC: the wire the DC current alone sets is
+                               # tried beside the skin-limited one, and the lower copper loss that fits is kept
+                               # (its AC factor, not a rule of thumb, decides; common practice threshold)
+
+# loss-limited turns. With core loss ~ N^-beta (Steinmetz at fixed volts) and copper loss ~ N^2 (fixed window
+# share), the total falls with more turns exactly while beta P_core > 2 P_cu (the least total loss has
+# P_core / P_cu = 2 / beta: McLyman's optimum, core loss near copper loss). The engine scans the turns wherever
+# beta P_core reaches this fraction of 2 P_cu at the saturation-limited turns, at any frequency: whole secondary
+# turns and a wire re-sized per candidate make the real curve ragged, so it starts a little before the slope
+# turns (common practice: a margin on an analytic optimum).
+CORE_LOSS_SCAN_FRACTION = 0.5
 
 # AC factor
 LITZ_POROSITY_FACTOR = 0.9     # strand porosity inside a bundle layer, x0.9 for the bundle's packing

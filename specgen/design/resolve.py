@@ -146,7 +146,11 @@ def resolve_bobbin(spec: Spec, cat: Catalog, core: Core, stack: float | None) ->
     if not fits:
         raise spec_error(spec, f"no bobbin in the catalogue fits {core.id}"
                                + (f" at stack {stack * 1e3:g} mm" if stack else ""), "core", "id")
-    first: Bobbin = sorted(fits, key=lambda b: b.id)[0]
+    # a bobbin rated for the insulation system's class (IEC 60085) first; where none is, the highest rated
+    # (the material-class check then says so)
+    first: Bobbin = sorted(fits, key=lambda b: (b.thermal_class_c < spec.insulation_class_c,
+                                                -b.thermal_class_c if b.thermal_class_c < spec.insulation_class_c else 0,
+                                                b.id))[0]
     return first
 
 

@@ -9,7 +9,6 @@ from dataclasses import dataclass
 import numpy as np
 
 from ..design import kernel as K
-from ..design.kinds.transformer import LOSS_LIMITED_ABOVE_HZ
 from ..physics import faraday
 from .candidates import outline_m
 from .context import SearchContext, choke_magnetics, winding_margin
@@ -353,17 +352,20 @@ def _least_loss_turns(ctx: SearchContext, ci: IntArray, res: RowResult) -> Float
 def evaluate_rows(ctx: SearchContext, ci: IntArray, oi: list[IntArray], second_pass: bool = True) -> RowResult:
     """The vectorised model over rows (core choice index ``ci``, option index per group ``oi``).
 
-    Pass 1 at the first-guess temperature; above 1 kHz a transformer row is also tried at the analytic
-    least-loss primary turns; rows that pass (with the slack) are evaluated again with turns, gap and AC
-    factor at the temperature pass 1 settled at, as the engine's thermal loop ends."""
+    Pass 1 at the first-guess temperature; where the core loss is a significant share
+    (``kernel.core_loss_significant``) a transformer row is also tried at the analytic least-loss primary
+    turns; rows that pass (with the slack) are evaluated again with turns, gap and AC factor at the
+    temperature pass 1 settled at, as the engine's thermal loop ends."""
     ci = np.asarray(ci, dtype=np.int64)
     oi = [np.asarray(o, dtype=np.int64) for o in oi]
     t0 = ctx.t0_hot_c
     if ctx.choke is None:
         res = eval_transformer(ctx, ci, oi, ctx.np0[ci], t0)
-        if ctx.req.frequency_hz >= LOSS_LIMITED_ABOVE_HZ:
+        beta = ctx.materials.beta[ctx.cores.material[ci]]
+        scan = np.asarray(K.core_loss_significant(res.core_w, res.copper_w, beta), dtype=bool)
+        if scan.any():
             n1 = _least_loss_turns(ctx, ci, res)
-            again = np.flatnonzero(((res.flags_slack & Fail.FIT) == 0) & (n1 > res.primary_turns))
+            again = np.flatnonzero(scan & ((res.flags_slack & Fail.FIT) == 0) & (n1 > res.primary_turns))
             if again.size:
                 sub = eval_transformer(ctx, ci[again], [o[again] for o in oi], n1[again], t0)
                 better = ((sub.flags_slack & Fail.FIT) == 0) & (sub.total_w < res.total_w[again])

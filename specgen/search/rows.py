@@ -94,9 +94,12 @@ def _options(req: Requirement, cat: Catalog, groups: list[int]) -> list[list[Wir
     heavy = heavy_wire_m(cat)
     if req.choke is not None:
         c = choke_currents(req)
-        skin = c.i_dc <= 0 or c.i_ac / c.i_dc > K.RIPPLE_SKIN_FRACTION
-        return [wire_options(cat, c.i_rms, density, req.frequency_hz, skin_limited=skin, allow_tiw=False,
-                             heavy_m=heavy)]
+        opts = wire_options(cat, c.i_rms, density, req.frequency_hz, skin_limited=True, allow_tiw=False, heavy_m=heavy)
+        if c.i_dc > 0 and c.i_ac / c.i_dc <= K.RIPPLE_SKIN_FRACTION:    # as the engine: the DC-set wires too
+            have = {(o.wire.id, o.strands) for o in opts}
+            opts += [o for o in wire_options(cat, c.i_rms, density, req.frequency_hz, skin_limited=False,
+                                             allow_tiw=False, heavy_m=heavy) if (o.wire.id, o.strands) not in have]
+        return [opts]
     options = []
     done: set[int] = set()
     for w, g in zip(req.windings, groups):

@@ -71,7 +71,7 @@ class CurrentTransformerRun:
                 self.wires[w.name] = WireChoice(cat.wires[w.wire], w.strands or 1, "given")
             else:
                 self.wires[w.name] = choose_wire(cat, current, density, spec.frequency_hz, K.WIRE_CHOICE_TEMP_C,
-                                                 w.wire, w.strands)
+                                                 w.wire, w.strands, spec.insulation_class_c)
 
     def states(self) -> dict[str, WindingState]:
         out: dict[str, WindingState] = {}

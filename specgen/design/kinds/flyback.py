@@ -181,7 +181,7 @@ class FlybackRun:
                 self.wires[w.name] = WireChoice(self.cat.wires[w.wire], w.strands or 1, "given")
             else:
                 self.wires[w.name] = choose_wire(self.cat, cur[w.name][1], density, self.f, K.WIRE_CHOICE_TEMP_C,
-                                                 w.wire, w.strands)
+                                                 w.wire, w.strands, self.spec.insulation_class_c)
 
     def frs(self, built: BuiltWindow, states: dict[str, WindingState], ops: dict[str, fb.OperatingPoint],
             temp: ThermalState) -> dict[tuple[str, int], float]:

@@ -32,6 +32,7 @@ from ..state import (
     Parts,
     ThermalState,
     WindingState,
+    WireChoice,
 )
 from ..wires import choose_wire
 from .base import flux_text as _fmt_t
@@ -78,14 +79,23 @@ class InductorRun:
         self.spec, self.cat, self.parts, self.req = spec, cat, parts, spec.inductor
         self.w = spec.windings[0]
         self.c = c = currents(self.req, spec.frequency_hz)
+        self.dc_choice: WireChoice | None = None
         w = self.w
         if not w.wire.startswith("auto"):
             self.wire, self.strands, self.reason = cat.wires[w.wire], (w.strands or 1), "given"
         else:
             density = K.current_density_a_m2(cat.shop.current_density_a_m2, spec.cooling)
-            wire_f = spec.frequency_hz if (c.ac or (c.i_dc > 0 and c.i_ac / c.i_dc > K.RIPPLE_SKIN_FRACTION)) else 0.0
-            choice = choose_wire(cat, c.i_rms, density, wire_f, K.WIRE_CHOICE_TEMP_C, w.wire, w.strands)
+            # the strand limit at the ripple's frequency even where the ripple is small (a thick wire's AC factor
+            # grows about as fast as the ripple's share of the loss shrinks); there the wire the DC current
+            # alone sets is tried too, and ``first`` keeps the lower copper loss that fits
+            choice = choose_wire(cat, c.i_rms, density, spec.frequency_hz, K.WIRE_CHOICE_TEMP_C, w.wire, w.strands,
+                                 spec.insulation_class_c)
             self.wire, self.strands, self.reason = choice.wire, choice.strands, choice.reason
+            if not c.ac and c.i_dc > 0 and c.i_ac / c.i_dc <= K.RIPPLE_SKIN_FRACTION:
+                dc = choose_wire(cat, c.i_rms, density, 0.0, K.WIRE_CHOICE_TEMP_C, w.wire, w.strands,
+                                 spec.insulation_class_c)
+                if (dc.wire.id, dc.strands) != (choice.wire.id, choice.strands):
+                    self.dc_choice = dc
         if parts.material.is_powder and self.req.gap == "fixed":
             raise spec_error(spec, f"{parts.core.id} is a powder core: its gap is distributed in the material; "
                                    f"remove core.gap", "core", "gap")
@@ -170,7 +180,20 @@ class InductorRun:
 
     # -- the KindRun protocol
     def first(self, temp: ThermalState) -> tuple[Evaluation[InductorPass], int]:
-        return self.evaluate(temp), 0
+        """The evaluation at the first-guess temperature; with a small ripple, the skin-limited wire and the
+        one the DC current alone sets are both tried and the one that fits with the lower copper loss kept."""
+        ev = self.evaluate(temp)
+        if self.dc_choice is None:
+            return ev, 0
+        kept = (self.wire, self.strands, self.reason)
+        self.wire, self.strands, self.reason = self.dc_choice.wire, self.dc_choice.strands, self.dc_choice.reason
+        other = self.evaluate(temp)
+        fits = [e.built.ok and e.built.height_m * self.cat.shop.bulge_factor <= self.parts.former.height_m
+                for e in (ev, other)]
+        if (fits[1], -other.copper_w) > (fits[0], -ev.copper_w):
+            return other, 1
+        self.wire, self.strands, self.reason = kept
+        return ev, 1
 
     def again(self, previous: Evaluation[InductorPass], temp: ThermalState) -> Evaluation[InductorPass]:
         return self.evaluate(temp)

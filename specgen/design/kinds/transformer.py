@@ -1,8 +1,9 @@
 """Transformers: Faraday turns, load-compensated secondaries, loss-limited primary turns.
 
 Primary turns from Faraday's law at the top of the primary range and the flux limit at the hot spot (a
-unipolar pulse may swing only B_limit - B_r); above 1 kHz (loss-limited) the turns are raised while the total
-loss falls and the winding still fits. Secondary turns are raised until the loaded voltage is met: the
+unipolar pulse may swing only B_limit - B_r); where the core loss is a significant share of the total (at any
+frequency) the turns are scanned over the range that fits for the least total loss, `auto` wires sized per
+candidate. Secondary turns are raised until the loaded voltage is met: the
 resistive drops referred through the ratio, and for a sine drive the leakage reactance in quadrature.
 """
 
@@ -43,7 +44,7 @@ MAX_SCAN = 60                # loss-limited search: at most this many primary-tu
 VPT_SCAN_SPAN = 120          # volts-per-turn search: primary turns up to n0 + this (or 3 x n0) for a turn pair
                              # that meets every output's tolerance (a 3 % band needs about 33 turns to hold
                              # a whole count; the fit ends it sooner on a small core)
-LOSS_LIMITED_ABOVE_HZ = 1000.0   # above this the core loss, not saturation, sets the turns (common practice)
+SCAN_MISSES = 4              # loss scan: this many candidates in a row that do not fit end the range
 MAGNETIZING_L_LOW = 0.7      # open-circuit inductance floor: material permeability varies widely (common practice)
 LEAKAGE_BAND = (0.7, 1.3)    # leakage limits: the build's geometry varies less, but a missed interleave or an
                              # extra tape shows as a large change (common practice, from memory)
@@ -140,9 +141,11 @@ class TransformerRun:
             if not w.wire.startswith("auto"):
                 self.wires[w.name] = WireChoice(cat.wires[w.wire], w.strands or 1, "given")
             elif w.role == "shield":
-                self.wires[w.name] = choose_wire(cat, 0.05, self.density, 0.0, K.WIRE_CHOICE_TEMP_C, "auto")
+                self.wires[w.name] = choose_wire(cat, 0.05, self.density, 0.0, K.WIRE_CHOICE_TEMP_C, "auto",
+                                                 min_class_c=spec.insulation_class_c)
             else:
-                self.wires[w.name] = choose_wire(cat, current, self.density, f, K.WIRE_CHOICE_TEMP_C, w.wire, w.strands)
+                self.wires[w.name] = choose_wire(cat, current, self.density, f, K.WIRE_CHOICE_TEMP_C, w.wire, w.strands,
+                                                 spec.insulation_class_c)
         for w in spec.windings:          # wound together: one wire, sized for the larger of the two currents
             if w.wound_with is not None:
                 lead = next(x for x in spec.windings if x.name == w.wound_with)
@@ -335,10 +338,25 @@ class TransformerRun:
         return [int(x) for x in n[ok]]
 
     # -- the KindRun protocol
+    def _auto(self) -> bool:
+        return any(w.wire.startswith("auto") for w in self.spec.windings)
+
+    def _at(self, n: int, temp: ThermalState, eta: float) -> Evaluation[TransformerPass]:
+        """One candidate of the scan: `auto` wires sized afresh for this candidate's currents (the magnetizing
+        current falls as turns rise, so the wire sized at n0 would be too heavy for the rest of the range)."""
+        if self._auto():
+            self.wires.clear()
+        return self.evaluate(n, temp, eta)
+
+    def _keep_wires(self, ev: Evaluation[TransformerPass]) -> None:
+        """The wires of the evaluation kept become the run's wires for the temperature loop."""
+        self.wires = {name: WireChoice(st.wire, st.strands, st.wire_reason) for name, st in ev.windings.items()}
+
     def first(self, temp: ThermalState) -> tuple[Evaluation[TransformerPass], int]:
         """Saturation-limited turns n0, then the primary turns that give every output its voltage within its
-        tolerance (the volts-per-turn search), the lowest-loss such count where the core loss sets the turns;
-        the `auto` wires re-sized for the turns kept."""
+        tolerance (the volts-per-turn search), the lowest-loss such count over the whole range that fits where
+        the core loss is a significant share of the total (``kernel.core_loss_significant``, any frequency);
+        `auto` wires re-sized for every candidate."""
         eta = self.spec.efficiency_guess
         n0 = self.min_turns(temp)
         first = self.evaluate(n0, temp, eta)
@@ -346,7 +364,7 @@ class TransformerRun:
         self.search_span = (n0, n0)
         if self.prim.turns or not first.built.ok:
             return first, passes
-        loss_scan = self.spec.frequency_hz >= LOSS_LIMITED_ABOVE_HZ
+        loss_scan = bool(K.core_loss_significant(first.core_w, first.copper_w, self.parts.material.steinmetz_beta))
         if self.within(first) and not loss_scan:
             return first, passes
         top = min(K.MAX_TURNS, max(3 * n0, n0 + VPT_SCAN_SPAN))
@@ -355,11 +373,18 @@ class TransformerRun:
             cands = [cands[round(i * (len(cands) - 1) / (MAX_SCAN - 1))] for i in range(MAX_SCAN)]
         good = first if self.within(first) else None
         lowest = first                                # the lowest loss whatever the voltages (a failed search)
+        misses = 0
         for n in cands[:MAX_SCAN]:
-            cand = self.evaluate(n, temp, eta)
+            cand = self._at(n, temp, eta)
             passes += 1
             if not self.fits(cand):
-                break
+                # the build grows with the turns, but a thinner wire chosen for a smaller current can fit again
+                # further on: the range ends only after SCAN_MISSES candidates in a row that do not fit
+                misses += 1
+                if misses >= SCAN_MISSES:
+                    break
+                continue
+            misses = 0
             self.search_span = (n0, n)
             if cand.total_w < lowest.total_w - 1e-9:
                 lowest = cand
@@ -369,25 +394,41 @@ class TransformerRun:
                 if not loss_scan:
                     break
         best = good or lowest
-        # `auto` wire for the turns actually chosen (sized at the first candidate, where the magnetizing current
-        # is largest); kept only if the build still fits and the outputs still meet their tolerance
-        if any(w.wire.startswith("auto") for w in self.spec.windings) and best.detail.primary_turns != n0:
-            kept = dict(self.wires)
-            self.wires.clear()
-            again = self.evaluate(best.detail.primary_turns, temp, eta)
-            passes += 1
-            if self.fits(again) and (self.within(again) or not self.within(best)):
-                best = again
-            else:
-                self.wires = kept
+        self._keep_wires(best)
         return best, passes
 
     def again(self, previous: Evaluation[TransformerPass], temp: ThermalState) -> Evaluation[TransformerPass]:
+        """One pass of the temperature loop at the efficiency the previous pass's loss gives. An `auto` wire
+        whose current has grown past the shop's density (the first guess of the efficiency was high) is
+        re-sized upward, never down, so the loop cannot swing between two sizes; kept only if the build still
+        fits and the outputs stay within their tolerance."""
         p = previous.detail
         if any(ld.load in ("bridge_capacitor", "centre_tapped") for ld in p.loads.values()):
             self.set_loads(self.source_ratios(previous, temp))
         eta = self.p_out / (self.p_out + previous.total_w) if previous.total_w > 0 else p.eta
-        return self.evaluate(p.primary_turns, temp, eta)
+        ev = self.evaluate(p.primary_turns, temp, eta)
+        if not self._auto() or not self.fits(ev):
+            return ev
+        kept = dict(self.wires)
+        grown = False
+        for w in self.spec.windings:
+            st = ev.windings[w.name]
+            if not w.wire.startswith("auto") or w.role == "shield":
+                continue
+            area = st.wire.copper_area_m2 * st.strands
+            if area > 0 and st.current_a / area > self.density * (1.0 + 1e-9):
+                choice = choose_wire(self.cat, st.current_a, self.density, self.spec.frequency_hz,
+                                     K.WIRE_CHOICE_TEMP_C, w.wire, w.strands, self.spec.insulation_class_c)
+                if choice.wire.copper_area_m2 * choice.strands > area:
+                    self.wires[w.name] = choice
+                    grown = True
+        if not grown:
+            return ev
+        bigger = self.evaluate(p.primary_turns, temp, eta)
+        if self.fits(bigger) and (self.within(bigger) or not self.within(ev)):
+            return bigger
+        self.wires = kept
+        return ev
 
     def source_ratios(self, ev: Evaluation[TransformerPass], temp: ThermalState) -> dict[str, float]:
         """R_s / R_L of each rectifier load: its winding's resistance plus the primaries' referred through the
