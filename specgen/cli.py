@@ -52,7 +52,7 @@ def main(argv: list | None = None) -> None:
             sys.exit(ex.exit_code)
         except SpecError as err:      # raised while parsing options, before a command's guard
             typer.echo(str(err), err=True)
-            sys.exit(2)
+            sys.exit(err.exit_code)
         sys.exit(code if isinstance(code, int) else 0)
 
 

@@ -12,6 +12,8 @@ import re
 class SpecError(Exception):
     """A mistake in something the user gave us (a spec, a catalogue, a command line)."""
 
+    exit_code = 2       # bad input
+
     def __init__(self, message: str, file: str | None = None, line: int | None = None,
                  path: str | None = None):
         self.message = message
@@ -59,6 +61,14 @@ def escape_controls(text: str, keep_newlines: bool = False) -> str:
         return _NAMED.get(ch) or (f"\\x{ord(ch):02x}" if ord(ch) < 0x100 else f"\\u{ord(ch):04x}")
 
     return _CONTROLS.sub(show, text)
+
+
+class DesignOutOfRange(SpecError):
+    """A requirement that cannot be built on the chosen core: the design leaves a physical sanity range
+    (``design.limits``), so no figure of it is printed. Located like a SpecError, one line, but exit 1: the
+    input is well formed, the part is impossible."""
+
+    exit_code = 1
 
 
 class DesignFailed(Exception):

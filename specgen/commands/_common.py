@@ -122,7 +122,7 @@ def guarded(fn):
                 return fn(*args, **kwargs)
             except SpecError as err:
                 typer.echo(str(err), err=True)
-                raise typer.Exit(2) from None
+                raise typer.Exit(err.exit_code) from None
             except DesignFailed as err:
                 typer.echo(f"refused: {terminal_safe(str(err))}", err=True)
                 for ch in err.failed:

@@ -63,7 +63,7 @@ def run_quick(args: list[str]) -> int | None:
         text, failed = design_output(spec, catalog, as_json)
     except SpecError as err:
         sys.stderr.write(f"{err}\n")
-        return 2
+        return err.exit_code
     except KeyboardInterrupt:
         sys.stderr.write("interrupted\n")
         return 130

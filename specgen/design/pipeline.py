@@ -20,8 +20,10 @@ import math
 from typing import Any
 
 from ..catalog.models import Catalog
+from ..errors import DesignOutOfRange
 from ..physics import wire as wiremod
 from . import kernel as K
+from . import limits as L
 from .build import copper_lengths_m, winding_fr
 from .checks import run_checks
 from .floor import floor_data, history_entries
@@ -73,17 +75,21 @@ def design(spec: Spec, cat: Catalog) -> Design:
     return d
 
 
-# the largest figures a wound part of this shop can have; beyond them a design is a model out of its range
-SANE_CURRENT_A, SANE_VOLTAGE_V = 1e5, 1e6
+def _out_of_range(spec: Spec, message: str, *path: str | int) -> DesignOutOfRange:
+    err = spec_error(spec, message, *path)
+    return DesignOutOfRange(err.message, err.file, err.line, err.path)
 
 
 def _sane(spec: Spec, d: Design) -> None:
-    """Every number the Design reports is finite, and currents, losses, voltages and lengths lie in a physical
-    range; else a located one-line error (never NaN, inf or an absurd figure in an output)."""
+    """Every number the Design reports is finite, and currents, current densities, voltages, lengths, flux
+    density and the hot spot lie in their physical sanity ranges (``limits``); else the design ends with a
+    located one-line reason (``DesignOutOfRange``, exit 1), never NaN, inf or an absurd figure in an output."""
+    where = f"on core {spec.core_id}"
+
     def walk(x: object, path: str) -> None:
         if isinstance(x, float) and not math.isfinite(x):
-            raise spec_error(spec, f"the design of {spec.part} gives a non-finite {path}: the requirement is "
-                                   f"outside what this tool models on core {spec.core_id}", "windings")
+            raise _out_of_range(spec, f"the design of {spec.part} gives a non-finite {path}: the requirement is "
+                                      f"outside what this tool models {where}", "windings")
         if isinstance(x, dict):
             for k, v in x.items():
                 walk(v, f"{path}.{k}" if path else str(k))
@@ -92,13 +98,24 @@ def _sane(spec: Spec, d: Design) -> None:
                 walk(v, f"{path}[{i}]")
     walk(d.to_dict(), "")
     for i, w in enumerate(d.windings):
-        bad = (w.current_a > SANE_CURRENT_A or w.length_m < 0
-               or (w.voltage_v is not None and not 0.0 <= w.voltage_v <= SANE_VOLTAGE_V))
+        area = w.copper_area_m2
+        bad = (w.current_a > L.SANE_CURRENT_A or w.length_m < 0
+               or (area > 0 and w.current_a / area > L.SANE_CURRENT_DENSITY_A_M2)
+               or (w.voltage_v is not None and not 0.0 <= w.voltage_v <= L.SANE_VOLTAGE_V))
         if bad:
-            raise spec_error(spec, f"winding {w.name} comes out at {w.current_a:.3g} A, {w.voltage_v or 0.0:.3g} V, "
-                                   f"{w.copper_loss_w:.3g} W: the requirement is outside what core {spec.core_id} "
-                                   f"can carry", "windings", i)
-
+            raise _out_of_range(spec, f"winding {w.name} would carry {w.current_a:.3g} A "
+                                      f"({w.current_a / max(area, 1e-30) / 1e6:.3g} A/mm²) at "
+                                      f"{w.voltage_v or 0.0:.3g} V: the requirement cannot be built {where} "
+                                      f"(more than {L.SANE_CURRENT_DENSITY_A_M2 / 1e6:g} A/mm² fuses copper)",
+                                "windings", i)
+    if max(d.b_peak_max_t, d.b_peak_t) > L.SANE_FLUX_DENSITY_T:
+        raise _out_of_range(spec, f"the requirement drives the core to {d.b_peak_max_t:.3g} T, beyond any magnetic "
+                                  f"material ({L.SANE_FLUX_DENSITY_T:g} T): it cannot be built {where}; more turns "
+                                  f"or a core with more Ae", "windings")
+    if d.hot_spot_c > L.SANE_HOT_SPOT_C:
+        raise _out_of_range(spec, f"the loss of {d.losses.total_w:.3g} W would heat {spec.part} past "
+                                  f"{L.SANE_HOT_SPOT_C:g} °C, where no insulation survives: it cannot be built "
+                                  f"{where}; a larger core or a lower loss", "operating")
 
 
 def _section_pins(w: Winding, k: int) -> tuple[str, str]:
