@@ -82,6 +82,8 @@ DIMENSIONS: dict[str, Dimension] = {
                          "1 mV/m to 100 kV/mm"),
     "temperature": _d((0, 0, 0, 0, 1), "degC", "a temperature", "'40 degC'", -273.15, 2000.0,
                       "-273.15 degC to 2000 degC"),
+    "thermal_resistance": _d((-2, -1, 3, 0, 1), "K/W", "a thermal resistance", "'12 K/W'", 1e-4, 1e4,
+                             "0.1 mK/W to 10 kK/W"),
     "temperature_difference": _d((0, 0, 0, 0, 1), "K", "a temperature rise", "'60 K'", 0.0, 2000.0,
                                  "0 K to 2000 K"),
 }

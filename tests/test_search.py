@@ -401,7 +401,8 @@ def _vector_at_the_engines_point(ctx, c):
 def test_vector_stage_agrees_with_the_engine_winding_by_winding(cat, searched, name):
     """At the engine's own turns, hot spot and efficiency the vector stage must give the engine's numbers:
     every winding's turns and AC factor (1e-6: each layer's factor weighted by its length, as the engine),
-    copper, core and total loss (2e-4: the engine's thermal loop stops within 0.02 K) and the hot spot
+    copper, core (a ferrite's at its temperature) and total loss
+    (2e-4: the engine's thermal loop stops within 0.02 K) and the hot spot
     (0.05 K). At 100 kHz square wave the unweighted, full-layer-porosity AC factor the search used before was
     off by up to 60 % on a winding, 18 % on the total loss."""
     sr = S.search(S.parse_requirement(__import__("yaml").safe_load(HF_REINFORCED), "REQ-HF.yaml"), cat, top=4) \
@@ -414,7 +415,8 @@ def test_vector_stage_agrees_with_the_engine_winding_by_winding(cat, searched, n
         for j, w in enumerate(d.windings):
             assert res.turns[j][0] == w.turns, (c.choice.label, w.name)
             assert res.fr[j][0] == pytest.approx(w.fr, rel=1e-6), (c.choice.label, w.name)
-        assert res.core_w[0] == pytest.approx(d.losses.core_w, rel=1e-9)
+        # a ferrite's core loss follows the settled temperature (its loss-temperature fit): the loop's tolerance
+        assert res.core_w[0] == pytest.approx(d.losses.core_w, rel=2e-4)
         assert res.copper_w[0] == pytest.approx(d.losses.copper_w, rel=2e-4)
         assert res.total_w[0] == pytest.approx(d.losses.total_w, rel=2e-4)
         assert res.hot_c[0] == pytest.approx(d.hot_spot_c, abs=0.05)
@@ -453,7 +455,10 @@ def test_vector_magnetics_equal_the_engines_for_the_listed_chokes(cat, searched)
         assert mag.gap_m[0] == pytest.approx(d.inductor.gap_m or 0.0, abs=1e-12)
         assert mag.inductance_h[0] == pytest.approx(d.inductor.inductance_at_full_bias_h, rel=1e-9)
         assert mag.b_max_t[0] == pytest.approx(d.b_peak_max_t, rel=1e-9)
-        assert mag.core_loss_w_m3[0] == pytest.approx(d.losses.core_loss_density_w_m3, rel=1e-9)
+        # the magnetics give the loss at the fit's minimum; the engine's is at the core's temperature (Mulder's F(T))
+        factor = ctx.materials.core_loss_factor(np.array([ctx.cores.material[i]]),
+                                                np.array([d.winding_temp_c]))[0]
+        assert mag.core_loss_w_m3[0] * factor == pytest.approx(d.losses.core_loss_density_w_m3, rel=1e-9)
 
 
 def test_vector_flux_and_core_loss_equal_the_engines_for_the_listed_transformers(cat, searched):

@@ -198,6 +198,16 @@ def _material(r: Reader) -> Material:
         # fail in ordinary service, so such a figure is a slip (of unit or of digit)
         raise r.error(f"a ferrite's Curie point of {out['curie_c']:g} degC is below {FERRITE_CURIE_MIN_C:g} degC; "
                       "power ferrites lie far above (common practice: 150-300 degC)", "curie")
+    lt = r.mapping("loss_temperature", None)
+    if lt is not None:
+        fit = (lt.number("ct0", minimum=0.0), lt.number("ct1"), lt.number("ct2", minimum=0.0))
+        out.update(loss_temperature=fit, loss_temperature_source=lt.text("source"))
+        lt.done()
+        from ..physics.core_temperature import loss_temperature_factor
+        try:
+            loss_temperature_factor(25.0, *fit)
+        except ValueError as exc:
+            raise r.error(str(exc), "loss_temperature") from None
     bias = r.mapping("dc_bias", None)
     if bias is not None:
         out.update(dc_bias_half_field_a_m=bias.quantity("half_field", "field"),
@@ -254,7 +264,8 @@ def _core(r: Reader) -> Core:
         pieces=r.integer("pieces", 1, minimum=1, maximum=4), gappable=r.boolean("gappable", False),
         coating_m=r.quantity("coating", "length", 0.0, allow_zero=True),
         coating_voltage_v=r.quantity("coating_voltage", "voltage", None),
-        override=override, mass_kg=r.quantity("mass", "mass", None), raw=_plain(r.data),
+        override=override, mass_kg=r.quantity("mass", "mass", None),
+        thermal_resistance_k_w=r.quantity("thermal_resistance", "thermal_resistance", None), raw=_plain(r.data),
     )
     r.done()
     return core

@@ -80,6 +80,10 @@ class Material:
     price_per_kg: Decimal
     source: str
     b_design_t: float | None = None          # a preferred working flux density, if the shop has one
+    # core loss against temperature, the quadratic F(T) = (ct0 - ct1 T + ct2 T^2) normalised to 1 at its minimum
+    # (physics.core_temperature); the Steinmetz k is then the loss at that minimum. None: no temperature factor
+    loss_temperature: tuple[float, float, float] | None = None
+    loss_temperature_source: str = ""
     mu_amplitude: float | None = None        # relative permeability at the working flux (steels: far above mu_i)
     lamination_thickness_m: float = 0.0
     stacking_factor: float = 1.0
@@ -128,6 +132,7 @@ class Core:
     coating_voltage_v: float | None = None   # toroid: the coating's rated electric strength (None: not insulation)
     override: dict = field(default_factory=dict)   # measured ae_m2, le_m, ve_m3 replacing the computed ones
     mass_kg: float | None = None
+    thermal_resistance_k_w: float | None = None   # measured part-to-ambient R_th, overrides the surface-area rule
     raw: dict = field(default_factory=dict, compare=False, repr=False)
 
     @property

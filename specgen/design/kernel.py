@@ -46,7 +46,8 @@ Winding
 Loss and temperature
   core_loss_w_m3(waveform, freq_hz, b_t, duty, k, alpha, beta)       k, alpha, beta scalar
   core_loss_grouped_w_m3(waveform, freq_hz, b_t, duty, group, k, alpha, beta)  per-group coefficients
-  temperature_rise_k(total_loss_w, surface_m2, cooling, ambient_c)   McLyman x the cooling table
+  core_loss_temperature_factor(temp_c, ct0, ct1, ct2)               Mulder's F(T); 1 where NaN (no fit)
+  temperature_rise_k(total_loss_w, surface_m2, cooling, ambient_c, r_th_k_w)  McLyman (or R_th) x cooling
   hot_spot_c(ambient_c, rise_k, hotspot_margin_k)
   thermal_state(total_loss_w, surface_m2, cooling, ambient_c, hotspot_margin_k) -> ThermalState (scalar)
   first_guess_thermal(ambient_c, hotspot_margin_k) -> ThermalState
@@ -62,7 +63,8 @@ from typing import Any
 import numpy as np
 import numpy.typing as npt
 
-from ..physics import coreloss, faraday, thermal
+from ..physics import cooling as cooling_mod
+from ..physics import core_temperature, coreloss, faraday, thermal
 from ..physics import gap as gapmod
 from ..physics import wire as wiremod
 from ..physics._types import Arr, ArrayLike
@@ -123,7 +125,7 @@ __all__ = [
     "THERMAL_MAX_PASSES", "THERMAL_SETTLED_K", "WIRE_CHOICE_TEMP_C", "WIRE_CODE",
     "FLUX_LIMIT_DESIGN", "FLUX_LIMIT_SHOP", "FLUX_LIMIT_SPEC", "FormerArrays", "Harmonics", "SectionWinding", "WireGeometry",
     "b_sat_t", "copper_loss_w", "core_loss_grouped_w_m3", "core_loss_w_m3", "current_density_a_m2",
-    "core_loss_significant",
+    "core_loss_significant", "core_loss_temperature_factor",
     "current_harmonics", "dc_resistance_ohm", "first_guess_thermal", "flux_limit_source", "flux_limit_t", "gap_for_inductance_m",
     "gapped_turns_and_gap", "hot_spot_c", "layer_ac_factor", "layer_capacity", "layer_centre_m", "layer_delta",
     "layer_porosity", "magnetizing_current_a", "mean_turn_length_m", "output_voltage_ok", "secondary_turns_within",
@@ -482,10 +484,28 @@ def core_loss_grouped_w_m3(waveform: str, freq_hz: float, b_t: ArrayLike, duty: 
     return out
 
 
-def temperature_rise_k(total_loss_w: ArrayLike, surface_m2: ArrayLike, cooling: str, ambient_c: ArrayLike) -> Arr:
-    """Temperature rise [K]: McLyman's natural-convection fit (``physics.thermal.temperature_rise_k``) times
-    the cooling's factor (COOLING_RISE_FACTOR), held below MAX_HOT_C."""
-    rise = _f(thermal.temperature_rise_k(total_loss_w, surface_m2))
+def core_loss_temperature_factor(temp_c: ArrayLike, ct0: ArrayLike, ct1: ArrayLike, ct2: ArrayLike) -> Arr:
+    """The core-loss temperature factor F(T) (``physics.core_temperature.loss_temperature_factor``, Mulder's
+    quadratic normalised to its minimum); 1 where a row's material has no fit (NaN coefficients)."""
+    t, c0, c1, c2 = np.broadcast_arrays(_f(temp_c), _f(ct0), _f(ct1), _f(ct2))
+    has = np.isfinite(c0) & np.isfinite(c1) & np.isfinite(c2)
+    if not has.any():
+        return _out(np.ones(t.shape))
+    f = _f(core_temperature.loss_temperature_factor(np.where(has, t, 0.0), np.where(has, c0, 2.0),
+                                                     np.where(has, c1, 0.0), np.where(has, c2, 1.0)))
+    return _out(np.where(has, f, 1.0))
+
+
+def temperature_rise_k(total_loss_w: ArrayLike, surface_m2: ArrayLike, cooling: str, ambient_c: ArrayLike,
+                       r_th_k_w: ArrayLike | None = None) -> Arr:
+    """Temperature rise [K]: McLyman's natural-convection fit (``physics.thermal.temperature_rise_k``), or the
+    loss through a measured thermal resistance ``r_th_k_w`` (natural convection, where the catalogue has one:
+    ``physics.cooling.temperature_rise_from_r_th_k``), times the cooling's factor (COOLING_RISE_FACTOR), held
+    below MAX_HOT_C."""
+    if r_th_k_w is None:
+        rise = _f(thermal.temperature_rise_k(total_loss_w, surface_m2))
+    else:
+        rise = _f(cooling_mod.temperature_rise_from_r_th_k(total_loss_w, r_th_k_w))
     factor = COOLING_RISE_FACTOR.get(cooling, 1.0)
     if factor != 1.0:
         rise = rise * factor
@@ -498,10 +518,10 @@ def hot_spot_c(ambient_c: ArrayLike, rise_k: ArrayLike, hotspot_margin_k: ArrayL
 
 
 def thermal_state(total_loss_w: float, surface_m2: float, cooling: str, ambient_c: float,
-                  hotspot_margin_k: float) -> ThermalState:
+                  hotspot_margin_k: float, r_th_k_w: float | None = None) -> ThermalState:
     """The winding and hot-spot temperatures at a total loss (scalar; arrays: ``temperature_rise_k`` and
-    ``hot_spot_c``)."""
-    rise = float(temperature_rise_k(total_loss_w, surface_m2, cooling, ambient_c))
+    ``hot_spot_c``); ``r_th_k_w``: a measured thermal resistance instead of the surface rule."""
+    rise = float(temperature_rise_k(total_loss_w, surface_m2, cooling, ambient_c, r_th_k_w))
     winding = ambient_c + rise
     return ThermalState(winding, winding + hotspot_margin_k, rise)
 

@@ -62,6 +62,13 @@ SANE_HOT_SPOT_C = 400.0        # far above IEC 60085's highest class (250 degC) 
 SANE_FLUX_DENSITY_T = 5.0      # twice the highest saturation of any soft magnetic material (cobalt iron,
                                # about 2.4 T; from memory): a linear B beyond it has no physical meaning
 
+# Curie point: permeability and saturation fall steeply in the last tens of kelvin below it; a hot spot within
+# this of it warns (common practice)
+CURIE_WARN_K = 30.0
+# thermal runaway: a stability margin 1 - R_th dP/dT below this warns (the loss coefficient or the ambient a
+# little higher and there is no balance; common practice)
+RUNAWAY_WARN_MARGIN = 0.3
+
 # toroids
 TOROID_MIN_HOLE_M = 8e-3          # a shuttle needs a hole; the shop's smallest shuttle (common practice)
 TOROID_MIN_HOLE_FRACTION = 0.25   # ... or a quarter of the bore, whichever is larger

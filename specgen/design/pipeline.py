@@ -8,8 +8,9 @@ Order of work:
     for the load drop; an inductor by the energy method with fringing, or the powder roll-off;
  4. the layer-by-layer build, DCR from each layer's own MLT, the AC factor per layer (Dowell, by the
     current's harmonics), the leakage inductance, the core loss by waveform (``build``, ``kernel``);
- 5. temperature rise (McLyman, by cooling) iterated with copper resistance until the hot spot settles; copper
-    loss is taken at the hot spot, a few percent above the mean winding's (conservative);
+ 5. temperature rise (McLyman by cooling, or the core's measured R_th) iterated with copper resistance and the
+    ferrite's core loss at the core's temperature until the hot spot settles, then the runaway margin
+    (``temperature``); copper loss is taken at the hot spot, a few percent above the mean winding's (conservative);
  6. the Design: windings, build, losses; the kind's flux checks, then the common checks (``checks``), the
     test plan and the materials per unit (``tests_plan``).
 """
@@ -43,6 +44,7 @@ from .state import (
     WindingState,
 )
 from .taps import section_notes, tap_checks, tap_results, with_tap_tests
+from .temperature import settle, temperature_checks
 from .tests_plan import materials_per_unit, test_plan
 
 _LEVEL_ORDER = {"fail": 0, "warn": 1, "pass": 2}
@@ -61,15 +63,9 @@ def design(spec: Spec, cat: Catalog) -> Design:
     shop = cat.shop
     temp = K.first_guess_thermal(spec.ambient_c, shop.hotspot_margin_k)
     ev, iterations = run.first(temp)
-    # temperature loop: resistance with temperature, losses, rise, until the hot spot settles
-    for _ in range(K.THERMAL_MAX_PASSES):
-        iterations += 1
-        new = K.thermal_state(ev.total_w, parts.surface_m2, spec.cooling, spec.ambient_c, shop.hotspot_margin_k)
-        settled = abs(new.hot_c - temp.hot_c) < K.THERMAL_SETTLED_K
-        temp = new
-        ev = run.again(ev, temp)
-        if settled:
-            break
+    # temperature loop: resistance and core loss with temperature, rise, until the hot spot settles
+    ev, temp, passes = settle(spec, parts, run, ev, temp, shop.hotspot_margin_k)
+    iterations += passes
     d = finish(spec, cat, parts, kind, ev, temp, run.summary(ev, temp), iterations)
     _sane(spec, d)
     return d
@@ -113,9 +109,9 @@ def _sane(spec: Spec, d: Design) -> None:
                                   f"material ({L.SANE_FLUX_DENSITY_T:g} T): it cannot be built {where}; more turns "
                                   f"or a core with more Ae", "windings")
     if d.hot_spot_c > L.SANE_HOT_SPOT_C:
-        raise _out_of_range(spec, f"the loss of {d.losses.total_w:.3g} W would heat {spec.part} past "
-                                  f"{L.SANE_HOT_SPOT_C:g} °C, where no insulation survives: it cannot be built "
-                                  f"{where}; a larger core or a lower loss", "operating")
+        raise _out_of_range(spec, f"the losses would heat {spec.part} past {L.SANE_HOT_SPOT_C:g} °C, where no "
+                                  f"insulation survives: it cannot be built {where}; a larger core or a lower loss",
+                            "operating")
 
 
 def _section_pins(w: Winding, k: int) -> tuple[str, str]:
@@ -218,8 +214,8 @@ def finish(spec: Spec, cat: Catalog, parts: Parts, kind: PartKind, ev: Evaluatio
                         build=build, losses=losses, temp=temp, summary=summary)
     insulation, insulation_checks = coordinate(state)
     taps = tap_results(spec.windings, windings, summary.b_peak_max_t)
-    checks = (kind.flux_checks(state) + run_checks(state) + insulation_checks + list(summary.checks)
-              + tap_checks(taps, summary.flux_limit.value_t) + section_notes(windings))
+    checks = (kind.flux_checks(state) + run_checks(state) + temperature_checks(state) + insulation_checks
+              + list(summary.checks) + tap_checks(taps, summary.flux_limit.value_t) + section_notes(windings))
     checks.sort(key=lambda c: _LEVEL_ORDER[c.level])
     tests = with_tap_tests(test_plan(state, kind.test_limits(state), insulation), taps, windings,
                            cat.shop.tolerances["ratio"])

@@ -75,6 +75,9 @@ class ThermalState:
     winding_c: float             # mean winding temperature
     hot_c: float                 # hot spot: the winding plus the shop's margin
     rise_k: float
+    r_th_basis: str = ""         # where the rise comes from (measured R_th or McLyman's surface rule)
+    core_factor: float = 1.0     # the core loss's temperature factor at the winding temperature
+    stability_margin: float | None = None   # 1 - R_th dP/dT at the balance (None: no loss-temperature fit)
 
 
 @record(slots=True)

@@ -132,33 +132,43 @@ def core_alone_ok(ctx: SearchContext, core_w: FloatArray, surface: FloatArray) -
 @dataclass(frozen=True, slots=True)
 class Settled:
     copper_w: FloatArray
+    core_w: FloatArray
     hot_c: FloatArray
     rise_k: FloatArray
 
 
 def thermal_loop(ctx: SearchContext, copper: Callable[[FloatArray], FloatArray], core_w: FloatArray,
-                 surface: FloatArray, hot: FloatArray,
+                 surface: FloatArray, hot: FloatArray, mi: IntArray,
                  extra: Callable[[FloatArray, BoolArray], None] | None = None) -> Settled:
     """The engine's thermal loop, row by row: the hot spot from the loss, the loss again at that hot spot,
     until a row's hot spot moves less than ``THERMAL_SETTLED_K`` (that row then stops, as the engine stops a design).
-    ``copper(hot)`` gives every row's copper loss; ``extra(total_w, active)`` updates state between steps."""
+    ``copper(hot)`` gives every row's copper loss; ``core_w`` is the core loss at the fit's minimum, taken at
+    the core's temperature (the hot spot less the shop's margin) by the material's factor, as the engine
+    (``design.temperature``); ``extra(total_w, active)`` updates state between steps."""
     hot = np.array(hot, dtype=float)
     rows = hot.size
+    margin = ctx.thermal.hotspot_margin_k
+
+    def core(h: FloatArray) -> FloatArray:
+        return core_w * ctx.materials.core_loss_factor(mi, h - margin)
+
     cu = copper(hot)
+    co = core(hot)
     rise = np.zeros(rows)
     active = np.ones(rows, dtype=bool)
     for _ in range(K.THERMAL_MAX_PASSES):
-        new, new_rise = ctx.thermal.state(cu + core_w, surface)
+        new, new_rise = ctx.thermal.state(cu + co, surface)
         if extra is not None:
-            extra(cu + core_w, active)
+            extra(cu + co, active)
         settled = np.abs(new - hot) < K.THERMAL_SETTLED_K
         hot = np.where(active, new, hot)
         rise = np.where(active, new_rise, rise)
         cu = np.where(active, copper(hot), cu)
+        co = np.where(active, core(hot), co)
         active &= ~settled
         if not active.any():
             break
-    return Settled(cu, hot, rise)
+    return Settled(cu, co, hot, rise)
 
 
 # ------------------------------------------------------------------------------------------------ transformer
@@ -284,7 +294,7 @@ def _transformer_rows(ctx: SearchContext, ci: IntArray, oi: list[IntArray], np_:
         eta = ctx.p_out / (ctx.p_out + total_w)
         primary_a[0] = np.where(active, K.primary_current_a(ctx.p_out, eta, ctx.vp, imag), primary_a[0])
 
-    th = thermal_loop(ctx, copper, core_w, surface, t_start.copy(), efficiency)
+    th = thermal_loop(ctx, copper, core_w, surface, t_start.copy(), mi, efficiency)
     limit = ctx.swing_t(ctx.flux_limit_t(mi, th.hot_c), mi)
     sat = flag(b_pk_max > limit * SATURATION_SLACK, Fail.SAT)
     if req.waveform == "unipolar":
@@ -293,9 +303,9 @@ def _transformer_rows(ctx: SearchContext, ci: IntArray, oi: list[IntArray], np_:
     for t in turns:       # the engine refuses more turns than it winds
         sat |= flag(t > K.MAX_TURNS, Fail.FIT)
     tl = tally(ctx, ci, opts, build, th.hot_c, th.rise_k, sat)
-    return RowResult(flags=tl.flags, flags_slack=tl.flags_slack, total_w=th.copper_w + core_w, copper_w=th.copper_w,
-                     core_w=core_w, hot_c=th.hot_c, rise_k=th.rise_k, fill=build.fill, mass_kg=tl.mass_kg,
-                     cost=tl.cost, size_m3=tl.size_m3, primary_turns=np.asarray(np_, dtype=float).copy(),
+    return RowResult(flags=tl.flags, flags_slack=tl.flags_slack, total_w=th.copper_w + th.core_w,
+                     copper_w=th.copper_w, core_w=th.core_w, hot_c=th.hot_c, rise_k=th.rise_k, fill=build.fill,
+                     mass_kg=tl.mass_kg, cost=tl.cost, size_m3=tl.size_m3, primary_turns=np.asarray(np_, dtype=float).copy(),
                      b_pk_max_t=b_pk_max, b_limit_t=limit, turns=np.stack(turns), length_m=np.stack(lengths),
                      fr=np.stack(frs), gap_m=np.zeros(rows))
 
@@ -329,13 +339,13 @@ def eval_choke(ctx: SearchContext, ci: IntArray, oi: list[IntArray], mag: ChokeM
         return np.asarray(K.copper_loss_w(resistance_ohm(opts[0], length, hot), fr, cur.i_ac, cur.i_dc),
                           dtype=np.float64)
 
-    th = thermal_loop(ctx, copper, core_w, c.surface_m2[ci], start)
+    th = thermal_loop(ctx, copper, core_w, c.surface_m2[ci], start, c.material[ci])
     bsat = ctx.materials.b_sat_t(c.material[ci], th.hot_c)
     sat = flag(mag.b_max_t > bsat, Fail.SAT) | flag(n > K.MAX_TURNS, Fail.FIT)
     tl = tally(ctx, ci, opts, build, th.hot_c, th.rise_k, sat)
-    return RowResult(flags=tl.flags, flags_slack=tl.flags_slack, total_w=th.copper_w + core_w, copper_w=th.copper_w,
-                     core_w=core_w, hot_c=th.hot_c, rise_k=th.rise_k, fill=build.fill, mass_kg=tl.mass_kg,
-                     cost=tl.cost, size_m3=tl.size_m3, primary_turns=n.astype(float).copy(),
+    return RowResult(flags=tl.flags, flags_slack=tl.flags_slack, total_w=th.copper_w + th.core_w,
+                     copper_w=th.copper_w, core_w=th.core_w, hot_c=th.hot_c, rise_k=th.rise_k, fill=build.fill,
+                     mass_kg=tl.mass_kg, cost=tl.cost, size_m3=tl.size_m3, primary_turns=n.astype(float).copy(),
                      b_pk_max_t=mag.b_max_t.copy(), b_limit_t=bsat, turns=n.astype(float)[None, :].copy(),
                      length_m=length[None, :], fr=fr[None, :], gap_m=mag.gap_m.copy())
 

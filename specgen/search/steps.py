@@ -196,6 +196,7 @@ class MaterialRows:
     k: FloatArray                # Steinmetz coefficients
     alpha: FloatArray
     beta: FloatArray
+    loss_fit: FloatArray         # rows x (ct0, ct1, ct2) of the loss-temperature fit, NaN where none
 
     @classmethod
     def of(cls, materials: list[Material]) -> MaterialRows:
@@ -204,7 +205,14 @@ class MaterialRows:
 
         return cls(tuple(materials), col(lambda m: m.b_sat_25c_t), col(lambda m: m.b_sat_100c_t),
                    col(lambda m: m.b_design_t if m.b_design_t is not None else np.nan), col(lambda m: m.b_r_t),
-                   col(lambda m: m.steinmetz_k), col(lambda m: m.steinmetz_alpha), col(lambda m: m.steinmetz_beta))
+                   col(lambda m: m.steinmetz_k), col(lambda m: m.steinmetz_alpha), col(lambda m: m.steinmetz_beta),
+                   np.array([m.loss_temperature or (np.nan, np.nan, np.nan) for m in materials],
+                            dtype=np.float64).reshape(len(materials), 3))
+
+    def core_loss_factor(self, mi: IntArray, core_temp_c: FloatArray) -> FloatArray:
+        """The core loss's temperature factor at the core's temperature (``kernel.core_loss_temperature_factor``)."""
+        fit = self.loss_fit[mi]
+        return _f(K.core_loss_temperature_factor(core_temp_c, fit[..., 0], fit[..., 1], fit[..., 2]))
 
     def b_sat_t(self, mi: IntArray, temp_c: FloatArray | float) -> FloatArray:
         """B_sat at temperature (``kernel.b_sat_t``)."""
