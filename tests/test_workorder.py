@@ -255,8 +255,9 @@ def test_hostile_customer_is_printed_as_text_and_nothing_is_fetched(issued):
 # ------------------------------------------------------------------------------------------------ refusals
 
 def test_failed_design_is_refused_with_exit_1_and_takes_no_number(tmp_path):
-    """BH-1042 with 200 primary turns on 230 V: B_pk far above the limit (Faraday's law)."""
-    spec = _copy(tmp_path, "BH-1042", lambda t: t.replace('    start: "1"', '    turns: 200\n    start: "1"', 1))
+    """BH-1042 with 400 primary turns on 230 V: B_pk about 3 T, above the limit and saturation (Faraday's law)
+    though short of the sanity range (fewer turns end the design before any check, also exit 1)."""
+    spec = _copy(tmp_path, "BH-1042", lambda t: t.replace('    start: "1"', '    turns: 400\n    start: "1"', 1))
     reg = tmp_path / "reg.sqlite"
     out = tmp_path / "out"
     res = _cli("workorder", spec, "--qty", 10, "--out", out, "--register", reg)
