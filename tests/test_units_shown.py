@@ -85,16 +85,16 @@ def test_the_work_order_says_the_frequency_with_its_prefix():
 
 
 def test_a_change_summary_row_reads_old_and_new_with_one_prefix():
-    """BH-2210 with the primary at 38 turns instead of 31: the core loss falls from about 1.57 W to about
-    0.94 W; the row reads both in one prefix (never '1.569 W -> 942.9 mW'), and both read back."""
+    """BH-2210 with the primary fixed at 40 turns instead of 31: the core loss falls from above 1 W to below
+    it; the row reads both in one prefix (never '1.569 W -> 942.9 mW'), and both read back."""
     from specgen.api import design_text
     from specgen.catalog.loader import load_catalog
     from specgen.diff import result_changes
 
     cat = load_catalog()
     text = (DEMO / "BH-2210.yaml").read_text(encoding="utf-8")
-    old = design_text(text, "BH-2210.yaml", cat)
-    new = design_text(re.sub(r"(name: P\b.*\n)", r"\1    turns: 38\n", text, count=1), "BH-2210.yaml", cat)
+    old = design_text(re.sub(r"(name: P\b.*\n)", r"\1    turns: 31\n", text, count=1), "BH-2210.yaml", cat)
+    new = design_text(re.sub(r"(name: P\b.*\n)", r"\1    turns: 40\n", text, count=1), "BH-2210.yaml", cat)
     rows = [r for r in result_changes(old, new) if r.unit in ("W", "ohm", "Ω", "H", "A", "V")]
     assert rows
     for r in rows:
