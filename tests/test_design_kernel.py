@@ -83,18 +83,20 @@ def test_layer_factor_from_zero_mmf_is_dowells(m, delta):
 
 
 def test_litz_layer_is_the_mean_over_its_strand_layers():
-    """A Litz bundle layer of n strands counts as round(sqrt n) strand layers, the MMF stepping evenly."""
+    """A Litz bundle layer of n strands counts as round(sqrt n) strand layers, the MMF stepping evenly, each at the
+    porosity of the strands the layer holds; Dowell's square strands rescaled to round ones by 3/pi (the second
+    area moments of the square and the circle of equal area)."""
     litz = K.WireGeometry(kind=K.WIRE_CODE["litz"], strand_diameter_m=0.1e-3, strand_overall_m=0.115e-3,
                           thickness_m=0.0, width_m=0.0, strands_in_hand=1.0, sub_layers=float(round(math.sqrt(100))),
                           copper_area_m2=100 * math.pi * 0.05e-3 ** 2, pitch_m=1.5e-3, layer_height_m=1.5e-3,
-                          one_turn_per_layer=False)
+                          one_turn_per_layer=False, bundle_strands=100.0)
     skin = 0.2e-3
-    eta = 0.1 / 0.115 * 0.9
+    eta = 8 * 100 / 10 * 0.1e-3 / 12e-3        # 8 turns x 10 strands across each strand layer, over the breadth
     d = (math.pi / 4) ** 0.75 * 0.1 / 0.2 * math.sqrt(eta)     # Dowell's Delta of a round strand, by hand
     f1, f2 = 3.0, 7.0
-    want = np.mean([layer_fr(d, f1 + (f2 - f1) * j / 10, f1 + (f2 - f1) * (j + 1) / 10) for j in range(10)])
+    dowell_mean = np.mean([layer_fr(d, f1 + (f2 - f1) * j / 10, f1 + (f2 - f1) * (j + 1) / 10) for j in range(10)])
     got = K.layer_ac_factor(litz, 8, 12e-3, skin, f1, f2, K.current_harmonics("sine"))
-    assert got == pytest.approx(want, rel=1e-9)
+    assert got == pytest.approx(1 + 3 / math.pi * (dowell_mean - 1), rel=1e-9)
 
 
 def test_layer_factor_with_a_wire_per_row_equals_each_wire_alone():

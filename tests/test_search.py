@@ -273,11 +273,13 @@ def _rows(fm):
 def _wire(rng, kind, pitch, lh, foil):
     """A random wire geometry of a kind (scalar), with the given pitch and layer height."""
     d = rng.uniform(0.05e-3, 2e-3) if kind != "litz" else rng.uniform(0.04e-3, 0.2e-3)
+    strands = float(rng.integers(5, 400)) if kind == "litz" else 1.0
     return K.WireGeometry(kind=WireKind.of(kind), strand_diameter_m=d, strand_overall_m=d * rng.uniform(1.05, 1.2),
                           thickness_m=rng.uniform(0.05e-3, 1e-3), width_m=rng.uniform(2e-3, 30e-3),
                           strands_in_hand=float(rng.integers(1, 4)),
-                          sub_layers=float(round(math.sqrt(rng.integers(5, 400)))) if kind == "litz" else 1.0,
-                          copper_area_m2=1e-6, pitch_m=pitch, layer_height_m=lh, one_turn_per_layer=foil)
+                          sub_layers=float(round(math.sqrt(strands))) if kind == "litz" else 1.0,
+                          copper_area_m2=1e-6, pitch_m=pitch, layer_height_m=lh, one_turn_per_layer=foil,
+                          bundle_strands=strands)
 
 
 def _option(geo):

@@ -40,6 +40,7 @@ Winding
   skin_depth_m(freq_hz, temp_c, conductor)
   current_harmonics(waveform) -> Harmonics
   layer_porosity(wire, turns_in_layer, usable_m) / layer_delta(wire, skin_depth_m, porosity)   Dowell's eta, Delta
+  litz_fr(wire_kind, fr_dowell)                                      Litz rows: square strands to round
   layer_ac_factor(wire, turns_in_layer, usable_m, skin_depth_m, f_inner, f_outer, harmonics)  one wire or one per row
   section_ac_factor(wire, layers, turns_per_layer, usable_m, skin_depth_m, f_start, f_end, harmonics)
   copper_loss_w(dcr_ohm, fr, i_ac_rms_a, i_dc_a)
@@ -80,6 +81,7 @@ from .kernel_copper import (
     layer_ac_factor,
     layer_delta,
     layer_porosity,
+    litz_fr,
     section_ac_factor,
     skin_depth_m,
 )
@@ -102,7 +104,6 @@ from .limits import (
     CORE_LOSS_SCAN_FRACTION,
     FIRST_GUESS_RISE_K,
     GAP_STEP_M,
-    LITZ_POROSITY_FACTOR,
     LITZ_STRAND_MAX_SKIN_DEPTHS,
     MAX_BUNDLES_LITZ,
     MAX_HOT_C,
@@ -119,7 +120,7 @@ from .limits import (
 from .state import ThermalState
 
 __all__ = [
-    "CORE_LOSS_SCAN_FRACTION", "COOLING_RISE_FACTOR", "FIRST_GUESS_RISE_K", "FORMER_CODE", "GAP_STEP_M", "LITZ_POROSITY_FACTOR",
+    "CORE_LOSS_SCAN_FRACTION", "COOLING_RISE_FACTOR", "FIRST_GUESS_RISE_K", "FORMER_CODE", "GAP_STEP_M",
     "LITZ_STRAND_MAX_SKIN_DEPTHS", "MAX_BUNDLES_LITZ", "MAX_HOT_C", "MAX_STRANDS_ROUND", "MAX_STRANDS_TIW",
     "MAX_TURNS", "MU0_H_M", "RIPPLE_SKIN_FRACTION", "SQUARE_HARMONICS", "STRAND_MAX_SKIN_DEPTHS",
     "THERMAL_MAX_PASSES", "THERMAL_SETTLED_K", "WIRE_CHOICE_TEMP_C", "WIRE_CODE",
@@ -128,7 +129,7 @@ __all__ = [
     "core_loss_significant", "core_loss_temperature_factor",
     "current_harmonics", "dc_resistance_ohm", "first_guess_thermal", "flux_limit_source", "flux_limit_t", "gap_for_inductance_m",
     "gapped_turns_and_gap", "hot_spot_c", "layer_ac_factor", "layer_capacity", "layer_centre_m", "layer_delta",
-    "layer_porosity", "magnetizing_current_a", "mean_turn_length_m", "output_voltage_ok", "secondary_turns_within",
+    "layer_porosity", "litz_fr", "magnetizing_current_a", "mean_turn_length_m", "output_voltage_ok", "secondary_turns_within",
     "least_loss_turns", "loaded_output_v", "primary_current_a", "ripple_flux_t", "secondary_turns_for_voltage",
     "secondary_turns_to_add",
     "pitch_and_height", "powder_flux_t", "round_gap_down_m",

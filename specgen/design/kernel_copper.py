@@ -12,13 +12,14 @@ import numpy as np
 import numpy.typing as npt
 
 from ..physics import dowell
+from ..physics import litz as litzmod
 from ..physics import wire as wiremod
 from ..physics._types import Arr, ArrayLike
 from ..physics._types import as_array as _f
 from ..physics._types import out as _out
 from ..physics.layers import layer_fr
 from .kernel_winding import WIRE_CODE, WireGeometry
-from .limits import LITZ_POROSITY_FACTOR, SQUARE_HARMONICS
+from .limits import SQUARE_HARMONICS
 
 
 def dc_resistance_ohm(copper_area_m2: ArrayLike, length_m: ArrayLike, temp_c: ArrayLike,
@@ -59,12 +60,16 @@ def current_harmonics(waveform: str) -> Harmonics:
 
 def _layer_porosity(wire: WireGeometry, turns_in_layer: Any, usable_m: Any) -> npt.NDArray[np.float64]:
     """Copper fraction across a layer, Dowell's eta: round/tiw turns x strands x d over the usable breadth;
-    Litz the strand porosity x LITZ_POROSITY_FACTOR; foil its width over the breadth; strip like round."""
+    Litz at strand level, the strands across the breadth in one of the bundle layer's strand layers
+    (turns x bundles in hand x strands per bundle / strand layers) x strand d over the usable breadth, so a
+    layer the bundles cover only in part has the porosity of the strands it holds; foil its width over the
+    breadth; strip like round."""
     usable = _f(usable_m)
     room = np.maximum(usable, 1e-9)
 
     def litz() -> Any:
-        return _f(dowell.porosity(wire.strand_diameter_m, wire.strand_overall_m)) * LITZ_POROSITY_FACTOR
+        across = _f(turns_in_layer) * _f(wire.strands_in_hand) * _f(wire.bundle_strands) / _f(wire.sub_layers)
+        return np.minimum(1.0, across * _f(wire.strand_diameter_m) / room)
 
     def foil() -> Any:
         return np.minimum(1.0, _f(wire.width_m) / np.maximum(usable, _f(wire.width_m)))
@@ -118,7 +123,8 @@ def layer_ac_factor(wire: WireGeometry, turns_in_layer: ArrayLike, usable_m: Arr
     ``wire``: one wire (floats) for every row, or a wire per row (``stack_wires``).
 
     A layer of Litz bundles is k = round(sqrt(strands)) layers of strands (common practice approximation):
-    the MMF steps evenly across them and the factor is their mean."""
+    the MMF steps evenly across them, each at the porosity of the strands the layer holds, and the factor is
+    their mean, rescaled from Dowell's square strands to round ones (``litz_fr``)."""
     eta = _layer_porosity(wire, turns_in_layer, usable_m)[..., None]
     skin = _f(skin_depth)[..., None] / np.sqrt(harmonics.orders)          # rows x harmonics
     # a wire per row: its fields get the harmonics axis too
@@ -128,7 +134,7 @@ def layer_ac_factor(wire: WireGeometry, turns_in_layer: ArrayLike, usable_m: Arr
     k = _f(wire.sub_layers)
     if k.size and float(k.max()) == 1.0:                                   # no Litz: one layer of conductors
         fr1 = _f(layer_fr(d, _f(f_inner)[..., None], _f(f_outer)[..., None]))
-        return _out(fr1 @ harmonics.weights)
+        return _out(litz_fr(wire.kind, fr1 @ harmonics.weights))
     rows = np.broadcast_shapes(np.shape(turns_in_layer), np.shape(usable_m), np.shape(skin_depth),
                                np.shape(f_inner), np.shape(f_outer), np.shape(wire.kind))
     k = np.broadcast_to(k, rows)
@@ -144,7 +150,18 @@ def layer_ac_factor(wire: WireGeometry, turns_in_layer: ArrayLike, usable_m: Arr
     fr = _f(layer_fr(d[..., None], a[..., None, :], b[..., None, :]))     # rows x harmonics x sub-layers
     used = (j < kk)[..., None, :]
     mean = np.where(used, fr, 0.0).sum(axis=-1) / kk
-    return _out(mean @ harmonics.weights)
+    return _out(litz_fr(wire.kind, mean @ harmonics.weights))
+
+
+def litz_fr(wire_kind: Any, fr_dowell: ArrayLike) -> Arr:
+    """Rows' AC factors with the Litz rows (``wire_kind`` == WIRE_CODE['litz']) rescaled from Dowell's square
+    strands to round ones (``physics.litz.litz_fr_round_strands``, which then agrees with Sullivan's
+    strand-level result at low frequency); other kinds unchanged. ``wire_kind``: one code or a code per row."""
+    kind = np.asarray(wire_kind)
+    fr = _f(fr_dowell)
+    if kind.ndim == 0:
+        return _out(litzmod.litz_fr_round_strands(fr) if int(kind) == WIRE_CODE["litz"] else fr)
+    return _out(np.where(kind == WIRE_CODE["litz"], _f(litzmod.litz_fr_round_strands(fr)), fr))
 
 
 def section_ac_factor(wire: WireGeometry, layers: ArrayLike, turns_per_layer: ArrayLike, usable_m: ArrayLike,
@@ -169,7 +186,7 @@ def section_ac_factor(wire: WireGeometry, layers: ArrayLike, turns_per_layer: Ar
     for n, w in zip(harmonics.orders, harmonics.weights):
         d = _layer_delta(wire, _f(skin_depth) / math.sqrt(float(n)), eta)
         fr = fr + w * _f(layer_fr(d, fstar, fstar + 1.0))
-    return _out(np.where(ok, fr, 1.0))
+    return _out(np.where(ok, _f(litz_fr(kind, fr)), 1.0))
 
 
 def copper_loss_w(dcr_ohm: ArrayLike, fr: ArrayLike, i_ac_rms_a: ArrayLike, i_dc_a: ArrayLike = 0.0) -> Arr:

@@ -40,6 +40,7 @@ class WireGeometry:
     pitch_m: Arr                  # along the layer per turn
     layer_height_m: Arr
     one_turn_per_layer: Any       # bool (foil), or a bool array
+    bundle_strands: Arr = 1.0     # Litz: strands in one bundle (the catalogue's count); else 1
 
 
 def pitch_and_height(wire: Wire, strands: int) -> tuple[float, float, bool]:
@@ -60,7 +61,8 @@ def wire_geometry(wire: Wire, strands: int) -> WireGeometry:
                         strand_overall_m=wire.strand_overall_m or wire.overall_diameter_m,
                         thickness_m=wire.thickness_m, width_m=wire.width_m, strands_in_hand=float(strands),
                         sub_layers=float(k), copper_area_m2=wire.copper_area_m2 * strands, pitch_m=pitch,
-                        layer_height_m=height, one_turn_per_layer=foil)
+                        layer_height_m=height, one_turn_per_layer=foil,
+                        bundle_strands=float(wire.strands) if wire.kind == "litz" else 1.0)
 
 
 def stack_wires(geometries: Sequence[WireGeometry]) -> WireGeometry:
@@ -71,7 +73,8 @@ def stack_wires(geometries: Sequence[WireGeometry]) -> WireGeometry:
                         strand_overall_m=col("strand_overall_m"), thickness_m=col("thickness_m"),
                         width_m=col("width_m"), strands_in_hand=col("strands_in_hand"), sub_layers=col("sub_layers"),
                         copper_area_m2=col("copper_area_m2"), pitch_m=col("pitch_m"),
-                        layer_height_m=col("layer_height_m"), one_turn_per_layer=col("one_turn_per_layer", bool))
+                        layer_height_m=col("layer_height_m"), one_turn_per_layer=col("one_turn_per_layer", bool),
+                        bundle_strands=col("bundle_strands"))
 
 
 def mean_turn_length_m(former_kind: Any, centre_m: ArrayLike, *, tube_width_m: ArrayLike = 0.0,

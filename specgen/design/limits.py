@@ -30,8 +30,6 @@ RIPPLE_SKIN_FRACTION = 0.2     # a choke's ripple rms below 20 % of DC: the wire
 CORE_LOSS_SCAN_FRACTION = 0.5
 
 # AC factor
-LITZ_POROSITY_FACTOR = 0.9     # strand porosity inside a bundle layer, x0.9 for the bundle's packing
-                               # (common practice approximation)
 # Odd harmonics of a square-wave current, weighted 1/n^2. An ideal square wave's sum never settles (the
 # proximity factor grows with n); stopping at the 39th stands for edges of about 1 % of the period, a
 # power stage's usual rise time (common practice). Summing to the 199th raises BH-2210's primary Fr
