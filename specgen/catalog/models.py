@@ -93,7 +93,13 @@ class Material:
 
     @property
     def mu_working(self) -> float:
-        """Permeability for the magnetizing current at working flux: amplitude if known, else initial."""
+        """The material's one design permeability, used for every inductance the design computes (a transformer's
+        magnetizing inductance, a gapped or ungapped inductor, a flyback's primary, a current transformer):
+        the amplitude permeability at the working flux density where the catalogue gives one (steels and ribbons,
+        whose small-signal mu_initial is several times lower and does not describe a core at working flux), else
+        the initial permeability (ferrites, close to it at their working flux; powders, whose DC-bias curve is
+        relative to it). A small-signal test of a steel core reads low against it; the inductance checks warn
+        where the core, not the gap, sets the inductance."""
         return self.mu_amplitude or self.mu_initial
 
     @property

@@ -14,11 +14,12 @@ Flux and turns
   unipolar_swing_t(limit_t, b_r_t, waveform)                         usable swing (unipolar: less B_r)
   turns_for_voltage(v, freq_hz, b_t, ae_m2, waveform, duty)         Faraday, not rounded
   whole_turns(turns)                                                 ceil (1e-9 slack), at least 1
-  turns_for_inductance(target_h, ae, le, mu, gap_m, window_m)       whole N for L with a fixed gap
+  turns_for_inductance(target_h, ae, le, mu, gap_m, window_m, gaps)  whole N for L with a fixed gap
   turns_for_peak_flux(target_h, i_peak_a, b_t, ae_m2)                energy method N = L I / (B Ae)
-  gap_for_inductance_m(target_h, turns, ae, le, mu, window_m)       NaN where no gap reaches L
+  gap_for_inductance_m(target_h, turns, ae, le, mu, window_m, gaps)  NaN where no gap reaches L
   round_gap_down_m(gap_m)                                            to the shop's 0.01 mm
-  gapped_turns_and_gap(target_h, i_peak_a, b_limit_t, ae, le, mu, window_m, fixed_turns)  (N, gap)
+  gapped_turns_and_gap(target_h, i_peak_a, b_limit_t, ae, le, mu, window_m, fixed_turns, gaps)  (N, gap)
+  iron_reluctance_share(gap_m, le_m, mu_r)                           the core's share of the path's reluctance
   powder_flux_t(turns, current_a, le_m, mu_initial, a, b, c)         B = mu0 mu_i f(H) H
   magnetizing_current_a(v, freq_hz, inductance_h, waveform, duty)    (rms, peak)
   core_loss_significant(core_w, copper_w, beta)                       the loss-limited turns scan applies
@@ -104,6 +105,7 @@ from .limits import (
     CORE_LOSS_SCAN_FRACTION,
     FIRST_GUESS_RISE_K,
     GAP_STEP_M,
+    IRON_SHARE_WARN,
     LITZ_STRAND_MAX_SKIN_DEPTHS,
     MAX_BUNDLES_LITZ,
     MAX_HOT_C,
@@ -120,7 +122,7 @@ from .limits import (
 from .state import ThermalState
 
 __all__ = [
-    "CORE_LOSS_SCAN_FRACTION", "COOLING_RISE_FACTOR", "FIRST_GUESS_RISE_K", "FORMER_CODE", "GAP_STEP_M",
+    "CORE_LOSS_SCAN_FRACTION", "COOLING_RISE_FACTOR", "FIRST_GUESS_RISE_K", "FORMER_CODE", "GAP_STEP_M", "IRON_SHARE_WARN",
     "LITZ_STRAND_MAX_SKIN_DEPTHS", "MAX_BUNDLES_LITZ", "MAX_HOT_C", "MAX_STRANDS_ROUND", "MAX_STRANDS_TIW",
     "MAX_TURNS", "MU0_H_M", "RIPPLE_SKIN_FRACTION", "SQUARE_HARMONICS", "STRAND_MAX_SKIN_DEPTHS",
     "THERMAL_MAX_PASSES", "THERMAL_SETTLED_K", "WIRE_CHOICE_TEMP_C", "WIRE_CODE",
@@ -128,7 +130,8 @@ __all__ = [
     "b_sat_t", "copper_loss_w", "core_loss_grouped_w_m3", "core_loss_w_m3", "current_density_a_m2",
     "core_loss_significant", "core_loss_temperature_factor",
     "current_harmonics", "dc_resistance_ohm", "first_guess_thermal", "flux_limit_source", "flux_limit_t", "gap_for_inductance_m",
-    "gapped_turns_and_gap", "hot_spot_c", "layer_ac_factor", "layer_capacity", "layer_centre_m", "layer_delta",
+    "gap_arrangement_on", "gaps_in_series", "gapped_turns_and_gap", "hot_spot_c", "iron_reluctance_share",
+    "layer_ac_factor", "layer_capacity", "layer_centre_m", "layer_delta",
     "layer_porosity", "litz_fr", "magnetizing_current_a", "mean_turn_length_m", "output_voltage_ok", "secondary_turns_within",
     "least_loss_turns", "loaded_output_v", "primary_current_a", "ripple_flux_t", "secondary_turns_for_voltage",
     "secondary_turns_to_add",
@@ -208,11 +211,12 @@ def whole_turns(turns: ArrayLike) -> Arr:
 
 
 def turns_for_inductance(target_h: ArrayLike, ae_m2: ArrayLike, le_m: ArrayLike, mu_r: ArrayLike,
-                         gap_m: ArrayLike, window_m: ArrayLike) -> Arr:
+                         gap_m: ArrayLike, window_m: ArrayLike, gaps: ArrayLike = 1) -> Arr:
     """Smallest whole N meeting L with a fixed gap (L grows as N^2; fringing does not depend on N).
+    ``gaps``: the equal gaps in series that make up ``gap_m`` (``physics.gap.inductance_gapped_h``).
 
     Capped at MAX_TURNS + 1 so the caller's turn check reports an impossible requirement."""
-    l1 = _f(gapmod.inductance_gapped_h(1, ae_m2, le_m, mu_r, gap_m, window_m))
+    l1 = _f(gapmod.inductance_gapped_h(1, ae_m2, le_m, mu_r, gap_m, window_m, gaps))
     with np.errstate(divide="ignore", invalid="ignore"):
         n = np.sqrt(_f(target_h) / l1)
     ok = n < MAX_TURNS
@@ -226,25 +230,26 @@ def turns_for_peak_flux(target_h: ArrayLike, i_peak_a: ArrayLike, b_t: ArrayLike
 
 def _gap_bisect(target_h: npt.NDArray[np.float64], n: npt.NDArray[np.float64], ae: npt.NDArray[np.float64],
                 le: npt.NDArray[np.float64], mu: npt.NDArray[np.float64],
-                window: npt.NDArray[np.float64]) -> npt.NDArray[np.float64]:
+                window: npt.NDArray[np.float64], gaps: npt.NDArray[np.float64]) -> npt.NDArray[np.float64]:
     """The scalar solver's answer for arrays: L(lg) starts at mu0 N^2 Ae mu/le, rises a little at microscopic
     gaps (McLyman's F has an infinite slope at zero) and then falls; the crossing from above is unique,
-    found by 64 bisections on a log scale over [1e-12 x 2G, 2G] (within ~1e-13 of the scalar solver)."""
+    found by 64 bisections on a log scale over [1e-12 x 2kG, 2kG] for k gaps in series (within ~1e-13 of the
+    scalar solver)."""
     k = MU0_H_M * n * n * ae
     out = np.full(n.shape, np.nan)
     reach = target_h <= k * mu / le
-    upper = 2.0 * window
-    l_up = _f(gapmod.inductance_gapped_h(n, ae, le, mu, upper, window))
+    upper = 2.0 * window * gaps
+    l_up = _f(gapmod.inductance_gapped_h(n, ae, le, mu, upper, window, gaps))
     closed = reach & (l_up - target_h > 0.0)
     out[closed] = (k / target_h - le / mu)[closed]
     b = np.flatnonzero(reach & ~closed)
     if b.size:
-        nb, aeb, leb, mub, wb, tb = n[b], ae[b], le[b], mu[b], window[b], target_h[b]
+        nb, aeb, leb, mub, wb, tb, kb = n[b], ae[b], le[b], mu[b], window[b], target_h[b], gaps[b]
         lo = np.log(1e-12 * upper[b])
         hi = np.log(upper[b])
         for _ in range(64):
             mid = 0.5 * (lo + hi)
-            above = _f(gapmod.inductance_gapped_h(nb, aeb, leb, mub, np.exp(mid), wb)) >= tb
+            above = _f(gapmod.inductance_gapped_h(nb, aeb, leb, mub, np.exp(mid), wb, kb)) >= tb
             lo = np.where(above, mid, lo)
             hi = np.where(above, hi, mid)
         out[b] = np.exp(0.5 * (lo + hi))
@@ -252,16 +257,38 @@ def _gap_bisect(target_h: npt.NDArray[np.float64], n: npt.NDArray[np.float64], a
 
 
 def gap_for_inductance_m(target_h: ArrayLike, turns: ArrayLike, ae_m2: ArrayLike, le_m: ArrayLike,
-                         mu_r: ArrayLike, window_m: ArrayLike) -> Arr:
-    """The smallest air gap giving L with N turns, McLyman's fringing included [m]; NaN where even no gap
-    reaches L. Scalars: ``physics.gap.gap_for_inductance_m`` (scan, then bisection to 1e-13); arrays: a
-    vectorised bisection of the same ``inductance_gapped_h``."""
-    if _scalar(target_h, turns, ae_m2, le_m, mu_r, window_m):
+                         mu_r: ArrayLike, window_m: ArrayLike, gaps: ArrayLike = 1) -> Arr:
+    """The smallest total air gap giving L with N turns, McLyman's fringing included per gap (``gaps`` equal
+    gaps in series) [m]; NaN where even no gap reaches L. Scalars: ``physics.gap.gap_for_inductance_m`` (scan,
+    then bisection to 1e-13); arrays: a vectorised bisection of the same ``inductance_gapped_h``."""
+    if _scalar(target_h, turns, ae_m2, le_m, mu_r, window_m, gaps):
         ts, ns, aes, les, mus, ws = (float(np.asarray(x)) for x in (target_h, turns, ae_m2, le_m, mu_r, window_m))
-        g = gapmod.gap_for_inductance_m(ts, ns, aes, les, mus, ws)
+        g = gapmod.gap_for_inductance_m(ts, ns, aes, les, mus, ws, int(np.asarray(gaps)))
         return math.nan if g is None else float(g)
-    t, n, ae, le, mu, w = np.broadcast_arrays(_f(target_h), _f(turns), _f(ae_m2), _f(le_m), _f(mu_r), _f(window_m))
-    return _out(_gap_bisect(t, n, ae, le, mu, w))
+    t, n, ae, le, mu, w, k = np.broadcast_arrays(_f(target_h), _f(turns), _f(ae_m2), _f(le_m), _f(mu_r),
+                                                 _f(window_m), _f(gaps))
+    return _out(_gap_bisect(t, n, ae, le, mu, w, k))
+
+
+def gap_arrangement_on(asked: str, core_shape: str) -> str:
+    """The gap arrangement a core can take: laminations (EI) cannot be ground in the centre leg only, so a
+    centre gap asked of them is a spacer in every leg; otherwise as asked."""
+    return "spacer" if asked == "centre" and core_shape == "EI" else asked
+
+
+def gaps_in_series(arrangement: str) -> int:
+    """The gaps the flux crosses in series for a gap arrangement: a spacer under every leg of a two-part set
+    puts it across two (the centre leg and the outer legs' return), a ground centre leg across one."""
+    return 2 if arrangement == "spacer" else 1
+
+
+def iron_reluctance_share(gap_m: ArrayLike, le_m: ArrayLike, mu_r: ArrayLike) -> Arr:
+    """The core's share of the magnetic path's reluctance, (l_e / mu) / (l_g + l_e / mu) (fringing left out):
+    1 without a gap. Above ``IRON_SHARE_WARN`` the material's permeability, not the gap, sets the inductance,
+    and the inductance varies with the permeability's own spread, flux and temperature (McLyman, the gapped
+    inductor's reluctance in series)."""
+    iron = _f(le_m) / _f(mu_r)
+    return _out(iron / (np.maximum(_f(gap_m), 0.0) + iron))
 
 
 def round_gap_down_m(gap_m: ArrayLike) -> Arr:
@@ -271,23 +298,24 @@ def round_gap_down_m(gap_m: ArrayLike) -> Arr:
 
 def gapped_turns_and_gap(target_h: ArrayLike, i_peak_a: ArrayLike, b_limit_t: ArrayLike, ae_m2: ArrayLike,
                          le_m: ArrayLike, mu_r: ArrayLike, window_m: ArrayLike,
-                         fixed_turns: int | None = None) -> tuple[Arr, Arr]:
-    """Turns and gap of a gapped core by McLyman's energy method: (N, gap [m]).
+                         fixed_turns: int | None = None, gaps: ArrayLike = 1) -> tuple[Arr, Arr]:
+    """Turns and total gap of a gapped core by McLyman's energy method: (N, gap [m]); ``gaps``: the equal
+    gaps in series that make up the total (2 for a spacer under every leg), each with its own fringing.
 
     N = ceil(L I_pk / (B_limit Ae)) (or ``fixed_turns``); the gap for L with fringing; where no gap reaches
     L, more turns and no gap; the gap rounded down to the shop's step; then, while the rounded gap pushes
     B_pk = L I_pk / (N Ae) past the limit, one more turn and the gap solved again (at most 20 times; never
     with fixed turns). The caller checks N against MAX_TURNS first."""
-    scalar = _scalar(target_h, i_peak_a, b_limit_t, ae_m2, le_m, mu_r, window_m)
-    t, ipk, lim, ae, le, mu, w = np.broadcast_arrays(_f(target_h), _f(i_peak_a), _f(b_limit_t), _f(ae_m2),
-                                                     _f(le_m), _f(mu_r), _f(window_m))
-    t, ipk, lim, ae, le, mu, w = (np.atleast_1d(x).astype(float) for x in (t, ipk, lim, ae, le, mu, w))
+    scalar = _scalar(target_h, i_peak_a, b_limit_t, ae_m2, le_m, mu_r, window_m, gaps)
+    t, ipk, lim, ae, le, mu, w, kg = np.broadcast_arrays(_f(target_h), _f(i_peak_a), _f(b_limit_t), _f(ae_m2),
+                                                         _f(le_m), _f(mu_r), _f(window_m), _f(gaps))
+    t, ipk, lim, ae, le, mu, w, kg = (np.atleast_1d(x).astype(float) for x in (t, ipk, lim, ae, le, mu, w, kg))
 
     def gap(n: npt.NDArray[np.float64], sel: npt.NDArray[np.intp]) -> npt.NDArray[np.float64]:
         if scalar:
             return np.array([gap_for_inductance_m(float(t[0]), float(n[0]), float(ae[0]), float(le[0]),
-                                                  float(mu[0]), float(w[0]))])
-        return _gap_bisect(t[sel], n, ae[sel], le[sel], mu[sel], w[sel])
+                                                  float(mu[0]), float(w[0]), int(kg[0]))])
+        return _gap_bisect(t[sel], n, ae[sel], le[sel], mu[sel], w[sel], kg[sel])
 
     every = np.arange(t.size)
     if fixed_turns:
@@ -301,12 +329,12 @@ def gapped_turns_and_gap(target_h: ArrayLike, i_peak_a: ArrayLike, b_limit_t: Ar
             lg[none] = 0.0
         else:
             idx = np.flatnonzero(none)
-            n[idx] = turns_for_inductance(t[idx], ae[idx], le[idx], mu[idx], 0.0, w[idx])
+            n[idx] = turns_for_inductance(t[idx], ae[idx], le[idx], mu[idx], 0.0, w[idx], kg[idx])
             lg[idx] = np.nan_to_num(gap(n[idx], idx), nan=0.0)
     lg = _f(round_gap_down_m(lg))
     if not fixed_turns:
         for _ in range(20):
-            l_try = _f(gapmod.inductance_gapped_h(n, ae, le, mu, lg, w))
+            l_try = _f(gapmod.inductance_gapped_h(n, ae, le, mu, lg, w, kg))
             over = _f(gapmod.b_peak_from_inductance_t(l_try, ipk, n, ae)) > lim
             if not over.any():
                 break

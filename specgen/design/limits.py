@@ -38,6 +38,8 @@ SQUARE_HARMONICS = tuple(range(1, 40, 2))
 
 # gaps
 GAP_STEP_M = 1e-5              # gaps are ground or shimmed to 0.01 mm (common practice)
+IRON_SHARE_WARN = 0.5          # the core holds more than half the magnetic path's reluctance (l_e / mu against
+                               # the gap): the iron, not the gap, sets the inductance and its tolerance
 
 # temperature
 FIRST_GUESS_RISE_K = 40.0      # the temperature loop starts from a 40 K rise (a typical class-B design)

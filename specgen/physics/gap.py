@@ -22,7 +22,8 @@ def fringing_factor(gap_m: ArrayLike, ae_m2: ArrayLike, window_height_m: ArrayLi
 
     Parameters
     ----------
-    gap_m : air gap lg [m] (one gap, in the leg the winding sits on)
+    gap_m : air gap lg [m] (one gap; a total gap split into k equal gaps in series, as a spacer under every
+        leg of an E-I or E-E set, fringes at each of them: take F at lg / k, ``inductance_gapped_h``)
     ae_m2 : effective area Ae of the gapped leg [m^2]
     window_height_m : G, the winding-window length measured *along the leg* [m] (for an E, EI or pot
         core the window dimension ``window_height`` in the core drawing, i.e.
@@ -46,8 +47,12 @@ def fringing_factor(gap_m: ArrayLike, ae_m2: ArrayLike, window_height_m: ArrayLi
 
 
 def inductance_gapped_h(turns: ArrayLike, ae_m2: ArrayLike, le_m: ArrayLike, mu_r: ArrayLike, gap_m: ArrayLike,
-                        window_height_m: ArrayLike | None = None) -> Arr:
+                        window_height_m: ArrayLike | None = None, gaps: ArrayLike = 1) -> Arr:
     """Inductance of a gapped core, L = mu0 N^2 Ae F / (lg + le / mu_r) [H].
+
+    The total gap lg may be k equal gaps in series (``gaps``; a spacer under every leg puts the flux across
+    two: lg = 2 x the spacer). Each fringes on its own, F = F(lg / k) (McLyman's factor of one gap): the
+    reluctance of k gaps of lg / k, each lowered by F(lg / k), is lg / (mu0 Ae F(lg / k)).
 
     Parameters
     ----------
@@ -57,6 +62,7 @@ def inductance_gapped_h(turns: ArrayLike, ae_m2: ArrayLike, le_m: ArrayLike, mu_
     mu_r : relative permeability of the core material
     gap_m : total air gap lg [m]
     window_height_m : G for the fringing factor (window length along the leg) [m]; None: F = 1
+    gaps : k, the equal gaps in series that make up lg (1: one gap, e.g. a ground centre leg; 2: a spacer)
 
     References
     ----------
@@ -64,13 +70,14 @@ def inductance_gapped_h(turns: ArrayLike, ae_m2: ArrayLike, le_m: ArrayLike, mu_
     """
     n = np.asarray(turns, dtype=float)
     lg = np.asarray(gap_m, dtype=float)
-    f = 1.0 if window_height_m is None else np.asarray(fringing_factor(lg, ae_m2, window_height_m))
+    f = 1.0 if window_height_m is None else np.asarray(fringing_factor(lg / np.asarray(gaps, dtype=float), ae_m2,
+                                                                       window_height_m))
     return _out(MU0_H_M * n * n * np.asarray(ae_m2, dtype=float) * f
                 / (lg + np.asarray(le_m, dtype=float) / np.asarray(mu_r, dtype=float)))
 
 
 def gap_for_inductance_m(inductance_h: float, turns: float, ae_m2: float, le_m: float, mu_r: float,
-                         window_height_m: float | None = None) -> float | None:
+                         window_height_m: float | None = None, gaps: int = 1) -> float | None:
     """Air gap lg that gives an inductance with N turns, fringing included (scalar solver).
 
     Solves mu0 N^2 Ae F(lg) / (lg + le/mu_r) = L for lg. Returns None when even no gap cannot reach
@@ -85,10 +92,11 @@ def gap_for_inductance_m(inductance_h: float, turns: float, ae_m2: float, le_m: 
     turns : N
     ae_m2, le_m, mu_r : core effective area [m^2], path length [m], relative permeability
     window_height_m : G for the fringing factor (window length along the leg) [m], or None
+    gaps : the equal gaps in series that make up the total (``inductance_gapped_h``)
 
     Returns
     -------
-    Gap [m] (0.0 when the ungapped core gives exactly L), or None.
+    Total gap [m] (0.0 when the ungapped core gives exactly L), or None.
 
     References
     ----------
@@ -106,13 +114,13 @@ def gap_for_inductance_m(inductance_h: float, turns: float, ae_m2: float, le_m: 
     g = float(window_height_m)
 
     def excess(lg: float) -> float:
-        return float(inductance_gapped_h(n, ae, le, mu, lg, g)) - target
+        return float(inductance_gapped_h(n, ae, le, mu, lg, g, gaps)) - target
 
-    upper = 2.0 * g  # beyond this F is floored at 1 and L(lg) = k / (lg + le/mu)
+    upper = 2.0 * g * gaps  # beyond this F is floored at 1 and L(lg) = k / (lg + le/mu)
     if excess(upper) > 0.0:
         return k / target - le / mu
     grid = np.geomspace(1e-12 * upper, upper, 4000)
-    values = np.asarray(inductance_gapped_h(n, ae, le, mu, grid, g)) - target
+    values = np.asarray(inductance_gapped_h(n, ae, le, mu, grid, g, gaps)) - target
     below = np.flatnonzero(values < 0.0)
     i = int(below[0])
     lo = 0.0 if i == 0 else float(grid[i - 1])

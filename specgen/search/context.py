@@ -192,6 +192,9 @@ class ChokeSetup:
         self.currents = c = currents(ctx.spec.inductor, ctx.req.frequency_hz)
         self.powder = np.array([cat.materials[ch.core.material].is_powder for ch in ctx.choices], dtype=bool)
         self.gappable = np.array([ch.core.gappable for ch in ctx.choices], dtype=bool)
+        # the draft spec asks a centre gap, which laminations make a spacer (``kernel.gap_arrangement_on``)
+        self.gaps = np.array([K.gaps_in_series(K.gap_arrangement_on("centre", ch.core.shape)) for ch in ctx.choices],
+                             dtype=float)
         n = len(ctx.choices)
         self.pow = PowderTable(np.zeros(n), np.zeros(n), np.zeros(n), np.zeros(n))
         ae, le, mu = cores.ae_m2, cores.le_m, cores.mu_initial
@@ -218,7 +221,8 @@ def choke_magnetics(ctx: SearchContext, ch: ChokeSetup, ci: IntArray, temp_c: Fl
     a gappable one by the energy method (``kernel.gapped_turns_and_gap``)."""
     cr, c = ctx.cores, ch.currents
     ci = np.asarray(ci, dtype=np.int64)
-    ae, le, mu, g = cr.ae_m2[ci], cr.le_m[ci], cr.mu_initial[ci], cr.fringe_window_m[ci]
+    ae, le, mu, g = cr.ae_m2[ci], cr.le_m[ci], cr.mu_working[ci], cr.fringe_window_m[ci]
+    gaps = ch.gaps[ci]
     turns, lg = np.ones(ci.size), np.zeros(ci.size)
     powder = ch.powder[ci]
     s = np.flatnonzero(~powder & ~ch.gappable[ci])
@@ -227,9 +231,9 @@ def choke_magnetics(ctx: SearchContext, ch: ChokeSetup, ci: IntArray, temp_c: Fl
     gi = np.flatnonzero(~powder & ch.gappable[ci])
     if gi.size:
         limit = ctx.flux_limit_t(cr.material[ci[gi]], np.asarray(temp_c)[gi])
-        nn, gp = K.gapped_turns_and_gap(c.target_h, c.i_pk, limit, ae[gi], le[gi], mu[gi], g[gi])
+        nn, gp = K.gapped_turns_and_gap(c.target_h, c.i_pk, limit, ae[gi], le[gi], mu[gi], g[gi], gaps=gaps[gi])
         turns[gi], lg[gi] = nn, gp
-    l_built = np.asarray(gapmod.inductance_gapped_h(turns, ae, le, mu, lg, g), dtype=np.float64)
+    l_built = np.asarray(gapmod.inductance_gapped_h(turns, ae, le, mu, lg, g, gaps), dtype=np.float64)
     b_pk = np.asarray(gapmod.b_peak_from_inductance_t(l_built, c.i_op_pk, turns, ae), dtype=np.float64)
     b_max = np.asarray(gapmod.b_peak_from_inductance_t(l_built, c.i_pk, turns, ae), dtype=np.float64)
     p = np.flatnonzero(powder)

@@ -10,6 +10,7 @@ import json
 from typing import TYPE_CHECKING
 
 from ..catalog.models import Catalog
+from ..design import kernel as K
 from .candidates import CoreChoice, WireOption, sleeving_for
 from .requirement import Requirement
 
@@ -177,7 +178,7 @@ def draft_spec_text(req: Requirement, cat: Catalog, choice: CoreChoice, options:
     mat = cat.materials[choice.core.material]
     if req.kind == "inductor" and not mat.is_powder:
         if choice.core.gappable:
-            lines += ["  gap: auto", f"  gap_arrangement: {'centre' if choice.core.shape != 'EI' else 'spacer'}"]
+            lines += ["  gap: auto", f"  gap_arrangement: {K.gap_arrangement_on('centre', choice.core.shape)}"]
         else:
             lines += ["  gap: none", "  gap_arrangement: none"]
     lines += [""] + _operating_lines(req)

@@ -103,7 +103,7 @@ class CurrentTransformerRun:
         b_max = float(ctp.peak_flux_t(v_max, f, self.ns, parts.ae_m2))
         pv = float(K.core_loss_w_m3("sine", f, b_pk, 0.5, mat.steinmetz_k, mat.steinmetz_alpha, mat.steinmetz_beta))
         core_w = pv * parts.ve_m3
-        lm = float(gapmod.inductance_gapped_h(self.ns, parts.ae_m2, parts.le_m, mat.mu_initial, 0.0, None))
+        lm = float(gapmod.inductance_gapped_h(self.ns, parts.ae_m2, parts.le_m, mat.mu_working, 0.0, None))
         r_core = v_s * v_s / core_w if core_w > 0 else math.inf
         return Evaluation(states, built, frs, copper, core_w, pv, CtPass(r_sec, v_s, b_pk, b_max, lm, r_core))
 

@@ -128,13 +128,14 @@ class FlybackRun:
                 out = trial
                 break
         n_p = out[self.prim.name]
-        ae, le, mu, g = parts.ae_m2, parts.le_m, parts.material.mu_initial, parts.window_breadth_m
-        lg = float(K.gap_for_inductance_m(self.l_target, n_p, ae, le, mu, g))
+        ae, le, mu, g = parts.ae_m2, parts.le_m, parts.material.mu_working, parts.window_breadth_m
+        gaps = K.gaps_in_series(K.gap_arrangement_on(self.req.gap_arrangement, parts.core.shape))
+        lg = float(K.gap_for_inductance_m(self.l_target, n_p, ae, le, mu, g, gaps))
         if math.isnan(lg):
             raise spec_error(spec, f"{parts.core.id} cannot reach L_p {si(self.l_target, 'H', keep_zeros=False)} with "
                                    f"{n_p} primary turns even ungapped: a core with a higher AL", "core", "id")
         lg = float(K.round_gap_down_m(lg))
-        l_built = float(gapmod.inductance_gapped_h(n_p, ae, le, mu, lg, g if lg > 0 else None))
+        l_built = float(gapmod.inductance_gapped_h(n_p, ae, le, mu, lg, g if lg > 0 else None, gaps))
         return out, lg, l_built
 
     def whole_turns(self, ns: int, np_min: float, ratio: float) -> dict[str, int]:
@@ -260,10 +261,9 @@ class FlybackRun:
         d, parts, req = ev.detail, self.parts, self.req
         n_p = d.turns[self.prim.name]
         worst = max((d.low, d.high), key=lambda o: o.i_peak_a)
-        arrangement = req.gap_arrangement if d.gap_m > 0 else "none"
+        arrangement = K.gap_arrangement_on(req.gap_arrangement, parts.core.shape) if d.gap_m > 0 else "none"
         notes: list[Check] = []
-        if arrangement == "centre" and parts.core.shape == "EI":
-            arrangement = "spacer"
+        if d.gap_m > 0 and arrangement != req.gap_arrangement:
             notes.append(Check("warn", "gap", "laminations cannot be ground in the centre leg only: the gap "
                                               "is made with a spacer (butt gap) in every leg"))
         g = parts.window_breadth_m
@@ -272,7 +272,8 @@ class FlybackRun:
             inductance_h=d.l_h, inductance_zero_bias_h=d.l_h, inductance_at_full_bias_h=d.l_h, target_h=self.l_target,
             gap_m=d.gap_m, gap_arrangement=arrangement, spacer_m=d.gap_m / 2.0 if arrangement == "spacer" else None,
             grind_m=d.gap_m if arrangement == "centre" else None,
-            fringing_factor=float(gapmod.fringing_factor(d.gap_m, parts.ae_m2, g)) if d.gap_m > 0 else 1.0,
+            fringing_factor=float(gapmod.fringing_factor(d.gap_m / K.gaps_in_series(arrangement), parts.ae_m2, g))
+            if d.gap_m > 0 else 1.0,
             al_nh=float(gapmod.al_nh(d.l_h, n_p)), energy_j=0.5 * d.l_h * worst.i_peak_a ** 2,
             h_dc_a_m=n_p * i_avg / parts.le_m, bias_drop_pct=0.0, current_dc_a=self.p_in / req.v_in_min_v,
             current_peak_a=worst.i_peak_a, ripple_a=worst.i_ripple_a, delta_b_t=d.delta_b_t,

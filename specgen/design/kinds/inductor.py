@@ -122,25 +122,32 @@ class InductorRun:
                          b_peak_max_t=float(K.powder_flux_t(n, c.i_pk, le, mu, a, b, cc)), bias_drop_pct=drop)
 
     def gapped(self, temp: ThermalState) -> Magnetics:
-        """Turns and gap: fixed gap or none (turns for L), else the energy method (``kernel.gapped_turns_and_gap``)."""
+        """Turns and gap: fixed gap or none (turns for L), else the energy method (``kernel.gapped_turns_and_gap``).
+
+        The core's permeability is the material's design permeability (``Material.mu_working``); a spacer puts
+        the flux across two gaps in series, each with its own fringing (``kernel.gaps_in_series``)."""
         spec, parts, c, req, w = self.spec, self.parts, self.c, self.req, self.w
-        ae, le, mu, G = parts.ae_m2, parts.le_m, parts.material.mu_initial, parts.window_breadth_m
+        ae, le, mu, G = parts.ae_m2, parts.le_m, parts.material.mu_working, parts.window_breadth_m
         limit = flux_limit(spec, self.cat, parts.material, temp.hot_c)
         what = f"{si(c.target_h, 'H', keep_zeros=False)} at {c.i_pk:g} A"
+        notes: list[Check] = []
+        arrangement = K.gap_arrangement_on(req.gap_arrangement, parts.core.shape)
+        laminated_centre = arrangement != req.gap_arrangement
+        gaps = K.gaps_in_series(arrangement)
         if req.gap in ("fixed", "none"):
             lg = float(req.gap_m or 0.0) if req.gap == "fixed" else 0.0
-            n = w.turns or int(K.turns_for_inductance(c.target_h, ae, le, mu, lg, G))
+            n = w.turns or int(K.turns_for_inductance(c.target_h, ae, le, mu, lg, G, gaps))
         else:
             n_float = float(K.turns_for_peak_flux(c.target_h, c.i_pk, limit.value_t, ae))
             if not n_float < K.MAX_TURNS:
                 raise too_many_turns(spec, n_float, what, "inductor")
-            nf, lgf = K.gapped_turns_and_gap(c.target_h, c.i_pk, limit.value_t, ae, le, mu, G, fixed_turns=w.turns)
+            nf, lgf = K.gapped_turns_and_gap(c.target_h, c.i_pk, limit.value_t, ae, le, mu, G, fixed_turns=w.turns,
+                                             gaps=gaps)
             n, lg = int(nf), float(lgf)
-        l_built = float(gapmod.inductance_gapped_h(n, ae, le, mu, lg, G if lg > 0 else None))
-        arrangement = req.gap_arrangement if lg > 0 else "none"
-        notes: list[Check] = []
-        if arrangement == "centre" and parts.core.shape == "EI":
-            arrangement = "spacer"
+        l_built = float(gapmod.inductance_gapped_h(n, ae, le, mu, lg, G if lg > 0 else None, gaps))
+        if lg <= 0:
+            arrangement = "none"
+        elif laminated_centre:
             notes.append(Check("warn", "gap", "laminations cannot be ground in the centre leg only: the gap "
                                               "is made with a spacer (butt gap) in every leg"))
         if lg > 0 and not parts.core.gappable and req.gap == "auto":
@@ -152,12 +159,25 @@ class InductorRun:
                          inductance_full_bias_h=l_built, gap_m=lg if lg > 0 else 0.0,
                          arrangement="centre" if arrangement == "centre" else "spacer" if arrangement == "spacer"
                          else "none",
-                         fringing_factor=float(gapmod.fringing_factor(lg, ae, G)) if lg > 0 else 1.0,
+                         fringing_factor=float(gapmod.fringing_factor(lg / gaps, ae, G)) if lg > 0 else 1.0,
                          spacer_m=lg / 2.0 if arrangement == "spacer" else None,
                          grind_m=lg if arrangement == "centre" else None,
                          b_peak_t=float(gapmod.b_peak_from_inductance_t(l_built, c.i_op_pk, n, ae)),
                          b_peak_max_t=float(gapmod.b_peak_from_inductance_t(l_built, c.i_pk, n, ae)),
                          bias_drop_pct=0.0, notes=tuple(notes))
+
+    def iron_share_checks(self, mg: Magnetics) -> list[Check]:
+        """A warning where the core, not the gap, holds most of the path's reluctance (``kernel.IRON_SHARE_WARN``)."""
+        mat, le = self.parts.material, self.parts.le_m
+        share = float(K.iron_reluctance_share(mg.gap_m or 0.0, le, mat.mu_working))
+        if share <= K.IRON_SHARE_WARN:
+            return []
+        gap = f"the {(mg.gap_m or 0.0) * 1e3:.3g} mm gap" if mg.gap_m else "without a gap, the core"
+        return [Check("warn", "permeability",
+                      f"{gap} leaves {share * 100:.0f} % of the magnetic path's reluctance in the core "
+                      f"(l_e / mu = {le / mat.mu_working * 1e3:.3g} mm at mu {mat.mu_working:g}): the inductance, "
+                      f"and its tolerance, follow the {mat.name}'s permeability, not the gap; a larger gap with more "
+                      f"turns makes it steady")]
 
     def evaluate(self, temp: ThermalState) -> Evaluation[InductorPass]:
         spec, parts, c, mat = self.spec, self.parts, self.c, self.parts.material
@@ -223,6 +243,8 @@ class InductorRun:
         else:
             target = si(c.target_h, "H", keep_zeros=False)
             extra.append(Check("pass", "inductance", f"L {si(lfull, 'H')} at {ind.current_dc_a:g} A against {target} required"))
+        if not powder:
+            extra.extend(self.iron_share_checks(mg))
         if powder and mg.bias_drop_pct > BIAS_DROP_WARN_PCT:
             extra.append(Check("warn", "dc_bias", f"{mg.bias_drop_pct:.0f} % of the permeability is lost at "
                                                   f"{c.i_dc:g} A (H = {ind.h_dc_a_m:.0f} A/m): a larger core or a lower-"
