@@ -347,6 +347,9 @@ def parse_spec(data: Any, name: str) -> Spec:
         margin_tape=margin_tape, sleeving=sleeving, varnish=varnish, barriers=barriers, core_wrap=core_wrap,
         insulation_basis=basis, connections=connections, frequencies_hz=freqs,
     )
+    from .spec_keys import refuse_unused_keys
+
+    refuse_unused_keys(kind, core, op, windings, wreaders)
     core.done(("gap", "gap_arrangement"))
     r.done()
     from ..revision_letters import is_valid_revision
@@ -579,6 +582,10 @@ def _inductor(r: Reader, core: Reader) -> InductorReq:
     r.done()
     if (req.inductance_h is None) == (req.voltage_drop_v is None):
         raise r.error("give either the inductance (choke) or the voltage_drop at rated current (AC reactor)")
+    for key in ("ripple", "duty"):
+        if req.voltage_drop_v is not None and r.has(key):
+            raise r.error(f"'{key}' is not used by kind inductor as an AC reactor (voltage_drop): its current is a "
+                          f"sine at the operating frequency", key)
     if req.current_peak_a is not None and req.current_peak_a < req.current_dc_a:
         raise r.error("current_peak is below the rated current", "current_peak")
     return req

@@ -11,6 +11,7 @@ from typing import TYPE_CHECKING
 
 from ..catalog.models import Catalog
 from ..design import kernel as K
+from ..design.spec_keys import winding_key_used
 from .candidates import CoreChoice, WireOption, sleeving_for
 from .requirement import Requirement
 
@@ -74,7 +75,7 @@ def _operating_lines(req: Requirement) -> list[str]:
     lines += [f"  cooling: {req.cooling}", f"  insulation_class: {req.insulation_class_c}"]
     if t.get("flux_limit"):
         lines.append(f"  flux_limit: {_y(t['flux_limit'])}")
-    if req.efficiency is not None:
+    if req.efficiency is not None and req.kind == "transformer":     # an inductor's spec has no efficiency
         lines.append(f"  efficiency: {req.efficiency!r}")
     if req.kind == "inductor":
         lines += ["", "inductor:", f"  inductance: {_y(t['inductor.inductance'])}",
@@ -97,7 +98,7 @@ def _winding_lines(req: Requirement, options: list[WireOption | None], pins: lis
         else:
             lines += [f"  - name: {_y(w.name)}", f"    role: {w.role}"]
             for key in ("voltage", "voltage_min", "voltage_max", "current", "va"):
-                if w.text.get(key):
+                if w.text.get(key) and winding_key_used(req.kind, w.role, key):
                     lines.append(f"    {key}: {_y(w.text[key])}")
             if w.same_turns_as:
                 lines.append(f"    same_turns_as: {_y(w.same_turns_as)}")
