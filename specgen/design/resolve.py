@@ -233,12 +233,20 @@ def check_references(spec: Spec, cat: Catalog) -> None:
 def core_result(spec: Spec, cat: Catalog, parts: Parts, b_sat_hot_t: float) -> CoreResult:
     """The core as the Design reports it (B_sat at the hot spot given by the caller)."""
     core, m = parts.core, parts.material
-    mass = core.mass_kg * spec.core_count if core.mass_kg else parts.ve_m3 * m.density_kg_m3
     lams = None
+    stacking = core.stacking_factor if core.stacking_factor != 1.0 else m.stacking_factor
     if core.shape == "EI" and m.lamination_thickness_m > 0 and parts.stack_m:
-        lams = int(geometry.lamination_count(parts.stack_m, m.lamination_thickness_m,
-                                             core.stacking_factor if core.stacking_factor != 1.0
-                                             else m.stacking_factor))
+        lams = int(geometry.lamination_count(parts.stack_m, m.lamination_thickness_m, stacking))
+    if core.mass_kg:
+        mass = core.mass_kg * spec.core_count
+    elif core.shape == "EI" and parts.stack_m:
+        # the E and I pieces themselves, corners and all (V_e of the segment method leaves the corners out)
+        d = geometry.ei_dims(core.dims)
+        iron_m = lams * m.lamination_thickness_m if lams else parts.stack_m * stacking
+        mass = (geometry.ei_lamination_area_m2(d["tongue"], d["window_width"], d["window_height"], d["leg"],
+                                               d["yoke"]) * iron_m * m.density_kg_m3 * spec.core_count)
+    else:
+        mass = parts.ve_m3 * m.density_kg_m3
     return CoreResult(
         id=core.id, shape=core.shape, material=m.id, material_name=m.name, ae_m2=parts.ae_m2, le_m=parts.le_m,
         ve_m3=parts.ve_m3, wa_m2=parts.wa_m2, amin_m2=parts.amin_m2, mass_kg=mass, stack_m=parts.stack_m,

@@ -305,6 +305,28 @@ def ei_dims(dims: dict[str, float]) -> dict[str, float]:
     }
 
 
+def ei_lamination_area_m2(tongue_m: float, window_width_m: float, window_height_m: float, leg_m: float,
+                          yoke_m: float) -> float:
+    """Face area of one E and one I lamination together [m^2]: the E's outline less its two windows, plus the I.
+
+        W = a + 2 w + 2 p,   A_E = W (y + h) - 2 w h,   A_I = W y,   A = W (2 y + h) - 2 w h
+
+    with tongue a, window width w and height h, outer leg p and yoke y (E back and I bar). Scrapless proportions
+    (w = p = y = a/2, h = 1.5 a) give A = 6 a^2. The iron of a stack is A x the iron height (the lamination
+    count x thickness), its full corners included, which the effective volume V_e of the segment method
+    (``ei_effective``, quarter-ellipse corners) leaves out.
+
+    References
+    ----------
+    The scrapless EI lamination (two E and I pairs punched from one strip without waste): e.g. McLyman,
+    Transformer and Inductor Design Handbook, the EI lamination tables (from memory); plane geometry.
+    """
+    a, w, h, p, y = (float(x) for x in (tongue_m, window_width_m, window_height_m, leg_m, yoke_m))
+    _positive(tongue_m=a, window_width_m=w, window_height_m=h, leg_m=p, yoke_m=y)
+    width = a + 2.0 * w + 2.0 * p
+    return width * (2.0 * y + h) - 2.0 * w * h
+
+
 def _centre_width(s: str, dims: dict[str, float]) -> float:
     """Width (or diameter) of an E-type centre leg in the plane of the window."""
     if s in ("ETD", "PQ"):
