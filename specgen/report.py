@@ -73,7 +73,10 @@ def design_report(d: Design) -> str:
              + (f" (grind centre leg {i.grind_m * 1e3:.2f} mm)" if i.grind_m else "")
              + f", fringing F {i.fringing_factor:.3f}"],
             ["AL, energy", f"{present.si(i.al_nh * 1e-9, 'H')}/turn², {present.si(i.energy_j, 'J')}"],
-            ["DC bias", f"H_dc {i.h_dc_a_m:.4g} A/m, roll-off {i.bias_drop_pct:.1f} %"],
+            ["DC bias", f"H_dc {i.h_dc_a_m:.4g} A/m, roll-off {i.bias_drop_pct:.1f} %"
+                        + (f"; {present.si(i.inductance_at_peak_h, 'H')} at the peak current"
+                           if i.inductance_at_peak_h is not None and i.gap_m is None else "")
+                        + (f" (at least {present.si(i.inductance_min_h, 'H')})" if i.inductance_min_h else "")],
             _current_row(i),
         ]
     if d.current_transformer is not None:

@@ -14,7 +14,8 @@ def b_sat_hot_t(material: Material, temp_c: float) -> float:
 
 
 def flux_limit(spec: Spec, cat: Catalog, material: Material, hot_c: float) -> FluxLimit:
-    """The spec's limit, else the material's design value, else the shop's fraction of B_sat at the hot spot."""
+    """The spec's limit, else the material's design value, else the shop's fraction of B_sat at the hot spot; a
+    powder's no higher than where it counts as saturated on its DC-bias curve (``kernel.powder_saturation_t``)."""
     m = material
     frac = cat.shop.flux_limit_fraction
     args = (m.b_sat_25c_t, m.b_sat_100c_t, hot_c, frac, m.b_design_t, spec.flux_limit_t)
@@ -22,6 +23,12 @@ def flux_limit(spec: Spec, cat: Catalog, material: Material, hot_c: float) -> Fl
     source = K.flux_limit_source(*args)
     if source == K.FLUX_LIMIT_SPEC:
         return FluxLimit(value, "spec")
+    if m.is_powder:
+        bsat = b_sat_hot_t(m, hot_c)
+        sat = float(K.powder_saturation_t(bsat, frac, K.powder_ceiling_t(m.mu_initial, *m.bias_fit())))
+        if sat < value:
+            return FluxLimit(sat, f"{frac:.0%} of the {sat / frac:.2f} T its DC-bias curve tends to (below B_sat "
+                                  f"{bsat:.2f} T at {hot_c:.0f} °C; shop rule)")
     if source == K.FLUX_LIMIT_DESIGN:
         return FluxLimit(value, f"material design value ({m.id})")
     return FluxLimit(value, f"{frac:.0%} of B_sat {b_sat_hot_t(m, hot_c):.2f} T at {hot_c:.0f} °C (shop rule)")

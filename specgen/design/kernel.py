@@ -20,7 +20,9 @@ Flux and turns
   round_gap_down_m(gap_m)                                            to the shop's 0.01 mm
   gapped_turns_and_gap(target_h, i_peak_a, b_limit_t, ae, le, mu, window_m, fixed_turns, gaps)  (N, gap)
   iron_reluctance_share(gap_m, le_m, mu_r)                           the core's share of the path's reluctance
-  powder_flux_t(turns, current_a, le_m, mu_initial, a, b, c)         B = mu0 mu_i f(H) H
+  powder_flux_t(turns, current_a, le_m, mu_initial, a, b, c)         B = mu0 mu_i int_0^H f dh
+  powder_ceiling_t(mu_initial, a, b, c)                              the B its DC-bias curve tends to
+  powder_saturation_t(b_sat_t, fraction, ceiling_t)                  where a powder counts as saturated
   magnetizing_current_a(v, freq_hz, inductance_h, waveform, duty)    (rms, peak)
   core_loss_significant(core_w, copper_w, beta)                       the loss-limited turns scan applies
   output_voltage_ok(asked_v, delivered_v, minus, plus)              delivered within asked -minus/+plus
@@ -66,14 +68,13 @@ import numpy as np
 import numpy.typing as npt
 
 from ..physics import cooling as cooling_mod
-from ..physics import core_temperature, coreloss, faraday, thermal
+from ..physics import core_temperature, coreloss, faraday, powder_bias, thermal
 from ..physics import gap as gapmod
 from ..physics import wire as wiremod
 from ..physics._types import Arr, ArrayLike
 from ..physics._types import all_scalar as _scalar
 from ..physics._types import as_array as _f
 from ..physics._types import out as _out
-from ..physics.permeability import bias_fit_fraction
 from .kernel_copper import (
     Harmonics,
     copper_loss_w,
@@ -135,7 +136,7 @@ __all__ = [
     "layer_porosity", "litz_fr", "magnetizing_current_a", "mean_turn_length_m", "output_voltage_ok", "secondary_turns_within",
     "least_loss_turns", "loaded_output_v", "primary_current_a", "ripple_flux_t", "secondary_turns_for_voltage",
     "secondary_turns_to_add",
-    "pitch_and_height", "powder_flux_t", "round_gap_down_m",
+    "pitch_and_height", "powder_ceiling_t", "powder_flux_t", "powder_saturation_t", "round_gap_down_m",
     "section_ac_factor", "skin_depth_m", "stack_wires", "temperature_rise_k", "thermal_state",
     "turns_for_inductance", "turns_for_peak_flux", "turns_for_voltage", "unipolar_swing_t", "whole_turns",
     "wind_section", "wire_geometry",
@@ -348,10 +349,25 @@ def gapped_turns_and_gap(target_h: ArrayLike, i_peak_a: ArrayLike, b_limit_t: Ar
 
 def powder_flux_t(turns: ArrayLike, current_a: ArrayLike, le_m: ArrayLike, mu_initial: ArrayLike,
                   a: float, b: float, c: float) -> Arr:
-    """Flux density in a powder core at a current, B = mu0 mu_i f(H) H with H = N I / le (the roll-off fit
-    ``physics.permeability.bias_fit_fraction``)."""
+    """Flux density in a powder core at a current [T]: the integral of the DC-bias curve's incremental
+    permeability, B = mu0 mu_i int_0^H f(h) dh with H = N I / le (``physics.powder_bias.b_from_bias_t``, closed
+    form); monotonic in the current. (mu0 mu_i f(H) H, the incremental permeability times H, peaks and falls.)"""
     h = _f(turns) * _f(current_a) / _f(le_m)
-    return _out(MU0_H_M * _f(mu_initial) * _f(bias_fit_fraction(h, a, b, c)) * h)
+    return _out(powder_bias.b_from_bias_t(h, mu_initial, a, b, c))
+
+
+def powder_ceiling_t(mu_initial: ArrayLike, a: float, b: float, c: float) -> Arr:
+    """The flux density a powder's DC-bias curve tends to as the current grows (``physics.powder_bias.b_ceiling_t``)
+    [T]; infinite where the curve has none."""
+    return _out(powder_bias.b_ceiling_t(mu_initial, a, b, c))
+
+
+def powder_saturation_t(b_sat_t: ArrayLike, fraction: float, ceiling_t: ArrayLike) -> Arr:
+    """The flux density at which a powder core counts as saturated [T]: the shop's fraction of the lower of its
+    B_sat and its DC-bias curve's ceiling (``powder_ceiling_t``). Along the curve B never passes the ceiling, so
+    where the catalogue's fit tops out below B_sat the fit is the material's saturation as far as the design can
+    know: at the shop's 80 % of it the permeability left is about a tenth of the initial."""
+    return _out(fraction * np.minimum(_f(b_sat_t), _f(ceiling_t)))
 
 
 def magnetizing_current_a(v: ArrayLike, freq_hz: ArrayLike, inductance_h: ArrayLike, waveform: str,

@@ -265,6 +265,8 @@ class InductorResult:
     ripple_a: float
     delta_b_t: float
     b_dc_t: float
+    inductance_at_peak_h: float | None = None   # small-signal (incremental) L at the peak current
+    inductance_min_h: float | None = None       # the spec's minimum at the peak current, if it states one
 
 
 @record(slots=True)
@@ -546,7 +548,8 @@ class Design:
                 "fringing_factor": i.fringing_factor, "al_nh": i.al_nh, "energy_j": i.energy_j,
                 "h_dc_a_m": i.h_dc_a_m, "bias_drop_pct": i.bias_drop_pct, "current_dc_a": i.current_dc_a,
                 "current_peak_a": i.current_peak_a, "ripple_a": i.ripple_a, "delta_b_t": i.delta_b_t,
-                "b_dc_t": i.b_dc_t,
+                "b_dc_t": i.b_dc_t, "inductance_at_peak_h": i.inductance_at_peak_h,
+                "inductance_min_h": i.inductance_min_h,
             })
         if self.current_transformer is not None:
             ct = self.current_transformer

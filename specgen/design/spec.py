@@ -29,6 +29,7 @@ from ..records import record
 from .acceptance import AcceptedWarning
 from .connections import Connection, Load, parse_connections, parse_load
 from .limits import MAX_TURNS
+from .spec_keys import refuse_unused_keys
 from .taps import Tap, check_taps, parse_taps
 from .vocab import Cooling, Waveform
 
@@ -101,6 +102,7 @@ class InductorReq:
     current_dc_a: float              # DC (choke) or rms (AC reactor)
     ripple_a: float                  # peak-to-peak at the operating frequency
     current_peak_a: float | None     # over-current the part must not saturate at
+    inductance_min_h: float | None   # the least inductance at the peak current (a PFC choke's at the line peak)
     duty: float
     voltage_drop_v: float | None     # AC reactor: drop across it at rated current
     gap: str                         # 'auto' | 'none' | a fixed gap given as gap_m
@@ -347,8 +349,6 @@ def parse_spec(data: Any, name: str) -> Spec:
         margin_tape=margin_tape, sleeving=sleeving, varnish=varnish, barriers=barriers, core_wrap=core_wrap,
         insulation_basis=basis, connections=connections, frequencies_hz=freqs,
     )
-    from .spec_keys import refuse_unused_keys
-
     refuse_unused_keys(kind, core, op, windings, wreaders)
     core.done(("gap", "gap_arrangement"))
     r.done()
@@ -575,6 +575,7 @@ def _inductor(r: Reader, core: Reader) -> InductorReq:
         current_dc_a=r.quantity("current", "current"),
         ripple_a=r.quantity("ripple", "current", 0.0, allow_zero=True),
         current_peak_a=r.quantity("current_peak", "current", None),
+        inductance_min_h=r.quantity("inductance_min", "inductance", None),
         duty=r.number("duty", 0.5, minimum=0.01, maximum=0.99),
         voltage_drop_v=r.quantity("voltage_drop", "voltage", None),
         gap=gap, gap_m=gap_m, gap_arrangement=arrangement,

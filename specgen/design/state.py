@@ -155,6 +155,8 @@ class Magnetics:
     spacer_m: float | None = None
     grind_m: float | None = None
     notes: tuple[Check, ...] = ()
+    inductance_peak_h: float | None = None   # incremental L at the over-current peak (None: as built, linear)
+    b_dc_t: float | None = None              # flux density at the DC current (None: L I / (N A_e), linear)
 
 
 D = TypeVar("D")

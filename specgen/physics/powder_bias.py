@@ -23,7 +23,7 @@ FloatLike = float | FloatArray
 ArrayLike = npt.ArrayLike
 
 __all__ = [
-    "b_from_bias_t", "bias_integral_unit", "flux_linkage_wb", "h_from_b_a_m", "incremental_inductance_h",
+    "b_ceiling_t", "b_from_bias_t", "bias_integral_unit", "flux_linkage_wb", "h_from_b_a_m", "incremental_inductance_h",
     "fit_b_from_half_field", "secant_inductance_h",
 ]
 
@@ -186,6 +186,27 @@ def _b_limit_t(mu: FloatArray, aa: FloatArray, bb: FloatArray, cc: FloatArray) -
         k = (bb / aa) ** (1.0 / cc)
         limit = MU0_H_M * mu * (np.pi / cc) / (np.sin(np.pi / cc) * aa * k)
     return np.asarray(np.where((cc > 1.0) & (k > 0.0) & np.isfinite(limit), limit, np.inf), dtype=float)
+
+
+def b_ceiling_t(mu_i: ArrayLike, a: ArrayLike, b: ArrayLike, c: ArrayLike) -> FloatLike:
+    """The flux density the roll-off curve tends to as H grows without bound [T]; infinite where it has none.
+
+        B_inf = mu0 mu_i (pi / c) / (a k sin(pi / c)),   k = (b / a)^(1/c),   for c > 1 and b > 0
+
+    the limit of ``b_from_bias_t`` (G_c(x) -> (pi / c) / sin(pi / c)); for c <= 1 or b = 0, B grows without bound.
+
+    Parameters
+    ----------
+    mu_i : initial relative permeability
+    a, b, c : roll-off fit for H in A/m (see ``b_from_bias_t``)
+
+    References
+    ----------
+    int_0^inf dt / (1 + t^c) = (pi / c) / sin(pi / c), c > 1 (Gradshteyn and Ryzhik 3.241.2, from memory).
+    """
+    mu, aa, bb, cc = np.broadcast_arrays(*(np.asarray(v, dtype=float) for v in (mu_i, a, b, c)))
+    _check_fit(mu, aa, bb, cc)
+    return _out(_b_limit_t(mu, aa, bb, cc))
 
 
 def h_from_b_a_m(b_t: ArrayLike, mu_i: ArrayLike, a: ArrayLike, b: ArrayLike, c: ArrayLike) -> FloatLike:

@@ -113,6 +113,7 @@ class PowderTable:
     inductance_h: FloatArray
     b_pk_t: FloatArray
     b_max_t: FloatArray
+    ceiling_t: FloatArray     # the B the DC-bias curve tends to (``kernel.powder_ceiling_t``); inf: not a powder
 
 
 class SearchContext:
@@ -196,7 +197,7 @@ class ChokeSetup:
         self.gaps = np.array([K.gaps_in_series(K.gap_arrangement_on("centre", ch.core.shape)) for ch in ctx.choices],
                              dtype=float)
         n = len(ctx.choices)
-        self.pow = PowderTable(np.zeros(n), np.zeros(n), np.zeros(n), np.zeros(n))
+        self.pow = PowderTable(np.zeros(n), np.zeros(n), np.zeros(n), np.zeros(n), np.full(n, np.inf))
         ae, le, mu = cores.ae_m2, cores.le_m, cores.mu_initial
         for i in np.flatnonzero(self.powder):
             m = cat.materials[ctx.choices[i].core.material]
@@ -209,6 +210,7 @@ class ChokeSetup:
             self.pow.inductance_h[i] = permeability.powder_inductance_h(nn, ae[i], le[i], mu[i], c.i_dc, a, b, cc)
             self.pow.b_max_t[i] = K.powder_flux_t(nn, c.i_pk, le[i], mu[i], a, b, cc)
             self.pow.b_pk_t[i] = K.powder_flux_t(nn, c.i_op_pk, le[i], mu[i], a, b, cc)
+            self.pow.ceiling_t[i] = K.powder_ceiling_t(mu[i], a, b, cc)
         self.mag0 = choke_magnetics(ctx, self, np.arange(n), np.full(n, ctx.t0_hot_c))
         tol = cat.shop.tolerances["inductance"]
         ctx.core_flags |= flag(self.mag0.inductance_h < c.target_h * (1 - tol), Fail.INDUCTANCE)

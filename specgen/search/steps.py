@@ -197,6 +197,7 @@ class MaterialRows:
     alpha: FloatArray
     beta: FloatArray
     loss_fit: FloatArray         # rows x (ct0, ct1, ct2) of the loss-temperature fit, NaN where none
+    ceiling_t: FloatArray        # a powder's DC-bias curve ceiling (``kernel.powder_ceiling_t``); inf otherwise
 
     @classmethod
     def of(cls, materials: list[Material]) -> MaterialRows:
@@ -207,7 +208,8 @@ class MaterialRows:
                    col(lambda m: m.b_design_t if m.b_design_t is not None else np.nan), col(lambda m: m.b_r_t),
                    col(lambda m: m.steinmetz_k), col(lambda m: m.steinmetz_alpha), col(lambda m: m.steinmetz_beta),
                    np.array([m.loss_temperature or (np.nan, np.nan, np.nan) for m in materials],
-                            dtype=np.float64).reshape(len(materials), 3))
+                            dtype=np.float64).reshape(len(materials), 3),
+                   col(lambda m: K.powder_ceiling_t(m.mu_initial, *m.bias_fit()) if m.is_powder else np.inf))
 
     def core_loss_factor(self, mi: IntArray, core_temp_c: FloatArray) -> FloatArray:
         """The core loss's temperature factor at the core's temperature (``kernel.core_loss_temperature_factor``)."""
@@ -220,9 +222,13 @@ class MaterialRows:
 
     def flux_limit_t(self, mi: IntArray, temp_c: FloatArray | float, fraction: float,
                      given_t: float | None) -> FloatArray:
-        """The working flux limit (``kernel.flux_limit_t``)."""
-        return _f(K.flux_limit_t(self.b_sat_25c_t[mi], self.b_sat_100c_t[mi], temp_c, fraction, self.b_design_t[mi],
-                                 given_t))
+        """The working flux limit (``kernel.flux_limit_t``), a powder's no higher than where it counts as saturated
+        (``kernel.powder_saturation_t``), as the engine's ``design.flux.flux_limit``."""
+        limit = _f(K.flux_limit_t(self.b_sat_25c_t[mi], self.b_sat_100c_t[mi], temp_c, fraction, self.b_design_t[mi],
+                                  given_t))
+        if given_t is not None:
+            return limit
+        return np.minimum(limit, _f(K.powder_saturation_t(self.b_sat_t(mi, temp_c), fraction, self.ceiling_t[mi])))
 
     def core_loss_w_m3(self, mi: IntArray, b_t: FloatArray, freq_hz: float, drive: str, duty: float) -> FloatArray:
         """Core loss density [W/m^3] (``kernel.core_loss_grouped_w_m3``): drive sine, square or unipolar (b_t

@@ -162,3 +162,14 @@ def test_inductances_from_incremental_permeability():
     assert l_sec[0] == pytest.approx(l0, rel=1e-9) and l_inc[0] == pytest.approx(l0, rel=1e-9)
     assert np.all(l_sec[1:] > l_inc[1:])
     np.testing.assert_allclose(l_sec[1:] * i[1:], lam[1:], rtol=1e-14)
+
+
+@pytest.mark.parametrize("half, steep", [(3500.0, 1.95), (40000.0, 2.0), (2400.0, 1.85), (8000.0, 3.5)])
+def test_ceiling_is_the_integral_to_infinity(half, steep):
+    # B_inf = mu0 mu_i int_0^inf dh / (1 + (h / H_half)^n) (scipy.integrate.quad to infinity); none for n <= 1
+    b = pb.fit_b_from_half_field(half, steep)
+    ref = constants.mu_0 * 75.0 * integrate.quad(lambda h: 1.0 / (1.0 + (h / half) ** steep), 0.0, math.inf,
+                                                 epsrel=1e-12)[0]
+    assert pb.b_ceiling_t(75.0, 1.0, b, steep) == pytest.approx(ref, rel=1e-8)
+    assert pb.b_from_bias_t(10 * half, 75.0, 1.0, b, steep) < pb.b_ceiling_t(75.0, 1.0, b, steep)
+    assert math.isinf(pb.b_ceiling_t(75.0, 1.0, b, 0.9))

@@ -101,7 +101,8 @@ class InductorRun:
                                    f"remove core.gap", "core", "gap")
 
     def powder(self, temp: ThermalState) -> Magnetics:
-        """Turns from the DC-bias roll-off; L and B at zero and full bias."""
+        """Turns from the DC-bias roll-off; L at zero bias, at full bias and at the peak current (incremental: what
+        a small ripple sees); B from the curve's integral (``kernel.powder_flux_t``), monotonic in the current."""
         spec, parts, c, mat = self.spec, self.parts, self.c, self.parts.material
         ae, le, mu = parts.ae_m2, parts.le_m, mat.mu_initial
         a, b, cc = mat.bias_fit()
@@ -114,12 +115,14 @@ class InductorRun:
         bias = c.i_dc if not c.ac else 0.0
         l0 = float(permeability.powder_inductance_h(n, ae, le, mu, 0.0, a, b, cc))
         lfull = float(permeability.powder_inductance_h(n, ae, le, mu, bias, a, b, cc))
+        lpeak = float(permeability.powder_inductance_h(n, ae, le, mu, c.i_pk, a, b, cc))
         frac = float(permeability.bias_fit_fraction(n * bias / le, a, b, cc))
         drop = (1.0 - frac / float(permeability.bias_fit_fraction(0.0, a, b, cc))) * 100.0
         return Magnetics(turns=int(n), flux_limit=flux_limit(spec, self.cat, mat, temp.hot_c), inductance_h=lfull,
                          inductance_zero_bias_h=l0, inductance_full_bias_h=lfull,
                          b_peak_t=float(K.powder_flux_t(n, c.i_op_pk, le, mu, a, b, cc)),
-                         b_peak_max_t=float(K.powder_flux_t(n, c.i_pk, le, mu, a, b, cc)), bias_drop_pct=drop)
+                         b_peak_max_t=float(K.powder_flux_t(n, c.i_pk, le, mu, a, b, cc)), bias_drop_pct=drop,
+                         inductance_peak_h=lpeak, b_dc_t=float(K.powder_flux_t(n, bias, le, mu, a, b, cc)))
 
     def gapped(self, temp: ThermalState) -> Magnetics:
         """Turns and gap: fixed gap or none (turns for L), else the energy method (``kernel.gapped_turns_and_gap``).
@@ -165,6 +168,19 @@ class InductorRun:
                          b_peak_t=float(gapmod.b_peak_from_inductance_t(l_built, c.i_op_pk, n, ae)),
                          b_peak_max_t=float(gapmod.b_peak_from_inductance_t(l_built, c.i_pk, n, ae)),
                          bias_drop_pct=0.0, notes=tuple(notes))
+
+    def peak_inductance_checks(self, ind: InductorResult) -> list[Check]:
+        """The spec's least inductance at the peak current (a PFC choke's line peak), against the small-signal
+        inductance there (for a powder, rolled off along its DC-bias curve)."""
+        need, got = ind.inductance_min_h, ind.inductance_at_peak_h
+        if need is None or got is None:
+            return []
+        what = f"L {got * 1e6:.4g} µH at the peak current {ind.current_peak_a:.3g} A"
+        if got < need:
+            return [Check("fail", "inductance-at-peak",
+                          f"{what} is below the {need * 1e6:.4g} µH required there: more turns on a larger core, "
+                          f"or a powder that rolls off less")]
+        return [Check("pass", "inductance-at-peak", f"{what} against {need * 1e6:.4g} µH required there")]
 
     def iron_share_checks(self, mg: Magnetics) -> list[Check]:
         """A warning where the core, not the gap, holds most of the path's reluctance (``kernel.IRON_SHARE_WARN``)."""
@@ -231,7 +247,10 @@ class InductorRun:
             energy_j=float(gapmod.energy_j(mg.inductance_full_bias_h, c.i_op_pk if c.ac else c.i_dc)),
             h_dc_a_m=n * c.i_dc / le, bias_drop_pct=mg.bias_drop_pct, current_dc_a=c.i_dc if not c.ac else c.i_rms,
             current_peak_a=c.i_pk, ripple_a=c.ripple, delta_b_t=ev.detail.delta_b_t,
-            b_dc_t=mg.inductance_full_bias_h * c.i_dc / (n * ae) if c.i_dc else 0.0,
+            b_dc_t=(mg.b_dc_t if mg.b_dc_t is not None
+                    else mg.inductance_full_bias_h * c.i_dc / (n * ae) if c.i_dc else 0.0),
+            inductance_at_peak_h=mg.inductance_peak_h if mg.inductance_peak_h is not None else mg.inductance_h,
+            inductance_min_h=self.req.inductance_min_h,
         )
         extra = list(mg.notes)          # from the last pass only: each pass finds the magnetics again
         tol = self.cat.shop.tolerances["inductance"]
@@ -243,6 +262,7 @@ class InductorRun:
         else:
             target = si(c.target_h, "H", keep_zeros=False)
             extra.append(Check("pass", "inductance", f"L {si(lfull, 'H')} at {ind.current_dc_a:g} A against {target} required"))
+        extra.extend(self.peak_inductance_checks(ind))
         if not powder:
             extra.extend(self.iron_share_checks(mg))
         if powder and mg.bias_drop_pct > BIAS_DROP_WARN_PCT:
@@ -254,6 +274,29 @@ class InductorRun:
                                  dc_current_a=ind.current_dc_a if not c.ac else 0.0, checks=tuple(extra))
 
 
+def powder_flux_checks(state: DesignState) -> list[Check]:
+    """A powder core at the over-current peak: B from its DC-bias curve's integral against where the core counts
+    as saturated (``kernel.powder_saturation_t``: fail above it), and the spec's own flux limit (warn)."""
+    s, temp, ind, mat = state.summary, state.temp, state.summary.inductor, state.parts.material
+    assert ind is not None
+    bsat = b_sat_hot_t(mat, temp.hot_c)
+    sat = float(K.powder_saturation_t(bsat, state.cat.shop.flux_limit_fraction,
+                                      K.powder_ceiling_t(mat.mu_initial, *mat.bias_fit())))
+    b, limit = s.b_peak_max_t, s.flux_limit.value_t
+    left = ""
+    if ind.inductance_at_peak_h is not None and ind.inductance_zero_bias_h > 0:
+        left = f" ({ind.inductance_at_peak_h / ind.inductance_zero_bias_h:.0%} of the permeability left)"
+    at = f"B_pk {_fmt_t(b)} at the peak current {ind.current_peak_a:.3g} A{left}"
+    if b > sat * 1.0005:
+        return [Check("fail", "saturation",
+                      f"{at} is past {_fmt_t(sat)}, where {mat.id} counts as saturated ({s.flux_limit.basis}): "
+                      f"a larger core, more turns on it, or a powder that rolls off less")]
+    if b > limit * 1.0005:
+        return [Check("warn", "saturation", f"{at} is above the {_fmt_t(limit)} limit ({s.flux_limit.basis})")]
+    return [Check("pass", "saturation", f"{at}, limit {_fmt_t(min(limit, sat))}; B_sat at {temp.hot_c:.0f} °C "
+                                        f"is {_fmt_t(bsat)}")]
+
+
 class InductorKind:
     name = "inductor"
 
@@ -261,9 +304,12 @@ class InductorKind:
         return InductorRun(spec, cat, parts)
 
     def flux_checks(self, state: DesignState) -> list[Check]:
-        """Saturation at the over-current peak: fail above B_sat, warn above the working limit."""
+        """Saturation at the over-current peak: fail above B_sat, warn above the working limit (a powder:
+        ``powder_flux_checks``)."""
         s, temp, ind = state.summary, state.temp, state.summary.inductor
         assert ind is not None
+        if state.parts.material.is_powder:
+            return powder_flux_checks(state)
         bsat = b_sat_hot_t(state.parts.material, temp.hot_c)
         limit = s.flux_limit.value_t
         b = s.b_peak_max_t
