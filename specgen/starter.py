@@ -124,7 +124,8 @@ inductor:                    # what the choke must do
   # voltage_drop: 10 V       # instead of inductance, for an AC reactor: drop at rated current
   current: 5 A               # DC current (AC reactor: rms)
   ripple: 1.5 A              # peak to peak at the operating frequency
-  current_peak: 6 A          # over-current the core must not saturate at
+  current_peak: 6 A          # over-current the core must not saturate at (a PFC choke: the line peak)
+  # inductance_min: 60 uH    # least inductance at current_peak (checked; a powder rolls off towards it)
   duty: 0.5                  # switching duty (for the ripple waveform)
 
 windings:                    # an inductor has one winding (split it with sections: N)

@@ -95,6 +95,8 @@ def test_inductance_min_at_the_peak_current(tmp_path, cat, minimum_uh, level):
     assert d.inductor.inductance_min_h == pytest.approx(minimum_uh * 1e-6)
     (chk,) = [c for c in d.checks if c.code == "inductance-at-peak"]
     assert chk.level == level
+    (limit,) = [t for t in d.tests.inductance if t.name.startswith("inductance at 20 A")]
+    assert limit.low == pytest.approx(minimum_uh * 1e-6) and limit.nominal == pytest.approx(want, rel=1e-8)
     data = json.loads(json.dumps(d.to_dict()))
     assert data["inductance_at_peak_h"] == pytest.approx(want, rel=1e-8)
     assert data["inductance_min_h"] == pytest.approx(minimum_uh * 1e-6)

@@ -343,6 +343,10 @@ class InductorKind:
                              nominal=inductor.inductance_at_full_bias_h,
                              low=inductor.inductance_at_full_bias_h * (1 - t), high=None, unit="H",
                              condition="with DC bias source, if the station has one"))
+        if inductor.inductance_min_h is not None and inductor.inductance_at_peak_h is not None:
+            ind.append(Limit(name=f"inductance at {inductor.current_peak_a:.3g} A DC", item=w.name,
+                             nominal=inductor.inductance_at_peak_h, low=inductor.inductance_min_h, high=None, unit="H",
+                             condition="with DC bias source at the peak current (the spec's minimum)"))
         if inductor.gap_m:
             al = inductor.al_nh * 1e-9
             ind.append(Limit(name="AL of the gapped set", item=w.name, nominal=al, low=al * (1 - t),
