@@ -188,10 +188,10 @@ class InductorRun:
         share = float(K.iron_reluctance_share(mg.gap_m or 0.0, le, mat.mu_working))
         if share <= K.IRON_SHARE_WARN:
             return []
-        gap = f"the {(mg.gap_m or 0.0) * 1e3:.3g} mm gap" if mg.gap_m else "without a gap, the core"
+        where = (f"the {mg.gap_m * 1e3:.3g} mm gap leaves {share * 100:.0f} % of the magnetic path's reluctance in "
+                 f"the core" if mg.gap_m else "with no gap the core holds all of the magnetic path's reluctance")
         return [Check("warn", "permeability",
-                      f"{gap} leaves {share * 100:.0f} % of the magnetic path's reluctance in the core "
-                      f"(l_e / mu = {le / mat.mu_working * 1e3:.3g} mm at mu {mat.mu_working:g}): the inductance, "
+                      f"{where} (l_e / mu = {le / mat.mu_working * 1e3:.3g} mm at mu {mat.mu_working:g}): the inductance, "
                       f"and its tolerance, follow the {mat.name}'s permeability, not the gap; a larger gap with more "
                       f"turns makes it steady")]
 
