@@ -20,6 +20,7 @@ SPECS = Path(__file__).parent / "specs"
 TRANSFORMER = SPECS / "build-ei50.yaml"
 REACTOR = SPECS / "reactor-ei100.yaml"
 CHOKE = Path(__file__).parent.parent / "specgen" / "demo" / "BH-3305.yaml"
+POWDER = Path(__file__).parent.parent / "specgen" / "demo" / "BH-5018.yaml"
 
 
 def _edit(base: Path, old: str, new: str) -> str:
@@ -85,3 +86,16 @@ def test_cli_refuses_a_gapped_transformer_in_one_line(tmp_path):
     assert result.returncode == 2 and result.stdout == "" and "Traceback" not in result.stderr
     (line,) = result.stderr.splitlines()
     assert f"gapped.yaml:{_line_of(text, 'gap: 1 mm')}: core.gap: " in line and "kind: flyback" in line
+
+
+@pytest.mark.parametrize("key, value", [("gap", "none"), ("gap", "0.5 mm"), ("gap_arrangement", "centre")])
+def test_powder_core_refuses_a_gap_key(tmp_path, key, value):
+    from specgen.api import design_file
+
+    text = _edit(POWDER, "  id: T-IP75-40X24X14\n", f"  id: T-IP75-40X24X14\n  {key}: {value}\n")
+    spec = tmp_path / "powder.yaml"
+    spec.write_text(text, encoding="utf-8")
+    with pytest.raises(SpecError) as err:
+        design_file(spec)
+    msg = str(err.value)
+    assert f"powder.yaml:{_line_of(text, f'{key}: {value}')}: core.{key}: " in msg and "powder core" in msg, msg

@@ -96,9 +96,11 @@ class InductorRun:
                                  spec.insulation_class_c)
                 if (dc.wire.id, dc.strands) != (choice.wire.id, choice.strands):
                     self.dc_choice = dc
-        if parts.material.is_powder and self.req.gap == "fixed":
-            raise spec_error(spec, f"{parts.core.id} is a powder core: its gap is distributed in the material; "
-                                   f"remove core.gap", "core", "gap")
+        core_keys = spec.data.get("core") if isinstance(spec.data, dict) else None
+        for key in ("gap", "gap_arrangement"):
+            if parts.material.is_powder and isinstance(core_keys, dict) and key in core_keys:
+                raise spec_error(spec, f"{parts.core.id} is a powder core: its gap is distributed in the material, "
+                                       f"so '{key}' is not used; remove core.{key}", "core", key)
 
     def powder(self, temp: ThermalState) -> Magnetics:
         """Turns from the DC-bias roll-off; L at zero bias, at full bias and at the peak current (incremental: what
