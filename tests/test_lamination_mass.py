@@ -16,6 +16,7 @@ import pytest
 from specgen.api import design_file
 from specgen.catalog.loader import load_catalog
 from specgen.physics import geometry
+from specgen.prices import price_list
 from specgen.quote import material_lines
 
 SPECS = Path(__file__).parent / "specs"
@@ -53,6 +54,6 @@ def test_ei_part_mass_and_cost_from_the_pieces(cat, spec):
     assert 1.05 < d.core.mass_kg / (d.core.ve_m3 * mat.density_kg_m3) < 1.12
     (line,) = [m for m in d.materials if m.kind == "laminations"]
     assert line.mass_kg == pytest.approx(want, rel=1e-12)
-    (cost,) = [c for c in material_lines(d, cat) if c.kind == "laminations"]
+    (cost,) = [c for c in material_lines(d, price_list(cat, d)) if c.kind == "laminations"]
     assert float(cost.quantity) == pytest.approx(want, rel=1e-12)
     assert float(cost.amount) == pytest.approx(want * float(core.price), rel=1e-9)
