@@ -105,7 +105,7 @@ def test_centre_tapped_as_two_simultaneous_windings_was_unequal():
     ferrite = replace(cat.materials["FER-100K"], loss_temperature=None)
     d = design(spec, replace(cat, materials={**cat.materials, "FER-100K": ferrite}))
     frs = sorted(_w(d, n).fr for n in ("S1", "S2"))
-    assert frs[1] / frs[0] > 2.0
+    assert frs[1] / frs[0] > 1.3          # far past the 2 % of the declared load (1.65 with the strand-level Litz factor)
 
 
 def test_bridge_capacitor_load_raises_rms_by_its_form_factor():
