@@ -18,7 +18,7 @@ _TRANSFORMER_WINDING: dict[str, dict[str, str]] = {
     "primary": {
         "current": "the primary current follows from the loads (the secondaries' currents and the losses)",
         "va": "the primary's power follows from the loads (the secondaries' currents or va)",
-        "match": "there is one primary",
+        "same_turns_as": "several primaries get equal turns from their declared connections",
     },
     "secondary": {
         "voltage_min": "an output is held at its nominal voltage within its voltage_tolerance",
@@ -27,7 +27,7 @@ _TRANSFORMER_WINDING: dict[str, dict[str, str]] = {
     "shield": {
         "voltage": "a shield carries no load", "voltage_min": "a shield carries no load",
         "voltage_max": "a shield carries no load", "current": "a shield carries no load", "va": "a shield carries no load",
-        "match": "a shield's turns fill one layer or are given with turns",
+        "same_turns_as": "a shield's turns fill one layer or are given with turns",
     },
 }
 _TRANSFORMER_WINDING["auxiliary"] = _TRANSFORMER_WINDING["secondary"]
@@ -35,7 +35,7 @@ _TRANSFORMER_WINDING["auxiliary"] = _TRANSFORMER_WINDING["secondary"]
 _INDUCTOR_WINDING = {
     key: "an inductor's currents and inductance are in its 'inductor' section"
     for key in ("voltage", "voltage_min", "voltage_max", "current", "va")
-} | {"match": "an inductor has one winding"}
+} | {"same_turns_as": "an inductor has one winding"}
 
 _INDUCTOR_OPERATING = {
     "waveform": "an inductor's current is given in its 'inductor' section (DC with a triangular ripple, or an AC "
