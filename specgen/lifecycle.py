@@ -135,7 +135,7 @@ def _entry_field(entry: Any, key: str, default: Any) -> Any:
 
 
 def release_entry(design: Design) -> Any:
-    """The history entry recording the release of the design's own revision (the last such), or None."""
+    """The history entry of the release of the design's own revision (the last such), or None."""
     found = None
     for entry in design.history or ():
         if str(_entry_field(entry, "revision", "")) == (design.revision or "") and design.revision:
