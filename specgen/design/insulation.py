@@ -15,6 +15,8 @@ insulation, hipot). What the build provides is measured here, once:
   (thickness x dielectric strength) against the grade's type-test voltage: one layer passing for basic;
   for supplementary and reinforced two layers each passing, or three of which any two together pass
   (IEC 62368-1 5.4.4.6, from memory). Triple-insulated wire on one side counts as the solid insulation;
+- a bifilar pair (``wound_with``) whose two wires are on opposite sides of a barrier: only a wire whose own
+  insulation is rated for the grade (triple-insulated wire) carries it; otherwise the barrier fails with what to do;
 - leads: every lead of the barrier's windings sleeved with a sleeving whose breakdown reaches the test voltage;
 - to the core on a toroid: the core wrap (half-lapped tape, so two thicknesses a layer; creepage along the laps,
   half the tape width a layer) or a coating with a rated electric strength; nothing under the first winding fails;
@@ -159,13 +161,52 @@ def _sleeving_ok(state: DesignState, names: Sequence[str], test_v: float) -> tup
     return True, f"leads in {weakest[1]} ({weakest[0] / 1e3:g} kV)"
 
 
-def _between_windings(state: DesignState, a: list[str], b: list[str], coord: ins.BarrierCoordination) -> _Provided:
+_GRADE_RANK = {"functional": 0, "basic": 1, "supplementary": 1, "reinforced": 2, "double": 2}
+
+
+def _bifilar_across(state: DesignState, a: list[str], b: list[str], grade: str) -> tuple[list[str], list[str]]:
+    """Bifilar pairs (``wound_with``) whose two wires sit on opposite sides of the barrier: the pairs whose
+    wire carries the grade itself (triple-insulated wire rated for it, on either wire), and a sentence for
+    each pair that does not. Two wires side by side in one layer have only their own insulation between
+    them (no tape, no margin), so only a wire whose insulation is rated for the grade can carry it
+    (IEC 62368-1 5.4.4.6 and Annex J wound-component wire, from memory)."""
+    carried: list[str] = []
+    problems: list[str] = []
+    if grade == "functional":
+        return carried, problems
+    for w in state.spec.windings:
+        mate = w.wound_with
+        if mate is None or not ((w.name in a and mate in b) or (w.name in b and mate in a)):
+            continue
+        wires = [state.states[n].wire for n in (w.name, mate)]
+        rated = [x for x in wires if x.kind == "tiw" and _GRADE_RANK.get(x.insulation_rating, 0) >= _GRADE_RANK[grade]]
+        if rated:
+            carried.append(f"{w.name} wound with {mate} in {rated[0].id} (its insulation rated {rated[0].insulation_rating})")
+        else:
+            problems.append(
+                f"{w.name} is wound with {mate} (bifilar) across this {grade} barrier: two wires side by side have "
+                f"only their enamel between them, no tape or margin. Wind {w.name} and {mate} as separate sections "
+                f"with the barrier tape between them, or wind both in triple-insulated wire rated {grade} "
+                f"(wire: a TIW- entry)")
+    return carried, problems
+
+
+def _across(lo: BuiltSection, hi: BuiltSection, a: list[str], b: list[str]) -> bool:
+    """Two built sections on opposite sides of a barrier, one over the other (not a bifilar pair's two wires
+    in the same layers, which ``_bifilar_across`` judges)."""
+    if lo.order == hi.order:
+        return False
+    return (lo.winding in a and hi.winding in b) or (lo.winding in b and hi.winding in a)
+
+
+def _between_windings(state: DesignState, a: list[str], b: list[str], coord: ins.BarrierCoordination,
+                      grade: str = "basic") -> _Provided:
     cat, built = state.cat, state.built
     test_v = coord.hipot.type_test_v
     tiw = [side for side in (a, b) if side and all(state.states[n].wire.kind == "tiw" for n in side)]
     sleeve_ok, sleeve_words = _sleeving_ok(state, a + b, test_v)
     pins_mm, pins_words = _pin_gap_mm(state, a, b)
-    problems: list[str] = []
+    carried, problems = _bifilar_across(state, a, b, grade)
     if state.parts.former.kind == "toroid":
         # windings over one another on the ring: the winding tapes between them, half-lapped
         secs = built.sections
@@ -173,7 +214,7 @@ def _between_windings(state: DesignState, a: list[str], b: list[str], coord: ins
         for i, lo in enumerate(secs):
             for j in range(i + 1, len(secs)):
                 hi = secs[j]
-                if not ((lo.winding in a and hi.winding in b) or (lo.winding in b and hi.winding in a)):
+                if not _across(lo, hi, a, b):
                     continue
                 tapes = [(s.tape_after, s.tape_after_layers) for s in secs[i:j] if s.tape_after]
                 bds, words = _tape_layers(state, tapes, factor=2)
@@ -182,9 +223,10 @@ def _between_windings(state: DesignState, a: list[str], b: list[str], coord: ins
                     worst = (lap, bds, words)
         lap_mm, bds, words = worst if worst else (0.0, [], "nothing")
         solid_ok = bool(tiw) or _layers_pass(bds, test_v, coord.solid)
+        words = "; ".join([*carried, words]) if carried else words
         return _Provided(lap_mm, lap_mm, "along the laps of the half-lapped tape between the windings",
-                         solid_ok and sleeve_ok, words + (f"; {sleeve_words}" if sleeve_words else ""),
-                         tuple([] if sleeve_ok else [sleeve_words]))
+                         solid_ok and sleeve_ok and not problems, words + (f"; {sleeve_words}" if sleeve_words else ""),
+                         tuple(problems + ([] if sleeve_ok else [sleeve_words])))
     breadth = state.parts.former.breadth_m
     secs = built.sections
     worst_creep: tuple[float, str] | None = None
@@ -192,7 +234,7 @@ def _between_windings(state: DesignState, a: list[str], b: list[str], coord: ins
     for i, lo in enumerate(secs):
         for j in range(i + 1, len(secs)):
             hi = secs[j]
-            if not ((lo.winding in a and hi.winding in b) or (lo.winding in b and hi.winding in a)):
+            if not _across(lo, hi, a, b):
                 continue
             over = cat.tapes[lo.tape_after].width_m if lo.tape_after else None
             under = cat.tapes[secs[j - 1].tape_after].width_m if secs[j - 1].tape_after else None
@@ -207,14 +249,16 @@ def _between_windings(state: DesignState, a: list[str], b: list[str], coord: ins
             ok = bool(tiw) or _layers_pass(bds, test_v, coord.solid)
             if worst_solid is None or not ok:
                 worst_solid = (ok, words)
-    creep_mm, path = worst_creep if worst_creep else (None, "the windings are not next to each other in the build")
+    creep_mm, path = worst_creep if worst_creep else (None, "")
     solid_ok, solid_words = worst_solid if worst_solid else (True, "")
     if tiw:
         solid_words = f"triple-insulated wire on {'+'.join(tiw[0])}" + (f"; tape {solid_words}" if solid_words else "")
-        creep_mm = None if creep_mm is None else creep_mm
+    if carried:
+        solid_words = "; ".join([*carried, solid_words] if solid_words else carried)
     if pins_mm is not None:
-        path += f"; {pins_mm:.2f} mm between the nearest pins ({pins_words})"
+        path = "; ".join(x for x in (path, f"{pins_mm:.2f} mm between the nearest pins ({pins_words})") if x)
         creep_mm = pins_mm if creep_mm is None else min(creep_mm, pins_mm)
+    path = path or "no surface path between the windings in the build (not next to each other)"
     unknown = (f"{pins_words}: the pin gap is not checked, measure it",) if pins_mm is None and pins_words else ()
     if not sleeve_ok:
         problems.append(sleeve_words)
@@ -271,7 +315,7 @@ def _one(state: DesignState, basis: InsulationBasis, b: Barrier) -> BarrierResul
         raise spec_error(spec, str(err), "insulation", "barriers", b.index) from None
     to_core = "core" in (b.a.strip(), b.b.strip())
     prov = _to_core(state, a_names or b_names, coord) if to_core else _between_windings(state, a_names, b_names,
-                                                                                     coord)
+                                                                                     coord, b.rating)
     label = f"{b.a} to {b.b} {b.rating}"
     if functional:
         shop = state.cat.shop.hipot
