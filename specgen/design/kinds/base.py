@@ -42,11 +42,6 @@ class PartKind(Protocol):
         ...
 
 
-def frequency_text(hz: float) -> str:
-    """A frequency as the checks write it: '100 kHz', '50 Hz'."""
-    return f"{hz / 1e3:g} kHz" if hz >= 1e3 else f"{hz:g} Hz"
-
-
 def flux_text(b_t: float) -> str:
     """A flux density as the checks write it: '0.312 T', '1.55 T'."""
     return f"{b_t:.3f} T" if b_t < 1.0 else f"{b_t:.2f} T"

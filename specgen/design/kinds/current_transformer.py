@@ -22,6 +22,7 @@ from dataclasses import dataclass
 from ...catalog.models import Catalog
 from ...physics import current_transformer as ctp
 from ...physics import gap as gapmod
+from ...present import frequency
 from .. import kernel as K
 from ..build import copper_lengths_m, lay_out, section_frs, winding_fr
 from ..flux import b_sat_hot_t, flux_limit
@@ -29,7 +30,6 @@ from ..result import Check, CurrentTransformerResult, Limit
 from ..spec import CurrentTransformerReq, Spec, Winding
 from ..state import DesignState, ElectricalSummary, Evaluation, KindTests, Parts, ThermalState, WindingState, WireChoice
 from ..wires import choose_wire
-from .base import frequency_text as _freq
 
 # The open-secondary hazard, on the work order and the test sheet (every instrument-transformer text warns of
 # it; the applicable standard, e.g. IEC 61869-2 and the installation's safety rules, decides the practice).
@@ -215,7 +215,7 @@ class CurrentTransformerKind:
         primary = "one conductor through the core" if ct.primary_turns == 1 else f"{ct.primary_turns} primary turns"
         ratio = Limit(name="secondary current at rated primary current", item=sec.name, nominal=expected,
                       low=ct.secondary_current_a * (1.0 - allowed), high=ct.secondary_current_a * (1.0 + allowed),
-                      unit="A", condition=f"{ct.primary_current_a:g} A at {_freq(state.spec.frequency_hz)}, "
+                      unit="A", condition=f"{ct.primary_current_a:g} A at {frequency(state.spec.frequency_hz)}, "
                                           f"{primary}, secondary {sec.start}-{sec.finish} into {ct.burden_ohm:g} ohm "
                                           f"(ratio {ct.primary_turns}:{ct.secondary_turns})")
         arrow = "the marked face (P1)" if ct.primary_turns == 1 else "the primary's dotted lead (P1)"

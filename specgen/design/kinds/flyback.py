@@ -33,7 +33,7 @@ from ...catalog.models import Catalog
 from ...physics import coreloss
 from ...physics import flyback as fb
 from ...physics import gap as gapmod
-from ...present import si
+from ...present import frequency, si
 from .. import kernel as K
 from ..build import copper_lengths_m, lay_out, leakage_h
 from ..flux import b_sat_hot_t, flux_limit
@@ -53,7 +53,6 @@ from ..state import (
     WireChoice,
 )
 from ..wires import choose_wire
-from .base import frequency_text as _freq
 
 DCM_MARGIN = 0.8             # DCM: L_p at 80 % of the boundary at the lowest line (common practice)
 HARMONICS = 39               # harmonics of each winding's current for its AC factor (as kernel.SQUARE_HARMONICS)
@@ -393,7 +392,7 @@ class FlybackKind:
             r = prim.turns / w.turns
             ratios.append(Limit(name="turns ratio", item=f"{prim.name}:{w.name}", nominal=r, low=r * (1 - tol["ratio"]),
                                 high=r * (1 + tol["ratio"]), unit=":1",
-                                condition=f"{prim.turns}:{w.turns} t, {_freq(10e3)} on {prim.start}-{prim.finish}"))
+                                condition=f"{prim.turns}:{w.turns} t, {frequency(10e3)} on {prim.start}-{prim.finish}"))
             polarity.append(f"FLYBACK, windings out of phase: with the switch on, {prim.name}'s dot ({prim.dot_pin}) and "
                             f"{w.name}'s dot ({w.dot_pin}) go positive together, so {w.name}'s rectifier, on its "
                             f"undotted pin, conducts only while the switch is off. Check the dots with a pulse on "

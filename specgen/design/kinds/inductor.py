@@ -16,7 +16,7 @@ from dataclasses import dataclass
 from ...catalog.models import Catalog
 from ...physics import gap as gapmod
 from ...physics import permeability
-from ...present import si
+from ...present import frequency, si
 from .. import kernel as K
 from ..build import copper_lengths_m, lay_out, section_frs, winding_fr
 from ..flux import b_sat_hot_t, flux_limit
@@ -36,7 +36,6 @@ from ..state import (
 )
 from ..wires import choose_wire
 from .base import flux_text as _fmt_t
-from .base import frequency_text as _freq
 
 BIAS_DROP_WARN_PCT = 50.0    # more than half the permeability gone at full current: a poor use of powder (common practice)
 
@@ -339,7 +338,7 @@ class InductorKind:
         ind: list[Limit] = []
         l0 = inductor.inductance_zero_bias_h
         ind.append(Limit(name="inductance, no bias", item=w.name, nominal=l0, low=l0 * (1 - t), high=l0 * (1 + t),
-                         unit="H", condition=f"pins {w.start}-{w.finish}, small signal, {_freq(state.spec.frequency_hz)}"))
+                         unit="H", condition=f"pins {w.start}-{w.finish}, small signal, {frequency(state.spec.frequency_hz)}"))
         if inductor.bias_drop_pct > 0.5:
             ind.append(Limit(name=f"inductance at {inductor.current_dc_a:g} A DC", item=w.name,
                              nominal=inductor.inductance_at_full_bias_h,

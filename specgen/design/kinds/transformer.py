@@ -14,6 +14,7 @@ from dataclasses import dataclass, replace
 
 from ...catalog.models import Catalog
 from ...physics import faraday
+from ...present import frequency
 from .. import kernel as K
 from .. import loads as LD
 from ..build import copper_lengths_m, lay_out, leakage_h, section_frs, winding_fr
@@ -37,7 +38,6 @@ from ..state import (
 from ..windings_result import ConnectionResult, LoadResult
 from ..wires import choose_wire
 from .base import flux_text as _fmt_t
-from .base import frequency_text as _freq
 
 MAGNETIZING_WARN = 0.35      # magnetizing current above this share of the primary current (common practice)
 MAX_SCAN = 60                # loss-limited search: at most this many primary-turn candidates
@@ -479,10 +479,10 @@ class TransformerRun:
         extra = [self.voltage_check(w, p) for w in self.loads]
         if self.spec.frequencies_hz and p.core_w_m3_by_hz:
             worst = max(p.core_w_m3_by_hz, key=lambda x: p.core_w_m3_by_hz[x] if p.core_w_m3_by_hz else 0.0)
-            served = " and ".join(_freq(x) for x in self.spec.frequencies_hz)
+            served = " and ".join(frequency(x) for x in self.spec.frequencies_hz)
             extra.append(Check("pass", "frequencies",
-                               f"serves {served}: flux checked at {_freq(self.spec.frequency_hz)} (the lowest, the "
-                               f"highest flux), core loss and temperature at {_freq(worst)} (the worst: "
+                               f"serves {served}: flux checked at {frequency(self.spec.frequency_hz)} (the lowest, the "
+                               f"highest flux), core loss and temperature at {frequency(worst)} (the worst: "
                                f"{p.core_w_m3_by_hz[worst] / 1e3:.3g} kW/m³)"))
         primary = ev.windings[self.prim.name]
         share = p.imag_a / self.halves / primary.current_a if primary.current_a > 0 else 0.0   # per half
@@ -509,7 +509,7 @@ def _band(asked: float, tol: tuple[float, float]) -> str:
 
 def _also(spec: Spec) -> str:
     """A test condition's note on a part for several frequencies: it is tested at the lowest."""
-    rest = [_freq(x) for x in spec.frequencies_hz if x != spec.frequency_hz]
+    rest = [frequency(x) for x in spec.frequencies_hz if x != spec.frequency_hz]
     return f" (tested at the lowest frequency; the part also serves {', '.join(rest)})" if rest else ""
 
 
@@ -590,7 +590,7 @@ class TransformerKind:
                                      low=v * (1 - tol["open_circuit_voltage"]),
                                      high=v * (1 + tol["open_circuit_voltage"]), unit="V",
                                      condition=f"{prim.name} at {s.voltages[prim.name]:.4g} V, "
-                                               f"{_freq(spec.frequency_hz)}, no load" + _also(spec)))
+                                               f"{frequency(spec.frequency_hz)}, no load" + _also(spec)))
         for w in windings:
             if w is prim or not w.finish:
                 continue
