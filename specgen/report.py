@@ -22,7 +22,7 @@ def waveform_text(d: Design) -> str:
     """How the core is driven: a DC choke carries DC with a triangular ripple, not the spec's waveform."""
     if d.flyback is not None:
         return f"flyback, {d.flyback.mode.upper()} at the lowest input, duty {d.flyback.duty_max:.2f} to {d.flyback.duty_min:.2f}"
-    if d.inductor is not None and d.inductor.b_dc_t > 0:
+    if d.inductor is not None and d.inductor.carries_dc:
         return "DC with triangular ripple"
     if d.waveform == "unipolar":
         return f"unipolar pulse, duty {d.duty:g}"
@@ -134,7 +134,7 @@ def _current_row(i: Any) -> list[str]:
     """A DC choke: its DC current, the ripple on it and the flux swing the ripple makes. An AC reactor (no DC
     bias) carries the whole sine: its rms and peak current and the peak-to-peak flux swing of the sine, which
     is twice the peak flux (not a ripple: 2.7 T p-p on a 1.34 T peak is the sine going from -B_pk to +B_pk)."""
-    if i.b_dc_t > 0:
+    if i.carries_dc:
         return ["current", f"{present.si(i.current_dc_a, 'A')} DC, ripple {present.si(i.ripple_a, 'A')} p-p, peak "
                            f"{present.si(i.current_peak_a, 'A')}; ripple flux swing ΔB {present.si(i.delta_b_t, 'T')} p-p"]
     return ["current", f"{present.si(i.current_dc_a, 'A')} rms AC, peak {present.si(i.current_peak_a, 'A')}; "

@@ -715,3 +715,22 @@ def test_quote_paper_follows_the_shop_file(cat, designs, tmp_path, paper, size_m
         box = pypdf.PdfReader(str(pdf)).pages[0].mediabox
         # ISO 216 A4 is 210 x 297 mm; US Letter is 8.5 x 11 in
         assert (float(box.width) * 25.4 / 72, float(box.height) * 25.4 / 72) == pytest.approx(size_mm, abs=0.2)
+
+
+def test_an_ac_reactor_is_quoted_by_its_sine_not_a_ripple(cat):
+    # an AC reactor carries the whole sine: no DC and no ripple on it. Its rated current is an rms value and
+    # the peak it must carry unsaturated is sqrt(2) x rms for a sine (IEC 60050-103, peak factor of a sine)
+    from pathlib import Path
+
+    from specgen.api import run_design
+    from specgen.design.spec import load_spec
+    from specgen.documents.quote_doc import ratings
+
+    d = run_design(load_spec(Path(__file__).parent / "specs" / "reactor-ei100.yaml"), cat)
+    assert not d.inductor.carries_dc
+    rows = {r.what: r for r in ratings(d)}
+    text = " ".join(f"{r.value} {r.condition}" for r in rows.values())
+    assert "ripple" not in text and " DC" not in text
+    assert rows["Rated current"].value == "5 A rms"
+    assert "50 Hz, sine" in rows["Rated current"].condition
+    assert f"{5 * 2 ** 0.5:.4g} A peak" in rows["Rated current"].condition

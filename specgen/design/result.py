@@ -268,6 +268,13 @@ class InductorResult:
     inductance_at_peak_h: float | None = None   # small-signal (incremental) L at the peak current
     inductance_min_h: float | None = None       # the spec's minimum at the peak current, if it states one
 
+    @property
+    def carries_dc(self) -> bool:
+        """A DC choke (a DC bias with a ripple on it), not an AC reactor. An AC reactor carries the whole sine:
+        its ``current_dc_a`` is then the rms, ``ripple_a`` the sine's peak-to-peak current and ``delta_b_t``
+        the peak-to-peak flux over a cycle (twice the peak), none of them a ripple."""
+        return self.b_dc_t > 0.0
+
 
 @record(slots=True)
 class TapeWrap:

@@ -23,6 +23,7 @@ from dataclasses import dataclass, replace
 from decimal import Decimal
 from pathlib import Path
 
+from ..present import frequency
 from ..quote import COPPER_HIGH, COPPER_LOW, Quote, count, money, plain
 
 TEMPLATE = "quote.html"
@@ -91,7 +92,7 @@ def ratings(design) -> list[Rating]:
 
     d = design
     out: list[Rating] = []
-    freq = f"{d.frequency_hz / 1e3:g} kHz" if d.frequency_hz >= 1e3 else f"{d.frequency_hz:g} Hz"
+    freq = frequency(d.frequency_hz)
     prim = next((w for w in d.windings if w.role == "primary"), None)
     if prim is not None and prim.voltage_v:
         top = f", up to {_num(prim.voltage_max_v, 'V')}" if prim.voltage_max_v and \
@@ -121,8 +122,12 @@ def ratings(design) -> list[Rating]:
                                                                             f"{fb.mode.upper()} at the lowest input"))
     if d.inductor is not None and d.flyback is None:
         ind = d.inductor
-        out.append(Rating("Rated current", f"{_num(ind.current_dc_a, 'A')} DC",
-                          f"{_num(ind.ripple_a, 'A')} peak-to-peak ripple at {freq}" if ind.ripple_a else ""))
+        if ind.carries_dc:
+            out.append(Rating("Rated current", f"{_num(ind.current_dc_a, 'A')} DC",
+                              f"{_num(ind.ripple_a, 'A')} peak-to-peak ripple at {freq}" if ind.ripple_a else ""))
+        else:                                    # an AC reactor: the whole sine, no DC and no ripple
+            out.append(Rating("Rated current", f"{_num(ind.current_dc_a, 'A')} rms",
+                              f"{freq}, {d.waveform}; no saturation up to {_num(ind.current_peak_a, 'A')} peak"))
         for lim in d.tests.inductance:
             if lim.name.startswith("AL"):
                 continue                         # a bench check of the core set, not a rating
