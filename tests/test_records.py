@@ -64,6 +64,22 @@ def test_record_behaves_as_a_frozen_dataclass(slots):
     assert hasattr(ours(1), "__dict__") is (not slots)
 
 
+@pytest.mark.parametrize("slots", [False, True])
+def test_record_binds_arguments_as_a_frozen_dataclass(slots):
+    ref, ours = _pair(slots)
+    for args, kwargs in (((1,), {}), ((), {"a": 1, "e": 4}), ((1, (2,)), {"d": "q"}), ((1, (), 0.5, "y", 3), {})):
+        r, o = ref(*args, **kwargs), ours(*args, **kwargs)
+        assert dataclasses.astuple(o) == dataclasses.astuple(r)
+    for args, kwargs in (((), {}), ((1,), {"a": 2}), ((1,), {"z": 2}), ((1, (), 0.5, "y", 3, 9), {})):
+        with pytest.raises(TypeError):
+            ref(*args, **kwargs)
+        with pytest.raises(TypeError):
+            ours(*args, **kwargs)
+    with pytest.raises(dataclasses.FrozenInstanceError):
+        del ours(1).a
+    assert Node("a").child is not Node("b").child      # a fresh default per instance, as default_factory
+
+
 def test_record_pickles_and_guards_recursion():
     for p in (Slotted(4, ("w",)), Node("m", [1])):
         assert pickle.loads(pickle.dumps(p)) == p
