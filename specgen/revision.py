@@ -52,11 +52,11 @@ import json
 import os
 import re
 from collections.abc import Mapping, Sequence
-from dataclasses import dataclass
 from typing import Any
 
 from . import revision_letters as _letters
 from .errors import SpecError
+from .records import record
 from .revision_fingerprint import (
     EXCLUDED_KEYS,
     FINGERPRINT_SCHEME,
@@ -163,7 +163,7 @@ def release_revision(status: str | None, revision: str | None, history: Any = No
     return revision
 
 
-@dataclass(frozen=True)
+@record
 class ReleaseCheck:
     """The outcome of checking one spec's release against its current content."""
 

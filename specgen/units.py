@@ -29,14 +29,15 @@ import difflib
 import functools
 import math
 import re
-from dataclasses import dataclass
 from fractions import Fraction
+
+from .records import record
 
 # powers of (metre, kilogram, second, ampere, kelvin)
 _Vec = tuple[int, int, int, int, int]
 
 
-@dataclass(frozen=True, slots=True)
+@record(slots=True)
 class Dimension:
     vector: _Vec
     si_unit: str           # what parse() returns the value in

@@ -17,9 +17,8 @@ core.gap_arrangement is used).
 
 from __future__ import annotations
 
-from dataclasses import dataclass
-
 from ..loading import Reader
+from ..records import record
 from .spec import Winding
 
 MODES = ("dcm", "boundary", "ccm")
@@ -29,7 +28,7 @@ UNUSED_OPERATING_KEYS = ("waveform", "duty", "efficiency")   # the drive is the 
 _UNUSED_WINDING_KEYS = ("voltage_min", "voltage_max", "va", "turns", "same_turns_as")
 
 
-@dataclass(frozen=True)
+@record
 class FlybackReq:
     """A flyback's requirement (kind: flyback)."""
     v_in_min_v: float

@@ -34,9 +34,10 @@ from __future__ import annotations
 
 import math
 from collections.abc import Sequence
-from dataclasses import dataclass, replace
+from dataclasses import replace
 
 from ..catalog.models import InsulationBasis, Tape
+from ..records import record
 from ..standards import insulation as ins
 from .resolve import spec_error
 from .result import BarrierResult, Check, InsulationResult
@@ -47,7 +48,7 @@ _CATEGORY = ("I", "II", "III", "IV")
 TOROID_WRAP_LAP = 0.5        # core wrap and winding tapes on a toroid are half-lapped (common practice)
 
 
-@dataclass(frozen=True, slots=True)
+@record(slots=True)
 class _Provided:
     creepage_mm: float | None
     clearance_mm: float | None

@@ -5,7 +5,6 @@ from __future__ import annotations
 
 import math
 from collections.abc import Sequence
-from dataclasses import dataclass
 from typing import Any
 
 import numpy as np
@@ -18,6 +17,7 @@ from ..physics._types import Arr, ArrayLike
 from ..physics._types import as_array as _f
 from ..physics._types import out as _out
 from ..physics.layers import layer_fr
+from ..records import record
 from .kernel_winding import WIRE_CODE, WireGeometry
 from .limits import SQUARE_HARMONICS
 
@@ -43,7 +43,7 @@ def skin_depth_m(freq_hz: ArrayLike, temp_c: ArrayLike, conductor: str = "copper
     return _out(wiremod.skin_depth_m(freq_hz, wiremod.resistivity_ohm_m(temp_c, conductor)))
 
 
-@dataclass(frozen=True, slots=True)
+@record(slots=True)
 class Harmonics:
     """Harmonic orders of a current and their share of its loss (weights sum to 1)."""
     orders: npt.NDArray[np.float64]

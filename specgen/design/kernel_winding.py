@@ -5,7 +5,6 @@ from __future__ import annotations
 
 import math
 from collections.abc import Sequence
-from dataclasses import dataclass
 from typing import TYPE_CHECKING, Any
 
 import numpy as np
@@ -16,6 +15,7 @@ from ..physics._types import Arr, ArrayLike
 from ..physics._types import all_scalar as _scalar
 from ..physics._types import as_array as _f
 from ..physics._types import out as _out
+from ..records import record
 
 if TYPE_CHECKING:
     from ..catalog.models import Wire
@@ -26,7 +26,7 @@ _TOROID = FORMER_CODE["toroid"]
 _FORMER_NAME = {code: name for name, code in FORMER_CODE.items()}
 
 
-@dataclass(frozen=True, slots=True)
+@record(slots=True)
 class WireGeometry:
     """What the build and the AC factor read of a wire with its strands in hand (floats, or arrays for rows)."""
     kind: Any                     # WIRE_CODE (int, or an int array)
@@ -159,7 +159,7 @@ def layer_capacity(former_kind: Any, pitch_m: ArrayLike, usable_m: ArrayLike, id
     return _out(np.where(tor, ring, flat)), _out(np.where(tor, circ, usable))
 
 
-@dataclass(frozen=True, slots=True)
+@record(slots=True)
 class FormerArrays:
     """Formers as rows: kind (FORMER_CODE int array) and their dimensions [m]."""
     kind: npt.NDArray[np.int8]
@@ -175,7 +175,7 @@ class FormerArrays:
                             self.od_m[idx], self.id_m[idx], self.core_height_m[idx])
 
 
-@dataclass(frozen=True, slots=True)
+@record(slots=True)
 class SectionWinding:
     """Sections laid as rows (``wind_section``): ok, first-layer capacity, layers, turns in the last layer,
     build after the last layer, copper length without leads, usable breadth (toroid: first circumference)."""

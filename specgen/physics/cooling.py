@@ -6,10 +6,11 @@ SI units: W, K, K/W, m, m^2, m/s, W/(m^2 K), W/(m K); temperatures in degC. Floa
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass
 
 import numpy as np
 import numpy.typing as npt
+
+from ..records import record
 
 FloatArray = npt.NDArray[np.float64]
 FloatLike = float | FloatArray
@@ -47,7 +48,7 @@ def _out(x: FloatArray) -> FloatLike:
 # ------------------------------------------------------------------------------------------- measured R_th
 
 
-@dataclass(frozen=True, slots=True)
+@record(slots=True)
 class ThermalResistanceChoice:
     """The thermal resistance a design uses and where it came from ("measured" or "estimated")."""
 
@@ -95,7 +96,7 @@ def temperature_rise_from_r_th_k(power_w: npt.ArrayLike, r_th_k_w: npt.ArrayLike
 # ---------------------------------------------------------------------------------------------- forced air
 
 
-@dataclass(frozen=True, slots=True)
+@record(slots=True)
 class AirProperties:
     """Dry air at a film temperature: conductivity [W/(m K)], kinematic viscosity [m^2/s], Prandtl number."""
 

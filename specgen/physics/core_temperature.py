@@ -8,10 +8,11 @@ from __future__ import annotations
 
 import math
 from collections.abc import Callable
-from dataclasses import dataclass
 
 import numpy as np
 import numpy.typing as npt
+
+from ..records import record
 
 FloatArray = npt.NDArray[np.float64]
 FloatLike = float | FloatArray
@@ -96,7 +97,7 @@ def loss_temperature_factor(temp_c: npt.ArrayLike, ct0: npt.ArrayLike, ct1: npt.
     return _out(np.asarray((c0 - c1 * t + c2 * t * t) / minimum, dtype=float))
 
 
-@dataclass(frozen=True, slots=True)
+@record(slots=True)
 class ThermalOperatingPoint:
     """Steady temperature of a part heated by a temperature-dependent loss through a thermal resistance.
 
@@ -192,7 +193,7 @@ def thermal_operating_point(loss_w: Callable[[float], float], r_th_k_w: float, a
                                  search_limit_c=limit, evaluations=evaluations + 1)
 
 
-@dataclass(frozen=True, slots=True)
+@record(slots=True)
 class QuadraticOperatingPoint:
     """Closed-form balance for a fixed loss plus a core loss with the quadratic temperature factor.
 

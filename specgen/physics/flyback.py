@@ -14,13 +14,14 @@ CCM volt-second balance D = V_R / (V_R + V_in); B_pk = L_p I_pk / (N_p A_e).
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass
 
 import numpy as np
 import numpy.typing as npt
 
+from ..records import record
 
-@dataclass(frozen=True, slots=True)
+
+@record(slots=True)
 class OperatingPoint:
     """A flyback at one input voltage and load."""
     mode: str              # "dcm" | "ccm" (the boundary counts as dcm: the current just reaches zero)

@@ -14,13 +14,14 @@ the table's range, for the caller to locate in the user's file.
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass
 from enum import Enum
 from functools import lru_cache
 from importlib import resources
 from typing import Any
 
 import yaml
+
+from ..records import record
 
 __all__ = [
     "BarrierCoordination", "ClearanceRequirement", "CreepageRequirement", "Grade", "HipotTestVoltages",
@@ -55,7 +56,7 @@ class MaterialGroup(str, Enum):
 # ---------------------------------------------------------------------------------------------- records
 
 
-@dataclass(frozen=True, slots=True)
+@record(slots=True)
 class RatedImpulse:
     """Rated impulse voltage of mains-connected equipment, with the table row used."""
 
@@ -67,7 +68,7 @@ class RatedImpulse:
     row: str
 
 
-@dataclass(frozen=True, slots=True)
+@record(slots=True)
 class ClearanceRequirement:
     """Minimum clearance (mm) and how it was found: basis voltage, table row, pollution minimum, altitude."""
 
@@ -85,7 +86,7 @@ class ClearanceRequirement:
     row: str
 
 
-@dataclass(frozen=True, slots=True)
+@record(slots=True)
 class CreepageRequirement:
     """Minimum creepage (mm) for a grade, with the basic value and the rows interpolated between."""
 
@@ -101,7 +102,7 @@ class CreepageRequirement:
     row: str
 
 
-@dataclass(frozen=True, slots=True)
+@record(slots=True)
 class MaterialGroupLookup:
     """Material group of a CTI value and the group's lower CTI bound."""
 
@@ -111,7 +112,7 @@ class MaterialGroupLookup:
     source: str
 
 
-@dataclass(frozen=True, slots=True)
+@record(slots=True)
 class SolidInsulationRequirement:
     """Layers of solid insulation a grade needs, and the rule in words.
 
@@ -131,7 +132,7 @@ class SolidInsulationRequirement:
     source: str
 
 
-@dataclass(frozen=True, slots=True)
+@record(slots=True)
 class HipotTestVoltages:
     """Electric strength test voltages (a.c. rms unless named d.c.), rounded up to the test set's steps."""
 
@@ -148,7 +149,7 @@ class HipotTestVoltages:
     source: str
 
 
-@dataclass(frozen=True, slots=True)
+@record(slots=True)
 class BarrierCoordination:
     """Everything one insulation barrier needs: clearance, creepage, solid insulation and hipot, with sources."""
 
@@ -166,7 +167,7 @@ class BarrierCoordination:
     note: str
 
 
-@dataclass(frozen=True, slots=True)
+@record(slots=True)
 class SignalWord:
     """A safety signal word with its safety colour (ANSI Z535.4 / ISO 3864-2)."""
 
@@ -177,7 +178,7 @@ class SignalWord:
     source: str
 
 
-@dataclass(frozen=True, slots=True)
+@record(slots=True)
 class SafetySign:
     """A registered safety sign (ISO 7010) by code, name and description."""
 

@@ -14,13 +14,14 @@ are not used by this shop's parts.
 from __future__ import annotations
 
 import re
-from dataclasses import dataclass
+
+from ..records import record
 
 SOURCE = ("IEC 60085:2007, Electrical insulation - Thermal evaluation and designation, Table 1 "
           "(from memory)")
 
 
-@dataclass(frozen=True, slots=True)
+@record(slots=True)
 class ThermalClass:
     """One IEC 60085 class: its temperature limit in degC and its letter."""
 

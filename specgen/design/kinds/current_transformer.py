@@ -17,12 +17,12 @@ memory).
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass
 
 from ...catalog.models import Catalog
 from ...physics import current_transformer as ctp
 from ...physics import gap as gapmod
 from ...present import frequency
+from ...records import record
 from .. import kernel as K
 from ..build import copper_lengths_m, lay_out, section_frs, winding_fr
 from ..flux import b_sat_hot_t, flux_limit
@@ -43,7 +43,7 @@ OPEN_SECONDARY_CAUTION = (
 KNEE_MARGIN = 2.0      # knee burden at least twice the rated burden: room for leads and meters (common practice)
 
 
-@dataclass(frozen=True, slots=True)
+@record(slots=True)
 class CtPass:
     """A current transformer's figures at one pass."""
     r_winding_ohm: float

@@ -25,7 +25,6 @@ Order of work (standard flyback design procedures of the power-supply design han
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass
 
 import numpy as np
 
@@ -34,6 +33,7 @@ from ...physics import coreloss
 from ...physics import flyback as fb
 from ...physics import gap as gapmod
 from ...present import frequency, si
+from ...records import record
 from .. import kernel as K
 from ..build import copper_lengths_m, lay_out, leakage_h
 from ..flux import b_sat_hot_t, flux_limit
@@ -60,7 +60,7 @@ TURNS_SEARCH = 8             # main-secondary turn counts tried for every output
 LEAKAGE_BAND = (0.7, 1.3)    # leakage test limits (common practice, from memory; as the transformer's)
 
 
-@dataclass(frozen=True, slots=True)
+@record(slots=True)
 class FlybackPass:
     turns: dict[str, int]
     l_h: float

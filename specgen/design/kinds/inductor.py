@@ -11,12 +11,12 @@ AC reactor: L = V_drop / (2 pi f I) at rated current, then as a gapped core at I
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass
 
 from ...catalog.models import Catalog
 from ...physics import gap as gapmod
 from ...physics import permeability
 from ...present import frequency, si
+from ...records import record
 from .. import kernel as K
 from ..build import copper_lengths_m, lay_out, section_frs, winding_fr
 from ..flux import b_sat_hot_t, flux_limit
@@ -40,13 +40,13 @@ from .base import flux_text as _fmt_t
 BIAS_DROP_WARN_PCT = 50.0    # more than half the permeability gone at full current: a poor use of powder (common practice)
 
 
-@dataclass(frozen=True, slots=True)
+@record(slots=True)
 class InductorPass:
     magnetics: Magnetics
     delta_b_t: float
 
 
-@dataclass(frozen=True, slots=True)
+@record(slots=True)
 class Currents:
     """The currents an inductor is designed for, and the inductance it must have."""
     target_h: float

@@ -10,11 +10,12 @@ resistive drops referred through the ratio, and for a sine drive the leakage rea
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass, replace
+from dataclasses import replace
 
 from ...catalog.models import Catalog
 from ...physics import faraday
 from ...present import frequency
+from ...records import record
 from .. import kernel as K
 from .. import loads as LD
 from ..build import copper_lengths_m, lay_out, leakage_h, section_frs, winding_fr
@@ -50,7 +51,7 @@ LEAKAGE_BAND = (0.7, 1.3)    # leakage limits: the build's geometry varies less,
                              # extra tape shows as a large change (common practice, from memory)
 
 
-@dataclass(frozen=True, slots=True)
+@record(slots=True)
 class TransformerPass:
     """A transformer's own figures at one pass."""
     primary_turns: int
