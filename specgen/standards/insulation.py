@@ -16,7 +16,7 @@ from __future__ import annotations
 import math
 from enum import Enum
 from functools import lru_cache
-from importlib import resources
+from pathlib import Path
 from typing import Any
 
 import yaml
@@ -193,7 +193,8 @@ class SafetySign:
 
 @lru_cache(maxsize=1)
 def _tables() -> dict[str, Any]:
-    text = resources.files("specgen.standards").joinpath(_DATA_FILE).read_text(encoding="utf-8")
+    # beside this module (importlib.resources would cost ~10 ms of imports: tempfile, shutil, zipfile)
+    text = Path(__file__).with_name(_DATA_FILE).read_text(encoding="utf-8")
     data = yaml.load(text, Loader=_YAML_LOADER)   # libyaml's parser where present: the same data, ~10x faster
     if not isinstance(data, dict):
         raise RuntimeError(f"{_DATA_FILE}: expected a mapping at the top")
