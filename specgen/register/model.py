@@ -9,12 +9,11 @@ from __future__ import annotations
 import dataclasses
 import datetime as _dt
 import functools
-import getpass
 import os
-import socket
 from typing import Any
 
 from specgen.errors import SpecError
+from specgen.records import record
 
 DEFAULT_NUMBER_FORMAT = "WO-{year}-{seq:05d}"
 DEFAULT_QUOTE_FORMAT = "Q-{year}-{seq:05d}"
@@ -48,7 +47,7 @@ STATE_ALIASES = {"in work": "in-work", "in_work": "in-work", "inwork": "in-work"
 STALE_UNCHECKABLE_S = 12 * 3600.0
 
 
-@dataclasses.dataclass(frozen=True, slots=True)
+@record(slots=True)
 class Order:
     """One work order as the register holds it. ``files`` keeps the order they were attached in."""
 
@@ -72,7 +71,7 @@ class Order:
         return data
 
 
-@dataclasses.dataclass(frozen=True, slots=True)
+@record(slots=True)
 class QuoteEntry:
     """One issued quote as the register holds it."""
 
@@ -94,7 +93,7 @@ class QuoteEntry:
         return data
 
 
-@dataclasses.dataclass(frozen=True, slots=True)
+@record(slots=True)
 class Event:
     """One state change (the first is always ``None -> issued``). ``kind`` is ``change`` for an
     ordinary move and ``correction`` for one outside the ordinary moves (always with ``why``)."""
@@ -112,7 +111,7 @@ class Event:
                 "by": self.by, "kind": self.kind}
 
 
-@dataclasses.dataclass(frozen=True, slots=True)
+@record(slots=True)
 class StaleNumber:
     """An ``issued`` number with no files: what a killed or crashed issue leaves behind."""
 
@@ -136,6 +135,8 @@ CSV_COLUMNS = ("number", "part", "revision", "fingerprint", "qty", "lot", "due",
 # --- who and where ----------------------------------------------------------------------------
 
 def login_name() -> str:
+    import getpass  # here, not at the top: `specgen --help` loads this module
+
     try:
         return getpass.getuser()
     except Exception:  # no login name in some containers
@@ -162,6 +163,8 @@ def this_host() -> str:
         namespace = os.readlink("/proc/self/ns/pid")
     except OSError:
         namespace = "-"
+    import socket  # here, not at the top: `specgen --help` loads this module
+
     return f"{socket.gethostname()}/{boot}/{namespace}"
 
 
