@@ -10,7 +10,7 @@ a key deleted or misspelt, two values swapped.
 
 The property: the spec is refused with one located line (a SpecError naming the file), or it designs
 with every number finite and every physical quantity (by its unit suffix: ``_v``, ``_a``, ``_m``, ...)
-inside the physical range the units module gives its dimension; never a traceback, a hang or NaN.
+inside its plausible range (``specgen.design.bounds.RANGE``); never a traceback, a hang or NaN.
 """
 
 from __future__ import annotations
@@ -28,7 +28,6 @@ ROOT = Path(__file__).resolve().parent.parent
 if str(ROOT) not in sys.path:
     sys.path.insert(0, str(ROOT))
 
-from specgen import units  # noqa: E402
 from specgen.api import demo_specs, design_text  # noqa: E402
 from specgen.design import bounds  # noqa: E402
 from specgen.errors import DesignFailed, SpecError  # noqa: E402
@@ -43,9 +42,6 @@ ODD_TEXT = ["", " ", "\x1b]0;title\x07", "a\x00b", "\u202eevil", "∞", "€", "
 EXPONENTS = [-300, -200, -30, -12, -9, -6, -3, -1, 1, 3, 6, 9, 12, 30, 200, 300]
 QUANTITY = re.compile(r"^\s*([-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?)\s*(\S.*)?$")
 
-# unit suffix of a Design field -> units dimension, and the results' envelope: the library's own rule
-# (specgen.design.bounds refuses a design beyond it), so the property checks what the program promises
-SUFFIX, SCALE = bounds.SUFFIX, bounds.SCALE
 NAN_WORD = re.compile(r"\b(nan|inf|infinity)\b", re.IGNORECASE)
 
 
@@ -138,51 +134,25 @@ def case_text(rng: random.Random) -> str:
     return yaml.safe_dump(mutate(rng, DEMO_DATA[name]), allow_unicode=True, sort_keys=False)
 
 
-def _numbers(obj, key=""):
-    if isinstance(obj, dict):
-        for k, v in obj.items():
-            yield from _numbers(v, str(k))
-    elif isinstance(obj, (list, tuple)):
-        for v in obj:
-            yield from _numbers(v, key)
-    elif isinstance(obj, (int, float)) and not isinstance(obj, bool):
-        yield key, obj
-    elif isinstance(obj, str):
-        yield key, obj
-
-
-OUTPUT_LARGEST = bounds.OUTPUT_LARGEST
 TINY = 1e-200      # a magnitude below this is an underflow on its way, not a physical value
 
 
 def problems_of_design(design) -> tuple[list[str], list[str]]:
     """(hard, soft) problems of the Design's JSON: hard is a non-finite or underflowing number or 'nan' in
-    a message; soft is a finite number outside its dimension's physical range (a failed design may say
-    a hot spot of 10^5 degC: the engine's to bound; the fuzzer lists them)."""
+    a message; soft is a finite number outside its plausible range (``bounds.outside_range``: the
+    pipeline's gate refuses such a design, so a soft problem means the gate let one through)."""
     hard, soft = [], []
-    for key, value in _numbers(design.to_dict()):
+    data = design.to_dict()
+    for path, value in bounds.leaves(data):
         if isinstance(value, str):
-            if key == "message" and NAN_WORD.search(value):
+            if path.endswith("message") and NAN_WORD.search(value):
                 hard.append(f"check message prints a non-finite number: '{value[:100]}'")
-            continue
-        if not math.isfinite(value):
-            hard.append(f"{key} = {value}")
-            continue
-        if value != 0 and abs(value) < TINY:
-            hard.append(f"{key} = {value:g} underflows")
-            continue
-        suffix = next((s for s in sorted(SUFFIX, key=len, reverse=True) if key.endswith(s)), None)
-        if suffix is None or value == 0:
-            continue
-        name = SUFFIX[suffix]
-        dim = units.DIMENSIONS[name]
-        value_si = value * SCALE.get(suffix, 1.0)
-        largest = OUTPUT_LARGEST.get(name, dim.largest)
-        if dim.si_unit == "degC":
-            if not dim.smallest <= value_si <= largest:
-                soft.append(f"{key} = {value:g} degC, outside {dim.range_text}")
-        elif abs(value_si) > largest:
-            soft.append(f"{key} = {value:g}, above the largest {dim.human[dim.human.index(' ') + 1:]} ({largest:g})")
+        elif not math.isfinite(value):
+            hard.append(f"{path} = {value}")
+        elif value != 0 and abs(value) < TINY:
+            hard.append(f"{path} = {value:g} underflows")
+    for path, value, dim, lowest, largest in bounds.outside_range(data):
+        soft.append(f"{path} = {value:g}, outside its plausible range ({lowest} to {largest:g} {dim.si_unit})")
     return hard, soft
 
 

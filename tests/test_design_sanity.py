@@ -1,6 +1,6 @@
 """A design that leaves the physical range ends in a located one-line reason (exit 1), never an absurd figure.
 
-The ranges (``specgen.design.limits``) rest on published limits: copper wire fuses within seconds well below
+The ranges (``specgen.design.bounds.RANGE``) rest on published limits: copper wire fuses within seconds well below
 100 A/mm^2 (Onderdonk's fusing relation; from memory); IEC 60085's highest thermal class is 250 degC; no soft
 magnetic material saturates above about 2.4 T (cobalt iron; from memory).
 """
@@ -15,7 +15,7 @@ import pytest
 
 from specgen.api import design_text
 from specgen.catalog.loader import load_catalog
-from specgen.design import limits
+from specgen.design import bounds
 from specgen.errors import DesignOutOfRange, SpecError
 
 # a 1:100 current transformer with a 10 ohm burden written as a plain transformer: 2 A into 10 ohm is 20 V,
@@ -63,11 +63,12 @@ def test_sanity_ranges_lie_beyond_every_demo_design(cat):
     from tests.golden_parts import golden_designs
 
     for name, data in golden_designs():
-        assert data["hot_spot_c"] < limits.SANE_HOT_SPOT_C, name
-        assert data["b_peak_max_t"] < limits.SANE_FLUX_DENSITY_T, name
+        assert data["hot_spot_c"] < bounds.HOTTEST_C, name
+        assert data["b_peak_max_t"] < bounds.RANGE["flux_density"][1], name
         for w in data["windings"]:
-            assert w["current_a"] < limits.SANE_CURRENT_A, name
-            assert w["current_density_a_mm2"] * 1e6 < limits.SANE_CURRENT_DENSITY_A_M2, name
+            assert w["current_a"] < bounds.RANGE["current"][1], name
+            assert w["current_density_a_mm2"] * 1e6 < bounds.RANGE["current_density"][1], name
+        assert not list(bounds.outside_range(data)), name
 
 
 def test_a_failing_but_physical_design_still_reports(cat):
@@ -86,3 +87,14 @@ windings:
     d = design_text(text, "hot.yaml", cat)
     assert d.hot_spot_c > 130.0 and any(c.code == "temperature" and c.level == "fail" for c in d.checks)
     json.dumps(d.to_dict(), allow_nan=False)
+
+
+def test_one_table_bounds_every_result_by_its_unit_suffix():
+    """``bounds.RANGE`` is the one table: a result beyond it is named by its path, whatever its nesting or
+    the unit its key is written in (A/mm², mm, kW/m³); values inside it, and zeros, pass."""
+    data = {"hot_spot_c": 450.0, "ambient_c": 40.0, "b_peak_t": 6.0, "b_limit_t": 0.3, "core": {"le_mm": 2e8, "ae_mm2": 97.0},
+            "windings": [{"current_density_a_mm2": 150.0, "current_a": 0.0}, {"current_density_a_mm2": 4.0}],
+            "losses": {"core_loss_density_kw_m3": 2e9}}
+    found = {path for path, *_ in bounds.outside_range(data)}
+    assert found == {"hot_spot_c", "b_peak_t", "core.le_mm", "windings[0].current_density_a_mm2",
+                     "losses.core_loss_density_kw_m3"}

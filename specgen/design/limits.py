@@ -51,17 +51,6 @@ THERMAL_MAX_PASSES = 60
 # spreads the heat to the can, 0.85 (common practice, from memory).
 COOLING_RISE_FACTOR = {"natural": 1.0, "forced": 0.6, "potted": 0.85}
 
-# physical sanity of a settled design (``pipeline``): outside these a design is a model out of its range, never
-# a figure to print; it ends with a located one-line reason (exit 1: the part cannot be built as asked)
-SANE_CURRENT_A = 1e5           # 100 kA: beyond any wound part of this shop (and the spec's own unit range)
-SANE_VOLTAGE_V = 1e6           # 1 MV: likewise
-SANE_CURRENT_DENSITY_A_M2 = 1e8  # 100 A/mm^2: copper wire fuses within seconds far below this (Onderdonk's
-                               # fusing relation; from memory); a design carrying it is no continuous rating
-SANE_HOT_SPOT_C = 400.0        # far above IEC 60085's highest class (250 degC) and every power ferrite's Curie
-                               # point: no insulation survives it and McLyman's fit is far outside its data
-SANE_FLUX_DENSITY_T = 5.0      # twice the highest saturation of any soft magnetic material (cobalt iron,
-                               # about 2.4 T; from memory): a linear B beyond it has no physical meaning
-
 # Curie point: permeability and saturation fall steeply in the last tens of kelvin below it; a hot spot within
 # this of it warns (common practice)
 CURIE_WARN_K = 30.0

@@ -17,14 +17,12 @@ Order of work:
 
 from __future__ import annotations
 
-import math
 from typing import Any
 
 from ..catalog.models import Catalog
-from ..errors import DesignOutOfRange
 from ..physics import wire as wiremod
 from . import kernel as K
-from . import limits as L
+from .bounds import refuse_out_of_range
 from .build import copper_lengths_m, winding_fr
 from .checks import run_checks
 from .floor import floor_data, history_entries
@@ -67,51 +65,8 @@ def design(spec: Spec, cat: Catalog) -> Design:
     ev, temp, passes = settle(spec, parts, run, ev, temp, shop.hotspot_margin_k)
     iterations += passes
     d = finish(spec, cat, parts, kind, ev, temp, run.summary(ev, temp), iterations)
-    _sane(spec, d)
+    refuse_out_of_range(spec, d)     # every result finite and inside its plausible range (bounds.RANGE)
     return d
-
-
-def _out_of_range(spec: Spec, message: str, *path: str | int) -> DesignOutOfRange:
-    err = spec_error(spec, message, *path)
-    return DesignOutOfRange(err.message, err.file, err.line, err.path)
-
-
-def _sane(spec: Spec, d: Design) -> None:
-    """Every number the Design reports is finite, and currents, current densities, voltages, lengths, flux
-    density and the hot spot lie in their physical sanity ranges (``limits``); else the design ends with a
-    located one-line reason (``DesignOutOfRange``, exit 1), never NaN, inf or an absurd figure in an output."""
-    where = f"on core {spec.core_id}"
-
-    def walk(x: object, path: str) -> None:
-        if isinstance(x, float) and not math.isfinite(x):
-            raise _out_of_range(spec, f"the design of {spec.part} gives a non-finite {path}: the requirement is "
-                                      f"outside what this tool models {where}", "windings")
-        if isinstance(x, dict):
-            for k, v in x.items():
-                walk(v, f"{path}.{k}" if path else str(k))
-        elif isinstance(x, list):
-            for i, v in enumerate(x):
-                walk(v, f"{path}[{i}]")
-    walk(d.to_dict(), "")
-    for i, w in enumerate(d.windings):
-        area = w.copper_area_m2
-        bad = (w.current_a > L.SANE_CURRENT_A or w.length_m < 0
-               or (area > 0 and w.current_a / area > L.SANE_CURRENT_DENSITY_A_M2)
-               or (w.voltage_v is not None and not 0.0 <= w.voltage_v <= L.SANE_VOLTAGE_V))
-        if bad:
-            raise _out_of_range(spec, f"winding {w.name} would carry {w.current_a:.3g} A "
-                                      f"({w.current_a / max(area, 1e-30) / 1e6:.3g} A/mm²) at "
-                                      f"{w.voltage_v or 0.0:.3g} V: the requirement cannot be built {where} "
-                                      f"(more than {L.SANE_CURRENT_DENSITY_A_M2 / 1e6:g} A/mm² fuses copper)",
-                                "windings", i)
-    if max(d.b_peak_max_t, d.b_peak_t) > L.SANE_FLUX_DENSITY_T:
-        raise _out_of_range(spec, f"the requirement drives the core to {d.b_peak_max_t:.3g} T, beyond any magnetic "
-                                  f"material ({L.SANE_FLUX_DENSITY_T:g} T): it cannot be built {where}; more turns "
-                                  f"or a core with more Ae", "windings")
-    if d.hot_spot_c > L.SANE_HOT_SPOT_C:
-        raise _out_of_range(spec, f"the losses would heat {spec.part} past {L.SANE_HOT_SPOT_C:g} °C, where no "
-                                  f"insulation survives: it cannot be built {where}; a larger core or a lower loss",
-                            "operating")
 
 
 def _section_pins(w: Winding, k: int) -> tuple[str, str]:

@@ -23,6 +23,7 @@ from ..physics import wire as wiremod
 from ..physics.cooling import MCLYMAN_EXPONENT
 from . import kernel as K
 from . import limits as L
+from .bounds import HOTTEST_C
 from .resolve import spec_error
 from .result import Check
 from .spec import Spec
@@ -74,13 +75,13 @@ def settle(spec: Spec, parts: Parts, run: KindRun, ev: Evaluation[Any], temp: Th
         if settled:
             break
     margin = _stability_margin(spec, mat, ev, temp)
-    if margin is not None and (margin <= 0.0 or temp.hot_c > L.SANE_HOT_SPOT_C):
+    if margin is not None and (margin <= 0.0 or temp.hot_c > HOTTEST_C):
         raise _runaway(spec, mat, ev, temp)
     return ev, replace(temp, core_factor=core_loss_factor(mat, temp.winding_c), stability_margin=margin), passes
 
 
 def _stability_margin(spec: Spec, mat: Material, ev: Evaluation[Any], temp: ThermalState) -> float | None:
-    """1 - R_th dP/dT at the part's balance (> 0: stable); 0 where no balance exists below SANE_HOT_SPOT_C;
+    """1 - R_th dP/dT at the part's balance (> 0: stable); 0 where no balance exists below bounds.HOTTEST_C;
     None without a loss-temperature fit."""
     if mat.loss_temperature is None or ev.total_w <= 0.0 or temp.rise_k <= 0.0:
         return None
@@ -97,7 +98,7 @@ def _stability_margin(spec: Spec, mat: Material, ev: Evaluation[Any], temp: Ther
 
     # the balance of the linearised cooling through the settled point: T = T0 + r_local (P(T) - P(T0))
     t0 = temp.winding_c - r_local * ev.total_w
-    limit = max(L.SANE_HOT_SPOT_C, temp.winding_c + 1.0)
+    limit = max(HOTTEST_C, temp.winding_c + 1.0)
     point = ct.thermal_operating_point(loss_w, r_local, t0, search_limit_c=limit)
     if not point.exists or point.margin is None:
         return 0.0
@@ -106,7 +107,7 @@ def _stability_margin(spec: Spec, mat: Material, ev: Evaluation[Any], temp: Ther
 
 def _runaway(spec: Spec, mat: Material, ev: Evaluation[Any], temp: ThermalState) -> DesignOutOfRange:
     err = spec_error(spec, f"thermal runaway: the core loss of {mat.id} rises with temperature faster than the "
-                           f"cooling carries it away, so the part finds no balance below {L.SANE_HOT_SPOT_C:g} °C: it "
+                           f"cooling carries it away, so the part finds no balance below {HOTTEST_C:g} °C: it "
                            f"cannot be built on core {spec.core_id} as asked; lower the flux density (more turns), "
                            f"a larger core or better cooling", "operating")
     return DesignOutOfRange(err.message, err.file, err.line, err.path)
