@@ -4,8 +4,9 @@ from __future__ import annotations
 
 from ..catalog.models import Catalog, Material
 from . import kernel as K
+from .result import Check
 from .spec import Spec
-from .state import FluxLimit
+from .state import DesignState, FluxLimit
 
 
 def b_sat_hot_t(material: Material, temp_c: float) -> float:
@@ -32,3 +33,19 @@ def flux_limit(spec: Spec, cat: Catalog, material: Material, hot_c: float) -> Fl
     if source == K.FLUX_LIMIT_DESIGN:
         return FluxLimit(value, f"material design value ({m.id})")
     return FluxLimit(value, f"{frac:.0%} of B_sat {b_sat_hot_t(m, hot_c):.2f} T at {hot_c:.0f} °C (shop rule)")
+
+
+def saturation_checks(state: DesignState, said: str, b_t: float, remedy: str, *, slack: float = 1.0,
+                      limit_in_pass: bool = True) -> list[Check]:
+    """The saturation check a kind heads its list with: fail where ``b_t`` passes B_sat at the hot spot
+    (``remedy`` says what to change), warn above the working limit (times ``slack``), else pass.
+    ``said`` is the kind's own account of the flux (``B_pk ... at ...``)."""
+    temp, limit = state.temp, state.summary.flux_limit
+    bsat = b_sat_hot_t(state.parts.material, temp.hot_c)
+    if b_t > bsat:
+        return [Check("fail", "saturation", f"{said} exceeds B_sat {bsat:.2f} T at {temp.hot_c:.0f} °C: {remedy}")]
+    if b_t > limit.value_t * slack:
+        return [Check("warn", "saturation", f"{said} is above the {limit.value_t:.3f} T working limit "
+                                            f"({limit.basis}) though below B_sat {bsat:.2f} T")]
+    shown = f", limit {limit.value_t:.3f} T" if limit_in_pass else ""
+    return [Check("pass", "saturation", f"{said}{shown}; B_sat at {temp.hot_c:.0f} °C is {bsat:.2f} T")]

@@ -25,7 +25,7 @@ from ...present import frequency
 from ...records import record
 from .. import kernel as K
 from ..build import copper_lengths_m, lay_out, section_frs, winding_fr
-from ..flux import b_sat_hot_t, flux_limit
+from ..flux import b_sat_hot_t, flux_limit, saturation_checks
 from ..result import Check, CurrentTransformerResult, Limit
 from ..spec import CurrentTransformerReq, Spec, Winding
 from ..state import DesignState, ElectricalSummary, Evaluation, KindTests, Parts, ThermalState, WindingState, WireChoice
@@ -189,20 +189,13 @@ class CurrentTransformerKind:
 
     def flux_checks(self, state: DesignState) -> list[Check]:
         """Saturation at the top of the primary range into the rated burden, against the hot B_sat."""
-        s, temp = state.summary, state.temp
-        ct = s.current_transformer
+        ct = state.summary.current_transformer
         assert ct is not None
-        bsat = b_sat_hot_t(state.parts.material, temp.hot_c)
-        b = s.b_peak_max_t
-        said = f"B_pk {b * 1e3:.3g} mT at {ct.primary_current_max_a:g} A into {ct.burden_ohm:g} ohm"
-        if b > bsat:
-            return [Check("fail", "saturation", f"{said} exceeds B_sat {bsat:.2f} T at {temp.hot_c:.0f} °C: the "
-                                                f"knee burden is {ct.knee_burden_ohm:.3g} ohm; more secondary "
-                                                f"turns, a core with more Ae or a smaller burden")]
-        if b > s.flux_limit.value_t:
-            return [Check("warn", "saturation", f"{said} is above the working limit {s.flux_limit.value_t:.2f} T "
-                                                f"({s.flux_limit.basis}) though below B_sat {bsat:.2f} T")]
-        return [Check("pass", "saturation", f"{said}; B_sat at {temp.hot_c:.0f} °C is {bsat:.2f} T")]
+        b = state.summary.b_peak_max_t
+        return saturation_checks(state, f"B_pk {b * 1e3:.3g} mT at {ct.primary_current_max_a:g} A into "
+                                        f"{ct.burden_ohm:g} ohm", b,
+                                 f"the knee burden is {ct.knee_burden_ohm:.3g} ohm; more secondary turns, a core "
+                                 f"with more Ae or a smaller burden", limit_in_pass=False)
 
     def test_limits(self, state: DesignState) -> KindTests:
         """Ratio at the rated current into the rated burden, polarity, and the open-secondary caution."""

@@ -36,7 +36,7 @@ from ...present import frequency, si
 from ...records import record
 from .. import kernel as K
 from ..build import copper_lengths_m, lay_out, leakage_h
-from ..flux import b_sat_hot_t, flux_limit
+from ..flux import flux_limit, saturation_checks
 from ..flyback_spec import FlybackReq
 from ..resolve import spec_error, too_many_turns
 from ..result import Check, FlybackResult, FlybackWinding, InductorResult, Limit
@@ -349,20 +349,11 @@ class FlybackKind:
 
     def flux_checks(self, state: DesignState) -> list[Check]:
         """B_pk = L_p I_pk / (N_p A_e) at the worst line and full load against B_sat at the hot spot."""
-        s, temp = state.summary, state.temp
-        fr = s.flyback
+        fr = state.summary.flyback
         assert fr is not None
-        bsat = b_sat_hot_t(state.parts.material, temp.hot_c)
-        b = s.b_peak_max_t
-        said = f"B_pk {b:.3f} T (swing {fr.delta_b_t:.3f} T) at full load, worst line"
-        if b > bsat:
-            return [Check("fail", "saturation", f"{said} exceeds B_sat {bsat:.2f} T at {temp.hot_c:.0f} °C: more "
-                                                f"primary turns (and gap) or a core with more Ae")]
-        if b > s.flux_limit.value_t * 1.0005:
-            return [Check("warn", "saturation", f"{said} is above the {s.flux_limit.value_t:.3f} T working limit "
-                                                f"({s.flux_limit.basis}) though below B_sat {bsat:.2f} T")]
-        return [Check("pass", "saturation", f"{said}, limit {s.flux_limit.value_t:.3f} T; B_sat at "
-                                            f"{temp.hot_c:.0f} °C is {bsat:.2f} T")]
+        b = state.summary.b_peak_max_t
+        return saturation_checks(state, f"B_pk {b:.3f} T (swing {fr.delta_b_t:.3f} T) at full load, worst line", b,
+                                 "more primary turns (and gap) or a core with more Ae", slack=1.0005)
 
     def test_limits(self, state: DesignState) -> KindTests:
         """L_p, the AL of the gapped set, leakage with the secondaries shorted, turns ratios, polarity."""
