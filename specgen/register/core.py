@@ -47,22 +47,7 @@ import specgen.register.model as model
 from specgen.errors import SpecError, escape_controls
 from specgen.freetext import MAX_NAME_CHARS, MAX_NOTE_CHARS, check_free_text, check_name
 
-from .model import (
-    DEFAULT_NUMBER_FORMAT,
-    DEFAULT_QUOTE_FORMAT,
-    QUOTE_STATES,
-    QUOTE_TRANSITIONS,
-    STALE_UNCHECKABLE_S,
-    STATES,
-    TRANSITIONS,
-    Event,
-    Order,
-    QuoteEntry,
-    StaleNumber,
-    iso,
-    now_utc,
-    one_line,
-)
+from .model import Event, Order, QuoteEntry, StaleNumber, iso, now_utc, one_line
 from .postgres import is_url
 
 # Test-only hook: called with a stage name ("allocate:in-transaction", "allocate:committed", "retry",
@@ -93,10 +78,10 @@ class _Kind:
 
 ORDERS = _Kind("work order", "orders", "order_files", "order_events",
                "number, part, revision, fingerprint, qty, lot, due, issued_at, issued_by, state, void_reason",
-               STATES, TRANSITIONS, "", Order)
+               model.STATES, model.TRANSITIONS, "", Order)
 QUOTES = _Kind("quote", "quotes", "quote_files", "quote_events",
                "number, part, revision, fingerprint, customer, valid_until, issued_at, issued_by, state, "
-               "void_reason", QUOTE_STATES, QUOTE_TRANSITIONS, "quote:", QuoteEntry)
+               "void_reason", model.QUOTE_STATES, model.QUOTE_TRANSITIONS, "quote:", QuoteEntry)
 
 
 class Register:
@@ -173,7 +158,7 @@ class Register:
     # --- issuing ------------------------------------------------------------------------------
 
     def allocate(self, part: str, revision: str, fingerprint: str, qty: int, lot: str | None = None,
-                 due: object = None, issued_by: str | None = None, fmt: str = DEFAULT_NUMBER_FORMAT,
+                 due: object = None, issued_by: str | None = None, fmt: str = model.DEFAULT_NUMBER_FORMAT,
                  number: str | None = None, *, now: _dt.datetime | None = None, quote: str | None = None,
                  draft: bool = False) -> str:
         """Record a new work order in state ``issued`` and return its number.
@@ -196,7 +181,7 @@ class Register:
 
     def allocate_quote(self, part: str, revision: str, fingerprint: str, *, customer: str | None = None,
                        valid_until: object = None, issued_by: str | None = None,
-                       fmt: str = DEFAULT_QUOTE_FORMAT, now: _dt.datetime | None = None) -> str:
+                       fmt: str = model.DEFAULT_QUOTE_FORMAT, now: _dt.datetime | None = None) -> str:
         """Record a new quote in state ``issued`` and return its number (numbered like work orders,
         on a sequence of its own; never reused)."""
         for name, value in (("part", part), ("revision", revision), ("fingerprint", fingerprint)):
@@ -344,7 +329,7 @@ class Register:
 
     def set_state(self, number: str, state: str, why: str | None = None, *, by: str | None = None,
                   correction: bool = False) -> Order:
-        """Move a work order to ``state`` (see :data:`TRANSITIONS`); ``void`` needs ``why``.
+        """Move a work order to ``state`` (see :data:`model.TRANSITIONS`); ``void`` needs ``why``.
 
         A move outside the ordinary ones (``complete`` back to ``in-work``, a void that was a
         mistake) is refused unless ``correction`` is set, and a correction needs ``why``: it is
@@ -404,7 +389,7 @@ class Register:
 
     # --- unfinished numbers -------------------------------------------------------------------
 
-    def stale(self, *, uncheckable_after_s: float = STALE_UNCHECKABLE_S,
+    def stale(self, *, uncheckable_after_s: float = model.STALE_UNCHECKABLE_S,
               voidable_only: bool = False) -> builtins.list[StaleNumber]:
         """Every ``issued`` work order and quote with no files, with its issuing process's state.
 
@@ -441,7 +426,7 @@ class Register:
                 out.append(StaleNumber(label, number, part, issued_at, issued_by, max(age, 0.0), process, voidable))
         return out
 
-    def void_stale(self, *, uncheckable_after_s: float = STALE_UNCHECKABLE_S, by: str | None = None,
+    def void_stale(self, *, uncheckable_after_s: float = model.STALE_UNCHECKABLE_S, by: str | None = None,
                    reason: str | None = None) -> builtins.list[str]:
         """Void every voidable stale number (see :meth:`stale`) with a reason; returns the numbers.
 
