@@ -5,7 +5,7 @@ Every mistake is a located ``SpecError`` (file, line and key path; one line, exi
 
 from __future__ import annotations
 
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, fields
 from pathlib import Path
 from typing import Any
 
@@ -61,13 +61,8 @@ class ChokeDuty:
 
 
 @dataclass(frozen=True, slots=True)
-class Requirement:
-    file: str
-    id: str
-    part: str | None
-    title: str
-    customer: str
-    kind: str
+class Operating:
+    """The requirement's operating conditions (its ``operating:`` section; a choke's duty from ``inductor:``)."""
     frequency_hz: float
     waveform: str
     duty: float
@@ -77,6 +72,17 @@ class Requirement:
     max_rise_k: float | None
     flux_limit_t: float | None
     efficiency: float | None
+
+
+@dataclass(frozen=True, slots=True)
+class Requirement(Operating):
+    """What the part must do: its operating conditions (``Operating``'s fields) and the rest of the file."""
+    file: str
+    id: str
+    part: str | None
+    title: str
+    customer: str
+    kind: str
     windings: tuple[ReqWinding, ...]    # transformer; empty for a choke
     rating: str                     # between windings: functional | basic | reinforced
     to_core: str                    # windings to core
@@ -136,21 +142,8 @@ def _validate_part(r: Reader) -> str | None:
     return str(part).strip()
 
 
-@dataclass(frozen=True, slots=True)
-class _Operating:
-    frequency_hz: float
-    waveform: str
-    duty: float
-    ambient_c: float
-    cooling: str
-    insulation_class_c: int
-    max_rise_k: float | None
-    flux_limit_t: float | None
-    efficiency: float | None
-    text: dict[str, str | None]
-
-
-def _operating(r: Reader, kind: str) -> _Operating:
+def _operating(r: Reader, kind: str) -> tuple[Operating, dict[str, str | None]]:
+    """The operating conditions, and their texts as written (for the draft spec)."""
     from ..design.spec import COOLING, WAVEFORMS, insulation_class
 
     op = r.mapping("operating")
@@ -176,7 +169,7 @@ def _operating(r: Reader, kind: str) -> _Operating:
     eff = op.number("efficiency", None, minimum=0.3, maximum=0.999)
     text = {k: _text(op, k) for k in ("frequency", "ambient", "flux_limit", "insulation_class")}
     op.done()
-    return _Operating(freq, waveform, duty, ambient, cooling, cls, max_rise, flux, eff, text)
+    return Operating(freq, waveform, duty, ambient, cooling, cls, max_rise, flux, eff), text
 
 
 def _winding(wr: Reader) -> ReqWinding:
@@ -288,8 +281,7 @@ def parse_requirement(data: Any, name: str) -> Requirement:
     r = Reader(data, name)
     r.done(TOP_KEYS)             # a typo is named as such before a key it hides is reported missing
     kind = r.choice("kind", KINDS)
-    op = _operating(r, kind)
-    text = dict(op.text)
+    op, text = _operating(r, kind)
     duty = op.duty
     windings: tuple[ReqWinding, ...] = ()
     choke = None
@@ -302,9 +294,8 @@ def parse_requirement(data: Any, name: str) -> Requirement:
     req = Requirement(
         file=name, id=r.text("requirement", Path(name).stem, max_len=60), part=_validate_part(r),
         title=r.text("title", "", max_len=200), customer=r.text("customer", "", max_len=200), kind=kind,
-        frequency_hz=op.frequency_hz, waveform=op.waveform, duty=duty, ambient_c=op.ambient_c, cooling=op.cooling,
-        insulation_class_c=op.insulation_class_c, max_rise_k=op.max_rise_k, flux_limit_t=op.flux_limit_t,
-        efficiency=op.efficiency, windings=windings, rating=rating, to_core=to_core, working_voltage_v=wv,
+        **{f.name: getattr(op, f.name) for f in fields(Operating)} | {"duty": duty},
+        windings=windings, rating=rating, to_core=to_core, working_voltage_v=wv,
         limits=limits, choke=choke, text=text, notes=r.text("notes", "", max_len=5000))
     r.done()
     return req
