@@ -188,6 +188,18 @@ class SectionWinding:
     usable_breadth_m: npt.NDArray[np.float64]
 
 
+@record(slots=True)
+class _Rows:
+    """``wind_section``'s per-row inputs, each broadcast to one value per row."""
+    turns: npt.NDArray[np.float64]
+    pitch: npt.NDArray[np.float64]
+    lh: npt.NDArray[np.float64]             # layer height
+    start: npt.NDArray[np.float64]
+    layer_tape: npt.NDArray[np.float64]
+    foil: npt.NDArray[np.bool_]             # one turn per layer
+    limit: npt.NDArray[np.float64] | None   # the build a toroid row may reach
+
+
 _TOROID_BINS = (4, 16, 64, 256, 1024)
 _TOROID_BLOCKS = (1,) + _TOROID_BINS        # toroid layers are laid in blocks of columns ending here
 
@@ -237,18 +249,16 @@ def wind_section(former: FormerArrays, turns: ArrayLike, pitch_m: ArrayLike, lay
         out["usable"][bob], ok_all[bob] = usable, ok
     tor = np.flatnonzero(kind == _TOROID)
     if tor.size:
-        limit = None if limit_m is None else row(limit_m)
-        _wind_toroid(former, tor, t_all, pitch, lh, start, lt, foil, limit, out, ok_all)
+        rows = _Rows(t_all, pitch, lh, start, lt, foil, None if limit_m is None else row(limit_m))
+        _wind_toroid(former, tor, rows, out, ok_all)
     return SectionWinding(ok=ok_all, turns_per_layer=out["cap"], layers=out["layers"], last_layer_turns=out["last"],
                           end_build_m=out["end"], copper_length_m=out["length"], usable_breadth_m=out["usable"])
 
 
-def _toroid_layer_bound(fm: FormerArrays, tor: npt.NDArray[np.intp], turns: npt.NDArray[np.float64],
-                        pitch: npt.NDArray[np.float64], lh: npt.NDArray[np.float64],
-                        start: npt.NDArray[np.float64], layer_tape: npt.NDArray[np.float64],
-                        limit: npt.NDArray[np.float64] | None) -> npt.NDArray[np.float64]:
+def _toroid_layer_bound(fm: FormerArrays, tor: npt.NDArray[np.intp], rows: _Rows) -> npt.NDArray[np.float64]:
     """The most layers a toroid row may lay: as many as fit below ``limit``, and no more than its turns over
     the smallest capacity an allowed layer has."""
+    turns, pitch, lh, start, layer_tape, limit = rows.turns, rows.pitch, rows.lh, rows.start, rows.layer_tape, rows.limit
     if limit is None:
         return np.full(tor.size, float(_TOROID_BINS[-1]))
     step = lh[tor] + layer_tape[tor]
@@ -259,15 +269,13 @@ def _toroid_layer_bound(fm: FormerArrays, tor: npt.NDArray[np.intp], turns: npt.
     return np.clip(np.minimum(lmax, need), 1.0, _TOROID_BINS[-1])
 
 
-def _wind_toroid(fm: FormerArrays, tor: npt.NDArray[np.intp], turns: npt.NDArray[np.float64],
-                 pitch: npt.NDArray[np.float64], lh: npt.NDArray[np.float64], start: npt.NDArray[np.float64],
-                 layer_tape: npt.NDArray[np.float64], foil: npt.NDArray[np.bool_],
-                 limit: npt.NDArray[np.float64] | None, out: dict[str, npt.NDArray[np.float64]],
+def _wind_toroid(fm: FormerArrays, tor: npt.NDArray[np.intp], rows: _Rows, out: dict[str, npt.NDArray[np.float64]],
                  ok_out: npt.NDArray[np.bool_]) -> None:
     """Toroid rows layer by layer: layers are laid in blocks of columns (``_TOROID_BLOCKS``), each block only for
     the rows that have not yet held all their turns, so a row costs about the layers it needs. The copper
     length is summed layer after layer (as the engine's build does)."""
-    lmax = _toroid_layer_bound(fm, tor, turns, pitch, lh, start, layer_tape, limit)
+    lmax = _toroid_layer_bound(fm, tor, rows)
+    turns, pitch, lh, start, layer_tape, foil = rows.turns, rows.pitch, rows.lh, rows.start, rows.layer_tape, rows.foil
     t = turns[tor]
     n = tor.size
     length = np.zeros(n)
@@ -303,12 +311,12 @@ def _wind_toroid(fm: FormerArrays, tor: npt.NDArray[np.intp], turns: npt.NDArray
         reach = cum >= tg[:, None]
         done = reach[:, -1]
         first = np.argmax(reach, axis=1)
-        rows = np.arange(pos.size)
-        before = np.where(first > 0, cum[rows, np.maximum(first - 1, 0)], held)
+        ri = np.arange(pos.size)
+        before = np.where(first > 0, cum[ri, np.maximum(first - 1, 0)], held)
         # turns in each layer of the block: full layers before the one that holds the last turn, that one
         # its remainder; rows not done yet lay every layer of the block full
         nturn = np.where(j - lo < np.where(done, first, width)[:, None], cap, 0.0)
-        nturn[rows[done], first[done]] = (tg - before)[done]
+        nturn[ri[done], first[done]] = (tg - before)[done]
         for col in range(width):
             acc = acc + nturn[:, col] * tl[:, col]
         held = cum[:, -1]
