@@ -57,7 +57,6 @@ windings:                    # list order is the build order unless build_order 
     role: primary            # primary | secondary | auxiliary | shield (inductors: main)
     voltage: 230 V           # rms for sine; amplitude for square/unipolar
     voltage_max: 253 V       # top of the range (+10 %): the flux check uses it
-    # voltage_min: 207 V     # bottom of the range
     wire: auto               # catalogue wire id, auto (round magnet wire) or auto-litz
     # strands: 1             # strands in hand (parallel); default: decided by the design
     # turns: 1330            # fix the turn count instead of calculating it

@@ -23,6 +23,7 @@ from scipy import constants, integrate
 
 from specgen.api import design_file
 from specgen.catalog.loader import load_catalog
+from specgen.present import si_set
 
 DEMO = Path(__file__).resolve().parent.parent / "specgen" / "demo" / "BH-5018.yaml"
 
@@ -95,6 +96,8 @@ def test_inductance_min_at_the_peak_current(tmp_path, cat, minimum_uh, level):
     assert d.inductor.inductance_min_h == pytest.approx(minimum_uh * 1e-6)
     (chk,) = [c for c in d.checks if c.code == "inductance-at-peak"]
     assert chk.level == level
+    got_text, need_text = si_set([d.inductor.inductance_at_peak_h, minimum_uh * 1e-6], "H")   # the one formatter
+    assert chk.message.startswith(f"L {got_text} at the peak current 20.0 A") and need_text in chk.message
     (limit,) = [t for t in d.tests.inductance if t.name.startswith("inductance at 20 A")]
     assert limit.low == pytest.approx(minimum_uh * 1e-6) and limit.nominal == pytest.approx(want, rel=1e-8)
     data = json.loads(json.dumps(d.to_dict()))

@@ -46,6 +46,10 @@ CASES = [
      "windings[0].current", ("'current' is not used by kind transformer on a primary winding", "loads")),
     ("primary-va", TRANSFORMER, "    voltage: 18 V\n", "    voltage: 18 V\n    va: 10 VA\n", "va: 10 VA",
      "windings[0].va", ("'va' is not used by kind transformer",)),
+    # a primary's low line: the outputs are met at its nominal voltage, so voltage_min was accepted and dropped
+    ("primary-voltage-min", TRANSFORMER, "    voltage: 18 V\n", "    voltage: 18 V\n    voltage_min: 16 V\n",
+     "voltage_min: 16 V", "windings[0].voltage_min",
+     ("'voltage_min' is not used by kind transformer on a primary winding", "nominal voltage", "low line")),
     ("secondary-voltage-max", TRANSFORMER, "    voltage: 9 V\n", "    voltage: 9 V\n    voltage_max: 10 V\n",
      "voltage_max: 10 V", "windings[1].voltage_max", ("'voltage_max' is not used by kind transformer",)),
     ("inductor-winding-current", CHOKE, "    strands: 2\n", "    strands: 2\n    current: 7.5 A\n", "current: 7.5 A",
@@ -99,3 +103,19 @@ def test_powder_core_refuses_a_gap_key(tmp_path, key, value):
         design_file(spec)
     msg = str(err.value)
     assert f"powder.yaml:{_line_of(text, f'{key}: {value}')}: core.{key}: " in msg and "powder core" in msg, msg
+
+
+@pytest.mark.parametrize("old, new, key", [
+    ("voltage_max: 253 V}", "voltage_max: 253 V, voltage_min: 207 V}", "voltage_min"),
+    ("voltage: 12 V, current: 2.5 A}", "voltage: 12 V, voltage_max: 13 V, current: 2.5 A}", "voltage_max")])
+def test_search_requirement_refuses_what_the_design_does_not_use(tmp_path, old, new, key):
+    """The search's requirement refuses the same keys with the same sentence (its draft would have dropped them)."""
+    from specgen.search.requirement import load_requirement
+
+    text = _edit(Path(__file__).parent.parent / "specgen" / "demo" / "REQ-1042.yaml", old, new)
+    path = tmp_path / "req.yaml"
+    path.write_text(text, encoding="utf-8")
+    with pytest.raises(SpecError) as err:
+        load_requirement(path)
+    msg = str(err.value)
+    assert f"req.yaml:{_line_of(text, new)}" in msg and f".{key}: '{key}' is not used" in msg, msg

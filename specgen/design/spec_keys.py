@@ -19,6 +19,9 @@ _TRANSFORMER_WINDING: dict[str, dict[str, str]] = {
         "current": "the primary current follows from the loads (the secondaries' currents and the losses)",
         "va": "the primary's power follows from the loads (the secondaries' currents or va)",
         "same_turns_as": "several primaries get equal turns from their declared connections",
+        "voltage_min": "the outputs are met at the primary's nominal voltage (within their voltage_tolerance) and "
+                       "the flux at its voltage_max; nothing is designed at a low line, so if the outputs must hold "
+                       "there, give that low line as the primary's voltage",
     },
     "secondary": {
         "voltage_min": "an output is held at its nominal voltage within its voltage_tolerance",
@@ -47,8 +50,14 @@ _INDUCTOR_OPERATING = {
 
 def winding_key_used(kind: str, role: str, key: str) -> bool:
     """Whether a winding of this role in this kind uses the key (a draft spec writes only those)."""
+    return unused_winding_key_reason(kind, role, key) is None
+
+
+def unused_winding_key_reason(kind: str, role: str, key: str) -> str | None:
+    """Why a winding of this role in this kind does not use the key (None: it does); the search's requirement
+    refuses such keys with the same sentence."""
     table = _TRANSFORMER_WINDING.get(role, {}) if kind == "transformer" else _INDUCTOR_WINDING if kind == "inductor" else {}
-    return key not in table
+    return table.get(key)
 
 
 def refuse_unused_keys(kind: str, core: Reader, op: Reader, windings: tuple[Winding, ...],

@@ -9,6 +9,7 @@ from dataclasses import dataclass, field, fields
 from pathlib import Path
 from typing import Any
 
+from ..design.spec_keys import unused_winding_key_reason
 from ..errors import SpecError
 from ..loading import RENAMED_KEYS, Reader, load_yaml
 from ..present import si
@@ -189,6 +190,10 @@ def _winding(wr: Reader) -> ReqWinding:
         raise wr.error(f"a {role} winding needs its current (or va)", "current")
     if role == "primary" and (w.current_a is not None or w.va is not None):
         raise wr.error("the primary current follows from the loads; give the secondaries' currents", "current")
+    for key in ("voltage_min", "voltage_max"):
+        why = unused_winding_key_reason("transformer", role, key)
+        if why is not None and wr.has(key):
+            raise wr.error(f"'{key}' is not used on a {role} winding: {why}", key)
     if w.voltage_max_v is not None and w.voltage_max_v < w.voltage_v:
         raise wr.error("voltage_max is below the nominal voltage", "voltage_max")
     if w.voltage_min_v is not None and w.voltage_min_v > w.voltage_v:

@@ -15,7 +15,7 @@ import math
 from ...catalog.models import Catalog
 from ...physics import gap as gapmod
 from ...physics import permeability
-from ...present import frequency, si
+from ...present import frequency, si, si_set
 from ...records import record
 from .. import kernel as K
 from ..build import copper_lengths_m, lay_out, section_frs, winding_fr
@@ -176,12 +176,13 @@ class InductorRun:
         need, got = ind.inductance_min_h, ind.inductance_at_peak_h
         if need is None or got is None:
             return []
-        what = f"L {got * 1e6:.4g} µH at the peak current {ind.current_peak_a:.3g} A"
+        got_text, need_text = si_set([got, need], "H")
+        what = f"L {got_text} at the peak current {si(ind.current_peak_a, 'A', 3)}"
         if got < need:
             return [Check("fail", "inductance-at-peak",
-                          f"{what} is below the {need * 1e6:.4g} µH required there: more turns on a larger core, "
+                          f"{what} is below the {need_text} required there: more turns on a larger core, "
                           f"or a powder that rolls off less")]
-        return [Check("pass", "inductance-at-peak", f"{what} against {need * 1e6:.4g} µH required there")]
+        return [Check("pass", "inductance-at-peak", f"{what} against {need_text} required there")]
 
     def iron_share_checks(self, mg: Magnetics) -> list[Check]:
         """A warning where the core, not the gap, holds most of the path's reluctance (``kernel.IRON_SHARE_WARN``)."""
