@@ -21,7 +21,8 @@ from .errors import SpecError
 #: format, the register's location, ``source``) changes the paperwork or the price, not the part.
 #: A shop figure the design starts reading must be added here (tests/test_register_location.py
 #: checks every ``shop.<figure>`` the design package reads against this list).
-DESIGN_SHOP_KEYS = ("current_density", "bulge_factor", "lead_length", "flux_limit_fraction", "hotspot_margin",
+DESIGN_SHOP_KEYS = ("current_density", "bulge_factor", "lead_length", "flux_limit_fraction", "powder_saturation_fraction",
+                    "cooling", "hotspot_margin",
                     "hipot", "insulation_resistance", "tolerances", "insulation", "voltage_tolerance")
 
 

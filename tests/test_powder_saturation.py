@@ -122,3 +122,19 @@ def test_gapped_core_peak_inductance_is_the_built_one(cat):
     d = design_file(DEMO.parent / "BH-3305.yaml", cat=cat)
     assert d.inductor.inductance_at_peak_h == d.inductor.inductance_h and d.inductor.inductance_min_h is None
     assert not any(c.code == "inductance-at-peak" for c in d.checks)
+
+
+def test_saturation_fraction_is_the_shops_setting(tmp_path, cat):
+    """The 80 % is the shop's choice (``powder_saturation_fraction`` in shop.yaml, common practice), not a constant:
+    a shop that sets 0.6 gets 60 % of the curve's ceiling as its limit, in the design and its flux-limit basis."""
+    import dataclasses
+
+    from specgen.catalog.loader import load_catalog as load
+
+    strict = dataclasses.replace(cat, shop=dataclasses.replace(cat.shop, powder_saturation_fraction=0.6))
+    d = design_file(_variant(tmp_path, "over", *OVER_BIASED), cat=strict)
+    mat, f = _curve(cat, d)
+    ceiling = constants.mu_0 * mat.mu_initial * integrate.quad(f, 0.0, math.inf, epsrel=1e-12)[0]
+    assert d.b_limit_t == pytest.approx(0.6 * min(ceiling, d.b_sat_hot_t), rel=1e-8)
+    assert d.b_limit_basis.startswith("60% of the") and "powder_saturation_fraction" in d.b_limit_basis
+    assert load(None).shop.powder_saturation_fraction == 0.8    # the demo shop's setting

@@ -486,6 +486,7 @@ def _shop(r: Reader) -> Shop:
         current_density_a_m2=densities, bulge_factor=r.number("bulge_factor", 1.12, minimum=1.0, maximum=1.6),
         lead_length_m=r.quantity("lead_length", "length", 0.1, allow_zero=True, maximum=MAX_DIMENSION_M),
         flux_limit_fraction=r.number("flux_limit_fraction", 0.8, minimum=0.3, maximum=1.0),
+        powder_saturation_fraction=r.number("powder_saturation_fraction", 0.8, minimum=0.3, maximum=1.0),
         hotspot_margin_k=r.quantity("hotspot_margin", "temperature_difference", 10.0, allow_zero=True, maximum=100.0),
         work_order_format=fmt, hipot=hipot, insulation_resistance=insulation_resistance,
         voltage_tolerance=r.tolerance_pair("voltage_tolerance", (0.0, 0.03)) or (0.0, 0.03),

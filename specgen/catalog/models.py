@@ -320,6 +320,9 @@ class Shop:
     register_path: str | None = None   # the work-order register, if the shop keeps one fixed place
     # an output winding's voltage band at full load, fractions (minus, plus) of the voltage asked
     voltage_tolerance: tuple[float, float] = (0.0, 0.03)
+    # a powder counts as saturated at this fraction of the lower of B_sat and its DC-bias curve's ceiling
+    # (``kernel.powder_saturation_t``; shop.yaml says why)
+    powder_saturation_fraction: float = 0.8
     raw: dict = field(default_factory=dict, compare=False, repr=False)
     # documents and commercial terms (see ShopDocuments): printed, never part of a design or its fingerprint
     documents: ShopDocuments = field(default_factory=lambda: ShopDocuments())

@@ -26,10 +26,11 @@ def flux_limit(spec: Spec, cat: Catalog, material: Material, hot_c: float) -> Fl
         return FluxLimit(value, "spec")
     if m.is_powder:
         bsat = b_sat_hot_t(m, hot_c)
-        sat = float(K.powder_saturation_t(bsat, frac, K.powder_ceiling_t(m.mu_initial, *m.bias_fit())))
+        pfrac = cat.shop.powder_saturation_fraction
+        sat = float(K.powder_saturation_t(bsat, pfrac, K.powder_ceiling_t(m.mu_initial, *m.bias_fit())))
         if sat < value:
-            return FluxLimit(sat, f"{frac:.0%} of the {sat / frac:.2f} T its DC-bias curve tends to (below B_sat "
-                                  f"{bsat:.2f} T at {hot_c:.0f} °C; shop rule)")
+            return FluxLimit(sat, f"{pfrac:.0%} of the {sat / pfrac:.2f} T its DC-bias curve tends to (below B_sat "
+                                  f"{bsat:.2f} T at {hot_c:.0f} °C; shop rule powder_saturation_fraction)")
     if source == K.FLUX_LIMIT_DESIGN:
         return FluxLimit(value, f"material design value ({m.id})")
     return FluxLimit(value, f"{frac:.0%} of B_sat {b_sat_hot_t(m, hot_c):.2f} T at {hot_c:.0f} °C (shop rule)")

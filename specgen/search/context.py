@@ -169,7 +169,8 @@ class SearchContext:
         return out
 
     def flux_limit_t(self, mi: IntArray, temp_c: FloatArray | float) -> FloatArray:
-        return self.materials.flux_limit_t(mi, temp_c, self.cat.shop.flux_limit_fraction, self.req.flux_limit_t)
+        return self.materials.flux_limit_t(mi, temp_c, self.cat.shop.flux_limit_fraction, self.req.flux_limit_t,
+                                           self.cat.shop.powder_saturation_fraction)
 
     def swing_t(self, limit: FloatArray, mi: IntArray) -> FloatArray:
         """The usable flux swing (``kernel.unipolar_swing_t``: a unipolar pulse less B_r)."""

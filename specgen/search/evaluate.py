@@ -342,7 +342,7 @@ def eval_choke(ctx: SearchContext, ci: IntArray, oi: list[IntArray], mag: ChokeM
     th = thermal_loop(ctx, copper, core_w, c.surface_m2[ci], start, c.material[ci])
     bsat = ctx.materials.b_sat_t(c.material[ci], th.hot_c)
     # a powder saturates where the engine's check says (``kernel.powder_saturation_t``), short of B_sat
-    bsat = np.where(ch.powder[ci], np.asarray(K.powder_saturation_t(bsat, ctx.cat.shop.flux_limit_fraction,
+    bsat = np.where(ch.powder[ci], np.asarray(K.powder_saturation_t(bsat, ctx.cat.shop.powder_saturation_fraction,
                                                                       ch.pow.ceiling_t[ci]), dtype=np.float64), bsat)
     sat = flag(mag.b_max_t > bsat, Fail.SAT) | flag(n > K.MAX_TURNS, Fail.FIT)
     tl = tally(ctx, ci, opts, build, th.hot_c, th.rise_k, sat)

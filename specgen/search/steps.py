@@ -221,14 +221,15 @@ class MaterialRows:
         return _f(K.b_sat_t(self.b_sat_25c_t[mi], self.b_sat_100c_t[mi], temp_c))
 
     def flux_limit_t(self, mi: IntArray, temp_c: FloatArray | float, fraction: float,
-                     given_t: float | None) -> FloatArray:
+                     given_t: float | None, powder_fraction: float) -> FloatArray:
         """The working flux limit (``kernel.flux_limit_t``), a powder's no higher than where it counts as saturated
         (``kernel.powder_saturation_t``), as the engine's ``design.flux.flux_limit``."""
         limit = _f(K.flux_limit_t(self.b_sat_25c_t[mi], self.b_sat_100c_t[mi], temp_c, fraction, self.b_design_t[mi],
                                   given_t))
         if given_t is not None:
             return limit
-        return np.minimum(limit, _f(K.powder_saturation_t(self.b_sat_t(mi, temp_c), fraction, self.ceiling_t[mi])))
+        return np.minimum(limit, _f(K.powder_saturation_t(self.b_sat_t(mi, temp_c), powder_fraction,
+                                                                  self.ceiling_t[mi])))
 
     def core_loss_w_m3(self, mi: IntArray, b_t: FloatArray, freq_hz: float, drive: str, duty: float) -> FloatArray:
         """Core loss density [W/m^3] (``kernel.core_loss_grouped_w_m3``): drive sine, square or unipolar (b_t

@@ -282,7 +282,7 @@ def powder_flux_checks(state: DesignState) -> list[Check]:
     s, temp, ind, mat = state.summary, state.temp, state.summary.inductor, state.parts.material
     assert ind is not None
     bsat = b_sat_hot_t(mat, temp.hot_c)
-    sat = float(K.powder_saturation_t(bsat, state.cat.shop.flux_limit_fraction,
+    sat = float(K.powder_saturation_t(bsat, state.cat.shop.powder_saturation_fraction,
                                       K.powder_ceiling_t(mat.mu_initial, *mat.bias_fit())))
     b, limit = s.b_peak_max_t, s.flux_limit.value_t
     left = ""
