@@ -79,6 +79,18 @@ def design_report(d: Design) -> str:
                         + (f" (at least {present.si(i.inductance_min_h, 'H')})" if i.inductance_min_h else "")],
             _current_row(i),
         ]
+    if d.reset is not None:
+        r = d.reset
+        core_rows += [
+            ["reset winding", f"{r.winding}, {r.turns} turns ({r.turns_ratio:.3g}:1): D_max {r.duty_max:.3f} "
+                              f"(duty {r.duty:g}), resets in {r.reset_fraction:.3g} of the period"],
+            ["reset current", f"{present.si(r.current_peak_a, 'A')} peak, {present.si(r.current_rms_a, 'A')} rms "
+                              f"at {r.input_max_v:.4g} V in"],
+            ["switch voltage", f"{r.switch_voltage_v:.4g} V = V_in (1 + N_p / N_r) at {r.input_max_v:.4g} V in, "
+                               f"plus the leakage spike"],
+            ["flux from B_r", f"B_r {r.b_r_t:.3f} T + ΔB {r.b_end_t - r.b_r_t:.3f} T = {r.b_end_t:.3f} T "
+                              f"(B_sat {r.b_sat_hot_t:.3f} T hot)"],
+        ]
     if d.current_transformer is not None:
         core_rows += _ct_rows(d.current_transformer)
     if d.flyback is not None:

@@ -13,7 +13,8 @@ start to the first half's start and every finish to the first finish. ``links`` 
 that does not close, is refused where it is written. Halves in parallel must have the same voltage and turns.
 
 A secondary may name its load (``load: resistive``, ``load: {type: bridge_capacitor, capacitance: 2200 uF}``,
-``load: {type: centre_tapped, other_half: S2}``, ``load: converter``); the currents each load draws are in
+``load: {type: centre_tapped, other_half: S2}``, ``load: converter``, ``load: forward``: a forward converter's
+output winding, driven by a unipolar pulse); the currents each load draws are in
 ``physics.rectifier_loads``.
 """
 
@@ -23,7 +24,7 @@ from ..loading import Reader
 from ..records import record
 from .windings_result import ConnectionResult
 
-LOAD_TYPES = ("resistive", "bridge_capacitor", "centre_tapped", "converter")
+LOAD_TYPES = ("resistive", "bridge_capacitor", "centre_tapped", "converter", "forward")
 VOLTAGE_MATCH = 0.01      # a connection's mains voltage and its halves' voltages agree within 1 %
 
 

@@ -92,7 +92,7 @@ def _grade(rating: str) -> ins.Grade:
 
 
 def _mains_connected(spec: Spec, names: Sequence[str]) -> bool:
-    return any(spec.winding(n).role == "primary" for n in names)
+    return any(spec.winding(n).role in ("primary", "reset") for n in names)
 
 
 def _layers_pass(breakdowns: list[float], test_v: float, solid: ins.SolidInsulationRequirement) -> bool:

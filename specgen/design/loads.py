@@ -3,6 +3,8 @@
 The shop's rules over ``physics.rectifier_loads``:
 
 - no ``load`` (or ``resistive``): the current given is the winding's rms current (form factor 1);
+- ``forward``: a forward converter's output winding, the choke's DC current for the on-time: rms I_dc sqrt(D),
+  power V_pulse D I_dc;
 - ``converter``: a bridge converter's secondary into a full-bridge rectifier and output choke, a square wave
   of +-I_dc: rms I_dc, the square wave's harmonics for the AC factor;
 - ``bridge_capacitor``: Schade's capacitor-input circuit; R_L = V_dc / I_dc, R_s the winding resistances
@@ -21,6 +23,7 @@ from __future__ import annotations
 import math
 from collections.abc import Mapping, Sequence
 
+from ..physics import forward as fw
 from ..physics import rectifier_loads as rl
 from .spec import Winding
 from .windings_result import LoadResult
@@ -30,6 +33,8 @@ SCHADE = "Schade, Proc. IRE 31(7) 1943: capacitor-input rectifier, solved for it
 CENTRE_TAP = "centre-tapped full wave: each half conducts alternately at duty 0.5 (Mohan, Undeland, Robbins, ch. 10)"
 RESISTIVE = "resistive: the current as given"
 CONVERTER = "bridge converter output into a choke: a square wave of the DC current"
+FORWARD = ("forward converter output: the choke's DC current for the on-time, rms I_dc sqrt(D) (Erickson and "
+           "Maksimovic, Fundamentals of Power Electronics, 6.3.2)")
 
 
 def load_type(w: Winding) -> str:
@@ -41,7 +46,8 @@ def has_loads(windings: Sequence[Winding]) -> bool:
     return any(w.load is not None for w in windings)
 
 
-def solve(loads: Sequence[Winding], freq_hz: float, rs_ratio: Mapping[str, float]) -> dict[str, LoadResult]:
+def solve(loads: Sequence[Winding], freq_hz: float, rs_ratio: Mapping[str, float],
+          duty: float = 0.5) -> dict[str, LoadResult]:
     """Each load winding's currents at this pass (``rs_ratio``: R_s / R_L by winding, from the last build)."""
     out: dict[str, LoadResult] = {}
     for w in loads:
@@ -52,6 +58,8 @@ def solve(loads: Sequence[Winding], freq_hz: float, rs_ratio: Mapping[str, float
         form, source, vratio, power = 1.0, RESISTIVE, None, v * i
         if kind == "converter":
             source = CONVERTER
+        elif kind == "forward":       # the pulse voltage for the on-time: V D I_dc reaches the choke
+            form, source, power = float(fw.output_winding_rms_a(1.0, duty)), FORWARD, v * duty * i
         elif kind == "bridge_capacitor" or (kind == "centre_tapped" and cap is not None):
             r = max(rs_ratio.get(w.name, FIRST_RS_RATIO), 1e-4)
             # R_L = V_dc / I_dc with V_dc = m sqrt(2) V; m from the last pass's ratio (0.9 to start)

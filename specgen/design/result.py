@@ -11,7 +11,7 @@ from typing import Any
 from ..records import record
 from .acceptance import AcceptedWarning
 from .vocab import CheckLevel
-from .windings_result import ConnectionResult, LoadResult, TapResult, extend_dict
+from .windings_result import ConnectionResult, LoadResult, ResetResult, TapResult, extend_dict
 
 
 @record
@@ -466,6 +466,7 @@ class Design:
     loads: tuple[LoadResult, ...] = ()               # secondaries' declared loads and their rms currents
     frequencies_hz: tuple[float, ...] = ()           # several frequencies served (frequency_hz the lowest)
     taps: tuple[TapResult, ...] = ()                 # taps named by voltage, at their whole turns
+    reset: ResetResult | None = None                 # a forward transformer's reset winding
 
     @property
     def failed(self) -> list[Check]:
@@ -570,7 +571,7 @@ class Design:
                 "phase_error_max_deg": ct.phase_error_max_deg, "knee_burden_ohm": ct.knee_burden_ohm,
                 "core_loss_current_a": ct.core_loss_current_a, "current_shape": ct.current_shape,
             })
-        extend_dict(out, self.connections, self.loads, self.frequencies_hz, self.taps)
+        extend_dict(out, self.connections, self.loads, self.frequencies_hz, self.taps, self.reset)
         if self.flyback is not None:
             out.update(_flyback_dict(self.flyback))
             per = {w.name: w for w in self.flyback.windings}

@@ -28,6 +28,7 @@ from ..loading import RENAMED_KEYS, Reader, first_unsafe_char, load_yaml, parse_
 from ..records import record
 from .acceptance import AcceptedWarning
 from .connections import Connection, Load, parse_connections, parse_load
+from .forward import check_reset, parse_reset_ratio
 from .limits import MAX_TURNS
 from .spec_keys import refuse_unused_keys
 from .taps import Tap, check_taps, parse_taps
@@ -37,7 +38,7 @@ if TYPE_CHECKING:
     from .flyback_spec import FlybackReq
 
 KINDS = ("transformer", "inductor", "current_transformer", "flyback")
-ROLES = ("primary", "secondary", "auxiliary", "shield", "main")
+ROLES = ("primary", "secondary", "auxiliary", "shield", "main", "reset")
 WAVEFORMS = ("sine", "square", "unipolar")
 STATUSES = ("draft", "released", "obsolete")
 COOLING = ("natural", "forced", "potted")
@@ -94,6 +95,7 @@ class Winding:
     load: Load | None = None         # what a secondary feeds (None: resistive, the current as given)
     wound_with: str | None = None    # bifilar: wound together with this winding, turn by turn in its layers
     taps: tuple[Tap, ...] = ()       # leads brought out at the turns that give these voltages
+    turns_ratio: float | None = None  # a forward converter's reset winding: N_p / N_reset (1: bifilar 1:1)
 
 
 @record
@@ -218,6 +220,7 @@ def _winding(r: Reader, kind: str) -> Winding:
         lead_sleeving=r.text("lead_sleeving", None), same_turns_as=r.text("same_turns_as", None),
         voltage_tolerance=r.tolerance_pair("voltage_tolerance", None), line=r.line, path=r.path,
         load=parse_load(r, role), wound_with=r.text("wound_with", None, max_len=40), taps=parse_taps(r),
+        turns_ratio=parse_reset_ratio(r, role),
     )
     r.done(renamed=RENAMED_KEYS["windings"])
     if w.start == w.finish:
@@ -303,6 +306,7 @@ def parse_spec(data: Any, name: str) -> Spec:
     windings = tuple(_winding(w, kind) for w in wreaders)
     names = [w.name for w in windings]
     _check_windings(r, kind, windings, wreaders)
+    check_reset(r, op, kind, waveform, duty, windings, wreaders)
     connections = parse_connections(r, kind, windings, wreaders)
     order = _build_order(r, windings)
     ins = r.mapping("insulation", None)
@@ -430,7 +434,7 @@ def _check_bifilar(kind: str, windings: tuple[Winding, ...], wreaders: list[Read
         if lead.wound_with is not None or lead.name in taken:
             raise wr.error(f"{lead.name} is already wound with another winding: a bifilar pair is two windings, "
                            f"named once on the second", "wound_with")
-        if w.role != lead.role:
+        if w.role != lead.role and {w.role, lead.role} != {"primary", "reset"}:
             raise wr.error(f"only a winding of the same role can be wound with {lead.name}", "wound_with")
         if w.sections != 1 or lead.sections != 1:
             raise wr.error("windings wound together are one section each", "wound_with")

@@ -19,7 +19,7 @@ if TYPE_CHECKING:
     from ..catalog.models import Bobbin, Catalog, Core, Material, Wire
     from .result import Build, Check, CurrentTransformerResult, FlybackResult, InductorResult, Layer, Limit, Losses, WindingResult
     from .spec import Spec, Winding
-    from .windings_result import ConnectionResult, LoadResult
+    from .windings_result import ConnectionResult, LoadResult, ResetResult
 
 __all__ = ["CheckLevel", "Cooling", "FormerKind", "GapArrangement", "Waveform", "WireKind"]
 
@@ -204,6 +204,7 @@ class ElectricalSummary:
     flyback: FlybackResult | None = None
     loads: tuple[LoadResult, ...] = ()               # a transformer's declared loads (``design.loads``)
     connections: tuple[ConnectionResult, ...] = ()   # several primaries: each connection's flux
+    reset: ResetResult | None = None                 # a forward transformer's reset winding (``design.forward``)
 
 
 @record(slots=True)

@@ -75,7 +75,7 @@ def test_plan(state: DesignState, kind: KindTests, insulation: InsulationResult 
             type_v, routine_v, basis = r.type_test_v, r.routine_test_v, rule
         else:
             names = side_names(spec, b.a) + side_names(spec, b.b)
-            mains = any(w.role == "primary" for w in spec.windings if w.name in names)
+            mains = any(w.role in ("primary", "reset") for w in spec.windings if w.name in names)
             try:
                 type_v, routine_v, basis = hipot_voltage_v(b.rating, b.working_voltage_v, hp, mains_connected=mains,
                                                            step_v=step)

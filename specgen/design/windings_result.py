@@ -55,13 +55,46 @@ class TapResult:
     b_peak_max_t: float | None = None   # a primary fed at the tap: the flux at the top of its range
 
 
+@record
+class ResetResult:
+    """A forward converter's reset winding (``design.forward``): its turns, the duty it allows, the flux swing,
+    its current and the switch's voltage, at the top of the input range."""
+    winding: str
+    turns: int
+    turns_ratio: float               # N_p / N_reset as built
+    duty: float                      # the largest duty the spec runs at
+    duty_max: float                  # N_p / (N_p + N_reset)
+    reset_fraction: float            # the share of the period the reset winding conducts, D N_r / N_p
+    delta_b_t: float                 # the primary volt-seconds' flux swing at the top of the input
+    b_r_t: float                     # where the swing starts (remanence)
+    b_end_t: float                   # B_r + delta B
+    b_sat_hot_t: float
+    current_peak_a: float
+    current_rms_a: float
+    current_avg_a: float             # returned to the input
+    switch_voltage_v: float          # V_in,max (1 + N_p / N_r)
+    input_max_v: float
+    wire: str
+
+
+def reset_dict(r: ResetResult) -> dict[str, Any]:
+    """The ``reset`` key of a forward transformer's JSON."""
+    return {"winding": r.winding, "turns": r.turns, "turns_ratio": r.turns_ratio, "duty": r.duty,
+            "duty_max": r.duty_max, "reset_fraction": r.reset_fraction, "delta_b_t": r.delta_b_t, "b_r_t": r.b_r_t,
+            "b_end_t": r.b_end_t, "b_sat_hot_t": r.b_sat_hot_t, "current_peak_a": r.current_peak_a,
+            "current_rms_a": r.current_rms_a, "current_avg_a": r.current_avg_a,
+            "switch_voltage_v": r.switch_voltage_v, "input_max_v": r.input_max_v, "wire": r.wire}
+
+
 def extend_dict(out: dict[str, Any], connections: tuple[ConnectionResult, ...],
                 loads: tuple[LoadResult, ...], frequencies_hz: tuple[float, ...] = (),
-                taps: tuple[TapResult, ...] = ()) -> None:
+                taps: tuple[TapResult, ...] = (), reset: ResetResult | None = None) -> None:
     """Add the connection, load and frequency keys to a Design's JSON (``Design.to_dict``) where the part has
     them."""
     if frequencies_hz:
         out["frequencies_hz"] = list(frequencies_hz)
+    if reset is not None:
+        out["reset"] = reset_dict(reset)
     for w in out["windings"]:
         mine = [t for t in taps if t.winding == w["name"]]
         if mine:

@@ -16,6 +16,7 @@ from ...catalog.models import Catalog
 from ...physics import faraday
 from ...present import frequency
 from ...records import record
+from .. import forward as FW
 from .. import kernel as K
 from .. import loads as LD
 from ..build import copper_lengths_m, lay_out, leakage_h, section_frs, winding_fr
@@ -100,6 +101,8 @@ class TransformerRun:
         self.prim: Winding = self.prims[0]
         self.halves = len(self.prims)       # equal primaries sharing the load (several: see ``connections``)
         self.loads = [w for w in spec.windings if w.role in ("secondary", "auxiliary")]
+        self.reset = next((w for w in spec.windings if w.role == "reset"), None)   # a forward's (``forward``)
+        self.reset_rms = 0.0
         self.vp = float(self.prim.voltage_v or 0.0)
         self.vp_max = self.prim.voltage_max_v or self.vp
         self.density = K.current_density_a_m2(cat.shop.current_density_a_m2, spec.cooling)
@@ -111,7 +114,7 @@ class TransformerRun:
 
     def set_loads(self, rs_ratio: dict[str, float]) -> None:
         """Each load's currents (``design.loads``) with R_s / R_L from the last build."""
-        self.load_result = LD.solve(self.loads, self.spec.frequency_hz, rs_ratio)
+        self.load_result = LD.solve(self.loads, self.spec.frequency_hz, rs_ratio, self.spec.duty)
         self.load_current = {n: ld.rms_current_a for n, ld in self.load_result.items()}
         self.p_out = sum(ld.power_w for ld in self.load_result.values())
         self.p_reflected = LD.reflected_w(self.load_result, {w.name: w.voltage_v or 0.0 for w in self.loads})
@@ -135,10 +138,14 @@ class TransformerRun:
                                  spec.windings.index(self.prim), "voltage")
         return int(K.whole_turns(n))
 
+    def current_of(self, w: Winding, ip: float) -> float:
+        """A winding's rms current at this pass: the primary's, a reset winding's, or its load's."""
+        return ip if w.role == "primary" else self.reset_rms if w.role == "reset" else self.load_current.get(w.name, 0.0)
+
     def pick_wires(self, ip: float) -> None:
         spec, cat, f = self.spec, self.cat, self.spec.frequency_hz
         for w in spec.windings:
-            current = ip if w.role == "primary" else self.load_current.get(w.name, 0.0)
+            current = self.current_of(w, ip)
             if not w.wire.startswith("auto"):
                 self.wires[w.name] = WireChoice(cat.wires[w.wire], w.strands or 1, "given")
             elif w.role == "shield":
@@ -150,8 +157,7 @@ class TransformerRun:
         for w in spec.windings:          # wound together: one wire, sized for the larger of the two currents
             if w.wound_with is not None:
                 lead = next(x for x in spec.windings if x.name == w.wound_with)
-                big = lead if (ip if lead.role == "primary" else self.load_current.get(lead.name, 0.0)) >= \
-                    (ip if w.role == "primary" else self.load_current.get(w.name, 0.0)) else w
+                big = lead if self.current_of(lead, ip) >= self.current_of(w, ip) else w
                 self.wires[w.name] = self.wires[lead.name] = self.wires[big.name]
 
     def initial_states(self, np_turns: int, ip: float) -> dict[str, WindingState]:
@@ -162,6 +168,8 @@ class TransformerRun:
                 turns, current = np_turns, ip
             elif w.role == "shield":
                 turns, current = (w.turns or 1), 0.0
+            elif w.role == "reset":
+                turns, current = FW.reset_turns(w, np_turns), self.reset_rms
             else:
                 turns = w.turns or int(K.secondary_turns_for_voltage(np_turns, self.vp, self.lowest_v(w)))
                 if turns > K.MAX_TURNS:
@@ -243,6 +251,9 @@ class TransformerRun:
         f, wf = spec.frequency_hz, spec.waveform
         lm = float(faraday.magnetizing_inductance_h(np_turns, parts.ae_m2, parts.le_m, mat.mu_working))
         imag, imag_pk = (float(x) for x in K.magnetizing_current_a(self.vp, f, lm, wf, spec.duty))
+        if self.reset is not None:     # the magnetising current referred, over the reset time
+            self.reset_rms = FW.reset_current_a(self.vp, spec.duty, f, lm, np_turns,
+                                                FW.reset_turns(self.reset, np_turns))[1]
         # the primary carries the loads referred (a rectifier's peaky current as its rms, ``design.loads``);
         # k equal primaries share it (in parallel each carries 1/k, in series all carry 1/k of a single winding's)
         ip = float(K.primary_current_a(self.p_reflected, eta, self.vp, imag)) / self.halves
@@ -286,6 +297,9 @@ class TransformerRun:
         profile has one half carrying the DC current and the other none, and each half takes its Fr from
         the interval it conducts in; every other winding the mean over the intervals."""
         spec, f, wf = self.spec, self.spec.frequency_hz, self.spec.waveform
+        if self.reset is not None:     # it conducts alone, while the switch is off
+            return FW.interval_frs(states, self.reset.name,
+                                   lambda now: section_frs(built, now, f, temp.hot_c, wf, _signs(spec)))
         halves = [n for n, ld in self.load_result.items() if ld.load == "centre_tapped"]
         if not halves:
             return section_frs(built, states, f, temp.hot_c, wf, _signs(spec))
@@ -485,6 +499,15 @@ class TransformerRun:
                                f"serves {served}: flux checked at {frequency(self.spec.frequency_hz)} (the lowest, the "
                                f"highest flux), core loss and temperature at {frequency(worst)} (the worst: "
                                f"{p.core_w_m3_by_hz[worst] / 1e3:.3g} kW/m³)"))
+        reset = None
+        if self.reset is not None:
+            st = ev.windings[self.reset.name]
+            mat = self.parts.material
+            wire = st.wire.label + (f" x{st.strands}" if st.strands > 1 else "")
+            reset = FW.reset_result(st.name, wire, self.vp_max, self.spec.duty, self.spec.frequency_hz,
+                                    p.lm_h, p.primary_turns, st.turns, p.b_peak_max_t, mat.b_r_t,
+                                    b_sat_hot_t(mat, temp.hot_c))
+            extra += FW.reset_checks(reset)
         primary = ev.windings[self.prim.name]
         share = p.imag_a / self.halves / primary.current_a if primary.current_a > 0 else 0.0   # per half
         if share > MAGNETIZING_WARN:
@@ -501,7 +524,8 @@ class TransformerRun:
             regulation_pct=regulation, output_power_w=self.p_out, checks=tuple(extra),
             ripple_rms=({n: LD.dc_ac_parts(p.loads.get(n), st.current_a) for n, st in ev.windings.items()}
                         if LD.has_loads(self.loads) else None),
-            loads=tuple(p.loads.values()) if LD.has_loads(self.loads) else (), connections=p.connections)
+            loads=tuple(p.loads.values()) if LD.has_loads(self.loads) else (), connections=p.connections,
+            reset=reset)
 
 
 def _band(asked: float, tol: tuple[float, float]) -> str:
@@ -541,8 +565,9 @@ class TransformerKind:
         if spec.waveform == "unipolar" and s.b_peak_max_t + mat.b_r_t > bsat:
             out.append(Check("fail", "remanence",
                              f"a unipolar pulse starts from the residual flux: B_r {_fmt_t(mat.b_r_t)} + ΔB "
-                             f"{_fmt_t(s.b_peak_max_t)} exceeds B_sat {_fmt_t(bsat)}: add turns, gap the core or add "
-                             f"a reset winding"))
+                             f"{_fmt_t(s.b_peak_max_t)} exceeds B_sat {_fmt_t(bsat)}: add turns"
+                             + (" or a core with more Ae" if s.reset is not None else
+                                ", gap the core or add a reset winding")))
         # inrush: switched on at a voltage zero, the flux swings 2 B_pk from wherever the residual flux left it
         # (the doubling effect, common practice); a gapless tape-wound toroid keeps a high B_r, so it goes far
         # into saturation and draws many times its rated current for a few cycles
@@ -594,6 +619,11 @@ class TransformerKind:
                                                f"{frequency(spec.frequency_hz)}, no load" + _also(spec)))
         for w in windings:
             if w is prim or not w.finish:
+                continue
+            if w.role == "reset":
+                limit, line = FW.reset_tests(prim, w, tol["ratio"])
+                ratio.append(limit)
+                pol.append(line)
                 continue
             pol.append(f"Apply a positive step to {prim.name} pin {prim.dot_pin} (dot) with respect to pin "
                        f"{prim.finish if prim.dot_pin == prim.start else prim.start}: {w.name} pin {w.dot_pin} (dot) "
