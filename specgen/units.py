@@ -73,6 +73,7 @@ DIMENSIONS: dict[str, Dimension] = {
     "apparent_power": _d(_W, "W", "a power or VA", "'60 VA'", 1e-9, 1e9, "1 nVA to 1 GVA"),
     "inductance": _d((2, 1, -2, -2, 0), "H", "an inductance", "'47 uH'", 1e-15, 1e6, "1 fH to 1 MH"),
     "capacitance": _d((-2, -1, 4, 2, 0), "F", "a capacitance", "'2200 uF'", 1e-15, 10.0, "1 fF to 10 F"),
+    "charge": _d((0, 0, 1, 1, 0), "C", "a charge", "'60 nC'", 1e-15, 1.0, "1 fC to 1 C"),
     "resistance": _d((2, 1, -3, -2, 0), "ohm", "a resistance", "'0.25 ohm'", 1e-12, 1e18, "1 pohm to 1e18 ohm"),
     "density": _d((-3, 1, 0, 0, 0), "kg/m**3", "a density", "'7.65 g/cm^3'", 1e-3, 1e5, "1 g/m^3 to 100 g/cm^3"),
     "resistivity": _d((3, 1, -3, -2, 0), "ohm*m", "a resistivity", "'1.7e-8 ohm*m'", 1e-12, 1e20,
@@ -109,13 +110,13 @@ _PREFIXABLE: dict[str, tuple[Fraction | float, _Vec]] = {
     "Hz": (1.0, (0, 0, -1, 0, 0)), "H": (1.0, (2, 1, -2, -2, 0)), "ohm": (1.0, (2, 1, -3, -2, 0)),
     "\u03a9": (1.0, (2, 1, -3, -2, 0)), "\u2126": (1.0, (2, 1, -3, -2, 0)), "T": (1.0, (0, 1, -2, -1, 0)),
     "Wb": (1.0, (2, 1, -2, -1, 0)), "J": (1.0, (2, 1, -2, 0, 0)), "N": (1.0, (1, 1, -2, 0, 0)),
-    "F": (1.0, (-2, -1, 4, 2, 0)),
+    "F": (1.0, (-2, -1, 4, 2, 0)), "C": (1.0, (0, 0, 1, 1, 0)),
 }
 # long names (pint's spelling), which take a long prefix ("millimeter", "kilovolt")
 _LONG: dict[str, str] = {
     "meter": "m", "metre": "m", "gram": "g", "second": "s", "ampere": "A", "amp": "A", "volt": "V",
     "watt": "W", "hertz": "Hz", "henry": "H", "tesla": "T", "weber": "Wb", "joule": "J", "newton": "N", "ohm": "ohm",
-    "farad": "F",
+    "farad": "F", "coulomb": "C",
 }
 # no prefix: a unit of its own
 _PLAIN: dict[str, tuple[Fraction | float, _Vec]] = {
@@ -250,7 +251,9 @@ def _parse_text(text: str, dimension: str) -> float:
         raise UnitError(f"expected a finite {human[human.index(' ') + 1:]}, got '{whole}'")
     factor, vec, scale = _unit_expression(unit_text, whole, human)
     if vec != dim.vector:
-        raise UnitError(f"expected {human}, got '{whole}'")
+        hint = "; write degC for degrees Celsius (C is the coulomb)" if (
+            unit_text == "C" and dimension.startswith("temperature")) else ""
+        raise UnitError(f"expected {human}, got '{whole}'{hint}")
     if dimension == "temperature":
         if scale is None and unit_text not in ("K", "kelvin"):
             raise UnitError(f"expected {human} in degC, degF or K, got '{whole}'")

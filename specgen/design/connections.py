@@ -14,7 +14,8 @@ that does not close, is refused where it is written. Halves in parallel must hav
 
 A secondary may name its load (``load: resistive``, ``load: {type: bridge_capacitor, capacitance: 2200 uF}``,
 ``load: {type: centre_tapped, other_half: S2}``, ``load: converter``, ``load: forward``: a forward converter's
-output winding, driven by a unipolar pulse); the currents each load draws are in
+output winding, driven by a unipolar pulse; ``load: {type: gate_drive, gate_charge: 60 nC, gate_resistance:
+5 ohm}``: a switch's gate, charge pulses at each edge, ``physics.gate_drive``); the currents each load draws are in
 ``physics.rectifier_loads``.
 """
 
@@ -24,7 +25,7 @@ from ..loading import Reader
 from ..records import record
 from .windings_result import ConnectionResult
 
-LOAD_TYPES = ("resistive", "bridge_capacitor", "centre_tapped", "converter", "forward")
+LOAD_TYPES = ("resistive", "bridge_capacitor", "centre_tapped", "converter", "forward", "gate_drive")
 VOLTAGE_MATCH = 0.01      # a connection's mains voltage and its halves' voltages agree within 1 %
 
 
@@ -34,6 +35,9 @@ class Load:
     type: str                           # one of LOAD_TYPES
     capacitance_f: float | None = None  # bridge_capacitor: the reservoir capacitor
     other_half: str | None = None       # centre_tapped: the winding that conducts in the other half-cycle
+    gate_charge_c: float | None = None       # gate_drive: the charge the gate takes each edge
+    gate_resistance_ohm: float | None = None  # gate_drive: the loop resistance the pulse flows through
+    gate_voltage_v: float | None = None      # gate_drive: the gate's swing (default: the winding's voltage)
 
 
 @record
@@ -60,8 +64,9 @@ def parse_load(r: Reader, role: str) -> Load | None:
         kind = raw.strip()
         if kind not in LOAD_TYPES:
             raise r.error(f"expected one of {', '.join(LOAD_TYPES)}, got '{kind}'", "load")
-        if kind in ("bridge_capacitor", "centre_tapped"):
-            need = "capacitance" if kind == "bridge_capacitor" else "other_half"
+        if kind in ("bridge_capacitor", "centre_tapped", "gate_drive"):
+            need = {"bridge_capacitor": "capacitance", "centre_tapped": "other_half",
+                    "gate_drive": "gate_charge and gate_resistance"}[kind]
             raise r.error(f"load {kind} needs its {need}: write load: {{type: {kind}, {need}: ...}}", "load")
         return Load(kind)
     sub = r.mapping("load")
@@ -71,6 +76,10 @@ def parse_load(r: Reader, role: str) -> Load | None:
         load = Load(kind, capacitance_f=sub.quantity("capacitance", "capacitance"))
     elif kind == "centre_tapped":
         load = Load(kind, other_half=sub.text("other_half", max_len=40).strip())
+    elif kind == "gate_drive":
+        load = Load(kind, gate_charge_c=sub.quantity("gate_charge", "charge"),
+                    gate_resistance_ohm=sub.quantity("gate_resistance", "resistance"),
+                    gate_voltage_v=sub.quantity("gate_voltage", "voltage", None))
     sub.done()
     return load
 

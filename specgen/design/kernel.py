@@ -27,7 +27,7 @@ Flux and turns
   core_loss_significant(core_w, copper_w, beta)                       the loss-limited turns scan applies
   output_voltage_ok(asked_v, delivered_v, minus, plus)              delivered within asked -minus/+plus
   secondary_turns_within(np_turns, v_primary, asked_v, drop_fraction, minus, plus)  Ns meeting it, 0: none
-  primary_current_a(p_out_w, efficiency, v_primary, i_magnetizing_a)  load referred in quadrature with I_mag
+  primary_current_a(p_out_w, efficiency, v_primary, i_magnetizing_a, i_pulse_a)  load referred, with I_mag
   secondary_turns_for_voltage(np_turns, v_primary, want_v)           open-circuit whole turns
   loaded_output_v(ratio, v_primary_after_drop, load_a, r_secondary_ohm, x_drop_v)  full-load voltage
   secondary_turns_to_add(want_v, loaded_v, volts_per_turn)           the drop made up, whole turns
@@ -422,13 +422,17 @@ def secondary_turns_within(np_turns: ArrayLike, v_primary: ArrayLike, asked_v: A
 
 
 def primary_current_a(p_out_w: ArrayLike, efficiency: ArrayLike, v_primary: ArrayLike,
-                      i_magnetizing_a: ArrayLike) -> Arr:
+                      i_magnetizing_a: ArrayLike, i_pulse_a: ArrayLike = 0.0) -> Arr:
     """The primary's rms current: the load referred to the primary, P_out / (eta V_p), in quadrature with the
     magnetizing current (a resistive load's current is in phase with the voltage, the magnetizing current
-    lags it by 90 degrees; McLyman, transformer design, primary current)."""
-    if _scalar(p_out_w, efficiency, v_primary, i_magnetizing_a):
-        return math.hypot(_float(p_out_w) / _float(efficiency) / _float(v_primary), _float(i_magnetizing_a))
-    return _out(np.hypot(_f(p_out_w) / _f(efficiency) / _f(v_primary), _f(i_magnetizing_a)))
+    lags it by 90 degrees; McLyman, transformer design, primary current). ``i_pulse_a``: gate-drive charge
+    pulses referred by the turns ratio alone (not power, so no efficiency), taken in quadrature too: they
+    flow at the edges, where the other currents are not at their rms (common practice approximation)."""
+    if _scalar(p_out_w, efficiency, v_primary, i_magnetizing_a, i_pulse_a):
+        return math.hypot(_float(p_out_w) / _float(efficiency) / _float(v_primary), _float(i_magnetizing_a),
+                          _float(i_pulse_a))
+    return _out(np.sqrt((_f(p_out_w) / _f(efficiency) / _f(v_primary)) ** 2 + _f(i_magnetizing_a) ** 2
+                        + _f(i_pulse_a) ** 2))
 
 
 def secondary_turns_for_voltage(np_turns: ArrayLike, v_primary: ArrayLike, want_v: ArrayLike) -> Arr:

@@ -5,6 +5,8 @@ The shop's rules over ``physics.rectifier_loads``:
 - no ``load`` (or ``resistive``): the current given is the winding's rms current (form factor 1);
 - ``forward``: a forward converter's output winding, the choke's DC current for the on-time: rms I_dc sqrt(D),
   power V_pulse D I_dc;
+- ``gate_drive``: a switch's gate (``physics.gate_drive``): charge pulses of rms sqrt(Q_g V_g f / R_g), not real
+  power: the primary carries them referred through the ratio (not divided by an efficiency);
 - ``converter``: a bridge converter's secondary into a full-bridge rectifier and output choke, a square wave
   of +-I_dc: rms I_dc, the square wave's harmonics for the AC factor;
 - ``bridge_capacitor``: Schade's capacitor-input circuit; R_L = V_dc / I_dc, R_s the winding resistances
@@ -24,6 +26,7 @@ import math
 from collections.abc import Mapping, Sequence
 
 from ..physics import forward as fw
+from ..physics import gate_drive as gd
 from ..physics import rectifier_loads as rl
 from .spec import Winding
 from .windings_result import LoadResult
@@ -33,6 +36,8 @@ SCHADE = "Schade, Proc. IRE 31(7) 1943: capacitor-input rectifier, solved for it
 CENTRE_TAP = "centre-tapped full wave: each half conducts alternately at duty 0.5 (Mohan, Undeland, Robbins, ch. 10)"
 RESISTIVE = "resistive: the current as given"
 CONVERTER = "bridge converter output into a choke: a square wave of the DC current"
+GATE = ("gate drive: the gate's charge and discharge pulses through the loop resistance, rms sqrt(Q_g V_g f / R_g), "
+        "average Q_g f, power Q_g V_g f (Balogh, TI SLUA618); the primary carries them referred, not as power")
 FORWARD = ("forward converter output: the choke's DC current for the on-time, rms I_dc sqrt(D) (Erickson and "
            "Maksimovic, Fundamentals of Power Electronics, 6.3.2)")
 
@@ -58,6 +63,12 @@ def solve(loads: Sequence[Winding], freq_hz: float, rs_ratio: Mapping[str, float
         form, source, vratio, power = 1.0, RESISTIVE, None, v * i
         if kind == "converter":
             source = CONVERTER
+        elif kind == "gate_drive" and w.load is not None:
+            q, r_g = w.load.gate_charge_c or 0.0, w.load.gate_resistance_ohm or 1.0
+            v_g = w.load.gate_voltage_v or v
+            i = float(gd.average_current_a(q, freq_hz))
+            form = float(gd.pulse_rms_a(q, v_g, freq_hz, r_g)) / i if i > 0 else 1.0
+            power, source = float(gd.drive_power_w(q, v_g, freq_hz)), GATE
         elif kind == "forward":       # the pulse voltage for the on-time: V D I_dc reaches the choke
             form, source, power = float(fw.output_winding_rms_a(1.0, duty)), FORWARD, v * duty * i
         elif kind == "bridge_capacitor" or (kind == "centre_tapped" and cap is not None):
@@ -84,13 +95,22 @@ def solve(loads: Sequence[Winding], freq_hz: float, rs_ratio: Mapping[str, float
 
 def reflected_w(loads: Mapping[str, LoadResult], voltages: Mapping[str, float]) -> float:
     """The volt-amperes the primary carries for the loads (before efficiency): V x I_rms of a resistive or
-    bridge load, V x I_dc once for a centre-tapped pair (its halves reflect as one square wave)."""
+    bridge load, V x I_dc once for a centre-tapped pair (its halves reflect as one square wave); a gate drive's
+    pulses are not power (``pulse_va``)."""
     total = 0.0
     for ld in loads.values():
+        if ld.load == "gate_drive":
+            continue
         v = voltages.get(ld.winding, 0.0)
         total += v * ld.dc_current_a / 2.0 * (ld.form_factor * math.sqrt(2.0)) if ld.load == "centre_tapped" \
             else v * ld.rms_current_a
     return total
+
+
+def pulse_va(loads: Mapping[str, LoadResult], voltages: Mapping[str, float]) -> float:
+    """V x I_rms of the gate-drive loads: their charge pulses, referred to the primary by the voltage ratio
+    (ampere-turn balance, no efficiency), and added to its current in quadrature (``kernel.primary_current_a``)."""
+    return sum(voltages.get(ld.winding, 0.0) * ld.rms_current_a for ld in loads.values() if ld.load == "gate_drive")
 
 
 def dc_ac_parts(ld: LoadResult | None, rms_a: float) -> tuple[float, float]:

@@ -390,8 +390,13 @@ def _check_windings(r: Reader, kind: str, windings: tuple[Winding, ...], wreader
             if w.role in ("secondary", "auxiliary"):
                 if w.voltage_v is None:
                     raise wr.error(f"a {w.role} winding needs its voltage at full load", "voltage")
-                if w.current_a is None and w.va is None:
+                gate = w.load is not None and w.load.type == "gate_drive"    # its current is the gate's charge
+                if w.current_a is None and w.va is None and not gate:
                     raise wr.error(f"a {w.role} winding needs its current (or va)", "current")
+                if gate and (w.current_a is not None or w.va is not None):
+                    key = "current" if w.current_a is not None else "va"
+                    raise wr.error(f"'{key}' is not used with a gate_drive load: the winding's current follows "
+                                   f"from the gate charge, the voltage and the frequency", key)
             if w.voltage_tolerance is not None and w.role not in ("secondary", "auxiliary"):
                 raise wr.error(f"a {w.role} winding has no output voltage to hold: voltage_tolerance is for "
                                f"secondary and auxiliary windings", "voltage_tolerance")

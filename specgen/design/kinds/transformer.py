@@ -117,7 +117,9 @@ class TransformerRun:
         self.load_result = LD.solve(self.loads, self.spec.frequency_hz, rs_ratio, self.spec.duty)
         self.load_current = {n: ld.rms_current_a for n, ld in self.load_result.items()}
         self.p_out = sum(ld.power_w for ld in self.load_result.values())
-        self.p_reflected = LD.reflected_w(self.load_result, {w.name: w.voltage_v or 0.0 for w in self.loads})
+        volts = {w.name: w.voltage_v or 0.0 for w in self.loads}
+        self.p_reflected = LD.reflected_w(self.load_result, volts)
+        self.pulse_va = LD.pulse_va(self.load_result, volts)      # gate drives: referred, not power
 
     # -- turns
     def swing_limit(self, limit: FluxLimit) -> FluxLimit:
@@ -256,7 +258,8 @@ class TransformerRun:
                                                 FW.reset_turns(self.reset, np_turns))[1]
         # the primary carries the loads referred (a rectifier's peaky current as its rms, ``design.loads``);
         # k equal primaries share it (in parallel each carries 1/k, in series all carry 1/k of a single winding's)
-        ip = float(K.primary_current_a(self.p_reflected, eta, self.vp, imag)) / self.halves
+        ip = float(K.primary_current_a(self.p_reflected, eta, self.vp, imag,
+                                       self.pulse_va / self.vp if self.vp else 0.0)) / self.halves
         if not self.wires:
             self.pick_wires(ip)
         states = self.initial_states(np_turns, ip)
