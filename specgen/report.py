@@ -114,6 +114,13 @@ def design_report(d: Design) -> str:
                                     f"circuit" + (f" ({w.voltage_asked_v:g} V asked, {w.voltage_error_pct:+.1f} %)"
                                                   if w.voltage_asked_v and w.voltage_error_pct is not None else "")
                                     for w in volts))
+    if d.taps:
+        out.append("")
+        out.append("Taps (the voltage over the input range, at full load)")
+        out.append(_table(["winding", "tap", "turn", "pin", "nominal", "over the input range"],
+                          [[t.winding, f"{t.voltage_v:g} V", t.turn, t.pin, f"{t.actual_v:.4g} V",
+                            f"{t.range_v[0]:.4g} to {t.range_v[1]:.4g} V" if t.range_v else "-"] for t in d.taps],
+                          "llrlrl"))
     out.append("")
     b = d.build
     out.append("Build and fill")

@@ -88,7 +88,7 @@ def lay_out(spec: Spec, parts: Parts, states: Mapping[str, WindingState], cat: C
         st = states[name]
         w = st.spec
         n_sec = w.sections
-        turns = st.turns // n_sec + (1 if k <= st.turns % n_sec else 0)
+        turns = K.section_turns(st.turns, w.section_shares or (1.0,) * n_sec)[k - 1]
         if turns <= 0:
             return BuiltWindow(tuple(out), h, False, f"winding {name} section {k} has no turns")
         partner = followers.get(name)

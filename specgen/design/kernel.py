@@ -38,6 +38,7 @@ Winding
   mean_turn_length_m(former_kind, centre_m, ...)                     MLT at a layer's centre line
   layer_centre_m(start_m, index, layer_height_m, layer_tape_m)       build to a layer's centre
   layer_capacity(former_kind, pitch_m, usable_m, id_m, centre_m, one_turn_per_layer)  (turns, room)
+  section_turns(total, shares)                                       a winding's turns per section, whole
   wind_section(former, turns, pitch, lh, start, margin, layer_tape, foil, limit) -> SectionWinding
   dc_resistance_ohm(copper_area_m2, length_m, temp_c, conductor)    conductor: one name or a name per row
   skin_depth_m(freq_hz, temp_c, conductor)
@@ -97,6 +98,7 @@ from .kernel_winding import (
     layer_centre_m,
     mean_turn_length_m,
     pitch_and_height,
+    section_turns,
     stack_wires,
     wind_section,
     wire_geometry,
@@ -137,7 +139,7 @@ __all__ = [
     "least_loss_turns", "loaded_output_v", "primary_current_a", "ripple_flux_t", "secondary_turns_for_voltage",
     "secondary_turns_to_add",
     "pitch_and_height", "powder_ceiling_t", "powder_flux_t", "powder_saturation_t", "round_gap_down_m",
-    "section_ac_factor", "skin_depth_m", "stack_wires", "temperature_rise_k", "thermal_state",
+    "section_ac_factor", "section_turns", "skin_depth_m", "stack_wires", "temperature_rise_k", "thermal_state",
     "turns_for_inductance", "turns_for_peak_flux", "turns_for_voltage", "unipolar_swing_t", "whole_turns",
     "wind_section", "wire_geometry",
 ]

@@ -43,6 +43,23 @@ class WireGeometry:
     bundle_strands: Arr = 1.0     # Litz: strands in one bundle (the catalogue's count); else 1
 
 
+def section_turns(total: int, shares: Sequence[float]) -> tuple[int, ...]:
+    """A winding's turns shared among its sections in proportion to ``shares`` (equal shares: N // n each,
+    sections 1 .. N mod n one more), whole turns by the largest remainder (ties to the earlier section),
+    each section at least one turn where the total allows."""
+    n = len(shares)
+    whole = sum(shares)
+    exact = [total * x / whole for x in shares]
+    base = [max(1, math.floor(e + 1e-9)) if total >= n else math.floor(e + 1e-9) for e in exact]
+    left = total - sum(base)
+    order = sorted(range(n), key=lambda k: (-(exact[k] - base[k]), k))
+    for k in order[:max(left, 0)]:
+        base[k] += 1
+    for k in sorted(range(n), key=lambda k: (exact[k] - base[k], -k))[:max(-left, 0)]:
+        base[k] -= 1          # the floor of one turn took too many: back from the most over-served
+    return tuple(base)
+
+
 def pitch_and_height(wire: Wire, strands: int) -> tuple[float, float, bool]:
     """(pitch along the layer, layer height, one turn per layer) of a wire with ``strands`` in hand side by
     side: foil is one full-width turn per layer; strip and round wire lie side by side."""

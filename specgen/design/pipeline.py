@@ -170,7 +170,8 @@ def finish(spec: Spec, cat: Catalog, parts: Parts, kind: PartKind, ev: Evaluatio
     insulation, insulation_checks = coordinate(state)
     taps = tap_results(spec.windings, windings, summary.b_peak_max_t)
     checks = (kind.flux_checks(state) + run_checks(state) + temperature_checks(state) + insulation_checks
-              + list(summary.checks) + tap_checks(taps, summary.flux_limit.value_t) + section_notes(windings))
+              + list(summary.checks) + tap_checks(taps, summary.flux_limit.value_t)
+              + section_notes(windings, {w.name: w.section_shares for w in spec.windings if w.section_shares}))
     checks.sort(key=lambda c: _LEVEL_ORDER[c.level])
     tests = with_tap_tests(test_plan(state, kind.test_limits(state), insulation), taps, windings,
                            cat.shop.tolerances["ratio"])

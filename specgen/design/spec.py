@@ -96,6 +96,7 @@ class Winding:
     wound_with: str | None = None    # bifilar: wound together with this winding, turn by turn in its layers
     taps: tuple[Tap, ...] = ()       # leads brought out at the turns that give these voltages
     turns_ratio: float | None = None  # a forward converter's reset winding: N_p / N_reset (1: bifilar 1:1)
+    section_shares: tuple[float, ...] = ()   # a deliberately uneven split: each section's share of the turns
 
 
 @record
@@ -220,7 +221,7 @@ def _winding(r: Reader, kind: str) -> Winding:
         lead_sleeving=r.text("lead_sleeving", None), same_turns_as=r.text("same_turns_as", None),
         voltage_tolerance=r.tolerance_pair("voltage_tolerance", None), line=r.line, path=r.path,
         load=parse_load(r, role), wound_with=r.text("wound_with", None, max_len=40), taps=parse_taps(r),
-        turns_ratio=parse_reset_ratio(r, role),
+        turns_ratio=parse_reset_ratio(r, role), section_shares=_section_shares(r, sections),
     )
     r.done(renamed=RENAMED_KEYS["windings"])
     if w.start == w.finish:
@@ -249,6 +250,24 @@ def _winding(r: Reader, kind: str) -> Winding:
         raise r.error(f"voltage_min is less than 1/{_VOLTAGE_SPAN:g} of the nominal voltage; is its unit right?",
                       "voltage_min")
     return w
+
+
+def _section_shares(r: Reader, sections: int) -> tuple[float, ...]:
+    """``section_shares: [2, 1]``: the sections' shares of the winding's turns (relative; equal when not given)."""
+    if not r.has("section_shares"):
+        r.raw("section_shares", None)
+        return ()
+    raw = r.list_of("section_shares")
+    if sections < 2 or len(raw) != sections:
+        raise r.error(f"section_shares gives one share per section: this winding has {sections} section(s), "
+                      f"the list {len(raw)}", "section_shares")
+    out = []
+    for i, x in enumerate(raw):
+        if isinstance(x, bool) or not isinstance(x, (int, float)) or not 0.0 < float(x) < 1e6:
+            raise r.item_error("section_shares", i, f"expected a positive number (a share, like 2 in [2, 1]), "
+                                                    f"got {x!r}")
+        out.append(float(x))
+    return tuple(out)
 
 
 def _frequencies(op: Reader, kind: str) -> tuple[float, tuple[float, ...]]:

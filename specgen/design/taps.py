@@ -8,7 +8,7 @@ tap's turns, so the check takes B_pk = V_tap / V x N / N_tap x B_pk(V) at the to
 
 from __future__ import annotations
 
-from collections.abc import Sequence
+from collections.abc import Mapping, Sequence
 from dataclasses import replace
 
 from ..loading import Reader
@@ -70,11 +70,16 @@ def _where(w: WindingResult, turn: int) -> tuple[int, int, int]:
 
 def tap_results(windings_spec: Sequence[object], windings: Sequence[WindingResult],
                 b_peak_max_t: float) -> tuple[TapResult, ...]:
-    """Every tap of every winding, at its whole turn (see the module docstring)."""
+    """Every tap of every winding, at its whole turn (see the module docstring), with the voltage it gives
+    over the input range: the winding's voltage (a secondary's at full load) x turn / N, scaled by the
+    primary's voltage_min / voltage and voltage_max / voltage (the voltage per turn follows the input)."""
     from .spec import Winding
 
     out = []
     built = {w.name: w for w in windings}
+    prim = next((w for w in windings_spec if isinstance(w, Winding) and w.role == "primary"), None)
+    v_in = (prim.voltage_v or 0.0) if prim else 0.0
+    span = ((prim.voltage_min_v or v_in) / v_in, (prim.voltage_max_v or v_in) / v_in) if prim and v_in else (1.0, 1.0)
     for ws in windings_spec:
         if not isinstance(ws, Winding) or not ws.taps or ws.name not in built:
             continue
@@ -84,7 +89,9 @@ def tap_results(windings_spec: Sequence[object], windings: Sequence[WindingResul
             turn = min(max(1, round(w.turns * t.voltage_v / v)), w.turns - 1) if v else 1
             sec, layer, k = _where(w, turn)
             b = b_peak_max_t * (t.voltage_v / v) * (w.turns / turn) if ws.role == "primary" and v else None
-            out.append(TapResult(ws.name, t.voltage_v, turn, t.pin, sec, layer, k, v * turn / w.turns, b))
+            at = (w.voltage_v or v) * turn / w.turns
+            out.append(TapResult(ws.name, t.voltage_v, turn, t.pin, sec, layer, k, v * turn / w.turns, b,
+                                 (at * span[0], at * span[1])))
     return tuple(out)
 
 
@@ -116,15 +123,23 @@ def with_tap_tests(tests: TestPlan, taps: Sequence[TapResult], windings: Sequenc
     return replace(tests, ratio=tests.ratio + tuple(extra)) if extra else tests
 
 
-def section_notes(windings: Sequence[WindingResult]) -> list[Check]:
-    """How a winding's turns were shared among its sections where they do not divide evenly: each section
-    takes N // n, and sections 1 .. N mod n one turn more (``build.lay_out``), so the split is said."""
+def section_notes(windings: Sequence[WindingResult], shares: Mapping[str, tuple[float, ...]] | None = None
+                  ) -> list[Check]:
+    """How a winding's turns were shared among its sections: by the spec's ``section_shares`` where given,
+    else, where they do not divide evenly, each section takes N // n and sections 1 .. N mod n one turn more
+    (``kernel.section_turns``), so the split is said."""
     out = []
     for w in windings:
         n = len(w.sections)
+        split = " + ".join(str(s.turns) for s in w.sections)
+        given = (shares or {}).get(w.name)
+        if n >= 2 and given:
+            out.append(Check("pass", "sections",
+                             f"winding {w.name}: {w.turns} turns wound as {split} in the shares "
+                             f"{':'.join(f'{x:g}' for x in given)} the spec gives (section_shares)"))
+            continue
         if n < 2 or w.turns % n == 0:
             continue
-        split = " + ".join(str(s.turns) for s in w.sections)
         extra = w.turns % n
         first = "section 1" if extra == 1 else f"sections 1 to {extra}"
         out.append(Check("pass", "sections",

@@ -53,6 +53,7 @@ class TapResult:
     turn_in_layer: int               # 1-based
     actual_v: float                  # the voltage the whole turn gives (nominal)
     b_peak_max_t: float | None = None   # a primary fed at the tap: the flux at the top of its range
+    range_v: tuple[float, float] | None = None   # the tap's voltage over the input range (full load, low to high)
 
 
 @record
@@ -100,7 +101,8 @@ def extend_dict(out: dict[str, Any], connections: tuple[ConnectionResult, ...],
         if mine:
             w["taps"] = [{"voltage_v": t.voltage_v, "turn": t.turn, "pin": t.pin, "section": t.section,
                           "layer": t.layer, "turn_in_layer": t.turn_in_layer, "actual_v": t.actual_v,
-                          "b_peak_max_t": t.b_peak_max_t} for t in mine]
+                          "b_peak_max_t": t.b_peak_max_t,
+                          "range_v": list(t.range_v) if t.range_v else None} for t in mine]
     if connections:
         out["connections"] = [{
             "name": c.name, "primaries": list(c.primaries), c.mode: list(c.primaries),
