@@ -131,16 +131,18 @@ def copper_lengths_m(built: BuiltWindow, lead_m: float) -> dict[str, float]:
 
 
 def section_frs(built: BuiltWindow, states: Mapping[str, WindingState], freq_hz: float, temp_c: float,
-                waveform: str, signs: Mapping[str, float]) -> dict[tuple[str, int], float]:
+                waveform: str, signs: Mapping[str, float],
+                harmonics_by: Mapping[str, K.Harmonics] | None = None) -> dict[tuple[str, int], float]:
     """Fr for every section from the MMF profile across the build (Dowell's layer form, per layer).
 
     MMF starts at zero at the tube; each layer adds turns x current with the winding's sign (primary +,
-    loads -); a square-wave current is weighted over its odd harmonics (``kernel.current_harmonics``).
+    loads -); a square-wave current is weighted over its odd harmonics (``kernel.current_harmonics``), a
+    winding in ``harmonics_by`` over its own (a rectifier's pulses: Dowell per harmonic, sum I_n^2 R_ac(n)).
     """
     if freq_hz <= 0:
         return {}
     delta_cu = float(K.skin_depth_m(freq_hz, temp_c))
-    harmonics = K.current_harmonics(waveform)
+    drive = K.current_harmonics(waveform)
     mmf = 0.0
     out: dict[tuple[str, int], float] = {}
     for s in built.sections:
@@ -165,6 +167,7 @@ def section_frs(built: BuiltWindow, states: Mapping[str, WindingState], freq_hz:
             out[(s.winding, s.index)] = 1.0
             continue
         # every layer of the section in one call (rows = layers), summed in build order
+        harmonics = harmonics_by.get(s.winding, drive) if harmonics_by else drive
         frs = K.layer_ac_factor(geo, np.array(turns, dtype=float), sb.usable_breadth_m, delta_cu,
                                 np.array(faces[:-1]), np.array(faces[1:]), harmonics)
         sec_loss = 0.0

@@ -35,6 +35,8 @@ CORE_LOSS_SCAN_FRACTION = 0.5
 # power stage's usual rise time (common practice). Summing to the 199th raises BH-2210's primary Fr
 # from 2.0 to 3.0 but its total loss only ~7 %: the core loss dominates there.
 SQUARE_HARMONICS = tuple(range(1, 40, 2))
+RECTIFIER_HARMONICS = tuple(range(1, 40, 2))   # a capacitor-input bridge's current: odd orders to the 39th hold
+                                               # over 99.9 % of its mean square for omega C R_L up to 300
 
 # gaps
 GAP_STEP_M = 1e-5              # gaps are ground or shimmed to 0.01 mm (common practice)

@@ -25,9 +25,13 @@ from __future__ import annotations
 import math
 from collections.abc import Mapping, Sequence
 
+import numpy as np
+
 from ..physics import forward as fw
 from ..physics import gate_drive as gd
 from ..physics import rectifier_loads as rl
+from .kernel_copper import Harmonics
+from .limits import RECTIFIER_HARMONICS
 from .spec import Winding
 from .windings_result import LoadResult
 
@@ -61,6 +65,7 @@ def solve(loads: Sequence[Winding], freq_hz: float, rs_ratio: Mapping[str, float
         kind = load_type(w)
         cap = w.load.capacitance_f if w.load is not None else None
         form, source, vratio, power = 1.0, RESISTIVE, None, v * i
+        harmonics: tuple[tuple[int, float], ...] = ()
         if kind == "converter":
             source = CONVERTER
         elif kind == "gate_drive" and w.load is not None:
@@ -79,6 +84,10 @@ def solve(loads: Sequence[Winding], freq_hz: float, rs_ratio: Mapping[str, float
                 r_load = m * math.sqrt(2.0) * v / i if i > 0 else 1e9
                 form, m = rl.bridge_capacitor_form(2.0 * math.pi * freq_hz * (cap or 0.0) * r_load, r)
             vratio, power, source = m, m * math.sqrt(2.0) * v * i, SCHADE
+            if kind == "bridge_capacitor":     # the pulse's harmonics, for the winding's AC factor
+                weights = rl.bridge_capacitor_harmonics(2.0 * math.pi * freq_hz * (cap or 0.0) * r_load, r,
+                                                        RECTIFIER_HARMONICS)
+                harmonics = tuple((n, w_n) for n, w_n in zip(RECTIFIER_HARMONICS, weights) if w_n > 0.0)
             if kind == "centre_tapped":
                 source = f"{CENTRE_TAP}; pulses by {SCHADE}"
         if kind == "centre_tapped":
@@ -89,7 +98,7 @@ def solve(loads: Sequence[Winding], freq_hz: float, rs_ratio: Mapping[str, float
         else:
             rms = i * form
         out[w.name] = LoadResult(w.name, kind, i, rms, rms / i if i > 0 else 1.0, source, v * rms, power,
-                                 w.load.other_half if w.load is not None else None, vratio)
+                                 w.load.other_half if w.load is not None else None, vratio, harmonics)
     return out
 
 
@@ -120,6 +129,38 @@ def dc_ac_parts(ld: LoadResult | None, rms_a: float) -> tuple[float, float]:
         return 0.0, rms_a
     dc = ld.dc_current_a / 2.0
     return dc, math.sqrt(max(rms_a * rms_a - dc * dc, 0.0))
+
+
+def winding_harmonics(loads: Mapping[str, LoadResult], referred_a: Mapping[str, float], primaries: Sequence[str],
+                      default: Harmonics) -> dict[str, Harmonics] | None:
+    """Each winding's harmonic shares for its AC factor where a load has its own (a capacitor-input bridge):
+    that load's winding its own; a primary the mix of the loads it carries, each load's shares weighted by
+    its referred current squared (``referred_a``), a load without its own at the drive's ``default``; None
+    when no load has harmonics of its own (every winding at the drive's). The MMF profile stays the rms
+    currents': exact where one load sets the primary's waveform, the mix otherwise (common practice)."""
+    if not any(ld.harmonics for ld in loads.values()):
+        return None
+    out: dict[str, Harmonics] = {}
+    mix: dict[float, float] = {}
+    total = 0.0
+    for name, ld in loads.items():
+        own = dict(ld.harmonics) if ld.harmonics else dict(zip(default.orders.tolist(), default.weights.tolist()))
+        if ld.harmonics:
+            out[name] = _harmonics(own)
+        i2 = referred_a.get(name, 0.0) ** 2
+        total += i2
+        for n, w in own.items():
+            mix[n] = mix.get(n, 0.0) + i2 * w
+    if total > 0.0:
+        for p in primaries:
+            out[p] = _harmonics(mix)
+    return out
+
+
+def _harmonics(shares: Mapping[float, float]) -> Harmonics:
+    orders = sorted(shares)
+    w = np.array([shares[n] for n in orders], dtype=float)
+    return Harmonics(np.array(orders, dtype=float), w / w.sum())
 
 
 def interval_currents(loads: Mapping[str, LoadResult], conducting: str) -> dict[str, float]:

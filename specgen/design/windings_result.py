@@ -39,6 +39,7 @@ class LoadResult:
     power_w: float                   # real power delivered
     other_half: str | None = None    # centre_tapped: the half that conducts in the other half period
     vdc_over_vpk: float | None = None   # bridge_capacitor: the DC output over the peak winding voltage
+    harmonics: tuple[tuple[int, float], ...] = ()   # (order, share of the mean square) where not the drive's
 
 
 @record

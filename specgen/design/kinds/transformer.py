@@ -300,17 +300,20 @@ class TransformerRun:
         profile has one half carrying the DC current and the other none, and each half takes its Fr from
         the interval it conducts in; every other winding the mean over the intervals."""
         spec, f, wf = self.spec, self.spec.frequency_hz, self.spec.waveform
+        hb = LD.winding_harmonics(self.load_result, {n: states[n].current_a * states[n].turns / np_turns
+                                                     for n in self.load_result}, [w.name for w in self.prims],
+                                  K.current_harmonics(wf))
         if self.reset is not None:     # it conducts alone, while the switch is off
             return FW.interval_frs(states, self.reset.name,
-                                   lambda now: section_frs(built, now, f, temp.hot_c, wf, _signs(spec)))
+                                   lambda now: section_frs(built, now, f, temp.hot_c, wf, _signs(spec), hb))
         halves = [n for n, ld in self.load_result.items() if ld.load == "centre_tapped"]
         if not halves:
-            return section_frs(built, states, f, temp.hot_c, wf, _signs(spec))
+            return section_frs(built, states, f, temp.hot_c, wf, _signs(spec), hb)
         runs = {}
         for half in halves:
             amps = _balanced(spec, states, np_turns, LD.interval_currents(self.load_result, half))
             now = {n: replace(st, current_a=abs(amps.get(n, st.current_a))) for n, st in states.items()}
-            runs[half] = section_frs(built, now, f, temp.hot_c, wf, _signs(spec))
+            runs[half] = section_frs(built, now, f, temp.hot_c, wf, _signs(spec), hb)
         out: dict[tuple[str, int], float] = {}
         for key in runs[halves[0]]:
             if key[0] in runs:
