@@ -54,7 +54,7 @@ operating:                   # how the part is driven and where it lives
 
 windings:                    # list order is the build order unless build_order says otherwise
   - name: P                  # short name used in build_order, barriers and on the work order
-    role: primary            # primary | secondary | auxiliary | shield (inductors: main)
+    role: primary            # primary | secondary | auxiliary | shield | reset (inductors: main)
     voltage: 230 V           # rms for sine; amplitude for square/unipolar
     voltage_max: 253 V       # top of the range (+10 %): the flux check uses it
     wire: auto               # catalogue wire id, auto (round magnet wire) or auto-litz
@@ -62,6 +62,7 @@ windings:                    # list order is the build order unless build_order 
     # turns: 1330            # fix the turn count instead of calculating it
     # sections: 1            # split the winding (interleaving); give section_pins then
     # section_pins: ["2"]    # tie pins between sections (sections - 1 of them)
+    # section_shares: [2, 1] # an uneven split: each section's share of the turns (equal if not given)
     start: "1"               # pin names, quoted so that YAML keeps them as text
     finish: "2"              # the pin the winding ends on
     direction: cw            # cw | ccw seen from the start flange
@@ -73,6 +74,9 @@ windings:                    # list order is the build order unless build_order 
     current: 1 A             # rms at full load (or va: 24 VA)
     # va: 24 VA              # instead of current: the winding's apparent power
     # same_turns_as: P       # wind the same turns as another winding of the same role and voltage
+    # load: converter        # what it feeds: resistive | converter | forward | {type: bridge_capacitor,
+    #                        # capacitance: 4700 uF} | {type: centre_tapped, other_half: S2} |
+    #                        # {type: gate_drive, gate_charge: 60 nC, gate_resistance: 5 ohm}
     wire: auto
     start: "5"
     finish: "6"
