@@ -71,15 +71,16 @@ def _where(w: WindingResult, turn: int) -> tuple[int, int, int]:
 def tap_results(windings_spec: Sequence[object], windings: Sequence[WindingResult],
                 b_peak_max_t: float) -> tuple[TapResult, ...]:
     """Every tap of every winding, at its whole turn (see the module docstring), with the voltage it gives
-    over the input range: the winding's voltage (a secondary's at full load) x turn / N, scaled by the
-    primary's voltage_min / voltage and voltage_max / voltage (the voltage per turn follows the input)."""
+    over the input range: the winding's voltage (a secondary's at full load) x turn / N, from the primary's
+    nominal voltage to its voltage_max (the voltage per turn follows the input; a transformer is designed at
+    its nominal voltage, with no low line)."""
     from .spec import Winding
 
     out = []
     built = {w.name: w for w in windings}
     prim = next((w for w in windings_spec if isinstance(w, Winding) and w.role == "primary"), None)
     v_in = (prim.voltage_v or 0.0) if prim else 0.0
-    span = ((prim.voltage_min_v or v_in) / v_in, (prim.voltage_max_v or v_in) / v_in) if prim and v_in else (1.0, 1.0)
+    span = (1.0, (prim.voltage_max_v or v_in) / v_in) if prim and v_in else (1.0, 1.0)
     for ws in windings_spec:
         if not isinstance(ws, Winding) or not ws.taps or ws.name not in built:
             continue
