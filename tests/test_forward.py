@@ -147,6 +147,19 @@ def test_a_reset_winding_of_fewer_turns_allows_more_duty():
     assert not any(c.code == "reset" and c.level == "fail" for c in d.checks)
 
 
+def test_fixed_reset_turns_are_checked_by_the_design():
+    # a reset winding of fixed turns, not wound with P: its D_max is N_p / (N_p + N_r) at the primary the
+    # design finds, so a duty past it is the design's failed reset check, not a parse error
+    text = _variant("    turns_ratio: 1          # N_p : N_reset\n    wound_with: P\n", "    turns: 40\n").replace(
+        "duty: 0.4 ", "duty: 0.3 ")
+    d = design_file_text(text)
+    p, r = _w(d, "P"), _w(d, "R")
+    assert r.turns == 40 and d.reset.duty_max == pytest.approx(p.turns / (p.turns + 40))
+    assert d.reset.duty_max < 0.3
+    fail = next(c for c in d.checks if c.code == "reset")
+    assert fail.level == "fail" and "not reset before the next pulse" in fail.message
+
+
 def design_file_text(text: str):
     import tempfile
 
@@ -163,6 +176,10 @@ def design_file_text(text: str):
     ("    load: forward\n", "    load: forward\n    turns_ratio: 1\n", "reset winding", "windings[2].turns_ratio"),
     ("    turns_ratio: 1          # N_p : N_reset\n", "    turns_ratio: 1\n    current: 1 A\n", "not used on a reset",
      "windings[1].current"),
+    ("    turns_ratio: 1          # N_p : N_reset\n", "    turns_ratio: 1\n    turns: 12\n", "turns_ratio",
+     "windings[1].turns"),
+    ("    turns_ratio: 1          # N_p : N_reset\n", "    turns: 12\n", "wound with the primary",
+     "windings[1].turns"),
 ])
 def test_bad_reset_is_located(old, new, words, path):
     with pytest.raises(SpecError, match=words) as err:

@@ -73,6 +73,9 @@ def check_reset(r: Reader, op: Reader, kind: str, waveform: str, duty: float, wi
             raise wr.error(f"'{key}' is not used on a reset winding: its voltage is the input's times its ratio "
                            f"and its current the magnetising current", key)
     ratio = w.turns_ratio or 1.0
+    if w.turns is not None and (wr.has("turns_ratio") or w.wound_with is not None or prims[0].wound_with == w.name):
+        why = "its turns follow from turns_ratio" if wr.has("turns_ratio") else "wound with the primary, it has its turns"
+        raise wr.error(f"a reset winding's turns are not given here: {why}", "turns")
     if w.wound_with is not None or prims[0].wound_with == w.name:
         mate = w.wound_with or prims[0].name
         if mate != prims[0].name:
@@ -83,7 +86,7 @@ def check_reset(r: Reader, op: Reader, kind: str, waveform: str, duty: float, wi
     from ..physics import forward as fw  # here, so a part without a reset winding parses without numpy
 
     d_max = float(fw.reset_duty_limit(ratio, 1.0))
-    if duty > d_max + 1e-12:
+    if w.turns is None and duty > d_max + 1e-12:      # fixed turns: the design's reset check, at N_p
         raise op.error(f"duty {duty:g} is beyond what a {ratio:g}:1 reset winding resets (D_max = N_p / (N_p + "
                        f"N_r) = {d_max:.3g}): lower the duty or raise the reset winding's turns_ratio", "duty")
 
