@@ -94,7 +94,7 @@ def test_one_table_bounds_every_result_by_its_unit_suffix():
     the unit its key is written in (A/mm², mm, kW/m³); values inside it, and zeros, pass."""
     data = {"hot_spot_c": 450.0, "ambient_c": 40.0, "b_peak_t": 6.0, "b_limit_t": 0.3, "core": {"le_mm": 2e8, "ae_mm2": 97.0},
             "windings": [{"current_density_a_mm2": 150.0, "current_a": 0.0}, {"current_density_a_mm2": 4.0}],
-            "losses": {"core_loss_density_kw_m3": 2e9}}
+            "losses": {"core_loss_density_kw_m3": 2e9}, "inductor": {"delta_b_t": 9.0}, "flyback": {"delta_b_t": 11.0}}
     found = {path for path, *_ in bounds.outside_range(data)}
     assert found == {"hot_spot_c", "b_peak_t", "core.le_mm", "windings[0].current_density_a_mm2",
-                     "losses.core_loss_density_kw_m3"}
+                     "losses.core_loss_density_kw_m3", "flyback.delta_b_t"}     # a swing: twice the range

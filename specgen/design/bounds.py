@@ -55,6 +55,8 @@ RANGE.update({
     "flux_density": (None, 5.0),
     "temperature": (units.DIMENSIONS["temperature"].smallest, HOTTEST_C),
 })
+#: Results that are a peak-to-peak swing (a sine's is twice its peak): held to twice their dimension's range.
+PEAK_TO_PEAK = ("delta_b_t", "ripple_a")
 _BY_LENGTH = sorted(SUFFIX, key=len, reverse=True)
 
 
@@ -86,6 +88,8 @@ def outside_range(data: dict[str, Any]) -> Iterator[tuple[str, float, units.Dime
         if suffix is None:
             continue
         lowest, largest = RANGE[SUFFIX[suffix]]
+        if path.rsplit(".", 1)[-1] in PEAK_TO_PEAK:
+            largest *= 2.0
         si = value * SCALE.get(suffix, 1.0)
         if (abs(si) > largest) if lowest is None else not lowest <= si <= largest:
             yield path, value, units.DIMENSIONS[SUFFIX[suffix]], lowest, largest
@@ -128,4 +132,4 @@ def _refusal(spec: Spec, path: str, message: str) -> DesignOutOfRange:
     return DesignOutOfRange(err.message, err.file, err.line, err.path)
 
 
-__all__ = ["HOTTEST_C", "RANGE", "SCALE", "SUFFIX", "leaves", "outside_range", "refuse_out_of_range", "suffix_of"]
+__all__ = ["HOTTEST_C", "PEAK_TO_PEAK", "RANGE", "SCALE", "SUFFIX", "leaves", "outside_range", "refuse_out_of_range", "suffix_of"]
