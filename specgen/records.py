@@ -59,6 +59,11 @@ def _init(self: Any, *args: Any, **kwargs: Any) -> None:
     # the frozen guard.
     cls = self.__class__
     names = cls._record_init
+    setter = object.__setattr__
+    if not kwargs and len(args) == len(names):          # every field given in order: the common case
+        for name, value in zip(names, args):
+            setter(self, name, value)
+        return
     if len(args) > len(names):
         raise TypeError(f"{cls.__qualname__}.__init__() takes {len(names) + 1} positional arguments "
                         f"but {len(args) + 1} were given")
@@ -77,7 +82,6 @@ def _init(self: Any, *args: Any, **kwargs: Any) -> None:
         if missing:
             raise TypeError(f"{cls.__qualname__}.__init__() missing required argument(s): "
                             + ", ".join(repr(m) for m in missing))
-    setter = object.__setattr__
     for name in names:
         setter(self, name, values[name])
 

@@ -110,7 +110,7 @@ def _take(value: Any, idx: Any) -> Any:
         return value.take(idx)
     names = _record_fields(value)
     if names is not None:      # the kernel's records of arrays
-        return type(value)(**{n: _take(getattr(value, n), idx) for n in names})
+        return type(value)(*[_take(getattr(value, n), idx) for n in names])     # fields in order
     if isinstance(value, tuple):
         return tuple(_take(v, idx) for v in value)
     return value
