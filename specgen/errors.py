@@ -65,8 +65,8 @@ def escape_controls(text: str, keep_newlines: bool = False) -> str:
 
 class DesignOutOfRange(SpecError):
     """A requirement that cannot be built on the chosen core: a result of the design is non-finite or
-    outside its plausible range (``design.bounds.RANGE``), so no figure of it is printed. Located like a SpecError, one line, but exit 1: the
-    input is well formed, the part is impossible."""
+    outside its plausible range (``design.bounds.RANGE``), so no figure of it is printed. Located like a
+    SpecError, one line, but exit 1: the input is well formed, the part is impossible."""
 
     exit_code = 1
 
