@@ -59,7 +59,7 @@ def design_report(d: Design) -> str:
     if d.magnetizing_current_a is not None:
         core_rows.append(["magnetizing", f"{present.si(d.magnetizing_current_a, 'A')} rms, "
                                          f"L_m {present.si(d.magnetizing_inductance_h, 'H')}"])
-    if d.leakage_inductance_h:
+    if d.leakage_inductance_h and d.common_mode_choke is None:
         lk = d.leakage_inductance_h
         core_rows.append(["leakage", f"{present.si(lk, 'H')} referred to the primary, secondaries shorted"])
     if d.inductor is not None and d.flyback is None:
@@ -95,6 +95,8 @@ def design_report(d: Design) -> str:
         core_rows += _ct_rows(d.current_transformer)
     if d.flyback is not None:
         core_rows += _flyback_rows(d)
+    if d.common_mode_choke is not None:
+        core_rows += _cmc_rows(d.common_mode_choke)
     out.append(_table(["", ""], core_rows, "ll"))
     out.append("")
     out.append("Windings (build order by section, see the work order)")
@@ -188,4 +190,18 @@ def _flyback_rows(d: Design) -> list[list[str]]:
                   f"switching frequency"],
         ["currents", "; ".join(f"{w.name} {w.peak_current_a:.3g} A peak, {w.rms_current_a:.3g} A rms"
                                for w in fb.windings)],
+    ]
+
+
+def _cmc_rows(c: Any) -> list[list[str]]:
+    """A common-mode choke's own figures (the Design's ``common_mode_choke``)."""
+    return [
+        ["lines", f"{c.lines} x {c.turns} turns, {c.line_current_a:g} A rms each, {c.line_voltage_v:g} V; sectors "
+                  f"{c.winding_angle_deg:.0f}°, gaps {c.gap_angle_deg:.0f}° ({c.sector_gap_m * 1e3:.2f} mm at the bore)"],
+        ["common mode", f"L_CM {present.si(c.inductance_cm_h, 'H')} at {freq(c.inductance_frequency_hz)} (at least "
+                        f"{present.si(c.inductance_cm_min_h, 'H')}), A_L {present.si(c.al_h, 'H')}/turn², mu "
+                        f"{c.mu_at_frequency:.0f}"],
+        ["differential", f"leakage {present.si(c.leakage_inductance_h, 'H')} per line (estimate: {c.leakage_method})"],
+        ["flux", f"common mode {c.b_cm_peak_t * 1e3:.3g} mT from {present.si(c.common_mode_current_a, 'A')} to "
+                 f"ground; differential {c.b_dm_peak_t * 1e3:.3g} mT at {c.current_dm_peak_a:.3g} A peak"],
     ]

@@ -213,12 +213,28 @@ def _material(r: Reader) -> Material:
         out.update(dc_bias_half_field_a_m=bias.quantity("half_field", "field"),
                    dc_bias_steepness=bias.number("steepness", minimum=0.1, maximum=5.0))
         bias.done()
+    if r.has("permeability_vs_frequency"):
+        out["permeability_table"] = _permeability_table(r)
     r.done(renamed=RENAMED_KEYS["materials"])
     m = Material(**out)
     if m.is_powder and m.dc_bias_half_field_a_m is None:
         raise r.error("a powder material needs its permeability under DC bias (dc_bias: {half_field, steepness})",
                       "dc_bias")
     return m
+
+
+def _permeability_table(r: Reader) -> tuple[tuple[float, float], ...]:
+    """``permeability_vs_frequency: [{frequency: 10 kHz, mu: 10000}, ...]``: small-signal mu against frequency,
+    frequencies rising (a common-mode choke's turns use it at the frequency its inductance is stated at)."""
+    rows: list[tuple[float, float]] = []
+    for item in r.items("permeability_vs_frequency", min_items=2):
+        f = item.quantity("frequency", "frequency")
+        mu = item.number("mu", minimum=1.0, maximum=1e6)
+        item.done()
+        if rows and f <= rows[-1][0]:
+            raise item.error("the frequencies must rise from one row to the next", "frequency")
+        rows.append((f, mu))
+    return tuple(rows)
 
 
 def _core(r: Reader) -> Core:

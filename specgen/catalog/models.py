@@ -89,6 +89,8 @@ class Material:
     stacking_factor: float = 1.0
     dc_bias_half_field_a_m: float | None = None   # powders: mu/mu_i = 1 / (1 + (H / half_field)^steepness)
     dc_bias_steepness: float | None = None
+    # small-signal mu against frequency, ((f_hz, mu), ...) rising in f (optional; a common-mode choke reads it)
+    permeability_table: tuple[tuple[float, float], ...] = ()
     raw: dict = field(default_factory=dict, compare=False, repr=False)
 
     @property

@@ -32,13 +32,15 @@ __all__ = ["Former", "SectionBuild", "copper_lengths_m", "lay_out", "leakage_h",
 
 
 def wind_section(former: Former, turns: int, pitch_m: float, layer_height_m: float, start_build_m: float,
-                 margin_m: float, layer_tape_m: float, one_turn_per_layer: bool = False) -> SectionBuild | None:
+                 margin_m: float, layer_tape_m: float, one_turn_per_layer: bool = False,
+                 share: float = 1.0) -> SectionBuild | None:
     """Lay ``turns`` turns from ``start_build_m`` outwards. Returns None if a layer would hold no turn.
 
     pitch_m: space one turn takes along the layer (overall diameter x strands in hand side by side).
     layer_height_m: radial height of one layer of this wire.
     layer_tape_m: insulation between successive layers (already multiplied by tape layers and tape factor).
     one_turn_per_layer: foil, where each turn is a full-width layer.
+    share: the part of each layer's room the section may take (a toroid's sector: its angle over 2 pi).
     """
     usable = former.breadth_m - 2.0 * margin_m
     layers: list[Layer] = []
@@ -49,6 +51,9 @@ def wind_section(former: Former, turns: int, pitch_m: float, layer_height_m: flo
         j = len(layers)
         centre = float(K.layer_centre_m(start_build_m, float(j), layer_height_m, layer_tape_m))
         cap_f, room = K.layer_capacity(former.kind, pitch_m, usable, former.id_m, centre, one_turn_per_layer)
+        if share < 1.0:                  # a sector of the ring: its share of the layer's circumference
+            room = float(room) * share
+            cap_f = float(int(room / pitch_m + 1e-9))
         capacity = int(cap_f)
         if capacity < 1:
             return None

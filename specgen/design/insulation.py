@@ -207,6 +207,8 @@ def _between_windings(state: DesignState, a: list[str], b: list[str], coord: ins
     tiw = [side for side in (a, b) if side and all(state.states[n].wire.kind == "tiw" for n in side)]
     sleeve_ok, sleeve_words = _sleeving_ok(state, a + b, test_v)
     pins_mm, pins_words = _pin_gap_mm(state, a, b)
+    if built.sectors is not None:
+        return _between_sectors(state, sleeve_ok, sleeve_words)
     carried, problems = _bifilar_across(state, a, b, grade)
     if state.parts.former.kind == "toroid":
         # windings over one another on the ring: the winding tapes between them, half-lapped
@@ -266,6 +268,17 @@ def _between_windings(state: DesignState, a: list[str], b: list[str], coord: ins
     return _Provided(creep_mm, creep_mm, path, solid_ok and sleeve_ok and not problems,
                      solid_words + (f"; {sleeve_words}" if sleeve_ok and sleeve_words else ""), tuple(problems),
                      unknown)
+
+
+def _between_sectors(state: DesignState, sleeve_ok: bool, sleeve_words: str) -> _Provided:
+    """Windings side by side on sectors of a toroid: the clear gap between the sectors at the innermost copper
+    is the creepage and the clearance (``design.sectors``); air, not solid insulation, separates them."""
+    gap = state.built.sectors
+    assert gap is not None
+    mm = gap.gap_m * 1e3
+    return _Provided(mm, mm, f"{mm:.2f} mm across the unwound gap between the sectors at the bore",
+                     sleeve_ok, "none in the path (side by side on the ring, air between the sectors)"
+                     + (f"; {sleeve_words}" if sleeve_words else ""), tuple([] if sleeve_ok else [sleeve_words]))
 
 
 def _to_core(state: DesignState, names: list[str], coord: ins.BarrierCoordination) -> _Provided:

@@ -191,6 +191,6 @@ def finish(spec: Spec, cat: Catalog, parts: Parts, kind: PartKind, ev: Evaluatio
         inductor=s.inductor, catalog_ids=catalog_ids(spec, parts, windings), iterations=iterations,
         notes=spec.notes, history=history_entries(spec.history), insulation=insulation,
         current_transformer=s.current_transformer, flyback=s.flyback, connections=s.connections, loads=s.loads,
-        frequencies_hz=spec.frequencies_hz, taps=taps, reset=s.reset,
+        frequencies_hz=spec.frequencies_hz, taps=taps, reset=s.reset, common_mode_choke=s.common_mode_choke,
         floor=floor_data(cat, parts, ev.built, windings, spec.varnish, getattr(spec, "core_wrap", None)),
     )

@@ -10,6 +10,7 @@ from typing import Any
 
 from ..records import record
 from .acceptance import AcceptedWarning
+from .cmc_result import CommonModeChokeResult, cmc_dict
 from .vocab import CheckLevel
 from .windings_result import ConnectionResult, LoadResult, ResetResult, TapResult, extend_dict
 
@@ -462,6 +463,7 @@ class Design:
     floor: FloorData | None = None   # None only for a Design built outside the pipeline
     current_transformer: CurrentTransformerResult | None = None
     flyback: FlybackResult | None = None
+    common_mode_choke: CommonModeChokeResult | None = None
     connections: tuple[ConnectionResult, ...] = ()   # several primaries: how they join, the flux of each
     loads: tuple[LoadResult, ...] = ()               # secondaries' declared loads and their rms currents
     frequencies_hz: tuple[float, ...] = ()           # several frequencies served (frequency_hz the lowest)
@@ -572,6 +574,8 @@ class Design:
                 "core_loss_current_a": ct.core_loss_current_a, "current_shape": ct.current_shape,
             })
         extend_dict(out, self.connections, self.loads, self.frequencies_hz, self.taps, self.reset)
+        if self.common_mode_choke is not None:
+            out.update(cmc_dict(self.common_mode_choke))
         if self.flyback is not None:
             out.update(_flyback_dict(self.flyback))
             per = {w.name: w for w in self.flyback.windings}

@@ -35,10 +35,11 @@ from .taps import Tap, check_taps, parse_taps
 from .vocab import Cooling, Waveform
 
 if TYPE_CHECKING:
+    from .cmc_spec import CommonModeChokeReq
     from .flyback_spec import FlybackReq
 
-KINDS = ("transformer", "inductor", "current_transformer", "flyback")
-ROLES = ("primary", "secondary", "auxiliary", "shield", "main", "reset")
+KINDS = ("transformer", "inductor", "current_transformer", "flyback", "common_mode_choke")
+ROLES = ("primary", "secondary", "auxiliary", "shield", "main", "reset", "line")
 WAVEFORMS = ("sine", "square", "unipolar")
 STATUSES = ("draft", "released", "obsolete")
 COOLING = ("natural", "forced", "potted")
@@ -165,6 +166,7 @@ class Spec:
     data: Any = field(compare=False, repr=False, default_factory=dict)   # the parsed YAML, for fingerprints
     current_transformer: CurrentTransformerReq | None = None
     flyback: FlybackReq | None = None
+    common_mode_choke: CommonModeChokeReq | None = None
     connections: tuple[Connection, ...] = ()   # several primaries: how they are joined outside the part
     frequencies_hz: tuple[float, ...] = ()     # a part for several mains frequencies (frequency_hz the lowest)
 
@@ -276,9 +278,9 @@ def _frequencies(op: Reader, kind: str) -> tuple[float, tuple[float, ...]]:
 
     raw = op.raw("frequency")
     if isinstance(raw, list):
-        if kind != "transformer" or len(raw) < 2:
-            raise op.error("several frequencies are for a transformer (a list of two or more, like "
-                           "[50 Hz, 60 Hz]); give one frequency here", "frequency")
+        if kind not in ("transformer", "common_mode_choke") or len(raw) < 2:
+            raise op.error("several frequencies are for a transformer or a common-mode choke (a list of two or "
+                           "more, like [50 Hz, 60 Hz]); give one frequency here", "frequency")
         out = []
         for i, item in enumerate(raw):
             try:
@@ -351,6 +353,7 @@ def parse_spec(data: Any, name: str) -> Spec:
         raise r.error(f"'inductor' is not used by kind {kind}: only an inductor has an 'inductor' section", "inductor")
     ct = _current_transformer_section(r, core, op, kind, windings, wreaders)
     fb = _flyback_section(r, core, op, kind, windings, wreaders)
+    cmc = _common_mode_choke_section(r, core, op, kind, windings, wreaders)
 
     stack = core.quantity("stack", "length", None)
     from ..part_numbers import part_number_problem
@@ -365,6 +368,7 @@ def parse_spec(data: Any, name: str) -> Spec:
         kind=kind, core_id=core.text("id"), stack_m=stack,
         core_count=core.integer("count", 1, minimum=1, maximum=8), bobbin_id=core.text("bobbin", None),
         windings=windings, build_order=order, inductor=inductor, current_transformer=ct, flyback=fb,
+        common_mode_choke=cmc,
         notes=r.text("notes", "", max_len=5000), history=_history(r), data=data,
         frequency_hz=freq, waveform=waveform, duty=duty, ambient_c=ambient, cooling=cooling,
         insulation_class_c=cls, flux_limit_t=flux_limit_t, efficiency_guess=efficiency_guess,
@@ -387,6 +391,9 @@ def _check_windings(r: Reader, kind: str, windings: tuple[Winding, ...], wreader
     """Names unique, the roles a kind needs, same-turns pairs that can be paired."""
     names = [w.name for w in windings]
     for i, w in enumerate(windings):
+        if w.role == "line" and kind != "common_mode_choke":
+            raise wreaders[i].error(f"role 'line' is for a common-mode choke's windings, not used by kind {kind}",
+                                    "role")
         if (problem := winding_name_problem(w.name)) is not None:
             raise wreaders[i].error(problem, "name")
         if names.index(w.name) != i:
@@ -650,6 +657,23 @@ def _flyback_section(r: Reader, core: Reader, op: Reader, kind: str, windings: t
 
     refuse_unused(op, UNUSED_OPERATING_KEYS)
     return parse_flyback(_section(r, "flyback"), core, windings, wreaders)
+
+
+def _common_mode_choke_section(r: Reader, core: Reader, op: Reader, kind: str, windings: tuple[Winding, ...],
+                               wreaders: list[Reader]) -> CommonModeChokeReq | None:
+    """The ``common_mode_choke`` section (only that kind has one; a toroid has no gap, ever)."""
+    if kind != "common_mode_choke":
+        if r.has("common_mode_choke"):
+            raise r.error(f"'common_mode_choke' is not used by kind {kind}", "common_mode_choke")
+        return None
+    for key in ("gap", "gap_arrangement", "stack", "count", "bobbin"):
+        if core.has(key):
+            raise core.error(f"'{key}' is not used by kind common_mode_choke: it is wound on one ungapped "
+                             f"toroid", key)
+    from .cmc_spec import UNUSED_OPERATING_KEYS, parse_common_mode_choke, refuse_unused
+
+    refuse_unused(op, UNUSED_OPERATING_KEYS)
+    return parse_common_mode_choke(_section(r, "common_mode_choke"), windings, wreaders)
 
 
 def _history(r: Reader) -> tuple[dict[str, Any], ...]:

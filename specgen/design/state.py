@@ -17,6 +17,7 @@ from .vocab import CheckLevel, Cooling, FormerKind, GapArrangement, Waveform, Wi
 
 if TYPE_CHECKING:
     from ..catalog.models import Bobbin, Catalog, Core, Material, Wire
+    from .cmc_result import CommonModeChokeResult
     from .result import Build, Check, CurrentTransformerResult, FlybackResult, InductorResult, Layer, Limit, Losses, WindingResult
     from .spec import Spec, Winding
     from .windings_result import ConnectionResult, LoadResult, ResetResult
@@ -128,11 +129,21 @@ class BuiltSection:
 
 
 @record(slots=True)
+class SectorLayout:
+    """Windings side by side round a toroid, each on its own sector (a common-mode choke's lines)."""
+    winding_angle_rad: float      # each sector's angle
+    gap_angle_rad: float          # the unwound angle between neighbouring sectors
+    gap_m: float                  # clear distance between sectors at the innermost copper (the chord)
+    gap_asked_m: float            # the clear distance the spec asks
+
+
+@record(slots=True)
 class BuiltWindow:
     sections: tuple[BuiltSection, ...]
     height_m: float
     ok: bool
     fail_reason: str
+    sectors: SectorLayout | None = None   # None: sections over one another (every kind but sector winding)
 
     def of(self, winding: str) -> tuple[BuiltSection, ...]:
         return tuple(s for s in self.sections if s.winding == winding)
@@ -202,6 +213,7 @@ class ElectricalSummary:
     checks: tuple[Check, ...] = ()  # the kind's own, after the common checks
     current_transformer: CurrentTransformerResult | None = None
     flyback: FlybackResult | None = None
+    common_mode_choke: CommonModeChokeResult | None = None
     loads: tuple[LoadResult, ...] = ()               # a transformer's declared loads (``design.loads``)
     connections: tuple[ConnectionResult, ...] = ()   # several primaries: each connection's flux
     reset: ResetResult | None = None                 # a forward transformer's reset winding (``design.forward``)

@@ -522,3 +522,9 @@ def _section_labels(body: list, labels: list, lx: float, upward: bool) -> None:
                        3.5, weight="bold", fill=colour, cls="section-label"))
         if sec.tape_after:
             body.append(_t(lx, y_label + 4.0, f"then {sec.tape_after}", 3.0, fill="#444"))
+
+
+# the helpers the sector plan (``sector_drawing``) draws with, under public names
+coord = _n
+svg_text = _t
+svg_document = _svg

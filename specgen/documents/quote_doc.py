@@ -86,6 +86,17 @@ def _ct_ratings(ct, freq: str) -> list[Rating]:
     ]
 
 
+def _cmc_ratings(c, freq: str, limits) -> list[Rating]:
+    """A common-mode choke's guaranteed figures: lines, current, voltage, L_CM and the leakage (from the Design)."""
+    from .workorder import fmt_henry
+    out = [Rating("Lines", f"{c.lines} x {_num(c.line_current_a, 'A')} rms, {_num(c.line_voltage_v, 'V')}", freq)]
+    for lim in limits:
+        out.append(Rating(lim.name[0].upper() + lim.name[1:], f"{fmt_henry(lim.low)} to {fmt_henry(lim.high)}",
+                          lim.item if lim.item != "lines in parallel" else
+                          f"lines in parallel, at {c.inductance_frequency_hz / 1e3:g} kHz"))
+    return out
+
+
 def ratings(design) -> list[Rating]:
     """What the shop guarantees, read from the Design: voltages, VA, inductance, DCR, hipot, class."""
     from .workorder import fmt_henry, fmt_ohm, fmt_test_volt
@@ -120,6 +131,9 @@ def ratings(design) -> list[Rating]:
                                                        f"DC", "rectified, from the turns ratio, full load"))
         out.append(Rating("Primary inductance", f"{fmt_henry(fb.inductance_h)}", f"{freq} switching, "
                                                                             f"{fb.mode.upper()} at the lowest input"))
+    cmc = getattr(d, "common_mode_choke", None)
+    if cmc is not None:
+        out += _cmc_ratings(cmc, freq, d.tests.inductance)
     if d.inductor is not None and d.flyback is None:
         ind = d.inductor
         if ind.carries_dc:

@@ -204,6 +204,7 @@ def _fit_to_text_width(draw, text_width_mm: float, max_w_mm: float):
 def _drawings(design, settings) -> dict:
     """The pin diagram and the window (or ring) section, from the Design alone, sized to the text width."""
     from . import drawings as dr
+    from .sector_drawing import sector_context
 
     floor = design.floor
     toroid = design.core.shape == "toroid"
@@ -228,6 +229,9 @@ def _drawings(design, settings) -> dict:
             layer_tape_m=tapes.between_layers.build_m if tapes.between_layers else 0.0,
             colour_index=index[w.name], slot=_bifilar_slot(design, w, s)))
     outline = floor.outline
+    sectors = sector_context(design, text_width_mm)
+    if sectors is not None:      # sector winding: every sector builds alike; the bore shows the first
+        secs = secs[:1]
     if toroid:
         window_svg, scale = _fit_to_text_width(
             lambda w: dr.toroid_sector(outline.inner_diameter_m or 0.0, outline.outer_diameter_m or 0.0,
@@ -237,8 +241,10 @@ def _drawings(design, settings) -> dict:
         window_svg, scale = _fit_to_text_width(
             lambda w: dr.window_section(outline.winding_breadth_m, design.build.available_m,
                                         design.build.bulged_height_m, secs, max_w_mm=w), text_width_mm, 112.0)
+    if sectors is not None:
+        sectors["scale"] = dr.scale_text(sectors["scale"])
     return {"pin_svg": pin_svg, "window_svg": window_svg, "window_scale": dr.scale_text(scale),
-            "dot_legend": dr.DOT_LEGEND}
+            "dot_legend": dr.DOT_LEGEND, "sectors": sectors}
 
 
 _LEAD_PREP = {
@@ -325,6 +331,7 @@ def build_context(design, settings, *, number: str, qty: int, due: str | None = 
                   issued: str | None = None, issued_by: str | None = None, draft: bool = False) -> dict:
     """Everything the work-order template shows, as plain dicts and strings (SVG as Markup)."""
     from .. import revision
+    from .sector_drawing import sector_row
 
     d = design
     toroid = d.core.shape == "toroid"
@@ -421,6 +428,8 @@ def build_context(design, settings, *, number: str, qty: int, due: str | None = 
             ("Wire", f"{w.wire}: {w.wire_label}, {w.strands} in hand", "key"),
             ("Layers", layers_text, ""),
         ]
+        if (place := sector_row(d, w.name)) is not None:
+            rows.insert(1, place)
         if not toroid:
             rows.append(("Margins", (f"{fmt_mm(s.margin_m)} each side: {s.margin_tape} built up to the "
                                      f"height of each layer" if s.margin_tape else f"{fmt_mm(s.margin_m)} each side")

@@ -13,6 +13,7 @@ from __future__ import annotations
 
 from ..state import KindTests
 from .base import KindRun, PartKind
+from .common_mode_choke import CommonModeChokeKind
 from .current_transformer import CurrentTransformerKind
 from .flyback import FlybackKind
 from .inductor import InductorKind
@@ -46,3 +47,4 @@ register(TransformerKind())
 register(InductorKind())
 register(CurrentTransformerKind())
 register(FlybackKind())
+register(CommonModeChokeKind())
