@@ -24,13 +24,13 @@ toroid, ever: the spec refuses one.
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass
 
 from ...catalog.models import Catalog, Material
 from ...physics import common_mode as cm
 from ...physics import faraday
 from ...physics import gap as gapmod
 from ...present import frequency as _freq
+from ...records import record
 from .. import kernel as K
 from ..build import copper_lengths_m, section_frs, winding_fr
 from ..cmc_result import CommonModeChokeResult
@@ -80,7 +80,7 @@ def turns_for_inductance(l_min_h: float, al_h: float, tolerance: float) -> int:
     return n
 
 
-@dataclass(frozen=True, slots=True)
+@record(slots=True)
 class CmcPass:
     """A common-mode choke's figures at one pass."""
     leakage_h: float
