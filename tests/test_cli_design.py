@@ -26,6 +26,7 @@ BUILD = {"height_mm", "available_mm", "ku", "fits"}
 LOSSES = {"copper_w", "core_w", "total_w"}
 CHECK = {"level", "code", "message"}
 CURRENT_TRANSFORMER = {"ratio", "burden_ohm", "ratio_error_pct", "phase_error_deg", "knee_burden_ohm"}
+COMMON_MODE_CHOKE = {"common_mode_inductance_h", "differential_inductance_h", "lines", "b_cm_peak_t", "b_dm_peak_t"}
 FLYBACK = {"inductance_h", "gap_mm", "mode", "duty_max", "reflected_voltage_v", "delta_b_t", "leakage_inductance_h"}
 INDUCTOR = {"inductance_h", "inductance_at_full_bias_h", "gap_mm", "gap_arrangement", "al_nh", "energy_j",
             "h_dc_a_m", "bias_drop_pct"}
@@ -56,7 +57,10 @@ def test_json_keys_are_stable(outputs, part):
     data = json.loads(r.stdout)
     assert TOP <= data.keys(), TOP - data.keys()
     assert data["part"] == part
-    assert data["kind"] in ("transformer", "inductor", "current_transformer", "flyback")
+    assert data["kind"] in ("transformer", "inductor", "current_transformer", "flyback", "common_mode_choke")
+    if data["kind"] == "common_mode_choke":     # issue 17's keys, one winding per line
+        assert COMMON_MODE_CHOKE <= data.keys(), COMMON_MODE_CHOKE - data.keys()
+        assert len(data["windings"]) == data["lines"]
     if data["kind"] == "flyback":
         assert FLYBACK <= data.keys(), FLYBACK - data.keys()
         assert all(_number(w["peak_current_a"]) and _number(w["rms_current_a"]) for w in data["windings"])

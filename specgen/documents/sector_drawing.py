@@ -87,7 +87,7 @@ def sector_plan(od_m: float, id_m: float, lines: list[SectorLine], winding_deg: 
     top, low = P(r_out + 1.0, 0.0), P(r_in - 1.0, 0.0)
     body.append(f'<line x1="{_n(top[0])}" y1="{_n(top[1])}" x2="{_n(low[0])}" y2="{_n(low[1])}" '
                 f'stroke="{INK}" stroke-width="0.5" stroke-dasharray="1 0.8"/>')
-    body.append(_t(cx, cy, "0° mark ↑", 2.8, "middle"))
+    body.append(_t(cx, cy, "0° mark ↑", 3.0, "middle"))
     tx = cx + size / 2.0 + 8.0
     for text in (f"gaps {gap_deg:.0f}°: {gap_mm:.1f} mm clear at the bore",
                  "every sector: the same start side,", "the same arrow (SAME SENSE)",
