@@ -188,3 +188,40 @@ def test_json_carries_the_ct_figures(ct):
     for key in ("burden_ohm", "ratio_error_pct", "phase_error_deg", "b_peak_t", "knee_burden_ohm"):
         assert math.isfinite(out[key])
     assert out["tests"]["ratio"][0]["unit"] == "A"
+
+
+def test_pass_through_primary_barrier_is_coordinated(ct):
+    """The bus conductor through the bore against the secondary: the outer wrap's half-lapped layers (creepage
+    along the laps: 12 mm x 0.5 x 1 layer, common practice) against IEC 60664-1's basic creepage at 400 V
+    (4.0 mm, pollution degree 2, material group IIIa; from memory)."""
+    b = next(x for x in ct.insulation.barriers if x.between == ("conductor", "S"))
+    assert b.ok and b.creepage_available_mm == pytest.approx(6.0)
+    assert b.creepage_required_mm == pytest.approx(4.0)
+    hip = next(h for h in ct.tests.hipot if h.between == "conductor - S")
+    assert "test conductor" in hip.connection and "S1-S2" in hip.connection
+
+
+def test_pass_through_primary_needs_its_barrier_and_a_wrap(cat):
+    text = DEMOS["BH-6100"].read_text(encoding="utf-8")
+    start = text.index("    - between: [conductor, S]")
+    end = text.index("working_voltage: 400 V\n", start) + len("working_voltage: 400 V\n")
+    d = design_text(text[:start] + text[end:], "BH-6100.yaml", cat=cat)
+    assert any(c.code == "ct-primary-barrier" and c.level == "warn" for c in d.checks)
+    assert not any(c.code == "ct-primary-barrier" for c in design_file(DEMOS["BH-6100"], cat=cat).checks)
+    bare = design_text(_variant("  outer_wrap: {tape: TAPE-PET25-12MM, layers: 1}\n", ""), "BH-6100.yaml", cat=cat)
+    b = next(x for x in bare.insulation.barriers if x.between == ("conductor", "S"))
+    assert not b.ok and "nothing insulates the winding from the conductor" in b.message
+
+
+def test_conductor_barrier_only_for_a_pass_through_primary(cat):
+    wound = _variant("  primary_turns: 1 ", "  primary_turns: 2 ").replace(
+        "windings:\n", "windings:\n  - {name: P, role: primary, wire: auto, start: P1, finish: P2, direction: cw}\n", 1)
+    with pytest.raises(SpecError) as err:
+        design_text(wound, "BH-6100.yaml", cat=cat)
+    assert "names 'conductor'" in str(err.value) and "BH-6100.yaml:" in str(err.value)
+    choke = next(p for p in demo_specs() if p.stem == "BH-8210").read_text(encoding="utf-8")
+    choke = choke.replace("    - between: [L, N]", "    - between: [conductor, L]", 1)
+    with pytest.raises(SpecError) as err:
+        design_text(choke, "BH-8210.yaml", cat=cat)
+    assert "'conductor' (a primary passed through the core) is not used by kind common_mode_choke" in str(err.value)
+    assert "BH-8210.yaml:" in str(err.value) and "barriers[0]" in str(err.value)

@@ -16,7 +16,7 @@ from __future__ import annotations
 
 from ..loading import Reader
 from .limits import MAX_TURNS
-from .spec import CurrentTransformerReq, Winding
+from .spec import THROUGH_CONDUCTOR, Barrier, CurrentTransformerReq, Winding
 
 CURRENT_SHAPES = ("sine", "dc_offset", "unipolar")
 SECTION_KEYS = ("primary_current", "primary_current_max", "primary_turns", "turns_ratio", "secondary_current",
@@ -50,7 +50,8 @@ def _ratio(r: Reader) -> tuple[float, float] | None:
     return pa, pb
 
 
-def parse_current_transformer(r: Reader, windings: tuple[Winding, ...], wreaders: list[Reader]) -> CurrentTransformerReq:
+def parse_current_transformer(r: Reader, windings: tuple[Winding, ...], wreaders: list[Reader],
+                              barriers: tuple[Barrier, ...] = ()) -> CurrentTransformerReq:
     refuse_unused(r, SECTION_KEYS, allowed=True)
     ip = r.quantity("primary_current", "current")
     ip_max = r.quantity("primary_current_max", "current", ip)
@@ -85,6 +86,7 @@ def parse_current_transformer(r: Reader, windings: tuple[Winding, ...], wreaders
         acc.done()
     r.done()
     _check_ct_windings(r, windings, wreaders, np_turns)
+    _check_through_barrier(r, barriers, np_turns)
     return CurrentTransformerReq(primary_current_a=ip, primary_current_max_a=ip_max, primary_turns=np_turns,
                                  turns_ratio=turns_ratio, burden_ohm=burden, current_shape=shape,
                                  ratio_error_pct=ratio_err, phase_error_deg=phase_err)
@@ -111,3 +113,12 @@ def _check_ct_windings(r: Reader, windings: tuple[Winding, ...], wreaders: list[
         if w.sections != 1:
             raise wr.error("a current-transformer winding is wound in one section here", "sections")
         refuse_unused(wr, _UNUSED_WINDING_KEYS)
+
+
+def _check_through_barrier(r: Reader, barriers: tuple[Barrier, ...], np_turns: int) -> None:
+    """A pass-through primary's insulation to the secondary is stated as a barrier naming 'conductor'; a wound
+    primary has none (its own barrier names it)."""
+    through = [b for b in barriers if THROUGH_CONDUCTOR in (b.a.strip(), b.b.strip())]
+    if np_turns > 1 and through:
+        raise r.error(f"a barrier names '{THROUGH_CONDUCTOR}' (a primary passed through the core) but "
+                      f"primary_turns is {np_turns}: name the primary winding instead", "primary_turns")

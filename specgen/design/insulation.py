@@ -41,7 +41,7 @@ from ..records import record
 from ..standards import insulation as ins
 from .resolve import spec_error
 from .result import BarrierResult, Check, InsulationResult
-from .spec import Barrier, Spec, Winding
+from .spec import THROUGH_CONDUCTOR, Barrier, Spec, Winding
 from .state import BuiltSection, DesignState
 
 _CATEGORY = ("I", "II", "III", "IV")
@@ -63,7 +63,7 @@ def side_names(spec: Spec, side: str) -> list[str]:
     """The windings one side of a barrier names: 'all', 'core' (none), or names joined by '+'."""
     if side.strip() in ("all", "all windings"):
         return [w.name for w in spec.windings]
-    if side.strip() == "core":
+    if side.strip() in ("core", THROUGH_CONDUCTOR):
         return []
     return [n.strip() for n in side.split("+")]
 
@@ -79,6 +79,9 @@ def hipot_connection(spec: Spec, a: str, b: str) -> str:
         pins = [p for n in side_names(spec, side) for p in winding_pins(spec.winding(n))]
         if pins:
             groups.append("short " + "-".join(pins))
+    if THROUGH_CONDUCTOR in (a.strip(), b.strip()):
+        groups.append("fill the bore with a test conductor (metal foil or a bar touching the whole outer wrap) "
+                      "in place of the primary")
     where = "apply between them and the core" if "core" in (a.strip(), b.strip()) else "apply between"
     others = [p for w in spec.windings if w.name not in {*side_names(spec, a), *side_names(spec, b)}
               for p in winding_pins(w)]
@@ -281,6 +284,28 @@ def _between_sectors(state: DesignState, sleeve_ok: bool, sleeve_words: str) -> 
                      + (f"; {sleeve_words}" if sleeve_words else ""), tuple([] if sleeve_ok else [sleeve_words]))
 
 
+def _to_through_conductor(state: DesignState, names: list[str], coord: ins.BarrierCoordination) -> _Provided:
+    """A current transformer's primary passed through the bore lies against the outermost build: between it and
+    the winding are the outer wrap's half-lapped layers (creepage along their laps, as between windings on a
+    toroid) and, at the ends, the lead sleeving. The conductor's own insulation is not counted (unknown here)."""
+    spec, cat = state.spec, state.cat
+    test_v = coord.hipot.type_test_v
+    sleeve_ok, sleeve_words = _sleeving_ok(state, names, test_v)
+    wrap = spec.outer_wrap
+    if wrap is None or wrap.layers == 0:
+        return _Provided(0.0, 0.0, "nothing over the winding in the bore", False, "nothing",
+                         ("nothing insulates the winding from the conductor through the bore: give an outer wrap "
+                          "(insulation.outer_wrap) that passes the grade",))
+    tape = cat.tapes[wrap.tape]
+    bds, words = _tape_layers(state, [(tape.id, wrap.layers)], factor=2)
+    lap = tape.width_m * TOROID_WRAP_LAP * wrap.layers * 1e3
+    solid_ok = _layers_pass(bds, test_v, coord.solid) and sleeve_ok
+    return _Provided(lap, lap, f"along the laps of the outer wrap ({wrap.layers} half-lapped layers of "
+                               f"{tape.width_m * 1e3:g} mm tape) to the conductor through the bore", solid_ok,
+                     f"outer wrap: {words}" + (f"; {sleeve_words}" if sleeve_words else ""),
+                     tuple([] if sleeve_ok else [sleeve_words]))
+
+
 def _to_core(state: DesignState, names: list[str], coord: ins.BarrierCoordination) -> _Provided:
     spec, cat, parts = state.spec, state.cat, state.parts
     test_v = coord.hipot.type_test_v
@@ -328,8 +353,12 @@ def _one(state: DesignState, basis: InsulationBasis, b: Barrier) -> BarrierResul
     except ValueError as err:
         raise spec_error(spec, str(err), "insulation", "barriers", b.index) from None
     to_core = "core" in (b.a.strip(), b.b.strip())
-    prov = _to_core(state, a_names or b_names, coord) if to_core else _between_windings(state, a_names, b_names,
-                                                                                     coord, b.rating)
+    if THROUGH_CONDUCTOR in (b.a.strip(), b.b.strip()):
+        prov = _to_through_conductor(state, a_names or b_names, coord)
+    elif to_core:
+        prov = _to_core(state, a_names or b_names, coord)
+    else:
+        prov = _between_windings(state, a_names, b_names, coord, b.rating)
     label = f"{b.a} to {b.b} {b.rating}"
     if functional:
         shop = state.cat.shop.hipot

@@ -45,7 +45,9 @@ STATUSES = ("draft", "released", "obsolete")
 COOLING = ("natural", "forced", "potted")
 RATINGS = ("functional", "basic", "supplementary", "double", "reinforced")
 _VOLTAGE_SPAN = 4.0      # voltage_max / nominal and nominal / voltage_min at most this
-MAX_WORKING_V = 1000.0   # the low-voltage range of IEC 60664-1's tables as this tool uses them
+MAX_WORKING_V = 1000.0
+# a barrier side that names no winding: the conductor passed once through a current transformer's core
+THROUGH_CONDUCTOR = "conductor"   # the low-voltage range of IEC 60664-1's tables as this tool uses them
 
 
 @record
@@ -351,7 +353,11 @@ def parse_spec(data: Any, name: str) -> Spec:
         inductor = _inductor(_section(r, "inductor"), core)
     elif r.has("inductor"):
         raise r.error(f"'inductor' is not used by kind {kind}: only an inductor has an 'inductor' section", "inductor")
-    ct = _current_transformer_section(r, core, op, kind, windings, wreaders)
+    if kind != "current_transformer" and any(THROUGH_CONDUCTOR in (b.a, b.b) for b in barriers):
+        where = next(b for b in barriers if THROUGH_CONDUCTOR in (b.a, b.b))
+        raise SpecError(f"'{THROUGH_CONDUCTOR}' (a primary passed through the core) is not used by kind {kind}",
+                        file=name, line=where.line, path=f"insulation.barriers[{where.index}].between")
+    ct = _current_transformer_section(r, core, op, kind, windings, wreaders, barriers)
     fb = _flyback_section(r, core, op, kind, windings, wreaders)
     cmc = _common_mode_choke_section(r, core, op, kind, windings, wreaders)
 
@@ -573,9 +579,10 @@ def _barriers(ins: Reader, names: list[str]) -> tuple[Barrier, ...]:
         a, c = (str(x).strip() for x in between)
         for x in (a, c):
             for part in x.split("+"):     # "S1+S2": windings tied together for the test
-                if part.strip() not in ("core", "all") and part.strip() not in names:
+                if part.strip() not in ("core", "all", THROUGH_CONDUCTOR) and part.strip() not in names:
                     raise b.error(f"'{part.strip()}' names no winding (windings: {', '.join(names)}, "
-                                  f"'all' or 'core')", "between")
+                                  f"'all', 'core', or '{THROUGH_CONDUCTOR}' for a current transformer's "
+                                  f"primary passed through the core)", "between")
         if a == c:
             raise b.error("a barrier is between two different things", "between")
         if b.has("grade") == b.has("rating"):
@@ -628,7 +635,8 @@ def _inductor(r: Reader, core: Reader) -> InductorReq:
 
 
 def _current_transformer_section(r: Reader, core: Reader, op: Reader, kind: str, windings: tuple[Winding, ...],
-                                 wreaders: list[Reader]) -> CurrentTransformerReq | None:
+                                 wreaders: list[Reader], barriers: tuple[Barrier, ...] = ()
+                                 ) -> CurrentTransformerReq | None:
     """The ``current_transformer`` section (only that kind has one; it has no gap)."""
     if kind != "current_transformer":
         if r.has("current_transformer"):
@@ -641,7 +649,7 @@ def _current_transformer_section(r: Reader, core: Reader, op: Reader, kind: str,
     from .ct_spec import UNUSED_OPERATING_KEYS, parse_current_transformer, refuse_unused
 
     refuse_unused(op, UNUSED_OPERATING_KEYS)
-    return parse_current_transformer(_section(r, "current_transformer"), windings, wreaders)
+    return parse_current_transformer(_section(r, "current_transformer"), windings, wreaders, barriers)
 
 
 def _flyback_section(r: Reader, core: Reader, op: Reader, kind: str, windings: tuple[Winding, ...],

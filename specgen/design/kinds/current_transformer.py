@@ -27,7 +27,7 @@ from .. import kernel as K
 from ..build import copper_lengths_m, lay_out, section_frs, winding_fr
 from ..flux import b_sat_hot_t, flux_limit, saturation_checks
 from ..result import Check, CurrentTransformerResult, Limit
-from ..spec import CurrentTransformerReq, Spec, Winding
+from ..spec import THROUGH_CONDUCTOR, CurrentTransformerReq, Spec, Winding
 from ..state import DesignState, ElectricalSummary, Evaluation, KindTests, Parts, ThermalState, WindingState, WireChoice
 from ..wires import choose_wire
 
@@ -144,7 +144,8 @@ class CurrentTransformerRun:
             h_peak_a_m=math.sqrt(2.0) * ct.magnetizing_current_a * self.ns / parts.le_m,
             magnetizing_inductance_h=d.lm_h, magnetizing_current_a=ct.magnetizing_current_a,
             voltages={self.sec.name: d.v_secondary_v}, output_power_w=self.i_s ** 2 * req.burden_ohm,
-            checks=tuple(_accuracy_checks(ct, req) + _shape_checks(ct)), current_transformer=ct)
+            checks=tuple(_accuracy_checks(ct, req) + _shape_checks(ct) + _through_check(self.spec, req)),
+            current_transformer=ct)
 
 
 def _accuracy_checks(ct: CurrentTransformerResult, req: CurrentTransformerReq) -> list[Check]:
@@ -169,6 +170,17 @@ def _accuracy_checks(ct: CurrentTransformerResult, req: CurrentTransformerReq) -
                                             f"{ct.burden_ohm:g} ohm: little room for leads and meters (common "
                                             f"practice)"))
     return out
+
+
+def _through_check(spec: Spec, req: CurrentTransformerReq) -> list[Check]:
+    """A primary passed through the core (the customer's bus bar or cable) needs its insulation to the secondary
+    stated: a barrier naming 'conductor', coordinated in ``design.insulation`` against the outer wrap."""
+    if req.primary_turns != 1 or any(THROUGH_CONDUCTOR in (b.a, b.b) for b in spec.barriers):
+        return []
+    return [Check("warn", "ct-primary-barrier", f"the primary is a conductor passed through the core, and no "
+                                                f"barrier states its insulation to the secondary: add one with "
+                                                f"between: [{THROUGH_CONDUCTOR}, {spec.windings[0].name}], its "
+                                                f"grade and the conductor's working voltage")]
 
 
 def _shape_checks(ct: CurrentTransformerResult) -> list[Check]:
