@@ -353,10 +353,6 @@ def parse_spec(data: Any, name: str) -> Spec:
         inductor = _inductor(_section(r, "inductor"), core)
     elif r.has("inductor"):
         raise r.error(f"'inductor' is not used by kind {kind}: only an inductor has an 'inductor' section", "inductor")
-    if kind != "current_transformer" and any(THROUGH_CONDUCTOR in (b.a, b.b) for b in barriers):
-        where = next(b for b in barriers if THROUGH_CONDUCTOR in (b.a, b.b))
-        raise SpecError(f"'{THROUGH_CONDUCTOR}' (a primary passed through the core) is not used by kind {kind}",
-                        file=name, line=where.line, path=f"insulation.barriers[{where.index}].between")
     ct = _current_transformer_section(r, core, op, kind, windings, wreaders, barriers)
     fb = _flyback_section(r, core, op, kind, windings, wreaders)
     cmc = _common_mode_choke_section(r, core, op, kind, windings, wreaders)
@@ -639,6 +635,10 @@ def _current_transformer_section(r: Reader, core: Reader, op: Reader, kind: str,
                                  ) -> CurrentTransformerReq | None:
     """The ``current_transformer`` section (only that kind has one; it has no gap)."""
     if kind != "current_transformer":
+        where = next((b for b in barriers if THROUGH_CONDUCTOR in (b.a, b.b)), None)
+        if where is not None:
+            raise SpecError(f"'{THROUGH_CONDUCTOR}' (a primary passed through the core) is not used by kind {kind}",
+                            file=r.file, line=where.line, path=f"insulation.barriers[{where.index}].between")
         if r.has("current_transformer"):
             raise r.error(f"a {kind} has no 'current_transformer' section", "current_transformer")
         return None
