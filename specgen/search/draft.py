@@ -45,6 +45,8 @@ def _mm(x: float) -> str:
 def _pins(req: Requirement, choice: CoreChoice) -> list[tuple[str, str]]:
     """(start, finish) per winding: the primary on the first row of pins, the loads on the other row."""
     count = len(req.windings) if req.kind == "transformer" else 1
+    if req.kind == "common_mode_choke":       # a toroid's free leads, one pair per line
+        return [(f"{c}1", f"{c}2") for c in "ABC"[:req.lines]]
     if choice.bobbin is None:
         if req.kind == "inductor":
             return [("A", "B")]
@@ -65,7 +67,9 @@ def _pins(req: Requirement, choice: CoreChoice) -> list[tuple[str, str]]:
 
 def _operating_lines(req: Requirement) -> list[str]:
     t = req.text
-    lines = ["operating:", f"  frequency: {_y(t['frequency'])}"]
+    freq = (f"[{', '.join(_y(f, True) for f in req.frequencies_text)}]" if req.frequencies_text
+            else _y(t['frequency']))
+    lines = ["operating:", f"  frequency: {freq}"]
     if req.kind == "transformer":
         lines.append(f"  waveform: {req.waveform}")
         if req.waveform == "unipolar":
@@ -85,15 +89,20 @@ def _operating_lines(req: Requirement) -> list[str]:
         if t.get("inductor.current_peak"):
             lines.append(f"  current_peak: {_y(t['inductor.current_peak'])}")
         lines.append(f"  duty: {req.duty!r}")
+    if req.kind == "common_mode_choke":
+        lines += ["", "common_mode_choke:"] + [f"  {k[4:]}: {_y(v)}" for k, v in t.items()
+                                                if k.startswith("cmc.") and v is not None]
     return lines
 
 
 def _winding_lines(req: Requirement, options: list[WireOption | None], pins: list[tuple[str, str]],
                    choice: CoreChoice | None) -> list[str]:
     lines = ["windings:"]
-    wl = req.windings if req.kind == "transformer" else (None,)
-    for w, opt, (p1, p2) in zip(wl, options, pins):
-        if w is None:
+    wl: tuple = req.windings if req.kind == "transformer" else (None,) * max(1, req.lines)
+    for i, (w, opt, (p1, p2)) in enumerate(zip(wl, options, pins)):
+        if w is None and req.kind == "common_mode_choke":
+            lines += [f"  - name: L{i + 1}", "    role: line"]
+        elif w is None:
             lines += ["  - name: L", "    role: main"]
         else:
             lines += [f"  - name: {_y(w.name)}", f"    role: {w.role}"]
@@ -118,7 +127,7 @@ def requirement_spec(req: Requirement) -> Spec:
     no core chosen yet (swap one in with ``dataclasses.replace``)."""
     from ..design.spec import load_spec_text
 
-    count = len(req.windings) if req.kind == "transformer" else 1
+    count = len(req.windings) if req.kind == "transformer" else max(1, req.lines)
     pins = [(f"P{2 * i + 1}", f"P{2 * i + 2}") for i in range(count)]
     lines = [f"part: {PROBE_PART}", f"kind: {req.kind}", "core: {id: none}", ""] + _operating_lines(req)
     lines += [""] + _winding_lines(req, [None] * count, pins, None)
@@ -130,7 +139,7 @@ def _insulation_lines(req: Requirement, cat: Catalog, choice: CoreChoice, option
     lines = ["insulation:", f"  layer_tape: {{tape: {plan.layer_tape}, layers: 1}}"]
     if plan.core_wrap and choice.bobbin is None:
         lines.append(f"  core_wrap: {{tape: {plan.core_wrap}, layers: 1}}   # half-lapped on the core")
-    if req.kind == "transformer":
+    if req.kind == "transformer":         # a choke's lines lie side by side on sectors: no tape between them
         lines.append(f"  winding_tape: {{tape: {plan.winding_tape}, layers: {plan.winding_tape_layers}}}")
     lines.append(f"  outer_wrap: {{tape: {plan.outer_wrap}, layers: {plan.outer_wrap_layers}}}")
     if plan.margin_m > 0 and choice.bobbin is not None:
@@ -139,7 +148,7 @@ def _insulation_lines(req: Requirement, cat: Catalog, choice: CoreChoice, option
             lines.append(f"  margin_tape: {plan.margin_tape}")
     diam = max((o.wire.overall_diameter_m or o.wire.overall_thickness_m or 0.0 for o in options), default=0.0)
     test_v = 0.0
-    if req.kind == "transformer" and req.rating != "functional" and req.working_voltage_v:
+    if req.kind != "inductor" and req.rating != "functional" and req.working_voltage_v:
         from ..design.tests_plan import hipot_voltage_v
 
         test_v = hipot_voltage_v(req.rating, req.working_voltage_v, cat.shop.hipot)[0]
@@ -154,6 +163,11 @@ def _insulation_lines(req: Requirement, cat: Catalog, choice: CoreChoice, option
         others = "+".join(w.name for w in req.loads)
         barriers.append((f"[{_y(req.primary.name, True)}, {_y(others, True)}]", req.rating))
         barriers.append(("[all, core]", req.to_core))
+    elif req.kind == "common_mode_choke":
+        names = [f"L{i + 1}" for i in range(req.lines)]
+        barriers += [(f"[{a}, {b}]", req.rating) for i, a in enumerate(names) for b in names[i + 1:]]
+        if req.to_core != "functional":
+            barriers.append(("[all, core]", req.to_core))
     elif req.to_core != "functional":
         barriers.append(("[all, core]", req.to_core))
     if barriers:

@@ -14,11 +14,11 @@ from ..errors import SpecError
 from ..loading import RENAMED_KEYS, Reader, load_yaml
 from ..present import si
 
-KINDS = ("transformer", "inductor")
+KINDS = ("transformer", "inductor", "common_mode_choke")
 RATINGS = ("functional", "basic", "reinforced")
 
 TOP_KEYS = ("requirement", "part", "title", "customer", "kind", "operating", "windings", "inductor", "insulation",
-            "limits", "notes")
+            "limits", "notes", "common_mode_choke", "lines")
 OPERATING_KEYS = ("frequency", "waveform", "duty", "ambient", "cooling", "insulation_class", "max_rise",
                   "flux_limit", "efficiency")
 WINDING_KEYS = ("name", "role", "voltage", "voltage_min", "voltage_max", "current", "va", "same_turns_as")
@@ -92,6 +92,9 @@ class Requirement(Operating):
     choke: ChokeDuty | None = None
     text: dict[str, str | None] = field(default_factory=dict)   # operating/inductor texts as written
     notes: str = ""
+    lines: int = 0                  # a common-mode choke's lines (its section's texts are in ``text``)
+    line_current_a: float = 0.0     # a common-mode choke's rms line current
+    frequencies_text: tuple[str, ...] = ()   # a choke for several line frequencies, as written
 
     @property
     def efficiency_guess(self) -> float:
@@ -116,6 +119,11 @@ class Requirement(Operating):
 
     def summary(self) -> str:
         f = f"{self.frequency_hz / 1e3:g} kHz" if self.frequency_hz >= 1e3 else f"{self.frequency_hz:g} Hz"
+        if self.kind == "common_mode_choke":
+            t = self.text
+            return (f"common-mode choke, {self.lines} lines x {t['cmc.line_current']} at "
+                    f"{'/'.join(self.frequencies_text) or f}, {t['cmc.common_mode_inductance']} at "
+                    f"{t['cmc.inductance_frequency']}")
         if self.choke is not None:
             c = self.choke
             return (f"choke {si(c.inductance_h, 'H', keep_zeros=False)} at {c.current_dc_a:g} A DC, ripple "
@@ -143,18 +151,30 @@ def _validate_part(r: Reader) -> str | None:
     return str(part).strip()
 
 
-def _operating(r: Reader, kind: str) -> tuple[Operating, dict[str, str | None]]:
-    """The operating conditions, and their texts as written (for the draft spec)."""
+def _operating(r: Reader, kind: str) -> tuple[Operating, dict[str, str | None], tuple[str, ...]]:
+    """The operating conditions, their texts as written (for the draft spec), and a choke's list of line
+    frequencies as written (empty for one frequency)."""
     from ..design.spec import COOLING, WAVEFORMS, insulation_class
 
     op = r.mapping("operating")
     assert op is not None          # required key: Reader.mapping raises when it is missing
     op.done(OPERATING_KEYS)
-    freq = op.quantity("frequency", "frequency")
+    freqs: tuple[str, ...] = ()
+    if kind == "common_mode_choke" and isinstance(op.raw("frequency"), list):
+        from .. import units
+
+        raw = op.raw("frequency")
+        try:
+            values = [units.parse(x, "frequency") for x in raw]
+        except units.UnitError as err:
+            raise op.error(str(err), "frequency") from None
+        freq, freqs = min(values), tuple(str(x).strip() for x in raw)
+    else:
+        freq = op.quantity("frequency", "frequency")
     if not 1.0 <= freq <= 50e6:
         raise op.error("frequency must lie between 1 Hz and 50 MHz", "frequency")
     waveform = op.choice("waveform", WAVEFORMS, "sine")
-    if kind == "inductor" and op.has("waveform"):
+    if kind != "transformer" and op.has("waveform"):
         raise op.error("a choke carries DC with a triangular ripple; give the ripple under 'inductor'",
                        "waveform")
     duty = op.number("duty", 0.5, minimum=0.01, maximum=0.99)
@@ -170,7 +190,7 @@ def _operating(r: Reader, kind: str) -> tuple[Operating, dict[str, str | None]]:
     eff = op.number("efficiency", None, minimum=0.3, maximum=0.999)
     text = {k: _text(op, k) for k in ("frequency", "ambient", "flux_limit", "insulation_class")}
     op.done()
-    return Operating(freq, waveform, duty, ambient, cooling, cls, max_rise, flux, eff), text
+    return Operating(freq, waveform, duty, ambient, cooling, cls, max_rise, flux, eff), text, freqs
 
 
 def _winding(wr: Reader) -> ReqWinding:
@@ -243,22 +263,51 @@ def _choke(r: Reader, duty: float, text: dict[str, str | None]) -> tuple[ChokeDu
     return choke, duty
 
 
-def _insulation(r: Reader, kind: str, windings: tuple[ReqWinding, ...]) -> tuple[str, str, float]:
-    """(rating between windings, rating to the core, working voltage)."""
+_CMC_QUANTITIES = {"line_current": "current", "line_voltage": "voltage", "line_to_ground_voltage": "voltage",
+                   "common_mode_inductance": "inductance", "inductance_frequency": "frequency",
+                   "differential_inductance": "inductance", "differential_current_peak": "current",
+                   "ground_capacitance": "capacitance", "leakage_current": "current", "sector_gap": "length"}
+_CMC_REQUIRED = ("line_current", "line_voltage", "common_mode_inductance", "inductance_frequency", "sector_gap")
+
+
+def _common_mode_choke(r: Reader, text: dict[str, str | None]) -> tuple[int, float, float]:
+    """The common-mode choke's section, its texts kept for the draft spec (the spec parser checks the rest):
+    (lines, line voltage, line current)."""
+    lines = r.integer("lines", 2, minimum=2, maximum=3)
+    sec = r.mapping("common_mode_choke")
+    assert sec is not None
+    sec.done(tuple(_CMC_QUANTITIES))
+    values = {}
+    for k, dim in _CMC_QUANTITIES.items():
+        if k in _CMC_REQUIRED or sec.has(k):
+            values[k] = sec.quantity(k, dim)
+    text.update({f"cmc.{k}": _text(sec, k) for k in values})
+    sec.done()
+    if r.has("windings") or r.has("inductor"):
+        key = "windings" if r.has("windings") else "inductor"
+        raise r.error(f"a common-mode choke has one winding per line; the search sizes them (remove '{key}')", key)
+    return lines, values["line_voltage"], values["line_current"]
+
+
+def _insulation(r: Reader, kind: str, windings: tuple[ReqWinding, ...],
+                default_wv: float | None = None) -> tuple[str, str, float]:
+    """(rating between windings, rating to the core, working voltage); ``default_wv`` where none is given."""
     ins = r.mapping("insulation", None)
     rating, to_core, wv = "functional", None, None
     if ins is not None:
-        ins.done(("between_windings", "to_core", "working_voltage") if kind == "transformer"
+        ins.done(("between_windings", "to_core", "working_voltage") if kind != "inductor"
                  else ("to_core", "working_voltage"))
-        if kind == "transformer":
+        if kind != "inductor":
             rating = ins.choice("between_windings", RATINGS, "basic")
         to_core = ins.choice("to_core", ("functional", "basic"), None)
         wv = ins.quantity("working_voltage", "voltage", None)
         ins.done()
-    elif kind == "transformer":
+    elif kind != "inductor":
         rating = "basic"
     if to_core is None:
         to_core = "functional" if kind == "inductor" or rating == "functional" else "basic"
+    if wv is None and default_wv is not None:
+        wv = default_wv
     if wv is None:
         if kind == "transformer":
             p = next(w for w in windings if w.role == "primary")
@@ -286,22 +335,28 @@ def parse_requirement(data: Any, name: str) -> Requirement:
     r = Reader(data, name)
     r.done(TOP_KEYS)             # a typo is named as such before a key it hides is reported missing
     kind = r.choice("kind", KINDS)
-    op, text = _operating(r, kind)
+    op, text, freqs = _operating(r, kind)
     duty = op.duty
     windings: tuple[ReqWinding, ...] = ()
     choke = None
+    lines, line_v, line_i = 0, None, 0.0
     if kind == "transformer":
         windings = _windings(r)
+    elif kind == "common_mode_choke":
+        lines, line_v, line_i = _common_mode_choke(r, text)
     else:
         choke, duty = _choke(r, duty, text)
-    rating, to_core, wv = _insulation(r, kind, windings)
+    if kind != "common_mode_choke" and r.has("lines"):
+        raise r.error(f"'lines' is for a common-mode choke, not used by kind {kind}", "lines")
+    rating, to_core, wv = _insulation(r, kind, windings, line_v)
     limits = _limits(r)
     req = Requirement(
         file=name, id=r.text("requirement", Path(name).stem, max_len=60), part=_validate_part(r),
         title=r.text("title", "", max_len=200), customer=r.text("customer", "", max_len=200), kind=kind,
         **{f.name: getattr(op, f.name) for f in fields(Operating)} | {"duty": duty},
         windings=windings, rating=rating, to_core=to_core, working_voltage_v=wv,
-        limits=limits, choke=choke, text=text, notes=r.text("notes", "", max_len=5000))
+        limits=limits, choke=choke, text=text, notes=r.text("notes", "", max_len=5000), lines=lines,
+        frequencies_text=freqs, line_current_a=line_i)
     r.done()
     return req
 
