@@ -64,7 +64,7 @@ def test_every_demo_part_is_present():
     # the demo shop's five transformers and inductors, one part of each newer kind, and the dual-primary
     # and centre-tapped transformers, the forward transformer with its reset winding
     assert set(DEMOS) == {"BH-1042", "BH-2210", "BH-3305", "BH-4120", "BH-5018", "BH-6100",
-                          "BH-7065", "BH-1240", "BH-2260", "BH-2270"}
+                          "BH-7065", "BH-1240", "BH-2260", "BH-2270", "BH-8210"}
 
 
 # ------------------------------------------------------------------------------------------ Faraday
