@@ -130,9 +130,9 @@ def insulation_plan(req: Requirement, cat: Catalog, bobbin: Bobbin | None) -> In
     breadth = bobbin.breadth_m if bobbin is not None else None
     layer = _pick_tape(cat, cls, breadth, "thin")
     strong = _pick_tape(cat, cls, breadth, "strong")
-    rating = req.rating if req.kind == "transformer" else "functional"
+    rating = req.rating if req.kind in ("transformer", "flyback") else "functional"
     layers = {"functional": 1, "basic": 2, "reinforced": 3}[rating]
-    margin = 0.0 if bobbin is None else _margin_for(req.rating if req.kind == "transformer" else req.to_core,
+    margin = 0.0 if bobbin is None else _margin_for(req.rating if req.kind in ("transformer", "flyback") else req.to_core,
                                                     req.working_voltage_v)
     margin_tape = None
     if margin > 0:

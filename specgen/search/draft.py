@@ -19,6 +19,7 @@ if TYPE_CHECKING:
     from ..design.spec import Spec
 
 PROBE_PART = "SEARCH-DRAFT"     # part number of the requirement-as-spec (never written to a file)
+WOUND_KINDS = ("transformer", "flyback")      # the requirement names its windings (a primary and its loads)
 
 
 def _y(value: object, flow: bool = False) -> str:
@@ -44,7 +45,7 @@ def _mm(x: float) -> str:
 
 def _pins(req: Requirement, choice: CoreChoice) -> list[tuple[str, str]]:
     """(start, finish) per winding: the primary on the first row of pins, the loads on the other row."""
-    count = len(req.windings) if req.kind == "transformer" else 1
+    count = len(req.windings) if req.kind in WOUND_KINDS else 1
     if req.kind == "common_mode_choke":       # a toroid's free leads, one pair per line
         return [(f"{c}1", f"{c}2") for c in "ABC"[:req.lines]]
     if choice.bobbin is None:
@@ -89,6 +90,8 @@ def _operating_lines(req: Requirement) -> list[str]:
         if t.get("inductor.current_peak"):
             lines.append(f"  current_peak: {_y(t['inductor.current_peak'])}")
         lines.append(f"  duty: {req.duty!r}")
+    if req.kind == "flyback":
+        lines += ["", "flyback:"] + [f"  {k[3:]}: {_y(v)}" for k, v in t.items() if k.startswith("fb.") and v is not None]
     if req.kind == "common_mode_choke":
         lines += ["", "common_mode_choke:"] + [f"  {k[4:]}: {_y(v)}" for k, v in t.items()
                                                 if k.startswith("cmc.") and v is not None]
@@ -98,7 +101,7 @@ def _operating_lines(req: Requirement) -> list[str]:
 def _winding_lines(req: Requirement, options: list[WireOption | None], pins: list[tuple[str, str]],
                    choice: CoreChoice | None) -> list[str]:
     lines = ["windings:"]
-    wl: tuple = req.windings if req.kind == "transformer" else (None,) * max(1, req.lines)
+    wl: tuple = req.windings if req.kind in WOUND_KINDS else (None,) * max(1, req.lines)
     for i, (w, opt, (p1, p2)) in enumerate(zip(wl, options, pins)):
         if w is None and req.kind == "common_mode_choke":
             lines += [f"  - name: L{i + 1}", "    role: line"]
@@ -116,7 +119,7 @@ def _winding_lines(req: Requirement, options: list[WireOption | None], pins: lis
         else:
             lines += [f"    wire: {_y(opt.wire.id)}", f"    strands: {opt.strands}"]
         lines += [f"    start: {json.dumps(p1)}", f"    finish: {json.dumps(p2)}", "    direction: cw"]
-        if (req.kind == "transformer" and req.rating == "reinforced" and w is not None and w.role != "primary"
+        if (req.kind in WOUND_KINDS and req.rating == "reinforced" and w is not None and w.role != "primary"
                 and opt is not None and opt.wire.kind == "tiw" and choice is not None and choice.bobbin is not None):
             lines.append("    margin: 0 mm   # triple-insulated wire carries the reinforced insulation")
     return lines
@@ -127,7 +130,7 @@ def requirement_spec(req: Requirement) -> Spec:
     no core chosen yet (swap one in with ``dataclasses.replace``)."""
     from ..design.spec import load_spec_text
 
-    count = len(req.windings) if req.kind == "transformer" else max(1, req.lines)
+    count = len(req.windings) if req.kind in WOUND_KINDS else max(1, req.lines)
     pins = [(f"P{2 * i + 1}", f"P{2 * i + 2}") for i in range(count)]
     lines = [f"part: {PROBE_PART}", f"kind: {req.kind}", "core: {id: none}", ""] + _operating_lines(req)
     lines += [""] + _winding_lines(req, [None] * count, pins, None)
@@ -139,7 +142,7 @@ def _insulation_lines(req: Requirement, cat: Catalog, choice: CoreChoice, option
     lines = ["insulation:", f"  layer_tape: {{tape: {plan.layer_tape}, layers: 1}}"]
     if plan.core_wrap and choice.bobbin is None:
         lines.append(f"  core_wrap: {{tape: {plan.core_wrap}, layers: 1}}   # half-lapped on the core")
-    if req.kind == "transformer":         # a choke's lines lie side by side on sectors: no tape between them
+    if req.kind in WOUND_KINDS:         # a choke's lines lie side by side on sectors: no tape between them
         lines.append(f"  winding_tape: {{tape: {plan.winding_tape}, layers: {plan.winding_tape_layers}}}")
     lines.append(f"  outer_wrap: {{tape: {plan.outer_wrap}, layers: {plan.outer_wrap_layers}}}")
     if plan.margin_m > 0 and choice.bobbin is not None:
@@ -159,7 +162,7 @@ def _insulation_lines(req: Requirement, cat: Catalog, choice: CoreChoice, option
         lines.append(f"  varnish: {plan.varnish}")
     wv = f"{req.working_voltage_v:.10g} V"
     barriers = []
-    if req.kind == "transformer":
+    if req.kind in WOUND_KINDS:
         others = "+".join(w.name for w in req.loads)
         barriers.append((f"[{_y(req.primary.name, True)}, {_y(others, True)}]", req.rating))
         barriers.append(("[all, core]", req.to_core))
@@ -197,7 +200,8 @@ def draft_spec_text(req: Requirement, cat: Catalog, choice: CoreChoice, options:
         else:
             lines += ["  gap: none", "  gap_arrangement: none"]
     lines += [""] + _operating_lines(req)
-    opts: list[WireOption | None] = list(options)
+    count = len(req.windings) if req.kind in WOUND_KINDS else max(1, req.lines)
+    opts: list[WireOption | None] = list(options) if options else [None] * count
     lines += [""] + _winding_lines(req, opts, _pins(req, choice), choice)
     lines += [""] + _insulation_lines(req, cat, choice, options)
     if req.notes:

@@ -1,12 +1,14 @@
-"""The search for a kind the vector stage does not model (a common-mode choke): every candidate core is run
-through the design engine itself, so the ranking is the engine's (the kernel's) and nothing here computes.
+"""The search for the kinds the vector stage does not model (a common-mode choke, a flyback): every candidate
+core is run through the design engine itself, so the ranking is the engine's (the kernel's) and nothing here
+computes.
 
-Candidates: every ungapped toroid in stock of a high-permeability family (ferrite, nanocrystalline,
-amorphous: a common-mode choke needs the permeability; powders are for differential-mode chokes), smallest
-core volume first, at most ``SCALAR_BUDGET`` of them, each written as a draft spec with the wire the engine's
-own rule picks for the line current (``design.wires.choose_wire``, as ``wire: auto`` would), named so the
-draft's lead sleeving fits it. The list, the loss-cost front and the families without a feasible member are taken
-as in ``rank.search``.
+Candidates, smallest core volume first, at most ``SCALAR_BUDGET`` of them:
+- a common-mode choke: every ungapped toroid in stock of a high-permeability family (ferrite,
+  nanocrystalline, amorphous: the choke needs the permeability; powders are for differential-mode chokes);
+- a flyback: every gappable ferrite set with its bobbin (the engine finds the gap from L_p).
+Each is written as a draft spec with the wires left to the engine (``wire: auto``), then written again with
+the wires the engine chose named, so the draft's lead sleeving is sized for them (the same design). The list,
+the loss-cost front and the families without a feasible member are taken as in ``rank.search``.
 """
 
 from __future__ import annotations
@@ -15,9 +17,7 @@ import time
 from collections.abc import Callable
 
 from ..catalog.models import Catalog
-from ..design import kernel as K
-from ..design.wires import choose_wire
-from .candidates import WireOption, core_choices
+from .candidates import CoreChoice, WireOption, core_choices
 from .confirm import Candidate, run_candidate
 from .rank import SCALAR_BUDGET, FamilyFailure, SearchResult, cap_per_core, pareto_indices
 from .requirement import Requirement
@@ -30,20 +30,20 @@ def search_engine_only(req: Requirement, cat: Catalog, *, top: int, sort: str, p
                        progress: Callable[[str, int, int], None] | None = None) -> SearchResult:
     t0 = time.perf_counter()
     every = core_choices(req, cat)
-    choices = [c for c in every if c.core.is_toroid and c.parts.material.family in HIGH_PERMEABILITY_FAMILIES]
+    choices = [c for c in every if _fits_kind(req, c)]
     choices.sort(key=lambda c: (c.parts.ve_m3, c.core.id))
     st = SearchStats(core_choices=len(every), screened_out=len(every) - len(choices), kept=len(choices))
     st.prepare_s = time.perf_counter() - t0
-    density = K.current_density_a_m2(cat.shop.current_density_a_m2, req.cooling)
-    pick = choose_wire(cat, req.line_current_a, density, req.frequency_hz, K.WIRE_CHOICE_TEMP_C, "auto", 0,
-                       req.insulation_class_c)
-    options = (WireOption(pick.wire, pick.strands),) * req.lines
     run: list[Candidate] = []
     todo = choices[:SCALAR_BUDGET]
     for i, ch in enumerate(todo):
         if progress is not None:
             progress("engine", i + 1, len(todo))
-        run.append(run_candidate(req, cat, ch, options, part, row=i))
+        first = run_candidate(req, cat, ch, (), part, row=i)
+        if first.design is not None:          # the engine's wires named: the draft's sleeving sized for them
+            named = tuple(WireOption(cat.wires[w.wire], w.strands) for w in first.design.windings)
+            first = run_candidate(req, cat, ch, named, part, row=i)
+        run.append(first)
     feasible = [c for c in run if c.feasible]
     ranked = cap_per_core(sorted(feasible, key=lambda c: c.key(sort)), per_core)[:top]
     pareto: list[Candidate] = []
@@ -54,6 +54,13 @@ def search_engine_only(req: Requirement, cat: Catalog, *, top: int, sort: str, p
     st.scalar_s = time.perf_counter() - t0 - st.prepare_s
     st.total_s = time.perf_counter() - t0
     return SearchResult(req, sort, ranked, pareto, _families(run), st)
+
+
+def _fits_kind(req: Requirement, c: CoreChoice) -> bool:
+    if req.kind == "common_mode_choke":
+        return c.core.is_toroid and c.parts.material.family in HIGH_PERMEABILITY_FAMILIES
+    return (c.core.gappable and c.bobbin is not None and c.parts.material.family == "ferrite"
+            and len(c.bobbin.pins) >= 2 * len(req.windings))          # a pin for each end of every winding
 
 
 def _families(run: list[Candidate]) -> list[FamilyFailure]:

@@ -180,7 +180,7 @@ def search(req: Requirement, cat: Catalog, *, top: int = 5, sort: str = "cost", 
     The engine runs on the rows the vector stage ranks best (``_confirm_best``), then on the rows on the
     vector stage's loss-cost front; the list and the front are taken over engine results only."""
     check_options(sort, top, per_core)
-    if req.kind == "common_mode_choke":      # no vector model of sector winding: the engine runs every core
+    if req.kind in ("common_mode_choke", "flyback"):    # no vector model of these: the engine runs every core
         from .engine_only import search_engine_only
 
         return search_engine_only(req, cat, top=top, sort=sort, per_core=per_core, part=part or req.part or req.id,

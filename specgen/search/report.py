@@ -78,8 +78,10 @@ def _header(sr: SearchResult) -> list[str]:
     req, st = sr.requirement, sr.stats
     lines = [f"{req.id}: {req.title or req.summary()}", f"  {req.summary()}, ambient {req.ambient_c:g} °C, class "
              f"{req.insulation_class_c}" + (f", rise at most {req.max_rise_k:g} K" if req.max_rise_k else "")]
-    if req.kind == "common_mode_choke":     # no vector stage: the engine ran every candidate core
-        lines.append(f"  {st.kept} of {st.core_choices} core choices are ungapped high-permeability toroids; "
+    if req.kind in ("common_mode_choke", "flyback"):     # no vector stage: the engine ran every candidate core
+        what = ("ungapped high-permeability toroids" if req.kind == "common_mode_choke"
+                else "gappable ferrite sets with a bobbin")
+        lines.append(f"  {st.kept} of {st.core_choices} core choices are {what}; "
                      f"{st.scalar_evaluated} run through the design engine (wire chosen by it), "
                      f"{st.scalar_feasible} pass every check")
         return lines

@@ -14,11 +14,15 @@ from ..errors import SpecError
 from ..loading import RENAMED_KEYS, Reader, load_yaml
 from ..present import si
 
-KINDS = ("transformer", "inductor", "common_mode_choke")
+KINDS = ("transformer", "inductor", "common_mode_choke", "flyback")
 RATINGS = ("functional", "basic", "reinforced")
 
 TOP_KEYS = ("requirement", "part", "title", "customer", "kind", "operating", "windings", "inductor", "insulation",
-            "limits", "notes", "common_mode_choke", "lines")
+            "limits", "notes", "common_mode_choke", "lines", "flyback")
+# a flyback's section as in a spec (design.flyback_spec); its texts are copied into each draft
+FLYBACK_QUANTITIES = {"input_voltage_min": "voltage", "input_voltage_max": "voltage", "inductance": "inductance",
+                      "reflected_voltage": "voltage", "diode_drop": "voltage"}
+FLYBACK_OTHER = ("mode", "ripple_ratio", "duty_max", "efficiency", "output_tolerance")
 OPERATING_KEYS = ("frequency", "waveform", "duty", "ambient", "cooling", "insulation_class", "max_rise",
                   "flux_limit", "efficiency")
 WINDING_KEYS = ("name", "role", "voltage", "voltage_min", "voltage_max", "current", "va", "same_turns_as")
@@ -128,6 +132,10 @@ class Requirement(Operating):
             c = self.choke
             return (f"choke {si(c.inductance_h, 'H', keep_zeros=False)} at {c.current_dc_a:g} A DC, ripple "
                     f"{c.ripple_a:g} A p-p at {f}")
+        if self.kind == "flyback":
+            outs = ", ".join(f"{w.voltage_v:g} V {w.load_current_a:.3g} A" for w in self.loads)
+            return (f"flyback {self.text['fb.input_voltage_min']} to {self.text['fb.input_voltage_max']} at {f} -> "
+                    f"{outs}")
         p = self.primary
         outs = ", ".join(f"{w.voltage_v:g} V {w.load_current_a:.3g} A" for w in self.loads)
         return f"transformer {p.voltage_v:g} V {f} {self.waveform} -> {outs} ({self.output_va:.4g} VA)"
@@ -187,17 +195,22 @@ def _operating(r: Reader, kind: str) -> tuple[Operating, dict[str, str | None], 
     if max_rise is not None and max_rise <= 0:
         raise op.error("max_rise must be above zero", "max_rise")
     flux = op.quantity("flux_limit", "flux_density", None)
+    if kind == "flyback" and op.has("efficiency"):
+        raise op.error("a flyback's efficiency estimate goes in its 'flyback' section", "efficiency")
     eff = op.number("efficiency", None, minimum=0.3, maximum=0.999)
     text = {k: _text(op, k) for k in ("frequency", "ambient", "flux_limit", "insulation_class")}
     op.done()
     return Operating(freq, waveform, duty, ambient, cooling, cls, max_rise, flux, eff), text, freqs
 
 
-def _winding(wr: Reader) -> ReqWinding:
+def _winding(wr: Reader, kind: str) -> ReqWinding:
     wr.done(WINDING_KEYS, renamed=RENAMED_KEYS["windings"])
     role = wr.choice("role", ("primary", "secondary", "auxiliary"))
+    if kind == "flyback" and role == "primary" and wr.has("voltage"):
+        raise wr.error("a flyback's primary voltage is the input range in its 'flyback' section", "voltage")
+    volts = 0.0 if kind == "flyback" and role == "primary" else wr.quantity("voltage", "voltage")
     w = ReqWinding(
-        name=wr.text("name", max_len=40), role=role, voltage_v=wr.quantity("voltage", "voltage"),
+        name=wr.text("name", max_len=40), role=role, voltage_v=volts,
         voltage_min_v=wr.quantity("voltage_min", "voltage", None),
         voltage_max_v=wr.quantity("voltage_max", "voltage", None),
         current_a=wr.quantity("current", "current", None), va=wr.quantity("va", "apparent_power", None),
@@ -221,16 +234,16 @@ def _winding(wr: Reader) -> ReqWinding:
     return w
 
 
-def _windings(r: Reader) -> tuple[ReqWinding, ...]:
+def _windings(r: Reader, kind: str = "transformer") -> tuple[ReqWinding, ...]:
     read: list[tuple[ReqWinding, Reader]] = []
     for wr in r.items("windings", min_items=2):
-        w = _winding(wr)
+        w = _winding(wr, kind)
         if any(o.name == w.name for o, _ in read):
             raise wr.error(f"a second winding named '{w.name}'", "name")
         read.append((w, wr))
     prim = [w for w, _ in read if w.role == "primary"]
     if len(prim) != 1:
-        raise r.error(f"a transformer needs exactly one primary winding, found {len(prim)}", "windings")
+        raise r.error(f"a {kind} needs exactly one primary winding, found {len(prim)}", "windings")
     for w, wr in read:
         if w.same_turns_as is None:
             continue
@@ -242,6 +255,8 @@ def _windings(r: Reader) -> tuple[ReqWinding, ...]:
                            "same_turns_as")
     if r.has("inductor"):
         raise r.error("only a choke has an 'inductor' section", "inductor")
+    if kind != "flyback" and r.has("flyback"):
+        raise r.error(f"'flyback' is not used by kind {kind}", "flyback")
     return tuple(w for w, _ in read)
 
 
@@ -268,6 +283,24 @@ _CMC_QUANTITIES = {"line_current": "current", "line_voltage": "voltage", "line_t
                    "differential_inductance": "inductance", "differential_current_peak": "current",
                    "ground_capacitance": "capacitance", "leakage_current": "current", "sector_gap": "length"}
 _CMC_REQUIRED = ("line_current", "line_voltage", "common_mode_inductance", "inductance_frequency", "sector_gap")
+
+
+def _flyback(r: Reader, text: dict[str, str | None]) -> float:
+    """The flyback's section, its texts kept for the draft spec (the spec parser checks the rest): V_in max."""
+    sec = r.mapping("flyback")
+    assert sec is not None
+    sec.done(tuple(FLYBACK_QUANTITIES) + FLYBACK_OTHER)
+    v_max = sec.quantity("input_voltage_max", "voltage")
+    sec.quantity("input_voltage_min", "voltage")
+    for k, dim in FLYBACK_QUANTITIES.items():
+        if sec.has(k):
+            sec.quantity(k, dim, allow_zero=k == "diode_drop")
+    sec.choice("mode", ("dcm", "boundary", "ccm"), None)
+    for k in FLYBACK_OTHER[1:]:
+        sec.number(k, None)
+    text.update({f"fb.{k}": _text(sec, k) for k in (*FLYBACK_QUANTITIES, *FLYBACK_OTHER) if sec.has(k)})
+    sec.done()
+    return v_max
 
 
 def _common_mode_choke(r: Reader, text: dict[str, str | None]) -> tuple[int, float, float]:
@@ -340,8 +373,10 @@ def parse_requirement(data: Any, name: str) -> Requirement:
     windings: tuple[ReqWinding, ...] = ()
     choke = None
     lines, line_v, line_i = 0, None, 0.0
-    if kind == "transformer":
-        windings = _windings(r)
+    if kind in ("transformer", "flyback"):
+        windings = _windings(r, kind)
+        if kind == "flyback":
+            line_v = _flyback(r, text)
     elif kind == "common_mode_choke":
         lines, line_v, line_i = _common_mode_choke(r, text)
     else:
