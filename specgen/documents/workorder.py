@@ -520,8 +520,8 @@ def build_context(design, settings, *, number: str, qty: int, due: str | None = 
               "routine_v": fmt_test_volt(h.routine_voltage_v), "routine_s": fmt_seconds(h.routine_duration_s),
               "trip": fmt_ma(h.trip_current_a), "basis": h.basis, "connection": h.connection} for h in t.hipot]
     columns = ["S/N"] + [f"DCR {l.item}" for l in t.dcr] + [f"ratio {l.item}" for l in t.ratio]
-    if t.inductance:
-        columns.append(f"L {t.inductance[0].item}")
+    for item in dict.fromkeys(l.item for l in t.inductance):     # one column per item measured (a choke: two)
+        columns.append(f"L {item}")
     if t.polarity:
         columns.append("polarity")
     columns += ["hipot", "IR", "pass / fail", "initials"]
