@@ -138,6 +138,8 @@ def design_report(d: Design) -> str:
             ["total", f"{l.total_w:.3f} W"],
             ["rise / hot spot", f"{d.temperature_rise_k:.1f} K / {d.hot_spot_c:.1f} °C "
                                 f"(class {class_label(d.insulation_class_c)})"]]
+    if d.rise_basis:
+        rows.append(["rise from", d.rise_basis])
     if d.efficiency is not None:
         rows.append(["efficiency", f"{d.efficiency * 100:.2f} %"])
     if d.regulation_pct is not None:

@@ -48,6 +48,7 @@ operating:                   # how the part is driven and where it lives
   # duty: 0.5                # unipolar: on-time fraction (default 0.5)
   ambient: 40 degC           # air around the part in service
   cooling: natural           # natural | forced | potted
+  # air_speed: 2 m/s         # forced: the air over the part (default: the shop's cooling.air_speed)
   insulation_class: 130 (B)  # IEC 60085 thermal class: 105 (A), 120 (E), 130 (B), 155 (F), 180 (H), ...
   # flux_limit: 1.3 T        # peak flux density limit; default: the shop's fraction of B_sat when hot
   # efficiency: 0.9          # first guess for the iteration (default 0.9)
@@ -119,6 +120,7 @@ operating:                   # how the part is driven and where it lives
   frequency: 100 kHz         # the ripple frequency
   ambient: 50 degC           # air around the part in service
   cooling: natural           # natural | forced | potted
+  # air_speed: 2 m/s         # forced: the air over the part (default: the shop's cooling.air_speed)
   insulation_class: 155 (F)  # IEC 60085 thermal class: 130 (B), 155 (F), 180 (H), ...
   # flux_limit: 0.3 T        # peak flux density limit; default: the shop's fraction of B_sat when hot
 

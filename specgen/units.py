@@ -86,6 +86,7 @@ DIMENSIONS: dict[str, Dimension] = {
                       "-273.15 degC to 2000 degC"),
     "thermal_resistance": _d((-2, -1, 3, 0, 1), "K/W", "a thermal resistance", "'12 K/W'", 1e-4, 1e4,
                              "0.1 mK/W to 10 kK/W"),
+    "speed": _d((1, 0, -1, 0, 0), "m/s", "an air speed", "'2 m/s'", 1e-3, 100.0, "1 mm/s to 100 m/s"),
     "temperature_difference": _d((0, 0, 0, 0, 1), "K", "a temperature rise", "'60 K'", 0.0, 2000.0,
                                  "0 K to 2000 K"),
 }

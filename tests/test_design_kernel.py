@@ -22,10 +22,11 @@ import pytest
 from hypothesis import given, settings
 from hypothesis import strategies as st
 
+from specgen.catalog.models import CoolingFigures
 from specgen.design import kernel as K
 from specgen.design.build import wind_section
 from specgen.design.kinds import kind_for, kind_names, register, unregister
-from specgen.design.state import Former
+from specgen.design.state import CoolingModel, Former
 from specgen.physics import dowell
 from specgen.physics import gap as gapmod
 from specgen.physics.layers import layer_fr
@@ -128,19 +129,67 @@ def test_square_wave_harmonics_weight_as_its_power_spectrum():
     assert K.current_harmonics("sine").orders.tolist() == [1.0]
 
 
-def test_mclyman_rise_by_hand_and_the_cooling_table():
+NATURAL = CoolingModel("natural")
+
+
+def test_mclyman_rise_by_hand_and_the_potting_factor():
     # 10 W over 200 cm^2: psi = 0.05 W/cm^2; dT = 450 x 0.05^0.826 = 37.5 K (McLyman)
     by_hand = 450.0 * 0.05 ** 0.826
-    assert K.temperature_rise_k(10.0, 200e-4, "natural", 40.0) == pytest.approx(by_hand, rel=1e-12)
-    assert K.temperature_rise_k(10.0, 200e-4, "forced", 40.0) == pytest.approx(0.6 * by_hand, rel=1e-12)
-    assert K.temperature_rise_k(10.0, 200e-4, "potted", 40.0) == pytest.approx(0.85 * by_hand, rel=1e-12)
-    assert K.temperature_rise_k(1e9, 1e-4, "natural", 40.0) == K.MAX_HOT_C - 40.0
-    st_ = K.thermal_state(10.0, 200e-4, "natural", 40.0, 5.0)
+    assert K.temperature_rise_k(10.0, 200e-4, NATURAL, 40.0) == pytest.approx(by_hand, rel=1e-12)
+    potted = K.cooling_model("potted", None, CoolingFigures(potted_rise_factor=0.85, potted_source="a test"))
+    assert (potted.potted_factor, potted.potted_source) == (0.85, "a test")
+    assert K.temperature_rise_k(10.0, 200e-4, potted, 40.0) == pytest.approx(0.85 * by_hand, rel=1e-12)
+    assert K.temperature_rise_k(1e9, 1e-4, NATURAL, 40.0) == K.MAX_HOT_C - 40.0
+    st_ = K.thermal_state(10.0, 200e-4, NATURAL, 40.0, 5.0)
     assert (st_.winding_c, st_.hot_c, st_.rise_k) == pytest.approx((40 + by_hand, 45 + by_hand, by_hand))
-    rows = K.temperature_rise_k(np.array([1.0, 10.0, 100.0]), np.array([1e-2, 2e-2, 3e-2]), "forced", 25.0)
-    for p, a, r in zip((1.0, 10.0, 100.0), (1e-2, 2e-2, 3e-2), rows):
-        assert K.temperature_rise_k(p, a, "forced", 25.0) == pytest.approx(r, rel=REL)
+    # a measured still-air R_th (catalogue) in place of the surface rule, row by row (NaN: none)
+    rows = K.temperature_rise_k(np.array([2.0, 2.0]), 200e-4, NATURAL, 40.0, np.array([15.0, np.nan]))
+    assert rows == pytest.approx([30.0, 450.0 * (2.0 / 200.0) ** 0.826], rel=1e-12)
     assert K.hot_spot_c(np.array([25.0]), np.array([30.0]), 5.0)[0] == 60.0
+
+
+def _air(film_c):
+    """Dry air at atmospheric pressure: Incropera and DeWitt, Table A.4 at 300 K and 350 K (from memory), linear."""
+    w = (film_c + 273.15 - 300.0) / 50.0
+    k, nu, pr = ((1 - w) * a + w * b for a, b in ((26.3e-3, 30.0e-3), (15.89e-6, 20.92e-6), (0.707, 0.700)))
+    return k, nu, pr
+
+
+@pytest.mark.parametrize("p, area, v, ambient", [(10.0, 200e-4, 1.0, 40.0), (3.0, 60e-4, 3.0, 25.0),
+                                                 (25.0, 500e-4, 0.5, 50.0)])
+def test_forced_air_rise_by_the_flat_plate_correlation(p, area, v, ambient):
+    """The rise with air at v over the part: laminar flat plate, h_F = 0.664 Re_L^1/2 Pr^1/3 k / L (Incropera and
+    DeWitt, average Nusselt number of a laminar flat plate, from memory), L the side of the cube with the part's
+    surface, air at the film ambient + 20 K; combined with McLyman's still-air h_N(dT) = P_N / (A dT),
+    dT = 450 (P_N / A[cm^2])^0.826, by Churchill's n = 3 (Incropera, mixed convection); the balance by scipy brentq."""
+    from scipy import optimize
+
+    length = math.sqrt(area / 6.0)
+    k, nu, pr = _air(ambient + 20.0)
+    hf = 0.664 * math.sqrt(v * length / nu) * pr ** (1 / 3) * k / length
+
+    def balance(dt):
+        hn = 1e4 * (dt / 450.0) ** (1 / 0.826) / dt
+        return dt * area * (hn ** 3 + hf ** 3) ** (1 / 3) - p
+
+    want = optimize.brentq(balance, 1e-9, 1e3, xtol=1e-13)
+    cooling = K.cooling_model("forced", v, CoolingFigures())
+    assert (cooling.air_speed_m_s, cooling.air_speed_from) == (v, "spec")
+    assert K.temperature_rise_k(p, area, cooling, ambient) == pytest.approx(want, rel=1e-9)
+    assert want < 450.0 * (p / (area * 1e4)) ** 0.826          # air over the part only cools it
+    # a measured still-air R_th: h_N = 1 / (R_th A) (R = 1 / (h A), the definition)
+    r_th = 9.0
+    hn = 1.0 / (r_th * area)
+    assert K.temperature_rise_k(p, area, cooling, ambient, r_th) == pytest.approx(
+        p / ((hn ** 3 + hf ** 3) ** (1 / 3) * area), rel=1e-12)
+    rows = K.temperature_rise_k(np.array([p, p]), area, cooling, ambient, np.array([r_th, np.nan]))
+    assert rows == pytest.approx([p / ((hn ** 3 + hf ** 3) ** (1 / 3) * area), want], rel=1e-9)
+
+
+def test_forced_air_speed_defaults_to_the_shops():
+    c = K.cooling_model("forced", None, CoolingFigures(air_speed_m_s=2.5))
+    assert (c.air_speed_m_s, c.air_speed_from) == (2.5, "shop default")
+    assert K.cooling_model("natural", None, CoolingFigures()) == NATURAL
 
 
 def test_current_density_by_cooling():

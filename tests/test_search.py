@@ -489,15 +489,20 @@ def test_row_flux_limit_and_thermal_state_equal_the_engines(cat):
         for t, g, l in zip(temps, got, lim):
             assert g == pytest.approx(flux.b_sat_hot_t(mat, float(t)), rel=1e-12)
             assert l == pytest.approx(flux.flux_limit(spec, cat, mat, float(t)).value_t, rel=1e-12)
-    for cooling in ("natural", "forced", "potted"):
-        req2 = replace(req, cooling=cooling)
+    for cooling, speed in (("natural", None), ("forced", None), ("forced", 2.5), ("potted", None)):
+        req2 = replace(req, cooling=cooling, air_speed_m_s=speed)
         ctx2 = S.prepare(req2, cat).context
         spec2 = S.requirement_spec(req2)
+        assert spec2.air_speed_m_s == speed
+        model = K.cooling_model(spec2.cooling, spec2.air_speed_m_s, cat.shop.cooling)
         powers = np.geomspace(1e-3, 1e5, 17)
-        hot, rise = ctx2.thermal.state(powers, np.full(powers.size, 0.004))
-        for p, h, r in zip(powers, hot, rise):
-            ref = K.thermal_state(float(p), 0.004, spec2.cooling, spec2.ambient_c, cat.shop.hotspot_margin_k)
-            assert h == pytest.approx(ref.hot_c, rel=1e-12) and r == pytest.approx(ref.rise_k, rel=1e-12)
+        # a core's measured thermal resistance where the catalogue has one (NaN: the surface rule), as the engine
+        for r_th in (None, 14.0):
+            rows = np.full(powers.size, np.nan if r_th is None else r_th)
+            hot, rise = ctx2.thermal.state(powers, np.full(powers.size, 0.004), rows)
+            for p, h, r in zip(powers, hot, rise):
+                ref = K.thermal_state(float(p), 0.004, model, spec2.ambient_c, cat.shop.hotspot_margin_k, r_th)
+                assert h == pytest.approx(ref.hot_c, rel=1e-12) and r == pytest.approx(ref.rise_k, rel=1e-12)
 
 
 @settings(max_examples=60, deadline=None)
@@ -635,3 +640,34 @@ def test_progress_reports_both_stages_of_a_real_search(cat):
     bar.close()
     out = buf.getvalue()
     assert "vector evaluation" in out and "design engine" in out and "100%" in out
+
+
+@pytest.mark.parametrize("cooling, speed", [("natural", None), ("forced", 2.0)])
+def test_search_takes_a_cores_measured_thermal_resistance_as_the_engine(cat, cooling, speed):
+    """A core's measured still-air R_th in the catalogue overrides the surface rule in the search as in the engine
+    (``kernel.temperature_rise_k``; R = dT / P, Incropera and DeWitt ch. 3): every listed candidate's vector hot
+    spot equals the engine's. The search used the surface rule for every core, so a core measured hotter than
+    the rule (here twice its R_th) was ranked at the rule's temperature."""
+    import dataclasses
+
+    req = replace(S.load_requirement(DEMO / "REQ-3305.yaml"), cooling=cooling, air_speed_m_s=speed)
+    first = S.search(req, cat, top=3)
+    measured = {}
+    for c in first.top:
+        d = c.design
+        measured[d.core.id] = 2.0 * d.temperature_rise_k / d.losses.total_w
+    cores = {k: dataclasses.replace(v, thermal_resistance_k_w=measured[k]) if k in measured else v
+             for k, v in cat.cores.items()}
+    hot = dataclasses.replace(cat, cores=cores)
+    sr = S.search(req, hot, top=3)
+    ctx = S.prepare(sr.requirement, hot).context
+    checked = 0
+    for c in sr.top:
+        d = c.design
+        if d.core.id not in measured:
+            continue
+        assert "measured" in d.rise_basis
+        res = _vector_at_the_engines_point(ctx, c)
+        assert res.hot_c[0] == pytest.approx(d.hot_spot_c, abs=0.05)
+        checked += 1
+    assert checked >= 1

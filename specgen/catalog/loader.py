@@ -15,6 +15,7 @@ from decimal import Decimal
 from pathlib import Path
 from typing import Any
 
+from ..design.limits import AIR_SPEED_MAX_M_S
 from ..errors import SpecError
 from ..loading import RENAMED_KEYS, Reader, load_yaml
 from .fits import check_bobbins
@@ -26,6 +27,7 @@ from .models import (
     Bobbin,
     BuyBreak,
     Catalog,
+    CoolingFigures,
     Core,
     CurrentDensities,
     HipotFigures,
@@ -399,6 +401,20 @@ def _current_densities(cd: Reader) -> CurrentDensities:
     return out
 
 
+def _cooling(r: Reader) -> CoolingFigures:
+    """The shop's forced-air speed and potting factor (``design.kernel.cooling_model`` reads them)."""
+    d = CoolingFigures()
+    if not r.has("cooling"):
+        return d
+    c = r.mapping("cooling")
+    out = CoolingFigures(
+        air_speed_m_s=c.quantity("air_speed", "speed", d.air_speed_m_s, minimum=0.05, maximum=AIR_SPEED_MAX_M_S),
+        potted_rise_factor=c.number("potted_rise_factor", d.potted_rise_factor, minimum=0.2, maximum=1.5),
+        potted_source=c.text("potted_source", d.potted_source, max_len=500))
+    c.done()
+    return out
+
+
 def _hipot(hp: Reader) -> HipotFigures:
     def volts(key: str, default=_NO_DEFAULT):
         args = () if default is _NO_DEFAULT else (default,)
@@ -503,6 +519,7 @@ def _shop(r: Reader) -> Shop:
         lead_length_m=r.quantity("lead_length", "length", 0.1, allow_zero=True, maximum=MAX_DIMENSION_M),
         flux_limit_fraction=r.number("flux_limit_fraction", 0.8, minimum=0.3, maximum=1.0),
         powder_saturation_fraction=r.number("powder_saturation_fraction", 0.8, minimum=0.3, maximum=1.0),
+        cooling=_cooling(r),
         hotspot_margin_k=r.quantity("hotspot_margin", "temperature_difference", 10.0, allow_zero=True, maximum=100.0),
         work_order_format=fmt, hipot=hipot, insulation_resistance=insulation_resistance,
         voltage_tolerance=r.tolerance_pair("voltage_tolerance", (0.0, 0.03)) or (0.0, 0.03),

@@ -247,6 +247,15 @@ class CurrentDensities(_ByKey):
 
 
 @record
+class CoolingFigures:
+    """How the rise is found for forced air and potting when a spec does not say (shop.yaml ``cooling``)."""
+
+    air_speed_m_s: float = 1.0          # forced air: the speed over the part when the spec states no air_speed
+    potted_rise_factor: float = 0.85    # potted: the rise against still air (a stated factor)
+    potted_source: str = "common practice (from memory): replace with the shop's measurement"
+
+
+@record
 class HipotFigures(_ByKey):
     """Dielectric (hipot) test figures: type-test voltages per insulation rating, durations, trip."""
 
@@ -325,6 +334,7 @@ class Shop:
     # a powder counts as saturated at this fraction of the lower of B_sat and its DC-bias curve's ceiling
     # (``kernel.powder_saturation_t``; shop.yaml says why)
     powder_saturation_fraction: float = 0.8
+    cooling: CoolingFigures = field(default_factory=lambda: CoolingFigures())
     raw: dict = field(default_factory=dict, compare=False, repr=False)
     # documents and commercial terms (see ShopDocuments): printed, never part of a design or its fingerprint
     documents: ShopDocuments = field(default_factory=lambda: ShopDocuments())

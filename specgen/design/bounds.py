@@ -31,7 +31,7 @@ SUFFIX = {"_v": "voltage", "_a": "current", "_hz": "frequency", "_s": "time", "_
           "_m3": "volume", "_kg": "mass", "_t": "flux_density", "_a_m": "field", "_a_m2": "current_density",
           "_a_mm2": "current_density", "_w": "power", "_h": "inductance", "_ohm": "resistance",
           "_w_m3": "power_density", "_c": "temperature", "_k": "temperature_difference", "_va": "apparent_power",
-          "_kw_m3": "power_density", "_mm": "length"}
+          "_kw_m3": "power_density", "_mm": "length", "_m_s": "speed"}
 #: Factor to the dimension's SI unit for suffixes in another unit, and how that unit is written.
 SCALE = {"_kw_m3": 1e3, "_mm": 1e-3, "_a_mm2": 1e6}
 _SHOWN = {"_kw_m3": "kW/m³", "_mm": "mm", "_a_mm2": "A/mm²"}

@@ -52,7 +52,9 @@ Loss and temperature
   core_loss_w_m3(waveform, freq_hz, b_t, duty, k, alpha, beta)       k, alpha, beta scalar
   core_loss_grouped_w_m3(waveform, freq_hz, b_t, duty, group, k, alpha, beta)  per-group coefficients
   core_loss_temperature_factor(temp_c, ct0, ct1, ct2)               Mulder's F(T); 1 where NaN (no fit)
-  temperature_rise_k(total_loss_w, surface_m2, cooling, ambient_c, r_th_k_w)  McLyman (or R_th) x cooling
+  cooling_model(cooling, air_speed_m_s, shop_figures) -> CoolingModel   forced air's speed, potting's factor
+  flow_length_m(surface_m2)                                          length along the air flow (forced air)
+  temperature_rise_k(total_loss_w, surface_m2, cooling, ambient_c, r_th_k_w)  McLyman or R_th; forced air; potted
   hot_spot_c(ambient_c, rise_k, hotspot_margin_k)
   thermal_state(total_loss_w, surface_m2, cooling, ambient_c, hotspot_margin_k) -> ThermalState (scalar)
   first_guess_thermal(ambient_c, hotspot_margin_k) -> ThermalState
@@ -63,7 +65,7 @@ from __future__ import annotations
 
 import math
 from collections.abc import Mapping
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
 import numpy as np
 import numpy.typing as npt
@@ -104,9 +106,11 @@ from .kernel_winding import (
     wire_geometry,
 )
 from .limits import (
-    COOLING_RISE_FACTOR,
+    AIR_FILM_MAX_C,
+    AIR_FILM_MIN_C,
     CORE_LOSS_SCAN_FRACTION,
     FIRST_GUESS_RISE_K,
+    FLOW_LENGTH_MAX_M,
     GAP_STEP_M,
     IRON_SHARE_WARN,
     LITZ_STRAND_MAX_SKIN_DEPTHS,
@@ -122,17 +126,21 @@ from .limits import (
     THERMAL_SETTLED_K,
     WIRE_CHOICE_TEMP_C,
 )
-from .state import ThermalState
+from .state import CoolingModel, ThermalState
+
+if TYPE_CHECKING:
+    from ..catalog.models import CoolingFigures
 
 __all__ = [
-    "CORE_LOSS_SCAN_FRACTION", "COOLING_RISE_FACTOR", "FIRST_GUESS_RISE_K", "FORMER_CODE", "GAP_STEP_M", "IRON_SHARE_WARN",
+    "CORE_LOSS_SCAN_FRACTION", "FIRST_GUESS_RISE_K", "FORMER_CODE", "GAP_STEP_M", "IRON_SHARE_WARN",
     "LITZ_STRAND_MAX_SKIN_DEPTHS", "MAX_BUNDLES_LITZ", "MAX_HOT_C", "MAX_STRANDS_ROUND", "MAX_STRANDS_TIW",
     "MAX_TURNS", "MU0_H_M", "RIPPLE_SKIN_FRACTION", "SQUARE_HARMONICS", "STRAND_MAX_SKIN_DEPTHS",
     "THERMAL_MAX_PASSES", "THERMAL_SETTLED_K", "WIRE_CHOICE_TEMP_C", "WIRE_CODE",
     "FLUX_LIMIT_DESIGN", "FLUX_LIMIT_SHOP", "FLUX_LIMIT_SPEC", "FormerArrays", "Harmonics", "SectionWinding", "WireGeometry",
-    "b_sat_t", "copper_loss_w", "core_loss_grouped_w_m3", "core_loss_w_m3", "current_density_a_m2",
+    "b_sat_t", "cooling_model", "copper_loss_w", "core_loss_grouped_w_m3", "core_loss_w_m3", "current_density_a_m2",
     "core_loss_significant", "core_loss_temperature_factor",
-    "current_harmonics", "dc_resistance_ohm", "first_guess_thermal", "flux_limit_source", "flux_limit_t", "gap_for_inductance_m",
+    "current_harmonics", "dc_resistance_ohm", "first_guess_thermal", "flow_length_m", "flux_limit_source",
+    "flux_limit_t", "gap_for_inductance_m",
     "gap_arrangement_on", "gaps_in_series", "gapped_turns_and_gap", "hot_spot_c", "iron_reluctance_share",
     "layer_ac_factor", "layer_capacity", "layer_centre_m", "layer_delta",
     "layer_porosity", "litz_fr", "magnetizing_current_a", "mean_turn_length_m", "output_voltage_ok", "secondary_turns_within",
@@ -547,20 +555,59 @@ def core_loss_temperature_factor(temp_c: ArrayLike, ct0: ArrayLike, ct1: ArrayLi
     return _out(np.where(has, f, 1.0))
 
 
-def temperature_rise_k(total_loss_w: ArrayLike, surface_m2: ArrayLike, cooling: str, ambient_c: ArrayLike,
+def cooling_model(cooling: str, air_speed_m_s: float | None, figures: CoolingFigures) -> CoolingModel:
+    """The part's cooling with the shop's figures filled in: forced air at the spec's speed, else the shop's
+    default (``shop.yaml cooling.air_speed``); potted with the shop's stated factor and its source."""
+    if cooling == "forced":
+        given = air_speed_m_s is not None
+        speed = float(air_speed_m_s) if air_speed_m_s is not None else figures.air_speed_m_s
+        return CoolingModel("forced", air_speed_m_s=speed, air_speed_from="spec" if given else "shop default")
+    if cooling == "potted":
+        return CoolingModel("potted", potted_factor=figures.potted_rise_factor, potted_source=figures.potted_source)
+    return CoolingModel("natural")
+
+
+def flow_length_m(surface_m2: ArrayLike) -> Arr:
+    """The part's length along the air flow for the flat-plate coefficient [m]: the side of the cube with its
+    outside surface (``physics.cooling.flow_length_from_surface_m``), at most FLOW_LENGTH_MAX_M, which keeps the
+    boundary layer laminar to the highest air speed the catalogue takes."""
+    return _out(np.minimum(_f(cooling_mod.flow_length_from_surface_m(np.maximum(_f(surface_m2), 0.0))),
+                           FLOW_LENGTH_MAX_M))
+
+
+def temperature_rise_k(total_loss_w: ArrayLike, surface_m2: ArrayLike, cooling: CoolingModel, ambient_c: ArrayLike,
                        r_th_k_w: ArrayLike | None = None) -> Arr:
-    """Temperature rise [K]: McLyman's natural-convection fit (``physics.thermal.temperature_rise_k``), or the
-    loss through a measured thermal resistance ``r_th_k_w`` (natural convection, where the catalogue has one:
-    ``physics.cooling.temperature_rise_from_r_th_k``), times the cooling's factor (COOLING_RISE_FACTOR), held
-    below MAX_HOT_C."""
-    if r_th_k_w is None:
-        rise = _f(thermal.temperature_rise_k(total_loss_w, surface_m2))
-    else:
-        rise = _f(cooling_mod.temperature_rise_from_r_th_k(total_loss_w, r_th_k_w))
-    factor = COOLING_RISE_FACTOR.get(cooling, 1.0)
-    if factor != 1.0:
-        rise = rise * factor
-    return _out(np.minimum(rise, MAX_HOT_C - _f(ambient_c)))
+    """Temperature rise [K] for the part's cooling, held below MAX_HOT_C.
+
+    Still air: McLyman's fit (``physics.thermal.temperature_rise_k``), or where a row has a measured thermal
+    resistance ``r_th_k_w`` (NaN: none) the loss through it (``physics.cooling.temperature_rise_from_r_th_k``).
+    Forced air: the laminar flat-plate coefficient at the air speed over ``flow_length_m`` combined with the still
+    air's (Churchill's n = 3), solved with McLyman's rise (``physics.cooling.forced_air_rise_k``) or with a
+    measured R_th (``physics.cooling.forced_air_rise_from_r_th_k``); the air's properties
+    at ambient + FIRST_GUESS_RISE_K / 2 (the film). Potted: still air's rise times the shop's stated factor."""
+    p, area, amb = np.broadcast_arrays(_f(total_loss_w), _f(surface_m2), _f(ambient_c))
+    r_th = np.full(p.shape, np.nan) if r_th_k_w is None else np.broadcast_to(_f(r_th_k_w), p.shape)
+    measured = np.isfinite(r_th) & (r_th > 0.0)
+    natural = _f(thermal.temperature_rise_k(p, area))
+    if measured.any():
+        natural = np.where(measured, _f(cooling_mod.temperature_rise_from_r_th_k(p, np.where(measured, r_th, 0.0))),
+                           natural)
+    rise = natural
+    if cooling.cooling == "forced" and cooling.air_speed_m_s is not None:
+        ok = np.isfinite(p) & (p >= 0.0) & np.isfinite(area) & (area > 0.0)
+        pp, aa = np.where(ok, p, 0.0), np.where(ok, area, 1.0)
+        length = _f(flow_length_m(aa))
+        film = np.clip(amb + FIRST_GUESS_RISE_K / 2.0, AIR_FILM_MIN_C, AIR_FILM_MAX_C)
+        forced = np.zeros(p.shape)
+        if (ok & ~measured).any():
+            forced = _f(cooling_mod.forced_air_rise_k(pp, aa, cooling.air_speed_m_s, length, film))
+        if (ok & measured).any():
+            forced = np.where(measured, _f(cooling_mod.forced_air_rise_from_r_th_k(
+                pp, np.where(measured, r_th, 1.0), aa, cooling.air_speed_m_s, length, film)), forced)
+        rise = np.where(ok, forced, natural)
+    elif cooling.cooling == "potted":
+        rise = natural * cooling.potted_factor
+    return _out(np.minimum(rise, MAX_HOT_C - amb))
 
 
 def hot_spot_c(ambient_c: ArrayLike, rise_k: ArrayLike, hotspot_margin_k: ArrayLike) -> Arr:
@@ -568,7 +615,7 @@ def hot_spot_c(ambient_c: ArrayLike, rise_k: ArrayLike, hotspot_margin_k: ArrayL
     return _out(_f(ambient_c) + _f(rise_k) + _f(hotspot_margin_k))
 
 
-def thermal_state(total_loss_w: float, surface_m2: float, cooling: str, ambient_c: float,
+def thermal_state(total_loss_w: float, surface_m2: float, cooling: CoolingModel, ambient_c: float,
                   hotspot_margin_k: float, r_th_k_w: float | None = None) -> ThermalState:
     """The winding and hot-spot temperatures at a total loss (scalar; arrays: ``temperature_rise_k`` and
     ``hot_spot_c``); ``r_th_k_w``: a measured thermal resistance instead of the surface rule."""

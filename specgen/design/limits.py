@@ -48,10 +48,15 @@ FIRST_GUESS_RISE_K = 40.0      # the temperature loop starts from a 40 K rise (a
 MAX_HOT_C = 1000.0             # the thermal loop stops here: a design this hot fails its checks anyway
 THERMAL_SETTLED_K = 0.02       # the loop ends when the hot spot moves less than this between passes
 THERMAL_MAX_PASSES = 60
-# Temperature rise relative to natural convection (McLyman's fit is for still air). Forced air: roughly
-# halves the rise of natural convection, taken as 0.6 (common practice, from memory); potted: the compound
-# spreads the heat to the can, 0.85 (common practice, from memory).
-COOLING_RISE_FACTOR = {"natural": 1.0, "forced": 0.6, "potted": 0.85}
+# forced air (``kernel.temperature_rise_k``): the air's properties are taken at the film temperature
+# ambient + FIRST_GUESS_RISE_K / 2, held inside the air table of ``physics.cooling`` (Incropera and DeWitt,
+# Table A.4); the flow length at most 0.25 m keeps Re = v L / nu below the laminar limit 5e5 up to 20 m/s
+# the highest air speed taken (spec or shop): the boundary layer stays laminar to it over FLOW_LENGTH_MAX_M, and
+# no fan-cooled wound part sees more (common practice)
+AIR_SPEED_MAX_M_S = 20.0
+AIR_FILM_MIN_C = -23.0
+AIR_FILM_MAX_C = 127.0
+FLOW_LENGTH_MAX_M = 0.25
 
 # Curie point: permeability and saturation fall steeply in the last tens of kelvin below it; a hot spot within
 # this of it warns (common practice)

@@ -62,7 +62,8 @@ def design(spec: Spec, cat: Catalog) -> Design:
     temp = K.first_guess_thermal(spec.ambient_c, shop.hotspot_margin_k)
     ev, iterations = run.first(temp)
     # temperature loop: resistance and core loss with temperature, rise, until the hot spot settles
-    ev, temp, passes = settle(spec, parts, run, ev, temp, shop.hotspot_margin_k)
+    cooling = K.cooling_model(spec.cooling, spec.air_speed_m_s, shop.cooling)
+    ev, temp, passes = settle(spec, parts, run, ev, temp, shop.hotspot_margin_k, cooling)
     iterations += passes
     d = finish(spec, cat, parts, kind, ev, temp, run.summary(ev, temp), iterations)
     refuse_out_of_range(spec, d)     # every result finite and inside its plausible range (bounds.RANGE)
@@ -192,5 +193,7 @@ def finish(spec: Spec, cat: Catalog, parts: Parts, kind: PartKind, ev: Evaluatio
         notes=spec.notes, history=history_entries(spec.history), insulation=insulation,
         current_transformer=s.current_transformer, flyback=s.flyback, connections=s.connections, loads=s.loads,
         frequencies_hz=spec.frequencies_hz, taps=taps, reset=s.reset, common_mode_choke=s.common_mode_choke,
+        rise_basis=temp.r_th_basis,
+        air_speed_m_s=K.cooling_model(spec.cooling, spec.air_speed_m_s, cat.shop.cooling).air_speed_m_s,
         floor=floor_data(cat, parts, ev.built, windings, spec.varnish, getattr(spec, "core_wrap", None)),
     )

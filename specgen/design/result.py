@@ -469,6 +469,8 @@ class Design:
     frequencies_hz: tuple[float, ...] = ()           # several frequencies served (frequency_hz the lowest)
     taps: tuple[TapResult, ...] = ()                 # taps named by voltage, at their whole turns
     reset: ResetResult | None = None                 # a forward transformer's reset winding
+    air_speed_m_s: float | None = None               # forced air: the speed the rise was found for
+    rise_basis: str = ""                             # where the temperature rise comes from, in words
 
     @property
     def failed(self) -> list[Check]:
@@ -538,7 +540,8 @@ class Design:
                        "total_w": self.losses.total_w,
                        "core_loss_density_kw_m3": self.losses.core_loss_density_w_m3 / 1e3},
             "winding_temp_c": self.winding_temp_c, "hot_spot_c": self.hot_spot_c,
-            "temperature_rise_k": self.temperature_rise_k, "efficiency": self.efficiency,
+            "temperature_rise_k": self.temperature_rise_k, "air_speed_m_s": self.air_speed_m_s,
+            "rise_basis": self.rise_basis, "efficiency": self.efficiency,
             "regulation_pct": self.regulation_pct, "output_power_w": self.output_power_w,
             "checks": [asdict(ch) for ch in self.checks],
             "tests": _tests_dict(self.tests),

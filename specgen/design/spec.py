@@ -29,7 +29,7 @@ from ..records import record
 from .acceptance import AcceptedWarning
 from .connections import Connection, Load, parse_connections, parse_load
 from .forward import check_reset, parse_reset_ratio
-from .limits import MAX_TURNS
+from .limits import AIR_SPEED_MAX_M_S, MAX_TURNS
 from .spec_keys import refuse_unused_keys
 from .taps import Tap, check_taps, parse_taps
 from .vocab import Cooling, Waveform
@@ -171,6 +171,7 @@ class Spec:
     common_mode_choke: CommonModeChokeReq | None = None
     connections: tuple[Connection, ...] = ()   # several primaries: how they are joined outside the part
     frequencies_hz: tuple[float, ...] = ()     # a part for several mains frequencies (frequency_hz the lowest)
+    air_speed_m_s: float | None = None         # forced air: the speed over the part (None: the shop's default)
 
     def winding(self, name: str) -> Winding:
         for w in self.windings:
@@ -321,6 +322,9 @@ def parse_spec(data: Any, name: str) -> Spec:
         raise op.error(f"ambient {ambient:g} degC is outside -60..200 degC", "ambient")
     duty = op.number("duty", 0.5, minimum=0.01, maximum=0.99)
     cooling = cast(Cooling, op.choice("cooling", COOLING, "natural"))
+    air_speed = op.quantity("air_speed", "speed", None, minimum=0.05, maximum=AIR_SPEED_MAX_M_S)
+    if air_speed is not None and cooling != "forced":
+        raise op.error(f"'air_speed' is used only with cooling: forced (this part is cooled '{cooling}')", "air_speed")
     flux_limit_t = op.quantity("flux_limit", "flux_density", None)
     efficiency_guess = op.number("efficiency", 0.9, minimum=0.3, maximum=0.999)
     op.done()
@@ -372,7 +376,7 @@ def parse_spec(data: Any, name: str) -> Spec:
         windings=windings, build_order=order, inductor=inductor, current_transformer=ct, flyback=fb,
         common_mode_choke=cmc,
         notes=r.text("notes", "", max_len=5000), history=_history(r), data=data,
-        frequency_hz=freq, waveform=waveform, duty=duty, ambient_c=ambient, cooling=cooling,
+        frequency_hz=freq, waveform=waveform, duty=duty, ambient_c=ambient, cooling=cooling, air_speed_m_s=air_speed,
         insulation_class_c=cls, flux_limit_t=flux_limit_t, efficiency_guess=efficiency_guess,
         layer_tape=layer_tape, winding_tape=winding_tape, outer_wrap=outer_wrap, margin_m=margin_m,
         margin_tape=margin_tape, sleeving=sleeving, varnish=varnish, barriers=barriers, core_wrap=core_wrap,

@@ -72,6 +72,17 @@ class FluxLimit:
 
 
 @record(slots=True)
+class CoolingModel:
+    """How the part sheds its heat (``kernel.cooling_model``): the cooling, the air speed over it (forced air),
+    the potting factor and its source, and whether the speed was the spec's or the shop's default."""
+    cooling: Cooling
+    air_speed_m_s: float | None = None     # forced air only
+    air_speed_from: str = ""               # "spec" or "shop default"
+    potted_factor: float = 1.0             # potted only: the rise against still air
+    potted_source: str = ""
+
+
+@record(slots=True)
 class ThermalState:
     winding_c: float             # mean winding temperature
     hot_c: float                 # hot spot: the winding plus the shop's margin

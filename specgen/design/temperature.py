@@ -20,14 +20,13 @@ from ..catalog.models import Material
 from ..errors import DesignOutOfRange
 from ..physics import core_temperature as ct
 from ..physics import wire as wiremod
-from ..physics.cooling import MCLYMAN_EXPONENT
 from . import kernel as K
 from . import limits as L
 from .bounds import HOTTEST_C
 from .resolve import spec_error
 from .result import Check
 from .spec import Spec
-from .state import DesignState, Evaluation, Parts, ThermalState
+from .state import CoolingModel, DesignState, Evaluation, Parts, ThermalState
 
 if TYPE_CHECKING:
     from .kinds.base import KindRun
@@ -48,18 +47,43 @@ def at_core_temperature(ev: Evaluation[Any], material: Material, temp: ThermalSt
     return replace(ev, core_w=ev.core_w * f, core_w_m3=ev.core_w_m3 * f)
 
 
-def thermal_state(spec: Spec, parts: Parts, total_w: float, hotspot_margin_k: float) -> ThermalState:
+def thermal_state(spec: Spec, parts: Parts, total_w: float, hotspot_margin_k: float,
+                  cooling: CoolingModel) -> ThermalState:
     """The kernel's thermal state for this part: its core's measured thermal resistance where the catalogue
-    has one, else McLyman's surface rule; with the basis in words."""
+    has one, else McLyman's surface rule, for its cooling; with the basis in words (``rise_basis``)."""
     r_th = parts.core.thermal_resistance_k_w
-    temp = K.thermal_state(total_w, parts.surface_m2, spec.cooling, spec.ambient_c, hotspot_margin_k, r_th)
-    basis = (f"measured {r_th:g} K/W (catalogue, core {parts.core.id})" if r_th is not None
-             else "McLyman's rise against loss per surface area")
-    return replace(temp, r_th_basis=basis)
+    temp = K.thermal_state(total_w, parts.surface_m2, cooling, spec.ambient_c, hotspot_margin_k, r_th)
+    return replace(temp, r_th_basis=rise_basis(parts, cooling))
+
+
+def rise_basis(parts: Parts, cooling: CoolingModel) -> str:
+    """Where the temperature rise comes from, in words: the still-air basis and the cooling on top of it."""
+    r_th = parts.core.thermal_resistance_k_w
+    still = (f"measured {r_th:g} K/W in still air (catalogue, core {parts.core.id})" if r_th is not None
+             else "McLyman's rise against loss per surface area (still air)")
+    if cooling.cooling == "forced" and cooling.air_speed_m_s is not None:
+        length = float(K.flow_length_m(parts.surface_m2))
+        return (f"{still}, with forced air at {cooling.air_speed_m_s:.3g} m/s "
+                f"({cooling.air_speed_from}) along {length * 1e3:.0f} mm: laminar flat-plate convection combined "
+                f"with the still air's (Churchill, n = 3; Incropera and DeWitt)")
+    if cooling.cooling == "potted":
+        return f"{still}, x {cooling.potted_factor:g} potted (shop figure: {cooling.potted_source})"
+    return still
+
+
+def _rise_slope_k_w(spec: Spec, parts: Parts, cooling: CoolingModel, total_w: float) -> float:
+    """d(rise)/dP at the part's loss [K/W], by a central difference of the kernel's rise (any cooling); where the
+    rise is held at MAX_HOT_C (no slope) the secant rise / P."""
+    r_th = parts.core.thermal_resistance_k_w
+    step = total_w * 1e-4
+    hi, lo, now = (float(K.temperature_rise_k(p, parts.surface_m2, cooling, spec.ambient_c, r_th))
+                   for p in (total_w + step, total_w - step, total_w))
+    slope = (hi - lo) / (2.0 * step)
+    return slope if slope > 0.0 and math.isfinite(slope) else now / total_w
 
 
 def settle(spec: Spec, parts: Parts, run: KindRun, ev: Evaluation[Any], temp: ThermalState,
-           hotspot_margin_k: float) -> tuple[Evaluation[Any], ThermalState, int]:
+           hotspot_margin_k: float, cooling: CoolingModel) -> tuple[Evaluation[Any], ThermalState, int]:
     """The temperature loop, bounded by THERMAL_MAX_PASSES: resistance and core loss with temperature, the
     rise, until the hot spot moves less than THERMAL_SETTLED_K. A loss that outgrows the cooling ends the
     design (``DesignOutOfRange``, exit 1) with the runaway named."""
@@ -68,28 +92,30 @@ def settle(spec: Spec, parts: Parts, run: KindRun, ev: Evaluation[Any], temp: Th
     passes = 0
     for _ in range(K.THERMAL_MAX_PASSES):
         passes += 1
-        new = thermal_state(spec, parts, ev.total_w, hotspot_margin_k)
+        new = thermal_state(spec, parts, ev.total_w, hotspot_margin_k, cooling)
         settled = abs(new.hot_c - temp.hot_c) < K.THERMAL_SETTLED_K
         temp = new
         ev = at_core_temperature(run.again(ev, temp), mat, temp)
         if settled:
             break
-    margin = _stability_margin(spec, mat, ev, temp)
+    margin = _stability_margin(spec, parts, cooling, ev, temp)
     if margin is not None and (margin <= 0.0 or temp.hot_c > HOTTEST_C):
         raise _runaway(spec, mat, ev, temp)
     return ev, replace(temp, core_factor=core_loss_factor(mat, temp.winding_c), stability_margin=margin), passes
 
 
-def _stability_margin(spec: Spec, mat: Material, ev: Evaluation[Any], temp: ThermalState) -> float | None:
+def _stability_margin(spec: Spec, parts: Parts, cooling: CoolingModel, ev: Evaluation[Any],
+                      temp: ThermalState) -> float | None:
     """1 - R_th dP/dT at the part's balance (> 0: stable); 0 where no balance exists below bounds.HOTTEST_C;
     None without a loss-temperature fit."""
+    mat = parts.material
     if mat.loss_temperature is None or ev.total_w <= 0.0 or temp.rise_k <= 0.0:
         return None
     f_now = core_loss_factor(mat, temp.winding_c)
     core_min = ev.core_w / f_now
-    # the cooling's local slope: McLyman's rise grows as P^0.826 (a measured R_th: linear, slope = R_th)
-    exponent = 1.0 if temp.r_th_basis.startswith("measured") else MCLYMAN_EXPONENT
-    r_local = exponent * temp.rise_k / ev.total_w
+    # the cooling's local slope d(rise)/dP (McLyman's rise grows as P^0.826, a measured R_th linearly, forced
+    # air in between)
+    r_local = _rise_slope_k_w(spec, parts, cooling, ev.total_w)
     rho_now = float(wiremod.resistivity_ohm_m(temp.winding_c))
 
     def loss_w(t_c: float) -> float:

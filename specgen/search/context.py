@@ -39,6 +39,7 @@ class CoreRows(RowArrays):
     le_m: FloatArray
     ve_m3: FloatArray
     surface_m2: FloatArray
+    r_th_k_w: FloatArray         # the core's measured still-air thermal resistance; NaN: McLyman's surface rule
     available_m: FloatArray      # build height available
     mu_working: FloatArray
     mu_initial: FloatArray
@@ -64,6 +65,8 @@ def core_rows(choices: list[CoreChoice], cat: Catalog, mindex: dict[str, int]) -
     fm = FormerRows(kind=z(n, dtype=np.int8), tube_width_m=z(n), tube_depth_m=z(n), breadth_m=z(n), od_m=z(n),
                     id_m=z(n), core_height_m=z(n))
     ct = CoreRows(former=fm, material=z(n, dtype=np.int64), ae_m2=z(n), le_m=z(n), ve_m3=z(n), surface_m2=z(n),
+                  r_th_k_w=np.array([np.nan if c.core.thermal_resistance_k_w is None else c.core.thermal_resistance_k_w
+                                     for c in choices], dtype=np.float64),
                   available_m=z(n), mu_working=z(n), mu_initial=z(n), fringe_window_m=z(n), price=z(n),
                   mass_kg=z(n), bobbin_class_c=z(n), layer_tape_m=z(n), winding_tape_m=z(n), outer_wrap_m=z(n),
                   margin_m=z(n), pins=z(n), length_m=z(n), width_m=z(n), height_m=z(n),
@@ -128,7 +131,8 @@ class SearchContext:
         shop = cat.shop
         self.t0_hot_c = first_guess_hot_c(req, cat)
         self.spec = replace_core(req, choices[0])     # the requirement as a real Spec (its operating point)
-        self.thermal = ThermalModel(req.ambient_c, req.cooling, shop.hotspot_margin_k)
+        self.thermal = ThermalModel(req.ambient_c, K.cooling_model(req.cooling, req.air_speed_m_s, shop.cooling),
+                                    shop.hotspot_margin_k)
         names = sorted({c.core.material for c in choices})
         self.materials = MaterialRows.of([cat.materials[m] for m in names])
         self.cores = core_rows(choices, cat, {m: i for i, m in enumerate(names)})

@@ -77,7 +77,10 @@ def _operating_lines(req: Requirement) -> list[str]:
             lines.append(f"  duty: {req.duty!r}")
     if t.get("ambient"):
         lines.append(f"  ambient: {_y(t['ambient'])}")
-    lines += [f"  cooling: {req.cooling}", f"  insulation_class: {req.insulation_class_c}"]
+    lines.append(f"  cooling: {req.cooling}")
+    if req.air_speed_m_s is not None:
+        lines.append(f"  air_speed: {req.air_speed_m_s!r} m/s")
+    lines.append(f"  insulation_class: {req.insulation_class_c}")
     if t.get("flux_limit"):
         lines.append(f"  flux_limit: {_y(t['flux_limit'])}")
     if req.efficiency is not None and req.kind == "transformer":     # an inductor's spec has no efficiency

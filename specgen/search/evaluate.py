@@ -119,10 +119,10 @@ def tally(ctx: SearchContext, ci: IntArray, opts: list[OptionRows], build: Build
     return Tally(out[0], out[1], mass, c.price[ci] + wire_cost, size)
 
 
-def core_alone_ok(ctx: SearchContext, core_w: FloatArray, surface: FloatArray) -> BoolArray:
+def core_alone_ok(ctx: SearchContext, core_w: FloatArray, surface: FloatArray, r_th: FloatArray) -> BoolArray:
     """Rows whose core loss alone leaves the hot spot and the rise within the limits (with the slack):
     copper only adds to it, so the others are too hot whatever the winding."""
-    hot, rise = ctx.thermal.state(core_w, surface)
+    hot, rise = ctx.thermal.state(core_w, surface, r_th)
     ok = hot <= ctx.req.insulation_class_c + TEMP_SLACK_K
     if ctx.req.max_rise_k is not None:
         ok &= rise <= ctx.req.max_rise_k + TEMP_SLACK_K
@@ -138,7 +138,7 @@ class Settled:
 
 
 def thermal_loop(ctx: SearchContext, copper: Callable[[FloatArray], FloatArray], core_w: FloatArray,
-                 surface: FloatArray, hot: FloatArray, mi: IntArray,
+                 surface: FloatArray, r_th: FloatArray, hot: FloatArray, mi: IntArray,
                  extra: Callable[[FloatArray, BoolArray], None] | None = None) -> Settled:
     """The engine's thermal loop, row by row: the hot spot from the loss, the loss again at that hot spot,
     until a row's hot spot moves less than ``THERMAL_SETTLED_K`` (that row then stops, as the engine stops a design).
@@ -157,7 +157,7 @@ def thermal_loop(ctx: SearchContext, copper: Callable[[FloatArray], FloatArray],
     rise = np.zeros(rows)
     active = np.ones(rows, dtype=bool)
     for _ in range(K.THERMAL_MAX_PASSES):
-        new, new_rise = ctx.thermal.state(cu + co, surface)
+        new, new_rise = ctx.thermal.state(cu + co, surface, r_th)
         if extra is not None:
             extra(cu + co, active)
         settled = np.abs(new - hot) < K.THERMAL_SETTLED_K
@@ -278,7 +278,7 @@ def _transformer_rows(ctx: SearchContext, ci: IntArray, oi: list[IntArray], np_:
     b_pk = np.asarray(faraday.b_peak_t(ctx.vp, f, np_, ae, req.waveform, req.duty))
     core_w = ctx.materials.core_loss_w_m3(mi, b_pk, f, req.waveform, req.duty) * c.ve_m3[ci]
     # the AC factor only where it can matter: rows that fit and that the core loss alone does not overheat
-    live = np.flatnonzero(build.fits_slack & core_alone_ok(ctx, core_w, surface))
+    live = np.flatnonzero(build.fits_slack & core_alone_ok(ctx, core_w, surface, c.r_th_k_w[ci]))
     frs = _section_frs(ctx, ci, opts, build, turns, ip, live, skin_depth_m(f, t_start))
     b_pk_max = np.asarray(faraday.b_peak_t(ctx.vp_max, f, np_, ae, req.waveform, req.duty))
     primary_a = [ip]
@@ -294,7 +294,7 @@ def _transformer_rows(ctx: SearchContext, ci: IntArray, oi: list[IntArray], np_:
         eta = ctx.p_out / (ctx.p_out + total_w)
         primary_a[0] = np.where(active, K.primary_current_a(ctx.p_out, eta, ctx.vp, imag), primary_a[0])
 
-    th = thermal_loop(ctx, copper, core_w, surface, t_start.copy(), mi, efficiency)
+    th = thermal_loop(ctx, copper, core_w, surface, c.r_th_k_w[ci], t_start.copy(), mi, efficiency)
     limit = ctx.swing_t(ctx.flux_limit_t(mi, th.hot_c), mi)
     sat = flag(b_pk_max > limit * SATURATION_SLACK, Fail.SAT)
     if req.waveform == "unipolar":
@@ -327,7 +327,7 @@ def eval_choke(ctx: SearchContext, ci: IntArray, oi: list[IntArray], mag: ChokeM
     length = sec.length_m + 2.0 * ctx.lead_m
     core_w = mag.core_loss_w_m3 * c.ve_m3[ci]
     fr = np.ones(rows)
-    live = np.flatnonzero(build.fits_slack & core_alone_ok(ctx, core_w, c.surface_m2[ci]))
+    live = np.flatnonzero(build.fits_slack & core_alone_ok(ctx, core_w, c.surface_m2[ci], c.r_th_k_w[ci]))
     cur = ch.currents
     if live.size:
         delta = skin_depth_m(req.frequency_hz, start)
@@ -339,7 +339,7 @@ def eval_choke(ctx: SearchContext, ci: IntArray, oi: list[IntArray], mag: ChokeM
         return np.asarray(K.copper_loss_w(resistance_ohm(opts[0], length, hot), fr, cur.i_ac, cur.i_dc),
                           dtype=np.float64)
 
-    th = thermal_loop(ctx, copper, core_w, c.surface_m2[ci], start, c.material[ci])
+    th = thermal_loop(ctx, copper, core_w, c.surface_m2[ci], c.r_th_k_w[ci], start, c.material[ci])
     bsat = ctx.materials.b_sat_t(c.material[ci], th.hot_c)
     # a powder saturates where the engine's check says (``kernel.powder_saturation_t``), short of B_sat
     bsat = np.where(ch.powder[ci], np.asarray(K.powder_saturation_t(bsat, ctx.cat.shop.powder_saturation_fraction,

@@ -9,6 +9,7 @@ from dataclasses import dataclass, field, fields
 from pathlib import Path
 from typing import Any
 
+from ..design.limits import AIR_SPEED_MAX_M_S
 from ..design.spec_keys import unused_winding_key_reason
 from ..errors import SpecError
 from ..loading import RENAMED_KEYS, Reader, load_yaml
@@ -23,7 +24,7 @@ TOP_KEYS = ("requirement", "part", "title", "customer", "kind", "operating", "wi
 FLYBACK_QUANTITIES = {"input_voltage_min": "voltage", "input_voltage_max": "voltage", "inductance": "inductance",
                       "reflected_voltage": "voltage", "diode_drop": "voltage"}
 FLYBACK_OTHER = ("mode", "ripple_ratio", "duty_max", "efficiency", "output_tolerance")
-OPERATING_KEYS = ("frequency", "waveform", "duty", "ambient", "cooling", "insulation_class", "max_rise",
+OPERATING_KEYS = ("frequency", "waveform", "duty", "ambient", "cooling", "air_speed", "insulation_class", "max_rise",
                   "flux_limit", "efficiency")
 WINDING_KEYS = ("name", "role", "voltage", "voltage_min", "voltage_max", "current", "va", "same_turns_as")
 INDUCTOR_KEYS = ("inductance", "current", "ripple", "current_peak", "duty")
@@ -73,6 +74,7 @@ class Operating:
     duty: float
     ambient_c: float
     cooling: str
+    air_speed_m_s: float | None     # forced air: the speed over the part (None: the shop's default)
     insulation_class_c: int
     max_rise_k: float | None
     flux_limit_t: float | None
@@ -190,6 +192,9 @@ def _operating(r: Reader, kind: str) -> tuple[Operating, dict[str, str | None], 
     if not -60.0 <= ambient <= 200.0:
         raise op.error(f"ambient {ambient:g} degC is outside -60..200 degC", "ambient")
     cooling = op.choice("cooling", COOLING, "natural")
+    air_speed = op.quantity("air_speed", "speed", None, minimum=0.05, maximum=AIR_SPEED_MAX_M_S)
+    if air_speed is not None and cooling != "forced":
+        raise op.error(f"'air_speed' is used only with cooling: forced (this part is cooled '{cooling}')", "air_speed")
     cls = insulation_class(op, op.raw("insulation_class", 130))
     max_rise = op.quantity("max_rise", "temperature_difference", None)
     if max_rise is not None and max_rise <= 0:
@@ -200,7 +205,7 @@ def _operating(r: Reader, kind: str) -> tuple[Operating, dict[str, str | None], 
     eff = op.number("efficiency", None, minimum=0.3, maximum=0.999)
     text = {k: _text(op, k) for k in ("frequency", "ambient", "flux_limit", "insulation_class")}
     op.done()
-    return Operating(freq, waveform, duty, ambient, cooling, cls, max_rise, flux, eff), text, freqs
+    return Operating(freq, waveform, duty, ambient, cooling, air_speed, cls, max_rise, flux, eff), text, freqs
 
 
 def _winding(wr: Reader, kind: str) -> ReqWinding:

@@ -16,6 +16,7 @@ import numpy as np
 
 from ..catalog.models import Material
 from ..design import kernel as K
+from ..design.state import CoolingModel
 from .records import FloatArray, FormerKind, IntArray, OptionRows, SectionRows
 
 Harmonics = K.Harmonics
@@ -239,12 +240,14 @@ class MaterialRows:
 
 @dataclass(frozen=True, slots=True)
 class ThermalModel:
-    """The kernel's temperature rise and hot spot for rows (its cooling table, its MAX_HOT_C)."""
+    """The kernel's temperature rise and hot spot for rows (``kernel.temperature_rise_k``: the engine's cooling,
+    a core's measured thermal resistance where the catalogue has one, its MAX_HOT_C)."""
     ambient_c: float
-    cooling: str
+    cooling: CoolingModel
     hotspot_margin_k: float
 
-    def state(self, total_loss_w: FloatArray, surface_m2: FloatArray) -> tuple[FloatArray, FloatArray]:
-        """(hot spot [degC], rise [K])."""
-        rise = _f(K.temperature_rise_k(total_loss_w, surface_m2, self.cooling, self.ambient_c))
+    def state(self, total_loss_w: FloatArray, surface_m2: FloatArray,
+              r_th_k_w: FloatArray) -> tuple[FloatArray, FloatArray]:
+        """(hot spot [degC], rise [K]); ``r_th_k_w`` per row, NaN where the core has no measured one."""
+        rise = _f(K.temperature_rise_k(total_loss_w, surface_m2, self.cooling, self.ambient_c, r_th_k_w))
         return _f(K.hot_spot_c(self.ambient_c, rise, self.hotspot_margin_k)), rise

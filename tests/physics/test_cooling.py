@@ -98,3 +98,27 @@ def test_potted_internal_resistance():
     assert cooling.potted_internal_r_th_k_w(4.0, 1.0, 26.3e-3) == pytest.approx(4.0)
     with pytest.raises(ValueError, match="void share"):
         cooling.potted_internal_r_th_k_w(4.0, 1.5, 0.8)
+
+
+def test_forced_air_over_a_measured_still_air_resistance():
+    # R = 1 / (h A) (definition): the measured still-air R_th is h_N = 1 / (R_th A), combined with the flat plate's
+    # h_F by Churchill's n = 3; dT = P / (h A). No air: P R_th. By hand at 2 m/s over 60 mm (Incropera, from memory)
+    p, r_th, area, length = 4.0, 12.0, 0.012, 0.06
+    assert cooling.forced_air_rise_from_r_th_k(p, r_th, area, 0.0, length) == pytest.approx(p * r_th, rel=1e-12)
+    hn = 1.0 / (r_th * area)
+    air = cooling.air_properties(27.0)
+    hf = 0.664 * math.sqrt(2.0 * length / air.kinematic_viscosity_m2_s) * air.prandtl ** (1 / 3) \
+        * air.conductivity_w_mk / length
+    want = p / ((hn ** 3 + hf ** 3) ** (1 / 3) * area)
+    assert cooling.forced_air_rise_from_r_th_k(p, r_th, area, 2.0, length) == pytest.approx(want, rel=1e-12)
+    assert want < p * r_th
+    with pytest.raises(ValueError, match="thermal resistance"):
+        cooling.forced_air_rise_from_r_th_k(p, 0.0, area, 2.0, length)
+
+
+def test_flow_length_is_the_side_of_the_cube_of_the_same_surface():
+    # a cube of side s has 6 s^2 of surface (geometry)
+    assert cooling.flow_length_from_surface_m(6 * 0.04 ** 2) == pytest.approx(0.04, rel=1e-12)
+    np.testing.assert_allclose(cooling.flow_length_from_surface_m(np.array([0.0, 0.06])), [0.0, 0.1])
+    with pytest.raises(ValueError, match="surface"):
+        cooling.flow_length_from_surface_m(-1.0)
