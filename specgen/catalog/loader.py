@@ -403,10 +403,9 @@ def _current_densities(cd: Reader) -> CurrentDensities:
 
 def _cooling(r: Reader) -> CoolingFigures:
     """The shop's forced-air speed and potting factor (``design.kernel.cooling_model`` reads them)."""
-    d = CoolingFigures()
-    if not r.has("cooling"):
+    d, c = CoolingFigures(), r.mapping("cooling", None)
+    if c is None:
         return d
-    c = r.mapping("cooling")
     out = CoolingFigures(
         air_speed_m_s=c.quantity("air_speed", "speed", d.air_speed_m_s, minimum=0.05, maximum=AIR_SPEED_MAX_M_S),
         potted_rise_factor=c.number("potted_rise_factor", d.potted_rise_factor, minimum=0.2, maximum=1.5),
