@@ -671,3 +671,31 @@ def test_search_takes_a_cores_measured_thermal_resistance_as_the_engine(cat, coo
         assert res.hot_c[0] == pytest.approx(d.hot_spot_c, abs=0.05)
         checked += 1
     assert checked >= 1
+
+
+def test_choke_search_holds_the_least_inductance_at_the_peak_current(cat):
+    """``inductance_min`` in the requirement reaches the draft spec and the search rejects the cores whose
+    inductance at current_peak falls below it (a powder rolls off along its DC-bias curve: L = mu0 mu_i f(N I / le)
+    N^2 Ae / le, IEC 60205 effective parameters), as the engine's inductance-at-peak check does: every listed
+    candidate passes that check, and the powder cores the plain search lists that would fail it are gone."""
+    text = (DEMO / "REQ-3305.yaml").read_text(encoding="utf-8")
+    plain = S.search(S.parse_requirement(__import__("yaml").safe_load(text), "REQ-3305.yaml"), cat, top=12)
+    peak = {c.design.core.id: c.design.inductor.inductance_at_peak_h for c in plain.top}
+    need = sorted(peak.values())[len(peak) // 2]          # half the plain list falls below it
+    assert min(peak.values()) < need
+    strict_text = text.replace("  current_peak: 10 A\n", f"  current_peak: 10 A\n  inductance_min: {need * 1e6!r} uH\n")
+    req = S.parse_requirement(__import__("yaml").safe_load(strict_text), "REQ-3305.yaml")
+    assert req.choke.inductance_min_h == pytest.approx(need)
+    assert S.requirement_spec(req).inductor.inductance_min_h == pytest.approx(need)
+    strict = S.search(req, cat, top=12)
+    assert strict.top
+    for c in strict.top:
+        d = c.design
+        assert d.inductor.inductance_at_peak_h >= need * (1 - 1e-9)
+        assert all(ch.level != "fail" for ch in d.checks if ch.code == "inductance-at-peak")
+    gone = {k for k, v in peak.items() if v < need * (1 - 1e-9)}
+    assert gone and not gone & {c.design.core.id for c in strict.top}
+    # the rows themselves: each such core is flagged before any winding is tried (not left to the engine's confirm)
+    ctx = S.prepare(req, cat).context
+    flagged = {ch.core.id for i, ch in enumerate(ctx.choices) if ctx.core_flags[i] & S.Fail.INDUCTANCE}
+    assert gone <= flagged

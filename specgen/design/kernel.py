@@ -21,6 +21,8 @@ Flux and turns
   gapped_turns_and_gap(target_h, i_peak_a, b_limit_t, ae, le, mu, window_m, fixed_turns, gaps)  (N, gap)
   iron_reluctance_share(gap_m, le_m, mu_r)                           the core's share of the path's reluctance
   powder_flux_t(turns, current_a, le_m, mu_initial, a, b, c)         B = mu0 mu_i int_0^H f dh
+  powder_sizing_currents_a(i_dc, i_op_pk, ac)                        (sizing current, quoted bias): AC at the peak
+  powder_turns_and_inductance(target_h, currents, ae, le, mu_i, a, b, c)  (N, L at the quoted bias) or None
   powder_ceiling_t(mu_initial, a, b, c)                              the B its DC-bias curve tends to
   powder_saturation_t(b_sat_t, fraction, ceiling_t)                  where a powder counts as saturated
   magnetizing_current_a(v, freq_hz, inductance_h, waveform, duty)    (rms, peak)
@@ -71,7 +73,7 @@ import numpy as np
 import numpy.typing as npt
 
 from ..physics import cooling as cooling_mod
-from ..physics import core_temperature, coreloss, faraday, powder_bias, thermal
+from ..physics import core_temperature, coreloss, faraday, permeability, powder_bias, thermal
 from ..physics import gap as gapmod
 from ..physics import wire as wiremod
 from ..physics._types import Arr, ArrayLike
@@ -146,7 +148,7 @@ __all__ = [
     "layer_porosity", "litz_fr", "magnetizing_current_a", "mean_turn_length_m", "output_voltage_ok", "secondary_turns_within",
     "least_loss_turns", "loaded_output_v", "primary_current_a", "ripple_flux_t", "secondary_turns_for_voltage",
     "secondary_turns_to_add",
-    "pitch_and_height", "powder_ceiling_t", "powder_flux_t", "powder_saturation_t", "round_gap_down_m",
+    "pitch_and_height", "powder_ceiling_t", "powder_sizing_currents_a", "powder_turns_and_inductance", "powder_flux_t", "powder_saturation_t", "round_gap_down_m",
     "section_ac_factor", "section_turns", "skin_depth_m", "stack_wires", "temperature_rise_k", "thermal_state",
     "turns_for_inductance", "turns_for_peak_flux", "turns_for_voltage", "unipolar_swing_t", "whole_turns",
     "wind_section", "wire_geometry",
@@ -364,6 +366,25 @@ def powder_flux_t(turns: ArrayLike, current_a: ArrayLike, le_m: ArrayLike, mu_in
     form); monotonic in the current. (mu0 mu_i f(H) H, the incremental permeability times H, peaks and falls.)"""
     h = _f(turns) * _f(current_a) / _f(le_m)
     return _out(powder_bias.b_from_bias_t(h, mu_initial, a, b, c))
+
+
+def powder_sizing_currents_a(i_dc_a: float, i_op_pk_a: float, ac: bool) -> tuple[float, float]:
+    """(current a powder choke's turns are sized at, DC bias its inductance is quoted at) [A]: a DC choke's L at
+    its DC current, both; an AC reactor's L at its line peak (sqrt 2 x rms, where the roll-off is deepest), quoted
+    at no DC bias. The engine's inductor and the search take these, so both size an AC reactor at its peak."""
+    return (i_op_pk_a, 0.0) if ac else (i_dc_a, i_dc_a)
+
+
+def powder_turns_and_inductance(target_h: float, currents_a: tuple[float, float], ae_m2: float, le_m: float,
+                                mu_initial: float, a: float, b: float, c: float) -> tuple[int, float] | None:
+    """Whole turns for ``target_h`` at the sizing current of ``powder_sizing_currents_a`` on a powder core
+    (``physics.permeability.turns_for_biased_inductance``) and the inductance at its quoted bias
+    (``physics.permeability.powder_inductance_h``); None where the roll-off outruns the turns."""
+    sizing, bias = currents_a
+    n = permeability.turns_for_biased_inductance(target_h, sizing, ae_m2, le_m, mu_initial, a, b, c)
+    if n is None:
+        return None
+    return int(n), float(permeability.powder_inductance_h(n, ae_m2, le_m, mu_initial, bias, a, b, c))
 
 
 def powder_ceiling_t(mu_initial: ArrayLike, a: float, b: float, c: float) -> Arr:

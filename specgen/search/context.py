@@ -117,6 +117,7 @@ class PowderTable:
     b_pk_t: FloatArray
     b_max_t: FloatArray
     ceiling_t: FloatArray     # the B the DC-bias curve tends to (``kernel.powder_ceiling_t``); inf: not a powder
+    inductance_peak_h: FloatArray   # the small-signal inductance at the peak current (the engine's inductance_at_peak)
 
 
 class SearchContext:
@@ -202,23 +203,31 @@ class ChokeSetup:
         self.gaps = np.array([K.gaps_in_series(K.gap_arrangement_on("centre", ch.core.shape)) for ch in ctx.choices],
                              dtype=float)
         n = len(ctx.choices)
-        self.pow = PowderTable(np.zeros(n), np.zeros(n), np.zeros(n), np.zeros(n), np.full(n, np.inf))
+        self.pow = PowderTable(np.zeros(n), np.zeros(n), np.zeros(n), np.zeros(n), np.full(n, np.inf), np.zeros(n))
         ae, le, mu = cores.ae_m2, cores.le_m, cores.mu_initial
         for i in np.flatnonzero(self.powder):
             m = cat.materials[ctx.choices[i].core.material]
             a, b, cc = m.bias_fit()
-            nn = permeability.turns_for_biased_inductance(c.target_h, c.i_dc, ae[i], le[i], mu[i], a, b, cc)
-            if nn is None:
+            sizing = K.powder_sizing_currents_a(c.i_dc, c.i_op_pk, c.ac)
+            found = K.powder_turns_and_inductance(c.target_h, sizing, ae[i], le[i], mu[i], a, b, cc)
+            if found is None:
                 ctx.core_flags[i] |= Fail.GAP
-                nn = 1
-            self.pow.turns[i] = nn
-            self.pow.inductance_h[i] = permeability.powder_inductance_h(nn, ae[i], le[i], mu[i], c.i_dc, a, b, cc)
+                found = (1, float(permeability.powder_inductance_h(1, ae[i], le[i], mu[i], sizing[1], a, b, cc)))
+            nn = found[0]
+            self.pow.turns[i], self.pow.inductance_h[i] = found
+            self.pow.inductance_peak_h[i] = permeability.powder_inductance_h(nn, ae[i], le[i], mu[i], c.i_pk, a, b, cc)
             self.pow.b_max_t[i] = K.powder_flux_t(nn, c.i_pk, le[i], mu[i], a, b, cc)
             self.pow.b_pk_t[i] = K.powder_flux_t(nn, c.i_op_pk, le[i], mu[i], a, b, cc)
             self.pow.ceiling_t[i] = K.powder_ceiling_t(mu[i], a, b, cc)
         self.mag0 = choke_magnetics(ctx, self, np.arange(n), np.full(n, ctx.t0_hot_c))
         tol = cat.shop.tolerances["inductance"]
         ctx.core_flags |= flag(self.mag0.inductance_h < c.target_h * (1 - tol), Fail.INDUCTANCE)
+        # the spec's least inductance at the peak current (the engine's inductance-at-peak check): a powder's
+        # rolled off along its curve, a gapped core's the built one
+        need = ctx.spec.inductor.inductance_min_h
+        if need is not None:
+            at_peak = np.where(self.powder, self.pow.inductance_peak_h, self.mag0.inductance_h)
+            ctx.core_flags |= flag(at_peak < need, Fail.INDUCTANCE)
         ctx.core_flags |= flag(cores.pins < 2, Fail.PINS)
 
 

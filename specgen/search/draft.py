@@ -92,6 +92,8 @@ def _operating_lines(req: Requirement) -> list[str]:
             lines.append(f"  ripple: {_y(t['inductor.ripple'])}")
         if t.get("inductor.current_peak"):
             lines.append(f"  current_peak: {_y(t['inductor.current_peak'])}")
+        if t.get("inductor.inductance_min"):
+            lines.append(f"  inductance_min: {_y(t['inductor.inductance_min'])}")
         lines.append(f"  duty: {req.duty!r}")
     if req.kind == "flyback":
         lines += ["", "flyback:"] + [f"  {k[3:]}: {_y(v)}" for k, v in t.items() if k.startswith("fb.") and v is not None]

@@ -27,7 +27,7 @@ FLYBACK_OTHER = ("mode", "ripple_ratio", "duty_max", "efficiency", "output_toler
 OPERATING_KEYS = ("frequency", "waveform", "duty", "ambient", "cooling", "air_speed", "insulation_class", "max_rise",
                   "flux_limit", "efficiency")
 WINDING_KEYS = ("name", "role", "voltage", "voltage_min", "voltage_max", "current", "va", "same_turns_as")
-INDUCTOR_KEYS = ("inductance", "current", "ripple", "current_peak", "duty")
+INDUCTOR_KEYS = ("inductance", "current", "ripple", "current_peak", "inductance_min", "duty")
 DEFAULT_EFFICIENCY = 0.9     # first guess when the requirement gives none (the engine's own default)
 
 
@@ -64,6 +64,7 @@ class ChokeDuty:
     current_dc_a: float
     ripple_a: float                 # peak to peak
     current_peak_a: float | None
+    inductance_min_h: float | None = None   # the least inductance at current_peak (the engine's check)
 
 
 @dataclass(frozen=True, slots=True)
@@ -272,11 +273,13 @@ def _choke(r: Reader, duty: float, text: dict[str, str | None]) -> tuple[ChokeDu
     choke = ChokeDuty(inductance_h=ir.quantity("inductance", "inductance"),
                       current_dc_a=ir.quantity("current", "current"),
                       ripple_a=ir.quantity("ripple", "current", 0.0, allow_zero=True),
-                      current_peak_a=ir.quantity("current_peak", "current", None))
+                      current_peak_a=ir.quantity("current_peak", "current", None),
+                      inductance_min_h=ir.quantity("inductance_min", "inductance", None))
     duty = ir.number("duty", duty, minimum=0.01, maximum=0.99)
     if choke.current_peak_a is not None and choke.current_peak_a < choke.current_dc_a:
         raise ir.error("current_peak is below the DC current", "current_peak")
-    text.update({f"inductor.{k}": _text(ir, k) for k in ("inductance", "current", "ripple", "current_peak")})
+    text.update({f"inductor.{k}": _text(ir, k) for k in ("inductance", "current", "ripple", "current_peak",
+                                                            "inductance_min")})
     ir.done()
     if r.has("windings"):
         raise r.error("a choke has one winding; the search sizes it (remove 'windings')", "windings")

@@ -107,13 +107,14 @@ class InductorRun:
         spec, parts, c, mat = self.spec, self.parts, self.c, self.parts.material
         ae, le, mu = parts.ae_m2, parts.le_m, mat.mu_initial
         a, b, cc = mat.bias_fit()
-        n = self.w.turns or permeability.turns_for_biased_inductance(c.target_h, c.i_dc if not c.ac else c.i_op_pk,
-                                                                     ae, le, mu, a, b, cc)
+        sizing = K.powder_sizing_currents_a(c.i_dc, c.i_op_pk, c.ac)
+        found = K.powder_turns_and_inductance(c.target_h, sizing, ae, le, mu, a, b, cc)
+        n = self.w.turns or (found[0] if found is not None else None)
         if n is None:
             raise spec_error(spec, f"{parts.core.id} cannot reach {si(c.target_h, 'H', keep_zeros=False)} at "
                                    f"{c.i_dc:g} A: the permeability rolls off faster than turns add; use a "
                                    f"larger core or a lower-permeability powder", "core", "id")
-        bias = c.i_dc if not c.ac else 0.0
+        bias = sizing[1]
         l0 = float(permeability.powder_inductance_h(n, ae, le, mu, 0.0, a, b, cc))
         lfull = float(permeability.powder_inductance_h(n, ae, le, mu, bias, a, b, cc))
         lpeak = float(permeability.powder_inductance_h(n, ae, le, mu, c.i_pk, a, b, cc))
