@@ -138,3 +138,15 @@ def test_saturation_fraction_is_the_shops_setting(tmp_path, cat):
     assert d.b_limit_t == pytest.approx(0.6 * min(ceiling, d.b_sat_hot_t), rel=1e-8)
     assert d.b_limit_basis.startswith("60% of the") and "powder_saturation_fraction" in d.b_limit_basis
     assert load(None).shop.powder_saturation_fraction == 0.8    # the demo shop's setting
+
+
+def test_ac_reactor_that_cannot_be_reached_names_its_line_peak(tmp_path, cat):
+    """An AC reactor's powder turns are sized at the line peak (sqrt 2 x rms, ``kernel.powder_sizing_currents_a``);
+    the refusal names that current (it said '0 A', the reactor's DC bias)."""
+    from specgen.errors import SpecError
+
+    path = _variant(tmp_path, "ac-far", ("  inductance: 250 uH          # at full DC current\n", ""),
+                    ("  current: 3 A\n  ripple: 0.6 A\n", "  voltage_drop: 20 kV\n  current: 3 A\n"))
+    with pytest.raises(SpecError) as err:
+        design_file(path, cat=cat)
+    assert f"at {math.sqrt(2) * 3.0:g} A:" in str(err.value) and "at 0 A" not in str(err.value)

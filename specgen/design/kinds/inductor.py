@@ -112,7 +112,7 @@ class InductorRun:
         n = self.w.turns or (found[0] if found is not None else None)
         if n is None:
             raise spec_error(spec, f"{parts.core.id} cannot reach {si(c.target_h, 'H', keep_zeros=False)} at "
-                                   f"{c.i_dc:g} A: the permeability rolls off faster than turns add; use a "
+                                   f"{sizing[0]:g} A: the permeability rolls off faster than turns add; use a "
                                    f"larger core or a lower-permeability powder", "core", "id")
         bias = sizing[1]
         l0 = float(permeability.powder_inductance_h(n, ae, le, mu, 0.0, a, b, cc))
