@@ -22,7 +22,6 @@ from __future__ import annotations
 import json
 import math
 import re
-from pathlib import Path
 
 import pytest
 
@@ -47,7 +46,8 @@ def _transformer(core, freq, wave, vp, vs, amps, cooling="natural", vmax=None, e
     return (f"kind: transformer\ncore: {{id: {core}{extra_core}}}\n"
             f"operating: {{frequency: {freq}, waveform: {wave}, ambient: 40 degC, cooling: {cooling}, "
             f"insulation_class: 130 (B)}}\nwindings:\n"
-            f"  - {{name: P, role: primary, voltage: {vp}{top}, wire: auto, start: \"1\", finish: \"2\", direction: cw}}\n"
+            f"  - {{name: P, role: primary, voltage: {vp}{top}, wire: auto, start: \"1\", finish: \"2\", "
+            f"direction: cw}}\n"
             f"  - {{name: S, role: secondary, voltage: {vs}, current: {amps}, wire: auto, start: \"3\", finish: \"4\", "
             f"direction: cw}}\n")
 
@@ -72,11 +72,13 @@ PARTS = [
     # 50 Hz and 60 Hz mains: EI laminations, grain-oriented toroids, a powder AC reactor
     ("50Hz-EI", _transformer("EI-75", "50 Hz", "sine", "230 V", "24 V", "2 A", vmax="253 V", extra_core=", stack: 25.4 mm")),
     ("50Hz-toroid", _transformer("T-GO-80X50X25", "50 Hz", "sine", "230 V", "12 V", "4 A", vmax="253 V")),
-    ("50Hz-EI-forced", _transformer("EI-100", "50 Hz", "sine", "230 V", "48 V", "3 A", cooling="forced", extra_core=", stack: 32 mm")),
+    ("50Hz-EI-forced", _transformer("EI-100", "50 Hz", "sine", "230 V", "48 V", "3 A", cooling="forced",
+                                    extra_core=", stack: 32 mm")),
     ("50Hz-powder-reactor", _reactor("T-IP75-40X24X14", "50 Hz", "0.5 V", "3 A")),
     ("60Hz-EI", _transformer("EI-625", "60 Hz", "sine", "120 V", "18 V", "1.5 A", vmax="132 V", extra_core=", stack: 19 mm")),
     ("60Hz-toroid", _transformer("T-GO-70X40X25", "60 Hz", "sine", "120 V", "18 V", "2 A", vmax="132 V")),
-    ("60Hz-EI-potted", _transformer("EI-87", "60 Hz", "sine", "120 V", "24 V", "2 A", cooling="potted", extra_core=", stack: 25.4 mm")),
+    ("60Hz-EI-potted", _transformer("EI-87", "60 Hz", "sine", "120 V", "24 V", "2 A", cooling="potted",
+                                    extra_core=", stack: 25.4 mm")),
     # 400 Hz aircraft supply
     ("400Hz-EI", _transformer("EI-75", "400 Hz", "sine", "115 V", "28 V", "3 A", extra_core=", stack: 25.4 mm")),
     ("400Hz-toroid", _transformer("T-NANO-40X32X15", "400 Hz", "sine", "115 V", "26 V", "1 A")),
