@@ -308,6 +308,14 @@ def _section(r: Reader, key: str) -> Reader:
     return sub
 
 
+def air_speed_m_s(op: Reader, cooling: str) -> float | None:
+    """``operating.air_speed`` (forced air only; None: the shop's default), read by the spec and the search."""
+    speed = op.quantity("air_speed", "speed", None, minimum=0.05, maximum=AIR_SPEED_MAX_M_S)
+    if speed is not None and cooling != "forced":
+        raise op.error(f"'air_speed' is used only with cooling: forced (this part is cooled '{cooling}')", "air_speed")
+    return speed
+
+
 def parse_spec(data: Any, name: str) -> Spec:
     r = Reader(data, name)
     kind = r.choice("kind", KINDS)
@@ -322,9 +330,7 @@ def parse_spec(data: Any, name: str) -> Spec:
         raise op.error(f"ambient {ambient:g} degC is outside -60..200 degC", "ambient")
     duty = op.number("duty", 0.5, minimum=0.01, maximum=0.99)
     cooling = cast(Cooling, op.choice("cooling", COOLING, "natural"))
-    air_speed = op.quantity("air_speed", "speed", None, minimum=0.05, maximum=AIR_SPEED_MAX_M_S)
-    if air_speed is not None and cooling != "forced":
-        raise op.error(f"'air_speed' is used only with cooling: forced (this part is cooled '{cooling}')", "air_speed")
+    air_speed = air_speed_m_s(op, cooling)
     flux_limit_t = op.quantity("flux_limit", "flux_density", None)
     efficiency_guess = op.number("efficiency", 0.9, minimum=0.3, maximum=0.999)
     op.done()

@@ -9,7 +9,6 @@ from dataclasses import dataclass, field, fields
 from pathlib import Path
 from typing import Any
 
-from ..design.limits import AIR_SPEED_MAX_M_S
 from ..design.spec_keys import unused_winding_key_reason
 from ..errors import SpecError
 from ..loading import RENAMED_KEYS, Reader, load_yaml
@@ -165,7 +164,7 @@ def _validate_part(r: Reader) -> str | None:
 def _operating(r: Reader, kind: str) -> tuple[Operating, dict[str, str | None], tuple[str, ...]]:
     """The operating conditions, their texts as written (for the draft spec), and a choke's list of line
     frequencies as written (empty for one frequency)."""
-    from ..design.spec import COOLING, WAVEFORMS, insulation_class
+    from ..design.spec import COOLING, WAVEFORMS, air_speed_m_s, insulation_class
 
     op = r.mapping("operating")
     assert op is not None          # required key: Reader.mapping raises when it is missing
@@ -193,9 +192,7 @@ def _operating(r: Reader, kind: str) -> tuple[Operating, dict[str, str | None], 
     if not -60.0 <= ambient <= 200.0:
         raise op.error(f"ambient {ambient:g} degC is outside -60..200 degC", "ambient")
     cooling = op.choice("cooling", COOLING, "natural")
-    air_speed = op.quantity("air_speed", "speed", None, minimum=0.05, maximum=AIR_SPEED_MAX_M_S)
-    if air_speed is not None and cooling != "forced":
-        raise op.error(f"'air_speed' is used only with cooling: forced (this part is cooled '{cooling}')", "air_speed")
+    air_speed = air_speed_m_s(op, cooling)
     cls = insulation_class(op, op.raw("insulation_class", 130))
     max_rise = op.quantity("max_rise", "temperature_difference", None)
     if max_rise is not None and max_rise <= 0:
