@@ -14,7 +14,7 @@ from pathlib import Path
 import pytest
 
 ROOT = Path(__file__).resolve().parent.parent / "specgen"
-PREFIXED = ("µH", "mH", "nH", "pH", "µΩ", "mΩ", "kΩ", "MΩ")
+PREFIXED = ("µH", "uH", "mH", "nH", "pH", "µΩ", "mΩ", "kΩ", "MΩ")
 
 
 def _strings(path: Path) -> list[tuple[int, str]]:

@@ -15,7 +15,6 @@ from decimal import Decimal
 from pathlib import Path
 from typing import Any
 
-from ..design.limits import AIR_SPEED_MAX_M_S
 from ..errors import SpecError
 from ..loading import RENAMED_KEYS, Reader, load_yaml
 from .fits import check_bobbins
@@ -27,7 +26,6 @@ from .models import (
     Bobbin,
     BuyBreak,
     Catalog,
-    CoolingFigures,
     Core,
     CurrentDensities,
     HipotFigures,
@@ -45,6 +43,7 @@ from .models import (
     Varnish,
     Wire,
 )
+from .shop_cooling import read_cooling
 
 TOP_KEYS = ("wires", "cores", "bobbins", "materials", "tapes", "sleevings", "varnishes", "customers", "shop")
 
@@ -401,19 +400,6 @@ def _current_densities(cd: Reader) -> CurrentDensities:
     return out
 
 
-def _cooling(r: Reader) -> CoolingFigures:
-    """The shop's forced-air speed and potting factor (``design.kernel.cooling_model`` reads them)."""
-    d, c = CoolingFigures(), r.mapping("cooling", None)
-    if c is None:
-        return d
-    out = CoolingFigures(
-        air_speed_m_s=c.quantity("air_speed", "speed", d.air_speed_m_s, minimum=0.05, maximum=AIR_SPEED_MAX_M_S),
-        potted_rise_factor=c.number("potted_rise_factor", d.potted_rise_factor, minimum=0.2, maximum=1.5),
-        potted_source=c.text("potted_source", d.potted_source, max_len=500))
-    c.done()
-    return out
-
-
 def _hipot(hp: Reader) -> HipotFigures:
     def volts(key: str, default=_NO_DEFAULT):
         args = () if default is _NO_DEFAULT else (default,)
@@ -511,18 +497,16 @@ def _shop(r: Reader) -> Shop:
     insulation = _insulation_basis(r.mapping("insulation")) if r.has("insulation") else None
     shop = Shop(
         name=r.text("name"), currency=r.text("currency", "USD"), labor_rate=r.decimal("labor_rate"),
-        overhead=_pct(r, "overhead"), profit_margin=profit_margin,
+        overhead=_pct(r, "overhead"), profit_margin=profit_margin, scrap_wire=_pct(r, "scrap_wire", maximum=Decimal(1)),
         setup_time_s=r.quantity("setup_time", "time", allow_zero=True, maximum=7 * 24 * 3600.0),
-        scrap_wire=_pct(r, "scrap_wire", maximum=Decimal(1)),
         current_density_a_m2=densities, bulge_factor=r.number("bulge_factor", 1.12, minimum=1.0, maximum=1.6),
         lead_length_m=r.quantity("lead_length", "length", 0.1, allow_zero=True, maximum=MAX_DIMENSION_M),
         flux_limit_fraction=r.number("flux_limit_fraction", 0.8, minimum=0.3, maximum=1.0),
         powder_saturation_fraction=r.number("powder_saturation_fraction", 0.8, minimum=0.3, maximum=1.0),
-        cooling=_cooling(r),
         hotspot_margin_k=r.quantity("hotspot_margin", "temperature_difference", 10.0, allow_zero=True, maximum=100.0),
         work_order_format=fmt, hipot=hipot, insulation_resistance=insulation_resistance,
-        voltage_tolerance=r.tolerance_pair("voltage_tolerance", (0.0, 0.03)) or (0.0, 0.03),
-        tolerances=tolerances, labor=labor,
+        voltage_tolerance=r.tolerance_pair("voltage_tolerance", (0.0, 0.03)) or (0.0, 0.03), tolerances=tolerances,
+        labor=labor, cooling=read_cooling(r),
         source=r.text("source"), register_path=r.text("register", None), documents=documents,
         raw={k: v for k, v in _plain(r.data).items() if k not in DOCUMENT_KEYS}, insulation=insulation,
     )

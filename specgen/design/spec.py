@@ -308,12 +308,14 @@ def _section(r: Reader, key: str) -> Reader:
     return sub
 
 
-def air_speed_m_s(op: Reader, cooling: str) -> float | None:
-    """``operating.air_speed`` (forced air only; None: the shop's default), read by the spec and the search."""
+def cooling_and_air_speed(op: Reader) -> tuple[Cooling, float | None]:
+    """``operating.cooling`` and its ``air_speed`` (forced air only; None: the shop's default), read by the spec and
+    the search's requirement."""
+    cooling = cast(Cooling, op.choice("cooling", COOLING, "natural"))
     speed = op.quantity("air_speed", "speed", None, minimum=0.05, maximum=AIR_SPEED_MAX_M_S)
     if speed is not None and cooling != "forced":
         raise op.error(f"'air_speed' is used only with cooling: forced (this part is cooled '{cooling}')", "air_speed")
-    return speed
+    return cooling, speed
 
 
 def parse_spec(data: Any, name: str) -> Spec:
@@ -329,8 +331,7 @@ def parse_spec(data: Any, name: str) -> Spec:
     if not -60.0 <= ambient <= 200.0:
         raise op.error(f"ambient {ambient:g} degC is outside -60..200 degC", "ambient")
     duty = op.number("duty", 0.5, minimum=0.01, maximum=0.99)
-    cooling = cast(Cooling, op.choice("cooling", COOLING, "natural"))
-    air_speed = air_speed_m_s(op, cooling)
+    cooling, air_speed = cooling_and_air_speed(op)
     flux_limit_t = op.quantity("flux_limit", "flux_density", None)
     efficiency_guess = op.number("efficiency", 0.9, minimum=0.3, maximum=0.999)
     op.done()

@@ -164,7 +164,7 @@ def _validate_part(r: Reader) -> str | None:
 def _operating(r: Reader, kind: str) -> tuple[Operating, dict[str, str | None], tuple[str, ...]]:
     """The operating conditions, their texts as written (for the draft spec), and a choke's list of line
     frequencies as written (empty for one frequency)."""
-    from ..design.spec import COOLING, WAVEFORMS, air_speed_m_s, insulation_class
+    from ..design.spec import WAVEFORMS, cooling_and_air_speed, insulation_class
 
     op = r.mapping("operating")
     assert op is not None          # required key: Reader.mapping raises when it is missing
@@ -191,8 +191,7 @@ def _operating(r: Reader, kind: str) -> tuple[Operating, dict[str, str | None], 
     ambient = op.quantity("ambient", "temperature", 25.0)
     if not -60.0 <= ambient <= 200.0:
         raise op.error(f"ambient {ambient:g} degC is outside -60..200 degC", "ambient")
-    cooling = op.choice("cooling", COOLING, "natural")
-    air_speed = air_speed_m_s(op, cooling)
+    cooling, air_speed = cooling_and_air_speed(op)
     cls = insulation_class(op, op.raw("insulation_class", 130))
     max_rise = op.quantity("max_rise", "temperature_difference", None)
     if max_rise is not None and max_rise <= 0:

@@ -30,6 +30,7 @@ from ...physics import common_mode as cm
 from ...physics import faraday
 from ...physics import gap as gapmod
 from ...present import frequency as _freq
+from ...present import si
 from ...records import record
 from .. import kernel as K
 from ..build import copper_lengths_m, section_frs, winding_fr
@@ -209,13 +210,13 @@ def _own_checks(c: CommonModeChokeResult) -> list[Check]:
     at = _freq(c.inductance_frequency_hz)
     mu_word = "its permeability table" if c.mu_source == "table" else "mu_initial (no permeability table on file)"
     out.append(Check("pass", "cm-inductance",
-                     f"L_CM {c.inductance_cm_h * 1e3:.3g} mH at {at} ({c.turns} turns x A_L {c.al_h * 1e9:.0f} nH, mu "
-                     f"{c.mu_at_frequency:.0f} from {mu_word}); the minimum {c.inductance_cm_min_h * 1e3:.3g} mH "
+                     f"L_CM {si(c.inductance_cm_h, 'H', 3)} at {at} ({c.turns} turns x A_L {si(c.al_h, 'H', 3)}, mu "
+                     f"{c.mu_at_frequency:.0f} from {mu_word}); the minimum {si(c.inductance_cm_min_h, 'H', 3)} "
                      f"holds at the low test limit"))
-    said = (f"leakage (differential-mode) inductance {c.leakage_inductance_h * 1e6:.3g} uH per line, "
+    said = (f"leakage (differential-mode) inductance {si(c.leakage_inductance_h, 'H', 3)} per line, "
             f"{c.leakage_inductance_h / c.inductance_cm_h * 100:.2g} % of L_CM ({LEAKAGE_METHOD})")
     if c.inductance_dm_min_h is not None and c.leakage_inductance_h < c.inductance_dm_min_h:
-        out.append(Check("fail", "dm-inductance", f"{said}: below the {c.inductance_dm_min_h * 1e6:.3g} uH asked; more "
+        out.append(Check("fail", "dm-inductance", f"{said}: below the {si(c.inductance_dm_min_h, 'H', 3)} asked; more "
                                                   f"turns, a smaller winding angle (a wider sector gap) or a separate "
                                                   f"differential-mode choke"))
     else:
@@ -269,6 +270,6 @@ class CommonModeChokeKind:
                                    + "; the line currents oppose, so only the leakage of the two lines is read"))
         polarity = (f"SAME SENSE: every line is wound in the same direction, each start ({starts}) on the same side "
                     f"of its sector, all dotted. Check: join {a.finish} to {b.start} (lines in series, aiding) and "
-                    f"measure {a.start} to {b.finish}: about 4 x L_CM ({4 * lcm * 1e3:.3g} mH). A reading near "
-                    f"2 x L_DM ({ldm * 1e6:.3g} uH) means one line is wound backwards: reject the part.",)
+                    f"measure {a.start} to {b.finish}: about 4 x L_CM ({si(4 * lcm, 'H', 3)}). A reading near "
+                    f"2 x L_DM ({si(ldm, 'H', 3)}) means one line is wound backwards: reject the part.",)
         return KindTests(inductance=tuple(ind), polarity=polarity)
