@@ -15,6 +15,16 @@ def own_register(tmp_path, monkeypatch):
     return tmp_path / "test-register.sqlite"
 
 
+@pytest.fixture(scope="session")
+def demo_designs():
+    """Part -> Design of every shipped demo part, on the shipped catalogue (computed once per run)."""
+    from specgen.api import demo_specs, design_file
+    from specgen.catalog.loader import load_catalog
+
+    cat = load_catalog(None)
+    return {path.stem: design_file(path, cat=cat) for path in demo_specs()}
+
+
 def blank_recorded_fingerprint(text: str) -> str:
     """The shipped demo specs record their release fingerprints; tests that release or tamper with a
     copy start from a release that recorded none (as a spec released before specgen would be)."""

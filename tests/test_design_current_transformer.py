@@ -187,7 +187,9 @@ def test_json_carries_the_ct_figures(ct):
     assert out["kind"] == "current_transformer" and out["ratio"] == "1:100"
     for key in ("burden_ohm", "ratio_error_pct", "phase_error_deg", "b_peak_t", "knee_burden_ohm"):
         assert math.isfinite(out[key])
-    assert out["tests"]["ratio"][0]["unit"] == "A"
+    # read at a low level with the ratio tester (the station has no 20 A, 50 kHz source): Ns / Np
+    ratio = out["tests"]["ratio"][0]
+    assert ratio["unit"] == ":1" and ratio["nominal"] == 100.0 and ratio["setting"]["instrument"] == "turns-ratio tester"
 
 
 def test_pass_through_primary_barrier_is_coordinated(ct):

@@ -151,7 +151,7 @@ def reset_tests(prim: object, reset: object, ratio_tol: float) -> tuple[Limit, s
     other = reset.finish if reset.dot_pin == reset.start else reset.start
     pol = (f"Apply a positive step to {prim.name} pin {prim.dot_pin} (dot) with respect to pin "
            f"{prim.finish if prim.dot_pin == prim.start else prim.start}: reset winding {reset.name} pin "
-           f"{reset.dot_pin} (dot) reads positive. In the converter it is connected in anti-phase: its dot "
+           f"{reset.dot_pin} (dot) reads positive against pin {other}. In the converter it is connected in anti-phase: its dot "
            f"(pin {reset.dot_pin}) to the supply return, pin {other} through the reset diode to the supply.")
     return limit, pol
 

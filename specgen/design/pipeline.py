@@ -175,7 +175,7 @@ def finish(spec: Spec, cat: Catalog, parts: Parts, kind: PartKind, ev: Evaluatio
               + section_notes(windings, {w.name: w.section_shares for w in spec.windings if w.section_shares}))
     checks.sort(key=lambda c: _LEVEL_ORDER[c.level])
     tests = with_tap_tests(test_plan(state, kind.test_limits(state), insulation), taps, windings,
-                           cat.shop.tolerances["ratio"])
+                           cat.shop.tolerances["ratio"], spec.frequency_hz)
     materials = materials_per_unit(state, core)
     s = summary
     return Design(

@@ -211,14 +211,27 @@ class InsulationResult:
 
 
 @record
+class TestSetting:
+    """How the station's instrument is set for one test (``design/test_setup.py`` chooses it)."""
+    instrument: str                  # "DC resistance bridge", "LCR meter", "turns-ratio tester", ...
+    frequency_hz: float | None = None
+    level_v: float | None = None     # a.c. drive, rms
+    level_a: float | None = None     # a.c. current drive, rms (a reactor, a current transformer)
+    bias_a: float | None = None      # DC bias current through the winding
+    four_wire: bool = False          # Kelvin leads (a resistance below 1 ohm)
+
+
+@record
 class Limit:
     name: str                        # what is measured
     item: str                        # winding or pair
     nominal: float
     low: float | None
     high: float | None
-    unit: str                        # SI unit of nominal/low/high ('ohm', 'V', 'H', ':1')
-    condition: str
+    unit: str                        # SI unit of nominal/low/high ('ohm', 'V', 'H', ':1', 'A', 'W')
+    condition: str                   # the whole instruction: pins, instrument setting, then the kind's note
+    pins: str = ""                   # which pins: "pins 1-2", "P 1-2 driven, S1 7-8 read"
+    setting: TestSetting | None = None
 
 
 @record
@@ -233,6 +246,7 @@ class TestPlan:
     insulation_resistance_min_ohm: float
     alpha_per_k: float               # for correcting a DCR reading to 20 degC
     cautions: tuple[str, ...] = ()   # the kind's own safety cautions (an open CT secondary), on order and sheet
+    no_load: tuple[Limit, ...] = ()  # a mains transformer at rated voltage: no-load current and loss
 
 
 @record

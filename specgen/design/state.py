@@ -253,3 +253,4 @@ class KindTests:
     inductance: tuple[Limit, ...] = ()
     polarity: tuple[str, ...] = ()
     cautions: tuple[str, ...] = ()  # safety cautions the kind adds to the work order and the test sheet
+    no_load: tuple[Limit, ...] = ()  # at rated voltage, the other windings open (a mains transformer)

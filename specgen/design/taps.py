@@ -14,6 +14,7 @@ from dataclasses import replace
 from ..loading import Reader
 from ..records import record
 from .result import Check, Limit, TestPlan, WindingResult
+from .test_setup import finish, ratio_setting
 from .windings_result import TapResult
 
 
@@ -110,17 +111,18 @@ def tap_checks(taps: Sequence[TapResult], limit_t: float) -> list[Check]:
 
 
 def with_tap_tests(tests: TestPlan, taps: Sequence[TapResult], windings: Sequence[WindingResult],
-                   tolerance: float) -> TestPlan:
+                   tolerance: float, working_hz: float) -> TestPlan:
     """The test plan with a ratio test from each tap: the winding's start to the tap against the whole."""
     by = {w.name: w for w in windings}
     extra = []
     for t in taps:
         w = by[t.winding]
         r = w.turns / t.turn
-        extra.append(Limit(name="tap ratio", item=f"{w.name} {w.start}-{t.pin}", nominal=r, low=r * (1 - tolerance),
-                           high=r * (1 + tolerance), unit=":1",
-                           condition=f"{w.name} pins {w.start}-{w.finish} against {w.start}-{t.pin} "
-                                     f"({w.turns} : {t.turn} turns, the {t.voltage_v:g} V tap)"))
+        extra.append(finish(Limit(name="tap ratio", item=f"{w.name} {w.start}-{t.pin}", nominal=r,
+                                  low=r * (1 - tolerance), high=r * (1 + tolerance), unit=":1",
+                                  pins=f"{w.name} pins {w.start}-{w.finish} driven, {w.start}-{t.pin} read",
+                                  setting=ratio_setting(working_hz),
+                                  condition=f"{w.turns} : {t.turn} turns, the {t.voltage_v:g} V tap")))
     return replace(tests, ratio=tests.ratio + tuple(extra)) if extra else tests
 
 

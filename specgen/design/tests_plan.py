@@ -17,6 +17,7 @@ from .resolve import spec_error
 from .result import CoreResult, HipotTest, InsulationResult, Limit, MaterialLine, TestPlan
 from .spec import Barrier, Spec
 from .state import DesignState, KindTests
+from .test_setup import dcr_setting, finish
 
 TAPE_OVERLAP_M = 0.015          # each wrap of tape overlaps its start by ~15 mm (common practice)
 TOROID_TAPE_OVERLAP = 0.5       # toroid tape laid half-lapped (common practice)
@@ -57,12 +58,14 @@ def _barriers(spec: Spec) -> list[Barrier]:
 
 
 def test_plan(state: DesignState, kind: KindTests, insulation: InsulationResult | None = None) -> TestPlan:
-    """DCR of every winding at 20 degC and the hipot of every barrier (common), with the kind's own limits."""
+    """DCR of every winding at 20 degC and the hipot of every barrier (common), with the kind's own limits;
+    every limit rounded and its instruction written by ``test_setup.finish``."""
     spec, windings, shop = state.spec, state.windings, state.cat.shop
     tol = shop.tolerances
-    dcr = tuple(Limit(name="DCR", item=w.name, nominal=w.dcr_20c_ohm, low=w.dcr_20c_ohm * (1 - tol["dcr"]),
-                      high=w.dcr_20c_ohm * (1 + tol["dcr"]), unit="ohm",
-                      condition=f"pins {w.start}-{w.finish}, at 20 °C")
+    dcr = tuple(finish(Limit(name="DCR", item=w.name, nominal=w.dcr_20c_ohm, low=w.dcr_20c_ohm * (1 - tol["dcr"]),
+                             high=w.dcr_20c_ohm * (1 + tol["dcr"]), unit="ohm", pins=f"pins {w.start}-{w.finish}",
+                             setting=dcr_setting(w.dcr_20c_ohm),
+                             condition="read at the winding's temperature, referred to 20 °C"))
                 for w in windings if w.finish)
     hp = shop.hipot
     step = shop.insulation.hipot_step_v if shop.insulation else 50.0
@@ -89,8 +92,12 @@ def test_plan(state: DesignState, kind: KindTests, insulation: InsulationResult 
                                routine_duration_s=hp["routine_duration_s"], trip_current_a=hp["trip_current_a"],
                                basis=basis, connection=hipot_connection(spec, b.a, b.b)))
     ir = shop.insulation_resistance
-    return TestPlan(dcr=dcr, ratio=kind.ratio, open_circuit=kind.open_circuit, inductance=kind.inductance,
-                    polarity=kind.polarity, hipot=tuple(hipot), insulation_resistance_v=ir["voltage_v"],
+    def done(limits: tuple[Limit, ...]) -> tuple[Limit, ...]:
+        return tuple(finish(lim) for lim in limits)
+
+    return TestPlan(dcr=dcr, ratio=done(kind.ratio), open_circuit=done(kind.open_circuit),
+                    inductance=done(kind.inductance), no_load=done(kind.no_load), polarity=kind.polarity,
+                    hipot=tuple(hipot), insulation_resistance_v=ir["voltage_v"],
                     insulation_resistance_min_ohm=ir["minimum_ohm"], alpha_per_k=wiremod.ALPHA20_CU_PER_K,
                     cautions=kind.cautions)
 

@@ -173,7 +173,7 @@ def _limit_row(lim, fmt) -> dict:
     else:
         nominal = fmt(lim.nominal)
         low, high = (fmt(v) if v is not None else "—" for v in (lim.low, lim.high))
-    return {"name": lim.name, "item": lim.item, "condition": lim.condition, "pins": _pins_of(lim.condition),
+    return {"name": lim.name, "item": lim.item, "condition": lim.condition, "pins": lim.pins or _pins_of(lim.condition),
             "nominal": nominal, "low": low, "high": high}
 
 
@@ -514,6 +514,7 @@ def build_context(design, settings, *, number: str, qty: int, due: str | None = 
     dcr = [_limit_row(l, "Ω") for l in t.dcr]
     ratio = [_limit_row(l, fmt_ratio if l.unit == ":1" else lambda v: fmt_eng(v, "A")) for l in t.ratio]
     ocv = [_limit_row(l, "V") for l in t.open_circuit]
+    no_load = [_limit_row(l, "A" if l.unit == "A" else "W") for l in t.no_load]
     inductance = [_limit_row(l, _inductance_fmt(l)) for l in t.inductance]
     hipot = [{"between": h.between, "rating": h.rating, "working": fmt_test_volt(h.working_voltage_v),
               "type_v": fmt_test_volt(h.type_voltage_v), "type_s": fmt_seconds(h.type_duration_s),
@@ -527,7 +528,8 @@ def build_context(design, settings, *, number: str, qty: int, due: str | None = 
     columns += ["hipot", "IR", "pass / fail", "initials"]
     serials = [str(i) for i in range(1, min(qty, 10) + 1)] + (["…"] if qty > 10 else [])
     tests = {
-        "dcr": dcr, "ratio": ratio, "ocv": ocv, "inductance": inductance, "polarity": list(t.polarity),
+        "dcr": dcr, "ratio": ratio, "ocv": ocv, "no_load": no_load, "inductance": inductance,
+        "polarity": list(t.polarity),
         "hipot": hipot, "alpha": f"{t.alpha_per_k:g}", "formula": DCR_FORMULA,
         "ir_voltage": f"{t.insulation_resistance_v:.0f} V d.c.",
         "ir_min": fmt_eng(t.insulation_resistance_min_ohm, "Ω", 3),

@@ -21,8 +21,8 @@ from specgen.units import UnitError, parse
 from .model import Column, Verdict
 
 #: The SI units of the plan's limits and the dimension a typed unit is checked against.
-_DIMENSIONS = {"ohm": "resistance", "H": "inductance", "V": "voltage", "A": "current"}
-_SYMBOLS = {"ohm": "Ω", "H": "H", "V": "V", "A": "A"}
+_DIMENSIONS = {"ohm": "resistance", "H": "inductance", "V": "voltage", "A": "current", "W": "power"}
+_SYMBOLS = {"ohm": "Ω", "H": "H", "V": "V", "A": "A", "W": "W"}
 _PREFIXES = ((1e-9, "n"), (1e-6, "µ"), (1e-3, "m"), (1.0, ""), (1e3, "k"), (1e6, "M"), (1e9, "G"))
 #: A bench reads the winding between these temperatures (degC); anything else is a typing mistake.
 BENCH_TEMP_RANGE_C = (-10.0, 150.0)

@@ -33,12 +33,13 @@ from ...present import frequency as _freq
 from ...present import si
 from ...records import record
 from .. import kernel as K
+from .. import test_setup as ts
 from ..build import copper_lengths_m, section_frs, winding_fr
 from ..cmc_result import CommonModeChokeResult
 from ..cmc_spec import DEFAULT_LEAKAGE_CURRENT_A, CommonModeChokeReq
 from ..flux import flux_limit, saturation_checks
 from ..resolve import spec_error
-from ..result import Check, Limit
+from ..result import Check, Limit, TestSetting
 from ..sectors import lay_out_sectors
 from ..spec import Spec
 from ..state import (
@@ -58,7 +59,6 @@ from .base import flux_text
 LEAKAGE_METHOD = ("sector as an open rod core (Nave 1991), demagnetising factor of a prolate spheroid (Osborn "
                   "1945): an estimate, measure the first piece")
 LEAKAGE_BAND = (0.5, 2.0)     # the estimate is good to about a factor of two: the L_DM test band (common practice)
-TEST_SIGNAL = "0.1 V a.c. (small signal)"
 
 
 def mu_at(material: Material, freq_hz: float) -> tuple[float, str]:
@@ -253,21 +253,24 @@ class CommonModeChokeKind:
         starts = " + ".join(w.start for w in lines)
         finishes = " + ".join(w.finish for w in lines)
         at = _freq(c.inductance_frequency_hz)
+        # L_CM is stated at its frequency (the ferrite's permeability falls with frequency): read there, small-signal
+        setting = TestSetting(instrument=ts.LCR, frequency_hz=c.inductance_frequency_hz,
+                              level_v=ts.small_signal_level_v(lines[0].turns, state.parts.ae_m2, c.inductance_frequency_hz))
         lcm = c.inductance_cm_h
         ind = [Limit(name="common-mode inductance L_CM", item="lines in parallel", nominal=lcm, low=lcm * (1 - t_l),
-                     high=lcm * (1 + t_l), unit="H",
-                     condition=f"starts {starts} joined, finishes {finishes} joined; measure between the two joints "
-                               f"at {at}, {TEST_SIGNAL}")]
+                     high=lcm * (1 + t_l), unit="H", setting=setting,
+                     pins=f"starts {starts} joined, finishes {finishes} joined; between the two joints",
+                     condition=f"the figure stated at {at}")]
         a, b = lines[0], lines[1]
         ldm = 2.0 * c.leakage_inductance_h
         low = ldm * LEAKAGE_BAND[0]
         if c.inductance_dm_min_h is not None:
             low = max(low, 2.0 * c.inductance_dm_min_h)
         ind.append(Limit(name="differential-mode inductance (2 x L_DM)", item=f"{a.name} against {b.name}", nominal=ldm,
-                         low=low, high=ldm * LEAKAGE_BAND[1], unit="H",
-                         condition=f"finishes {a.finish} and {b.finish} joined; measure {a.start} to {b.start} at "
-                                   f"{at}, {TEST_SIGNAL}" + ("; the third line open" if len(lines) > 2 else "")
-                                   + "; the line currents oppose, so only the leakage of the two lines is read"))
+                         low=low, high=ldm * LEAKAGE_BAND[1], unit="H", setting=setting,
+                         pins=f"finishes {a.finish} and {b.finish} joined; {a.start} to {b.start}",
+                         condition=("the third line open; " if len(lines) > 2 else "")
+                                   + "the line currents oppose, so only the leakage of the two lines is read"))
         polarity = (f"SAME SENSE: every line is wound in the same direction, each start ({starts}) on the same side "
                     f"of its sector, all dotted. Check: join {a.finish} to {b.start} (lines in series, aiding) and "
                     f"measure {a.start} to {b.finish}: about 4 x L_CM ({si(4 * lcm, 'H', 3)}). A reading near "

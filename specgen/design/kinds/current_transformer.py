@@ -24,6 +24,7 @@ from ...physics import gap as gapmod
 from ...present import frequency
 from ...records import record
 from .. import kernel as K
+from .. import test_setup as ts
 from ..build import copper_lengths_m, lay_out, section_frs, winding_fr
 from ..flux import b_sat_hot_t, flux_limit, saturation_checks
 from ..result import Check, CurrentTransformerResult, Limit
@@ -210,21 +211,27 @@ class CurrentTransformerKind:
                                  f"with more Ae or a smaller burden", limit_in_pass=False)
 
     def test_limits(self, state: DesignState) -> KindTests:
-        """Ratio at the rated current into the rated burden, polarity, and the open-secondary caution."""
+        """Turns ratio at a low level (the ratio into the burden is a type test), polarity, and the open-secondary
+        caution."""
         ct = state.summary.current_transformer
         assert ct is not None
         sec = next(w for w in state.windings if w.role == "secondary")
         tol = state.cat.shop.tolerances.get("ratio", 0.005)
         expected = ct.secondary_current_a * (1.0 + ct.ratio_error_pct / 100.0)
-        allowed = max(tol * 100.0, abs(ct.ratio_error_pct) * 2.0) / 100.0
-        primary = "one conductor through the core" if ct.primary_turns == 1 else f"{ct.primary_turns} primary turns"
-        ratio = Limit(name="secondary current at rated primary current", item=sec.name, nominal=expected,
-                      low=ct.secondary_current_a * (1.0 - allowed), high=ct.secondary_current_a * (1.0 + allowed),
-                      unit="A", condition=f"{ct.primary_current_a:g} A at {frequency(state.spec.frequency_hz)}, "
-                                          f"{primary}, secondary {sec.start}-{sec.finish} into {ct.burden_ohm:g} ohm "
-                                          f"(ratio {ct.primary_turns}:{ct.secondary_turns})")
+        primary = "a one-turn test loop through the core" if ct.primary_turns == 1 else f"{ct.primary_turns} primary turns"
+        r = ct.secondary_turns / ct.primary_turns
+        # the station has no source of the rated primary current at the working frequency: the turns ratio is read
+        # at a low level (the secondary driven, the primary loop read); the ratio error into the burden is a type test
+        ratio = Limit(name="turns ratio", item=f"{sec.name}:P", nominal=r, low=r * (1.0 - tol), high=r * (1.0 + tol),
+                      unit=":1", setting=ts.ratio_setting(state.spec.frequency_hz),
+                      pins=f"{sec.name} {sec.start}-{sec.finish} driven, {primary} read (P1 on the marked face)",
+                      condition=f"{ct.secondary_turns} : {ct.primary_turns} turns; type test: {ct.primary_current_a:g} A "
+                                f"at {frequency(state.spec.frequency_hz)} gives {expected * 1e3:.4g} mA into "
+                                f"{ct.burden_ohm:g} ohm")
         arrow = "the marked face (P1)" if ct.primary_turns == 1 else "the primary's dotted lead (P1)"
+        dot = sec.dot_pin or sec.start
         polarity = (f"Primary current entering {arrow} leaves the secondary at the dotted lead "
-                    f"{sec.dot_pin or sec.start} into the burden (P1 and the dot have the same instantaneous "
+                    f"{dot} (positive against {sec.finish if dot == sec.start else sec.start}) into the burden "
+                    f"(P1 and the dot have the same instantaneous "
                     f"polarity): check with a DC kick or a phase meter; reversed, the reading inverts.",)
         return KindTests(ratio=(ratio,), polarity=polarity, cautions=OPEN_SECONDARY_CAUTION)

@@ -32,9 +32,10 @@ from ...catalog.models import Catalog
 from ...physics import coreloss
 from ...physics import flyback as fb
 from ...physics import gap as gapmod
-from ...present import frequency, si
+from ...present import si
 from ...records import record
 from .. import kernel as K
+from .. import test_setup as ts
 from ..build import copper_lengths_m, lay_out, leakage_h
 from ..flux import flux_limit, saturation_checks
 from ..flyback_spec import FlybackReq
@@ -57,7 +58,6 @@ from ..wires import choose_wire
 DCM_MARGIN = 0.8             # DCM: L_p at 80 % of the boundary at the lowest line (common practice)
 HARMONICS = 39               # harmonics of each winding's current for its AC factor (as kernel.SQUARE_HARMONICS)
 TURNS_SEARCH = 8             # main-secondary turn counts tried for every output within tolerance
-LEAKAGE_BAND = (0.7, 1.3)    # leakage test limits (common practice, from memory; as the transformer's)
 
 
 @record(slots=True)
@@ -363,29 +363,35 @@ class FlybackKind:
         prim = next(w for w in state.windings if w.role == "primary")
         t_l = tol["inductance"]
         lp = fr.inductance_h
+        f, ae = state.spec.frequency_hz, state.parts.ae_m2
+        pins = f"pins {prim.start}-{prim.finish}"
         ind = [Limit(name="primary inductance L_p", item=prim.name, nominal=lp, low=lp * (1 - t_l), high=lp * (1 + t_l),
-                     unit="H", condition=f"pins {prim.start}-{prim.finish}, 10 kHz, 0.1 V a.c. (small signal), every "
-                                         f"other winding open")]
+                     unit="H", pins=pins, setting=ts.lcr_setting(prim.turns, ae, f, gapped=fr.gap_m > 0),
+                     condition="every other winding open")]
         if fr.gap_m > 0:
             al = lp / prim.turns ** 2
             ind.append(Limit(name="AL of the gapped set", item=prim.name, nominal=al, low=al * (1 - t_l),
-                             high=al * (1 + t_l), unit="H", condition="per turn squared; check the set before "
-                                                                      "winding with a 10-turn coil"))
+                             high=al * (1 + t_l), unit="H", pins="a 10-turn test coil on the gapped set",
+                             setting=ts.lcr_setting(10, ae, f, gapped=True),
+                             condition="per turn squared (L / 100); check the set before winding"))
         lk = fr.leakage_inductance_h
-        ind.append(Limit(name="leakage inductance", item=prim.name, nominal=lk, low=lk * LEAKAGE_BAND[0],
-                         high=lk * LEAKAGE_BAND[1], unit="H",
-                         condition=f"pins {prim.start}-{prim.finish}, 100 kHz, every secondary and auxiliary shorted"))
+        ind.append(Limit(name="leakage inductance", item=prim.name, nominal=lk, low=lk * ts.LEAKAGE_BAND[0],
+                         high=lk * ts.LEAKAGE_BAND[1], unit="H", pins=pins, setting=ts.leakage_setting(f),
+                         condition="every secondary and auxiliary shorted"))
         ratios = []
         polarity = []
+        back = prim.finish if prim.dot_pin == prim.start else prim.start
         for w in state.windings:
             if w.role == "primary":
                 continue
             r = prim.turns / w.turns
             ratios.append(Limit(name="turns ratio", item=f"{prim.name}:{w.name}", nominal=r, low=r * (1 - tol["ratio"]),
-                                high=r * (1 + tol["ratio"]), unit=":1",
-                                condition=f"{prim.turns}:{w.turns} t, {frequency(10e3)} on {prim.start}-{prim.finish}"))
-            polarity.append(f"FLYBACK, windings out of phase: with the switch on, {prim.name}'s dot ({prim.dot_pin}) and "
-                            f"{w.name}'s dot ({w.dot_pin}) go positive together, so {w.name}'s rectifier, on its "
-                            f"undotted pin, conducts only while the switch is off. Check the dots with a pulse on "
-                            f"{prim.name}: the dotted pins must rise together.")
+                                high=r * (1 + tol["ratio"]), unit=":1", setting=ts.ratio_setting(f),
+                                pins=f"{prim.name} {prim.start}-{prim.finish} driven, {w.name} {w.start}-{w.finish} read",
+                                condition=f"{prim.turns} : {w.turns} turns"))
+            w_back = w.finish if w.dot_pin == w.start else w.start
+            polarity.append(f"FLYBACK, windings out of phase: positive step on {prim.name}, pin {prim.dot_pin} against "
+                            f"pin {back}: {w.name} pin {w.dot_pin} reads positive against pin {w_back} (the dotted "
+                            f"pins rise together), so {w.name}'s rectifier, on its undotted pin, conducts only while "
+                            f"the switch is off.")
         return KindTests(ratio=tuple(ratios), inductance=tuple(ind), polarity=tuple(polarity))

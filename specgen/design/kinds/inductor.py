@@ -15,9 +15,10 @@ import math
 from ...catalog.models import Catalog
 from ...physics import gap as gapmod
 from ...physics import permeability
-from ...present import frequency, si, si_set
+from ...present import si, si_set
 from ...records import record
 from .. import kernel as K
+from .. import test_setup as ts
 from ..build import copper_lengths_m, lay_out, section_frs, winding_fr
 from ..flux import b_sat_hot_t, flux_limit
 from ..resolve import spec_error, too_many_turns
@@ -332,27 +333,46 @@ class InductorKind:
                       f"{_fmt_t(limit)}; B_sat at {temp.hot_c:.0f} °C is {_fmt_t(bsat)}")]
 
     def test_limits(self, state: DesignState) -> KindTests:
-        """Inductance without bias, at full bias (powder), and the AL of the gapped set."""
-        inductor = state.summary.inductor
-        assert inductor is not None
+        """A choke: inductance small-signal and at its rated DC current (the defining figure), at the peak
+        current where the spec states a minimum, and the AL of the gapped set. An AC reactor: the voltage
+        across it at its rated current and frequency (its steel's permeability at a low level does not check
+        the design's figure)."""
+        inductor, spec, ae = state.summary.inductor, state.spec, state.parts.ae_m2
+        assert inductor is not None and spec.inductor is not None
         w = state.windings[0]
         t = state.cat.shop.tolerances["inductance"]
+        pins = f"pins {w.start}-{w.finish}"
         ind: list[Limit] = []
+        if spec.inductor.voltage_drop_v is not None:
+            amps = spec.inductor.current_dc_a          # an AC reactor's rated current, rms
+            v = 2.0 * math.pi * spec.frequency_hz * inductor.inductance_h * amps
+            ind.append(Limit(name=f"voltage across at {amps:g} A", item=w.name, nominal=v, low=v * (1 - t),
+                             high=v * (1 + t), unit="V", pins=pins,
+                             setting=ts.supply_setting(spec.frequency_hz, amps=amps),
+                             condition=f"L = V / (2π f I) = {si(inductor.inductance_h, 'H', 3)}"))
+            return KindTests(inductance=tuple(ind))
+        gapped = bool(inductor.gap_m)
+        small = ts.lcr_setting(w.turns, ae, spec.frequency_hz, gapped=gapped)
         l0 = inductor.inductance_zero_bias_h
         ind.append(Limit(name="inductance, no bias", item=w.name, nominal=l0, low=l0 * (1 - t), high=l0 * (1 + t),
-                         unit="H", condition=f"pins {w.start}-{w.finish}, small signal, {frequency(state.spec.frequency_hz)}"))
-        if inductor.bias_drop_pct > 0.5:
-            ind.append(Limit(name=f"inductance at {inductor.current_dc_a:g} A DC", item=w.name,
-                             nominal=inductor.inductance_at_full_bias_h,
-                             low=inductor.inductance_at_full_bias_h * (1 - t), high=None, unit="H",
-                             condition="with DC bias source, if the station has one"))
+                         unit="H", pins=pins, setting=small, condition="no DC current"))
+        if inductor.current_dc_a > 0:
+            lb = inductor.inductance_at_full_bias_h
+            ind.append(Limit(name=f"inductance at {inductor.current_dc_a:g} A DC", item=w.name, nominal=lb,
+                             low=lb * (1 - t), high=None, unit="H", pins=pins,
+                             setting=ts.lcr_setting(w.turns, ae, spec.frequency_hz, bias_a=inductor.current_dc_a,
+                                                           gapped=gapped),
+                             condition="the rated DC current from the bias source"))
         if inductor.inductance_min_h is not None and inductor.inductance_at_peak_h is not None:
             ind.append(Limit(name=f"inductance at {inductor.current_peak_a:.3g} A DC", item=w.name,
                              nominal=inductor.inductance_at_peak_h, low=inductor.inductance_min_h, high=None, unit="H",
-                             condition="with DC bias source at the peak current (the spec's minimum)"))
+                             pins=pins, condition="the peak current (the spec's minimum)",
+                             setting=ts.lcr_setting(w.turns, ae, spec.frequency_hz, bias_a=inductor.current_peak_a,
+                                                           gapped=gapped)))
         if inductor.gap_m:
             al = inductor.al_nh * 1e-9
             ind.append(Limit(name="AL of the gapped set", item=w.name, nominal=al, low=al * (1 - t),
-                             high=al * (1 + t), unit="H",
-                             condition="per turn squared; check the set before winding with a 10-turn coil"))
+                             high=al * (1 + t), unit="H", pins="a 10-turn test coil on the gapped set",
+                             setting=ts.lcr_setting(10, ae, spec.frequency_hz, gapped=True),
+                             condition="per turn squared (L / 100); check the set before winding"))
         return KindTests(inductance=tuple(ind))

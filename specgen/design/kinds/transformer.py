@@ -23,7 +23,7 @@ from ..build import copper_lengths_m, lay_out, leakage_h, section_frs, winding_f
 from ..connections import connection_results
 from ..flux import b_sat_hot_t, flux_limit
 from ..resolve import spec_error, too_many_turns
-from ..result import Check, Limit
+from ..result import Check
 from ..spec import Spec, Winding
 from ..state import (
     BuiltWindow,
@@ -40,6 +40,7 @@ from ..state import (
 from ..windings_result import ConnectionResult, LoadResult
 from ..wires import choose_wire
 from .base import flux_text as _fmt_t
+from .transformer_tests import transformer_tests
 
 MAGNETIZING_WARN = 0.35      # magnetizing current above this share of the primary current (common practice)
 MAX_SCAN = 60                # loss-limited search: at most this many primary-turn candidates
@@ -47,9 +48,6 @@ VPT_SCAN_SPAN = 120          # volts-per-turn search: primary turns up to n0 + t
                              # that meets every output's tolerance (a 3 % band needs about 33 turns to hold
                              # a whole count; the fit ends it sooner on a small core)
 SCAN_MISSES = 4              # loss scan: this many candidates in a row that do not fit end the range
-MAGNETIZING_L_LOW = 0.7      # open-circuit inductance floor: material permeability varies widely (common practice)
-LEAKAGE_BAND = (0.7, 1.3)    # leakage limits: the build's geometry varies less, but a missed interleave or an
-                             # extra tape shows as a large change (common practice, from memory)
 
 
 @record(slots=True)
@@ -538,12 +536,6 @@ def _band(asked: float, tol: tuple[float, float]) -> str:
     return f"{asked:g} V -{tol[0] * 100:g}/+{tol[1] * 100:g} % ({asked * (1 - tol[0]):.3f}-{asked * (1 + tol[1]):.3f} V)"
 
 
-def _also(spec: Spec) -> str:
-    """A test condition's note on a part for several frequencies: it is tested at the lowest."""
-    rest = [frequency(x) for x in spec.frequencies_hz if x != spec.frequency_hz]
-    return f" (tested at the lowest frequency; the part also serves {', '.join(rest)})" if rest else ""
-
-
 class TransformerKind:
     name = "transformer"
 
@@ -588,60 +580,6 @@ class TransformerKind:
         return out
 
     def test_limits(self, state: DesignState) -> KindTests:
-        """Turns ratio, open-circuit voltage and polarity of every load; open-circuit and leakage inductance."""
-        spec, windings, s = state.spec, state.windings, state.summary
-        tol = state.cat.shop.tolerances
-        ratio: list[Limit] = []
-        ocv: list[Limit] = []
-        pol: list[str] = []
-        ind: list[Limit] = []
-        prim = next((w for w in windings if w.role == "primary"), None)
-        if prim is None:
-            return KindTests()
-        for w in windings:
-            if w.role == "primary" and w is not prim:
-                r = prim.turns / w.turns      # halves of a several-primary part: equal turns
-                ratio.append(Limit(name="turns ratio", item=f"{prim.name}:{w.name}", nominal=r,
-                                   low=r * (1 - tol["ratio"]), high=r * (1 + tol["ratio"]), unit=":1",
-                                   condition=f"halves, {prim.turns} : {w.turns} turns; {prim.name} driven, "
-                                             f"{w.name} open"))
-            mate = next((x for x in windings if x.name == w.name), None)
-            bifilar = next((s.wound_with for s in (mate.sections if mate else ()) if s.wound_with), None)
-            if w.role in ("secondary", "auxiliary") and bifilar and spec.winding(w.name).wound_with == bifilar:
-                ratio.append(Limit(name="turns ratio", item=f"{bifilar}:{w.name}", nominal=1.0,
-                                   low=1 - tol["ratio"], high=1 + tol["ratio"], unit=":1",
-                                   condition=f"wound together, {w.turns} : {w.turns} turns; {bifilar} driven"))
-            if w.role in ("secondary", "auxiliary"):
-                r = prim.turns / w.turns
-                ratio.append(Limit(name="turns ratio", item=f"{prim.name}:{w.name}", nominal=r,
-                                   low=r * (1 - tol["ratio"]), high=r * (1 + tol["ratio"]), unit=":1",
-                                   condition=f"{prim.turns} : {w.turns} turns"))
-                v = s.open_circuit.get(w.name)
-                if v:
-                    ocv.append(Limit(name="open-circuit voltage", item=w.name, nominal=v,
-                                     low=v * (1 - tol["open_circuit_voltage"]),
-                                     high=v * (1 + tol["open_circuit_voltage"]), unit="V",
-                                     condition=f"{prim.name} at {s.voltages[prim.name]:.4g} V, "
-                                               f"{frequency(spec.frequency_hz)}, no load" + _also(spec)))
-        for w in windings:
-            if w is prim or not w.finish:
-                continue
-            if w.role == "reset":
-                limit, line = FW.reset_tests(prim, w, tol["ratio"])
-                ratio.append(limit)
-                pol.append(line)
-                continue
-            pol.append(f"Apply a positive step to {prim.name} pin {prim.dot_pin} (dot) with respect to pin "
-                       f"{prim.finish if prim.dot_pin == prim.start else prim.start}: {w.name} pin {w.dot_pin} (dot) "
-                       f"reads positive.")
-        lm = s.magnetizing_inductance_h
-        if lm:
-            ind.append(Limit(name="open-circuit inductance", item=prim.name, nominal=lm, low=lm * MAGNETIZING_L_LOW,
-                             high=None, unit="H", condition=f"pins {prim.start}-{prim.finish}, others open"))
-        leakage = s.leakage_inductance_h
-        if leakage:
-            lo, hi = LEAKAGE_BAND
-            ind.append(Limit(name="leakage inductance", item=prim.name, nominal=leakage, low=leakage * lo,
-                             high=leakage * hi, unit="H",
-                             condition=f"pins {prim.start}-{prim.finish}, every other winding shorted"))
-        return KindTests(ratio=tuple(ratio), open_circuit=tuple(ocv), inductance=tuple(ind), polarity=tuple(pol))
+        """Turns ratio and polarity of every load, the inductances; a mains part's no-load test
+        (``kinds/transformer_tests.py``)."""
+        return transformer_tests(state)
