@@ -43,6 +43,11 @@ def sig(x: float, digits: int = 4) -> str:
     return text
 
 
+def sig_trimmed(x: float, digits: int = 4) -> str:
+    """A rounded limit at the figures it was rounded to: ``sig`` without padding zeros (19.4, 0.995, 100)."""
+    return _trim(sig(x, digits))
+
+
 def _trim(text: str) -> str:
     """'3.600' -> '3.6', '12.00' -> '12' (prefixed values read better without padding zeros)."""
     return text.rstrip("0").rstrip(".") if "." in text else text
@@ -70,11 +75,11 @@ def si(value: float | None, unit: str, digits: int = 4, *, keep_zeros: bool = Tr
     return f"{text} {_PREFIXES[exp]}{unit}"
 
 
-def si_set(values: Sequence[float | None], unit: str, digits: int = 4) -> list[str]:
+def si_set(values: Sequence[float | None], unit: str, digits: int = 4, *, keep_zeros: bool = True) -> list[str]:
     """Figures read side by side (a nominal and its limits) with one prefix, that of the largest:
     [1.039, 0.9349, 1.143] Ω -> '1.039 Ω', '0.9349 Ω', '1.143 Ω' (never '934.9 mΩ' beside '1.143 Ω').
 
-    ``digits`` significant figures each; None -> '—'.
+    ``digits`` significant figures each (padding zeros dropped if not ``keep_zeros``: rounded limits); None -> '—'.
     """
     present_values = [abs(v) for v in values if v is not None and v != 0 and math.isfinite(v)]
     if not present_values:
@@ -82,7 +87,8 @@ def si_set(values: Sequence[float | None], unit: str, digits: int = 4) -> list[s
     head = si(max(present_values), unit, digits)
     prefix = head.split(" ", 1)[1][: -len(unit)] if unit else ""
     exp = next((e for e, p in _PREFIXES.items() if p == prefix), 0)
-    return [MISSING if v is None else f"{sig(v / 10.0 ** exp, digits)} {prefix}{unit}" for v in values]
+    fig = sig if keep_zeros else sig_trimmed
+    return [MISSING if v is None else f"{fig(v / 10.0 ** exp, digits)} {prefix}{unit}" for v in values]
 
 
 def frequency(hz: float) -> str:

@@ -222,7 +222,9 @@ def test_test_plan_and_work_order(choke, cat):
     html = render_work_order_html(choke, DocumentSettings.from_shop(cat.shop), number="WO-TEST-1", qty=10, draft=True)
     assert "Sector plan" in html and html.count("SAME SENSE") >= 3
     assert "25° to 155°" in html or "from the 0° mark" in html
-    assert "L lines in parallel" in html and "L L against N" in html    # a results column for each reading
+    # a test-record column for each reading (the station's columns: L_CM and L_DM each their own)
+    assert 'data-key="inductance/common-mode inductance L_CM/lines in parallel"' in html
+    assert 'data-key="inductance/differential-mode inductance (2 x L_DM)/L against N"' in html
 
 
 def test_json_carries_the_choke_figures(choke):

@@ -26,7 +26,7 @@ import pytest
 from conftest import blank_recorded_fingerprint
 from typer.testing import CliRunner
 
-from specgen import api
+from specgen import api, present
 from specgen.catalog.loader import load_catalog
 from specgen.cli import app
 from specgen.demo import run as demo_run
@@ -140,8 +140,10 @@ def test_pdf_carries_the_designs_numbers(issued, part):
         assert w.wire in text
         assert sum(s.turns for s in w.sections) == w.turns
     for lim in d.tests.dcr:
-        for v in (lim.nominal, lim.low, lim.high):
-            assert wo.fmt_ohm(v) in text, (lim.item, wo.fmt_ohm(v))
+        assert wo.fmt_ohm(lim.nominal) in text, (lim.item, wo.fmt_ohm(lim.nominal))
+        # the limits at the figures they were rounded to (design/test_setup.py), beside the nominal's prefix
+        for shown in present.si_set([lim.nominal, lim.low, lim.high], "Ω", keep_zeros=False)[1:]:
+            assert shown in text, (lim.item, shown)
     for h in d.tests.hipot:
         assert f"{wo.fmt_test_volt(h.routine_voltage_v)} a.c. for {wo.fmt_seconds(h.routine_duration_s)}" in text
         assert f"{wo.fmt_test_volt(h.type_voltage_v)} a.c. for {wo.fmt_seconds(h.type_duration_s)}" in text

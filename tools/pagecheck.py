@@ -53,6 +53,8 @@ FRESH_STARTS: dict[str, dict[str, str]] = {
         r"\d+\. Test sheet": "the test sheet is a record of its own (it goes to the test station with the lot "
                              "and is filed apart from the build steps): it starts a new page (specgen.css "
                              ".page-break)",
+        r"Test record \S+ rev \S+, lot": "the test record is printed landscape (a column for every test, wide "
+                                           "enough to write in): its pages turn the paper and start fresh",
     },
 }
 

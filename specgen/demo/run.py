@@ -33,6 +33,8 @@ from ..quote import build_quote, money
 
 #: The quantity breaks of the demo quotes.
 DEMO_QUANTITIES = (100, 500, 2500)
+#: The demo's work-order lot size (each part's printed test record has a row per piece).
+DEMO_LOT_QTY = 50
 
 
 def run_demo(out: Path, catalog=None, echo=print) -> dict:
@@ -100,7 +102,7 @@ def run_demo(out: Path, catalog=None, echo=print) -> dict:
 
 
 def demo_workorders(designs, out_dir, register_path=None, echo=print, *, cat=None) -> list:
-    """One work order per demo part (qty 50, lot DEMO-<part>) into ``out_dir``.
+    """One work order per demo part (``DEMO_LOT_QTY`` pieces, lot DEMO-<part>) into ``out_dir``.
 
     designs: part -> (spec_path, Spec, Design). The register is ``register_path`` or
     ``specgen-register.sqlite`` in ``out_dir``. ``cat``: the catalogue the designs used (default: the
@@ -117,7 +119,7 @@ def demo_workorders(designs, out_dir, register_path=None, echo=print, *, cat=Non
     notes = []
     for part, (spec_path, spec, design) in sorted(designs.items()):
         try:
-            issued = issue_from_design(spec_path, spec, design, cat, qty=50, lot=f"DEMO-{part}", out_dir=out,
+            issued = issue_from_design(spec_path, spec, design, cat, qty=DEMO_LOT_QTY, lot=f"DEMO-{part}", out_dir=out,
                                        register_path=reg, draft=spec.status != "released",
                                        warn=lambda m, p=part: notes.append(f"{p}: {m}"))
         except DesignFailed as err:

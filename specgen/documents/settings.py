@@ -18,10 +18,12 @@ class DocumentSettings:
     lead_length_m: float             # each lead, beyond the pin
     work_order_format: str           # e.g. 'WO-{part}-{seq:04d}'
     register_path: str | None = None
+    paper_height_m: float = 0.297    # portrait height (the test record's landscape pages turn it)
 
     @classmethod
     def from_shop(cls, shop: Any) -> DocumentSettings:
         """From the catalogue's typed ``shop`` record (the only place these are read)."""
         return cls(shop_name=shop.name, paper=shop.documents.paper, paper_width_m=shop.documents.paper_m[0],
                    scrap_wire=float(shop.scrap_wire), lead_length_m=shop.lead_length_m,
-                   work_order_format=shop.work_order_format, register_path=shop.register_path)
+                   work_order_format=shop.work_order_format, register_path=shop.register_path,
+                   paper_height_m=shop.documents.paper_m[1])

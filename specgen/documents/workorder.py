@@ -24,6 +24,7 @@ from .. import present
 from ..errors import DesignFailed, SpecError
 from .connections_doc import connections_context
 from .settings import DocumentSettings
+from .test_record import RECORD_BOTTOM_MM, RECORD_TOP_MM, build_record
 
 UNCONTROLLED = "Printed copies are uncontrolled: check the revision before use"
 WATERMARK = "DRAFT - NOT FOR PRODUCTION"
@@ -168,11 +169,13 @@ def _materials(design, qty: int, scrap: float) -> list:
 
 def _limit_row(lim, fmt) -> dict:
     """``fmt``: a unit (the nominal and its limits then share one prefix, ``present.si_set``) or a formatter."""
-    if isinstance(fmt, str):
-        nominal, low, high = present.si_set([lim.nominal, lim.low, lim.high], fmt)
+    if isinstance(fmt, str):         # the limits at the figures they were rounded to (design/test_setup.py)
+        nominal = present.si_set([lim.nominal, lim.low, lim.high], fmt)[0]
+        low, high = present.si_set([lim.nominal, lim.low, lim.high], fmt, keep_zeros=False)[1:]
     else:
         nominal = fmt(lim.nominal)
-        low, high = (fmt(v) if v is not None else "—" for v in (lim.low, lim.high))
+        limit = (lambda v: f"{present.sig_trimmed(v)} : 1") if fmt is fmt_ratio else fmt     # rounded limits
+        low, high = (limit(v) if v is not None else "—" for v in (lim.low, lim.high))
     return {"name": lim.name, "item": lim.item, "condition": lim.condition, "pins": lim.pins or _pins_of(lim.condition),
             "nominal": nominal, "low": low, "high": high}
 
@@ -520,20 +523,13 @@ def build_context(design, settings, *, number: str, qty: int, due: str | None = 
               "type_v": fmt_test_volt(h.type_voltage_v), "type_s": fmt_seconds(h.type_duration_s),
               "routine_v": fmt_test_volt(h.routine_voltage_v), "routine_s": fmt_seconds(h.routine_duration_s),
               "trip": fmt_ma(h.trip_current_a), "basis": h.basis, "connection": h.connection} for h in t.hipot]
-    columns = ["S/N"] + [f"DCR {l.item}" for l in t.dcr] + [f"ratio {l.item}" for l in t.ratio]
-    for item in dict.fromkeys(l.item for l in t.inductance):     # one column per item measured (a choke: two)
-        columns.append(f"L {item}")
-    if t.polarity:
-        columns.append("polarity")
-    columns += ["hipot", "IR", "pass / fail", "initials"]
-    serials = [str(i) for i in range(1, min(qty, 10) + 1)] + (["…"] if qty > 10 else [])
     tests = {
         "dcr": dcr, "ratio": ratio, "ocv": ocv, "no_load": no_load, "inductance": inductance,
         "polarity": list(t.polarity),
         "hipot": hipot, "alpha": f"{t.alpha_per_k:g}", "formula": DCR_FORMULA,
         "ir_voltage": f"{t.insulation_resistance_v:.0f} V d.c.",
         "ir_min": fmt_eng(t.insulation_resistance_min_ohm, "Ω", 3),
-        "columns": columns, "serials": serials, "cautions": list(t.cautions),
+        "cautions": list(t.cautions),
     }
     history = [{"revision": e.revision, "date": e.date, "by": e.by, "note": e.note,
                 "fingerprint": revision.short(e.fingerprint) if e.fingerprint else "not recorded"}
@@ -545,6 +541,7 @@ def build_context(design, settings, *, number: str, qty: int, due: str | None = 
         "history": history, "warnings": _warning_rows(d), "toroid": toroid,
         "pin_word": pin_word, "paper": CSS_PAPER[settings.paper], "side_margin_mm": SIDE_MARGIN_MM,
         "insulation": _insulation_rows(d),
+        "record": build_record(d, qty, settings, SIDE_MARGIN_MM), "record_margins": (RECORD_TOP_MM, RECORD_BOTTOM_MM),
     }
     ctx["connections"] = connections_context(d)
     ctx.update(_drawings(d, settings))

@@ -100,11 +100,11 @@ def limits_text(column: Column) -> str:
 
 
 def limits_bare(column: Column) -> str:
-    """The limits as bare numbers in the column's unit ("95.18–116.3", "≥ 2.712"), for a table whose
+    """The limits as bare numbers in the column's unit ("95.2–116", "≥ 2.71"), for a table whose
     heading names the unit."""
     if column.kind == "check":
         return "ok"
-    bare = lambda v: present.sig(v * column.shown_factor, 4)
+    bare = lambda v: present.sig_trimmed(v * column.shown_factor, 4)      # limits are rounded (design/test_setup)
     if column.low is not None and column.high is not None:
         return f"{bare(column.low)}–{bare(column.high)}"
     if column.low is not None:
@@ -155,6 +155,13 @@ def parse_temperature(text: str) -> float:
     return temp
 
 
+def to_20c_factor(temp_c: float) -> float:
+    """The factor that refers a copper winding's resistance read at ``temp_c`` to 20 degC:
+    R20 = Rt x factor = Rt / (1 + alpha20 (t - 20)), alpha20 = 0.00393 /K (IEC 60028; the one correction
+    of :func:`specgen.physics.wire.resistance_at_temp_ohm`)."""
+    return float(resistance_at_temp_ohm(1.0, temp_c, 20.0))
+
+
 def judge(column: Column, value_si: float, temp_c: float | None) -> Verdict:
     """Compare one reading with the Design's limits; a DCR is first referred to 20 degC (IEC 60028)."""
     if column.kind == "check":
@@ -163,7 +170,7 @@ def judge(column: Column, value_si: float, temp_c: float | None) -> Verdict:
     if column.kind == "dcr":
         if temp_c is None:
             raise SpecError(f"{column.label}: the winding temperature is needed to refer the DCR to 20 °C")
-        judged = float(resistance_at_temp_ohm(value_si, temp_c, 20.0))
+        judged = value_si * to_20c_factor(temp_c)
     passed = (column.low is None or judged >= column.low) and (column.high is None or judged <= column.high)
     return Verdict(column, value_si, temp_c if column.kind == "dcr" else None, judged, passed)
 
