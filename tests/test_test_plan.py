@@ -165,4 +165,4 @@ def test_hipot_voltages_are_round_figures(designs):
     for d in designs.values():
         for h in d.tests.hipot:
             assert h.type_voltage_v % 50 == 0 and h.routine_voltage_v % 50 == 0
-            assert "rounded up" in h.basis
+            assert "rounded up" in h.basis or h.rating == "functional"      # functional: the shop's own figure

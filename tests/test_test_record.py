@@ -18,6 +18,7 @@ from pathlib import Path
 
 import pytest
 
+from specgen.api import demo_specs
 from specgen.catalog.loader import load_catalog
 from specgen.demo.run import DEMO_LOT_QTY
 from specgen.documents import test_record as tr
@@ -79,8 +80,7 @@ def _record_tables(html: str):
     return p.tables
 
 
-@pytest.mark.parametrize("part", ["BH-1042", "BH-1240", "BH-2210", "BH-2260", "BH-3305", "BH-4120", "BH-5018",
-                                  "BH-6100", "BH-7065"])
+@pytest.mark.parametrize("part", [p.stem for p in demo_specs()])
 def test_every_piece_of_the_lot_has_a_row_and_every_test_a_column(part, demo_designs, settings):
     d = demo_designs[part]
     html = render_work_order_html(d, settings, number="WO-TEST-1", qty=DEMO_LOT_QTY, lot=f"DEMO-{part}")
