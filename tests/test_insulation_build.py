@@ -10,10 +10,15 @@ barrier there (IEC 62368-1 5.4.4.6 and Annex J, wound components, from memory).
 
 from __future__ import annotations
 
-import pytest
-from test_design_insulation import _barrier, _variant
+import math
+from pathlib import Path
 
+import pytest
+from test_design_insulation import DEMOS, _barrier, _variant
+
+from specgen.api import design_file, design_text
 from specgen.catalog.loader import load_catalog
+from specgen.errors import SpecError
 
 
 @pytest.fixture(scope="module")
@@ -43,3 +48,134 @@ def test_a_bifilar_pair_across_a_barrier_is_refused_with_what_to_do(cat):
     # a functional barrier between the pair asks nothing of the wire
     f = _variant(cat, "BH-1240", (S1_S2_REINFORCED[0], S1_S2_REINFORCED[1].replace("reinforced", "functional")))
     assert _barrier(f, "S1", "S2").ok
+
+
+# ---------------------------------------------------------------------------------------- split bobbins
+
+SPLIT = Path(__file__).parent / "specs" / "split-ei125-230v.yaml"
+
+
+def _split(cat, *edits: tuple[str, str]):
+    text = SPLIT.read_text(encoding="utf-8")
+    for old, new in edits:
+        assert old in text, old
+        text = text.replace(old, new, 1)
+    return design_text(text, "split-variant.yaml", cat)
+
+
+def test_each_chamber_builds_from_the_tube_in_its_own_breadth(cat):
+    d = _split(cat)
+    bob = cat.bobbins["BOB-EI125-32-SPLIT"]
+    p = d.winding("P").sections[0]
+    s1, s2 = d.winding("S1").sections[0], d.winding("S2").sections[0]
+    assert (p.chamber, s1.chamber, s2.chamber) == (1, 2, 2)
+    # each chamber 21.3 mm less 0.5 mm margins: 20.3 mm of copper, not the whole 42.6 mm breadth
+    assert p.usable_breadth_m == pytest.approx(bob.chambers[0] - 2 * 0.5e-3)
+    assert p.usable_breadth_m < bob.breadth_m / 2
+    # both chambers start at the tube: the primary and the first secondary share the first layer's height
+    assert p.start_build_m == pytest.approx(0.0) and s1.start_build_m == pytest.approx(0.0)
+    assert s2.start_build_m > s1.end_build_m
+    # the window's build is the taller chamber's, not the sum of both
+    assert d.build.height_m < p.end_build_m + s2.end_build_m
+    assert not any(c.code == "split-bobbin" for c in d.checks)
+    assert d.to_dict()["windings"][0]["sections"][0]["chamber"] == 1
+
+
+def test_a_split_bobbin_without_chambers_fails_with_what_to_give(cat):
+    text = SPLIT.read_text(encoding="utf-8").replace("    chamber: 1\n", "").replace("    chamber: 2\n", "")
+    d = design_text(text, "no-chambers.yaml", cat)
+    c = next(c for c in d.checks if c.code == "split-bobbin")
+    assert c.level == "fail" and "give each winding its chamber" in c.message
+
+
+@pytest.mark.parametrize("old, new, says", [
+    ("    chamber: 2\n", "    chamber: 3\n", "has chambers 1..2"),
+    ("    chamber: 2\n", "", "give S1 its chamber"),
+    ("  bobbin: BOB-EI125-32-SPLIT", "  bobbin: BOB-EI125-32", "bobbin BOB-EI125-32 has one chamber"),
+])
+def test_chambers_refused_with_a_located_line(cat, old, new, says):
+    with pytest.raises(SpecError) as e:
+        _split(cat, (old, new))
+    assert says in str(e.value) and "split-variant.yaml:" in str(e.value)
+
+
+def test_the_divider_is_the_barrier_between_the_chambers(cat):
+    d = _split(cat)
+    b = _barrier(d, "P", "S1+S2")
+    bob = cat.bobbins["BOB-EI125-32-SPLIT"]
+    p, s2 = d.winding("P").sections[0], d.winding("S2").sections[0]
+    wall_h, wall_t = bob.divider_height_m, bob.divider_thickness_m
+    # IEC 60664-1 Annex A: up the wall, across its top, down the other side, plus the margins (from memory);
+    # the shortest is from P to S2, built highest in the other chamber
+    creep = 0.5e-3 + (wall_h - p.end_build_m) + wall_t + (wall_h - s2.end_build_m) + 0.5e-3
+    assert b.creepage_available_mm == pytest.approx(creep * 1e3, rel=1e-6)
+    assert b.clearance_available_mm < b.creepage_available_mm      # the air path cuts the wall's corners
+    assert b.ok and "divider" in b.path and "the divider wall, 1.5 mm rated 5 kV" in b.solid_provided
+    # reinforced at 1000 V: creepage twice 10 mm (Table F.4, PD2, IIIa, from memory) is more than the
+    # divider gives, and the wall's 5 kV is below the 2 x (2 x 1000 + 1000) = 6000 V type test
+    high = _split(cat, ("      grade: basic\n      working_voltage: 253 V\n    - between: [all",
+                        "      grade: reinforced\n      working_voltage: 1000 V\n    - between: [all"))
+    h = _barrier(high, "P", "S1+S2")
+    assert not h.ok and f"creepage needs {h.creepage_required_mm:.2f} mm" in h.message
+    assert h.creepage_required_mm > h.creepage_available_mm
+    assert "solid insulation needs" in h.message and "the divider wall" in h.message
+
+
+def test_a_split_bobbin_without_divider_figures_says_what_is_missing(cat):
+    # BH-2210 on the split ETD bobbin: the catalogue gives no divider, wall or pin-row figures for it
+    d = _variant(cat, "BH-2210", ("  id: ETD-39-F100\n", "  id: ETD-39-F100\n  bobbin: BOB-ETD39-PIN20-SPLIT\n"),
+                 ('    margin: 4 mm\n  - name: S', '    margin: 1 mm\n    chamber: 1\n  - name: S'),
+                 ("    direction: cw\n    margin: 4 mm\n\nbuild", "    direction: cw\n    margin: 1 mm\n    chamber: 2\n\nbuild"),
+                 ("build_order: [P.1, S, P.2]", "build_order: [P.1, P.2, S]"))
+    b = _barrier(d, "P", "S")
+    c = next(c for c in d.checks if c.code == "insulation" and c.message.startswith("P to S"))
+    assert c.level == "warn" and not b.checked
+    assert "has no divider_thickness, divider_height, wall_voltage on file" in c.message
+    assert "pin row spacing or pin size on file" in c.message
+
+
+def test_side_by_side_chambers_give_the_textbook_leakage():
+    """Two chambers of 100 turns at +-1 A, copper 9 mm each, 2 mm between the copper (0.5 mm margins and a
+    1 mm divider), MLT 0.1 m, a 10 mm window span: L = mu0 N^2 MLT (c + (a + b)/3) / h = 1.005 mH
+    (McLyman, leakage of side-by-side windings, from memory)."""
+    from specgen.design.build import leakage_h
+    from specgen.design.result import Layer
+    from specgen.design.state import BuiltSection, BuiltWindow, Former, SectionBuild
+
+    former = Former(kind="round", tube_width_m=0.02, tube_depth_m=0.02, breadth_m=0.01, height_m=0.01,
+                    chambers=(0.01, 0.01), divider_m=0.001)
+    layer = Layer(index=1, turns=100, build_to_centre_m=0.001, mlt_m=0.1, length_m=10.0, turns_capacity=100)
+    sb = SectionBuild(100, (layer,), 0.002, 10.0, 0.00009, 0.002, 0.009)
+    built = BuiltWindow((BuiltSection("P", 1, 1, sb, 0.0005, None, 0, None, 1),
+                         BuiltSection("S", 1, 2, sb, 0.0005, None, 0, None, 2)), 0.002, True, "")
+    mu0 = 4e-7 * math.pi
+    expected = mu0 * 100 ** 2 * 0.1 * (0.002 + 0.018 / 3) / 0.01
+    assert expected == pytest.approx(1.005e-3, rel=1e-3)
+    assert leakage_h(built, former, {"P": 1.0, "S": -1.0}, "P") == pytest.approx(expected, rel=1e-9)
+
+
+def test_a_split_bobbin_leaks_far_more_than_concentric_windings(cat):
+    # the same transformer with its windings side by side: many times the concentric leakage (common practice:
+    # split bobbins are chosen for their leakage as much as for their insulation)
+    split = _split(cat).leakage_inductance_h
+    concentric = design_file(DEMOS["BH-1042"], cat=cat).leakage_inductance_h
+    assert split > 5 * concentric
+
+
+@pytest.mark.parametrize("old, new, says", [
+    ("chamber_breadths: [21.3 mm, 21.3 mm]", "chamber_breadths: [21.3 mm, 20 mm]", "add up to 41.3 mm"),
+    ("chamber_breadths: [21.3 mm, 21.3 mm]", "chamber_breadths: [42.6 mm]", "2 chambers need 2 breadths"),
+    ("divider_height: 14.1 mm", "divider_height: 15 mm", "higher than the flanges"),
+    ("    pin_row_spacing: 32 mm\n", "    pin_row_spacing: 32 mm\n    divider_thickness: 1 mm\n", "is for a split bobbin"),
+])
+def test_the_catalogue_refuses_chamber_figures_that_do_not_add_up(tmp_path, old, new, says):
+    import shutil
+
+    from specgen.catalog.loader import check_catalog, shipped_catalog_dir
+    d = tmp_path / "cat"
+    shutil.copytree(shipped_catalog_dir(), d)
+    text = (d / "bobbins.yaml").read_text()
+    assert old in text
+    (d / "bobbins.yaml").write_text(text.replace(old, new, 1))
+    problems = [str(p) for p in check_catalog(d)]
+    assert any("bobbins.yaml:" in p and says in p for p in problems), problems

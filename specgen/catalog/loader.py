@@ -17,6 +17,7 @@ from typing import Any
 
 from ..errors import SpecError
 from ..loading import RENAMED_KEYS, Reader, load_yaml
+from .chambers import chamber_breadths, check_chambers
 from .fits import check_bobbins
 from .models import (
     CORE_SHAPES,
@@ -339,8 +340,12 @@ def _bobbin(r: Reader) -> Bobbin:
         pin_size_m=r.quantity("pin_size", "length", None),
         core_creepage_m=r.quantity("core_creepage", "length", None),
         wall_voltage_v=r.quantity("wall_voltage", "voltage", None),
+        chamber_breadths_m=chamber_breadths(r),
+        divider_thickness_m=r.quantity("divider_thickness", "length", None, maximum=MAX_DIMENSION_M),
+        divider_height_m=r.quantity("divider_height", "length", None, maximum=MAX_DIMENSION_M),
     )
     r.done(renamed=RENAMED_KEYS["bobbins"])
+    check_chambers(r, b)
     return b
 
 

@@ -170,7 +170,17 @@ class Bobbin:
     pin_size_m: float | None = None          # a pin's width across, for the gap between pins
     core_creepage_m: float | None = None     # moulded path from the winding space over the flange to the core
     wall_voltage_v: float | None = None      # electric strength of the tube wall and flanges (a.c. rms)
+    chamber_breadths_m: tuple = ()           # split bobbin: each chamber's winding breadth, start flange first
+    divider_thickness_m: float | None = None  # split bobbin: the wall between chambers (None: not on file)
+    divider_height_m: float | None = None    # split bobbin: the wall's height above the tube
     raw: dict = field(default_factory=dict, compare=False, repr=False)
+
+    @property
+    def chambers(self) -> tuple[float, ...]:
+        """Each chamber's breadth: as the catalogue gives them, else the breadth shared equally."""
+        if self.chamber_breadths_m:
+            return tuple(self.chamber_breadths_m)
+        return tuple(self.breadth_m / self.sections for _ in range(self.sections))
 
 
 @record

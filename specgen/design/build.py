@@ -17,6 +17,7 @@ keep a record of every layer for the work order.
 from __future__ import annotations
 
 from collections.abc import Mapping
+from dataclasses import replace
 
 import numpy as np
 
@@ -85,13 +86,19 @@ def lay_out(spec: Spec, parts: Parts, states: Mapping[str, WindingState], cat: C
     lt = cat.tapes[layer_tape.tape].thickness_m * layer_tape.layers if layer_tape else 0.0
     wt = cat.tapes[wind_tape.tape].thickness_m * wind_tape.layers if wind_tape else 0.0
     tf = tape_factor(former)
-    h = 0.0
     out: list[BuiltSection] = []
-    last = len(spec.build_order) - 1
     followers = {w.wound_with: w.name for w in spec.windings if w.wound_with}   # leader -> the one wound with it
+    chamber_of = {name: chamber_of_winding(spec, name) if former.chambers else 0 for name, _ in spec.build_order}
+    # each chamber builds up from the tube on its own; the last section in a chamber takes the outer wrap
+    heights = {c: 0.0 for c in chamber_of.values()}
+    last_in = {chamber_of[name]: order for order, (name, _) in enumerate(spec.build_order)}
+    whole = former
     for order, (name, k) in enumerate(spec.build_order):
         st = states[name]
         w = st.spec
+        chamber = chamber_of[name]
+        former = replace(whole, breadth_m=whole.chambers[chamber - 1]) if chamber else whole
+        h = heights[chamber]
         n_sec = w.sections
         turns = K.section_turns(st.turns, w.section_shares or (1.0,) * n_sec)[k - 1]
         if turns <= 0:
@@ -112,17 +119,26 @@ def lay_out(spec: Spec, parts: Parts, states: Mapping[str, WindingState], cat: C
         h = sb.end_build_m
         tape_layers = wind_tape.layers if wind_tape else 0
         tape_id = wind_tape.tape if wind_tape else None
-        if order == last:
+        if order == last_in[chamber]:
             wrap = spec.outer_wrap or wind_tape
             tape_id = wrap.tape if wrap else None
             tape_layers = wrap.layers if wrap else 0
             h += (cat.tapes[wrap.tape].thickness_m * wrap.layers * tf) if wrap else 0.0
         else:
             h += wt * tf
-        out.append(BuiltSection(name, k, order + 1, sb, margin, tape_id, tape_layers, partner))
+        heights[chamber] = h
+        out.append(BuiltSection(name, k, order + 1, sb, margin, tape_id, tape_layers, partner, chamber))
         if partner is not None:        # the same layers, turn for turn (equal turns are held by the kind)
-            out.append(BuiltSection(partner, k, order + 1, sb, margin, None, 0, name))
-    return BuiltWindow(tuple(out), h, True, "")
+            out.append(BuiltSection(partner, k, order + 1, sb, margin, None, 0, name, chamber))
+    return BuiltWindow(tuple(out), max(heights.values(), default=0.0), True, "")
+
+
+def chamber_of_winding(spec: Spec, name: str) -> int:
+    """The chamber a winding is wound in (a bifilar follower: its partner's); 1 where none is given."""
+    w = spec.winding(name)
+    if w.chamber is None and w.wound_with is not None:
+        w = spec.winding(w.wound_with)
+    return w.chamber or 1
 
 
 def copper_lengths_m(built: BuiltWindow, lead_m: float) -> dict[str, float]:
@@ -143,14 +159,18 @@ def section_frs(built: BuiltWindow, states: Mapping[str, WindingState], freq_hz:
     MMF starts at zero at the tube; each layer adds turns x current with the winding's sign (primary +,
     loads -); a square-wave current is weighted over its odd harmonics (``kernel.current_harmonics``), a
     winding in ``harmonics_by`` over its own (a rectifier's pulses: Dowell per harmonic, sum I_n^2 R_ac(n)).
+    On a split bobbin each chamber's MMF starts at zero at the tube: a chamber holding one side of the
+    transformer builds its full ampere-turns across its layers (conservative: the field beside chambers
+    runs partly along the leg, which this layer form does not credit).
     """
     if freq_hz <= 0:
         return {}
     delta_cu = float(K.skin_depth_m(freq_hz, temp_c))
     drive = K.current_harmonics(waveform)
-    mmf = 0.0
+    mmfs: dict[int, float] = {}
     out: dict[tuple[str, int], float] = {}
     for s in built.sections:
+        mmf = mmfs.get(s.chamber, 0.0)
         st = states[s.winding]
         sb = s.build
         if s.wound_with is not None and (s.wound_with, s.index) in out:
@@ -167,7 +187,7 @@ def section_frs(built: BuiltWindow, states: Mapping[str, WindingState], freq_hz:
         faces = [mmf]
         for t in turns:
             faces.append(faces[-1] + t * current)
-        mmf = faces[-1]
+        mmfs[s.chamber] = faces[-1]
         if abs(current) < 1e-12:
             out[(s.winding, s.index)] = 1.0
             continue
@@ -189,7 +209,10 @@ def leakage_h(built: BuiltWindow, former: Former, currents: Mapping[str, float],
 
     ``currents`` are the windings' load currents with their MMF sign, balanced in ampere-turns
     (primary + sum N_s I_s / N_p, loads -I_s), so the MMF returns to zero outside the last winding.
+    Windings in the chambers of a split bobbin sit side by side: ``leakage_chambers_h``.
     """
+    if len({s.chamber for s in built.sections}) > 1:
+        return leakage_chambers_h(built, former, currents, ref)
     segments: list[tuple[float, float, float, float]] = []
     mmf = 0.0
     h = 0.0
@@ -222,3 +245,44 @@ def winding_fr(built: BuiltWindow, frs: Mapping[tuple[str, int], float], winding
         return 1.0
     return sum(frs.get((winding, s.index), 1.0) * s.build.copper_length_m for s in secs) / clen
 
+
+
+def leakage_chambers_h(built: BuiltWindow, former: Former, currents: Mapping[str, float], ref: str) -> float:
+    """Leakage inductance of windings side by side in the chambers of a split bobbin (energy method).
+
+    The same energy method as concentric windings with the roles of the two directions exchanged: the
+    leakage field crosses the window from the centre leg to the outer leg (its span the bobbin's build
+    height h), and the ampere-turns vary along the leg: across a chamber's copper (its breadth less the
+    margins) they rise linearly by the chamber's ampere-turns; across the margins either side of the divider
+    and the divider itself they stay constant. For two chambers of copper breadth a and b, a gap c between
+    the copper and N I ampere-turns this is L = mu0 N^2 MLT (c + (a + b)/3) / h, the side-by-side form of
+    the textbook result (McLyman, Transformer and Inductor Design Handbook, leakage inductance of
+    side-by-side windings; Snelling, Soft Ferrites, the energy method; both from memory). The radial
+    leakage between windings stacked in one chamber is left out (small beside the chamber-to-chamber field
+    when each chamber holds one side of the transformer).
+    """
+    chambers = sorted({s.chamber for s in built.sections})
+    segments: list[tuple[float, float, float, float]] = []
+    mmf = 0.0
+    gap = 0.0
+    for c in chambers:
+        secs = [s for s in built.sections if s.chamber == c]
+        amp_turns = 0.0
+        turns = 0
+        length = 0.0
+        for s in secs:
+            current = currents.get(s.winding, 0.0)
+            for layer in s.build.layers:
+                amp_turns += layer.turns * current
+                turns += layer.turns
+                length += layer.length_m
+        breadth = former.chambers[c - 1] if former.chambers else former.breadth_m
+        copper = max(s.build.usable_breadth_m for s in secs)
+        margin = max(0.0, (breadth - copper) / 2.0)
+        mlt = length / turns if turns else former.mlt_m(0.0)
+        if segments:
+            segments.append((gap + margin, mmf, mmf, mlt))
+        segments.append((copper, mmf, mmf + amp_turns, mlt))
+        mmf += amp_turns
+        gap = margin + former.divider_m
+    return leakage_inductance_h(segments, former.height_m, currents.get(ref, 0.0))

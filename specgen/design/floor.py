@@ -49,8 +49,16 @@ def core_outline(parts: Parts) -> CoreOutline:
         return CoreOutline(shape=core.shape, inner_diameter_m=dims.get("id"), outer_diameter_m=dims.get("od"),
                            height_m=dims.get("height"), coating_m=core.coating_m,
                            winding_breadth_m=parts.window_breadth_m)
+    former = parts.former
+    if former.chambers:
+        whole = sum(former.chambers) + former.divider_m * (len(former.chambers) - 1)
+        return CoreOutline(shape=core.shape, inner_diameter_m=None, outer_diameter_m=None, height_m=None,
+                           coating_m=0.0, winding_breadth_m=whole, chambers=former.chambers,
+                           divider_m=former.divider_m,
+                           divider_height_m=(parts.bobbin.divider_height_m or former.height_m) if parts.bobbin
+                           else former.height_m)
     return CoreOutline(shape=core.shape, inner_diameter_m=None, outer_diameter_m=None, height_m=None,
-                       coating_m=0.0, winding_breadth_m=parts.former.breadth_m)
+                       coating_m=0.0, winding_breadth_m=former.breadth_m)
 
 
 def pin_layout(parts: Parts, windings: Iterable[WindingResult]) -> PinLayout:

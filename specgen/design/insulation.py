@@ -37,6 +37,7 @@ from collections.abc import Sequence
 from dataclasses import replace
 
 from ..catalog.models import InsulationBasis, Tape
+from ..physics import insulation_paths as paths
 from ..records import record
 from ..standards import insulation as ins
 from .resolve import spec_error
@@ -57,6 +58,7 @@ class _Provided:
     solid: str
     problems: tuple[str, ...] = ()
     unknown: tuple[str, ...] = ()       # what the catalogue lacks to check (a warning: measure it)
+    solid_said: bool = False            # a problem already says what the solid insulation lacks
 
 
 def side_names(spec: Spec, side: str) -> list[str]:
@@ -231,31 +233,31 @@ def _between_windings(state: DesignState, a: list[str], b: list[str], coord: ins
         solid_ok = bool(tiw) or _layers_pass(bds, test_v, coord.solid)
         words = "; ".join([*carried, words]) if carried else words
         return _Provided(lap_mm, lap_mm, "along the laps of the half-lapped tape between the windings",
-                         solid_ok and sleeve_ok and not problems, words + (f"; {sleeve_words}" if sleeve_words else ""),
+                         solid_ok, words + (f"; {sleeve_words}" if sleeve_words else ""),
                          tuple(problems + ([] if sleeve_ok else [sleeve_words])))
-    breadth = state.parts.former.breadth_m
     secs = built.sections
-    worst_creep: tuple[float, str] | None = None
+    worst_creep: tuple[float, float, str] | None = None
     worst_solid: tuple[bool, str] | None = None
+    unknown: list[str] = []
     for i, lo in enumerate(secs):
         for j in range(i + 1, len(secs)):
             hi = secs[j]
             if not _across(lo, hi, a, b):
                 continue
-            over = cat.tapes[lo.tape_after].width_m if lo.tape_after else None
-            under = cat.tapes[secs[j - 1].tape_after].width_m if secs[j - 1].tape_after else None
-            e1, e2 = _edge_mm(lo, over, breadth), _edge_mm(hi, under, breadth)
-            tape_w = (over or 0.0) * 1e3
-            desc = (f"{e1:.2f} + {e2:.2f} mm round the edge of the {tape_w:g} mm tape over {lo.winding}"
-                    f" on the {breadth * 1e3:g} mm breadth")
-            if worst_creep is None or e1 + e2 < worst_creep[0]:
-                worst_creep = (e1 + e2, desc)
-            tapes = [(s.tape_after, s.tape_after_layers) for s in secs[i:j] if s.tape_after]
-            bds, words = _tape_layers(state, tapes)
-            ok = bool(tiw) or _layers_pass(bds, test_v, coord.solid)
-            if worst_solid is None or not ok:
-                worst_solid = (ok, words)
-    creep_mm, path = worst_creep if worst_creep else (None, "")
+            if lo.chamber != hi.chamber:
+                pair = _across_divider(state, lo, hi, coord)
+            else:
+                pair = _same_chamber(state, lo, hi, [s for s in secs[i:j] if s.chamber == lo.chamber], coord,
+                                     bool(tiw))
+            if pair.unknown:
+                unknown += [u for u in pair.unknown if u not in unknown]
+                continue
+            assert pair.creepage_mm is not None and pair.clearance_mm is not None
+            if worst_creep is None or pair.creepage_mm < worst_creep[0]:
+                worst_creep = (pair.creepage_mm, pair.clearance_mm, pair.path)
+            if worst_solid is None or not pair.solid_ok:
+                worst_solid = (pair.solid_ok, pair.solid)
+    creep_mm, clear_mm, path = worst_creep if worst_creep else (None, None, "")
     solid_ok, solid_words = worst_solid if worst_solid else (True, "")
     if tiw:
         solid_words = f"triple-insulated wire on {'+'.join(tiw[0])}" + (f"; tape {solid_words}" if solid_words else "")
@@ -264,13 +266,63 @@ def _between_windings(state: DesignState, a: list[str], b: list[str], coord: ins
     if pins_mm is not None:
         path = "; ".join(x for x in (path, f"{pins_mm:.2f} mm between the nearest pins ({pins_words})") if x)
         creep_mm = pins_mm if creep_mm is None else min(creep_mm, pins_mm)
+        clear_mm = pins_mm if clear_mm is None else min(clear_mm, pins_mm)
     path = path or "no surface path between the windings in the build (not next to each other)"
-    unknown = (f"{pins_words}: the pin gap is not checked, measure it",) if pins_mm is None and pins_words else ()
+    if pins_mm is None and pins_words:
+        unknown.append(f"{pins_words}: the pin gap is not checked, measure it")
     if not sleeve_ok:
         problems.append(sleeve_words)
-    return _Provided(creep_mm, creep_mm, path, solid_ok and sleeve_ok and not problems,
+    return _Provided(creep_mm, clear_mm, path, solid_ok,
                      solid_words + (f"; {sleeve_words}" if sleeve_ok and sleeve_words else ""), tuple(problems),
-                     unknown)
+                     tuple(unknown))
+
+
+def _same_chamber(state: DesignState, lo: BuiltSection, hi: BuiltSection, between: Sequence[BuiltSection],
+                  coord: ins.BarrierCoordination, tiw: bool) -> _Provided:
+    """Two sections one over the other in one chamber (or on a one-chamber bobbin): round the barrier tape's
+    edge across both margins, the tapes between them as the solid insulation."""
+    cat = state.cat
+    breadth = _breadth(state, lo.chamber)
+    over = cat.tapes[lo.tape_after].width_m if lo.tape_after else None
+    under = cat.tapes[between[-1].tape_after].width_m if between and between[-1].tape_after else None
+    e1, e2 = _edge_mm(lo, over, breadth), _edge_mm(hi, under, breadth)
+    where = f" in chamber {lo.chamber}" if lo.chamber else ""
+    desc = (f"{e1:.2f} + {e2:.2f} mm round the edge of the {(over or 0.0) * 1e3:g} mm tape over {lo.winding}"
+            f" on the {breadth * 1e3:g} mm breadth{where}")
+    bds, words = _tape_layers(state, [(s.tape_after, s.tape_after_layers) for s in between if s.tape_after])
+    return _Provided(e1 + e2, e1 + e2, desc, tiw or _layers_pass(bds, coord.hipot.type_test_v, coord.solid), words)
+
+
+def _breadth(state: DesignState, chamber: int) -> float:
+    """The breadth a section is laid in: its chamber's on a split bobbin, else the bobbin's."""
+    former = state.parts.former
+    return former.chambers[chamber - 1] if chamber and former.chambers else former.breadth_m
+
+
+def _across_divider(state: DesignState, lo: BuiltSection, hi: BuiltSection,
+                    coord: ins.BarrierCoordination) -> _Provided:
+    """Two sections in different chambers of a split bobbin: over the divider wall (IEC 60664-1 Annex A),
+    the wall itself as the solid insulation (its rated strength and, where the grade asks one, thickness)."""
+    bob = state.parts.bobbin
+    assert bob is not None
+    wall_t, wall_h = bob.divider_thickness_m, bob.divider_height_m
+    if wall_t is None or wall_h is None or bob.wall_voltage_v is None:
+        lack = [k for k, v in (("divider_thickness", wall_t), ("divider_height", wall_h),
+                               ("wall_voltage", bob.wall_voltage_v)) if v is None]
+        return _Provided(None, None, "", True, "", unknown=(
+            f"bobbin {bob.id} has no {', '.join(lack)} on file: the path across the divider between "
+            f"{lo.winding} and {hi.winding} is not checked; measure the bobbin and add it to the catalogue",))
+    a_top, b_top = lo.build.end_build_m, hi.build.end_build_m
+    creep = paths.over_wall_creepage_m(lo.margin_m, a_top, hi.margin_m, b_top, wall_h, wall_t) * 1e3
+    clear = paths.over_wall_clearance_m(lo.margin_m, a_top, hi.margin_m, b_top, wall_h, wall_t) * 1e3
+    desc = (f"{creep:.2f} mm over the {wall_t * 1e3:g} mm divider ({wall_h * 1e3:g} mm high) from {lo.winding} in "
+            f"chamber {lo.chamber} ({a_top * 1e3:.1f} mm built) to {hi.winding} in chamber {hi.chamber} "
+            f"({b_top * 1e3:.1f} mm built)")
+    need_t = coord.solid.single_layer_min_mm
+    ok = bob.wall_voltage_v >= coord.hipot.type_test_v and (need_t is None or wall_t * 1e3 + 1e-9 >= need_t)
+    words = (f"the divider wall, {wall_t * 1e3:g} mm rated {bob.wall_voltage_v / 1e3:g} kV"
+             + (f" (at least {need_t:g} mm thick asked)" if need_t is not None else ""))
+    return _Provided(creep, clear, desc, ok, words)
 
 
 def _between_sectors(state: DesignState, sleeve_ok: bool, sleeve_words: str) -> _Provided:
@@ -324,7 +376,7 @@ def _to_core(state: DesignState, names: list[str], coord: ins.BarrierCoordinatio
                              f"core coating rated {core.coating_voltage_v / 1e3:g} kV")
         return _Provided(None, None, "nothing under the first winding", False, "nothing",
                          (f"nothing insulates the first winding from core {core.id}: add a core wrap "
-                          f"(insulation.core_wrap) or use a core with a rated coating",))
+                          f"(insulation.core_wrap) or use a core with a rated coating",), solid_said=True)
     bob = parts.bobbin
     assert bob is not None
     if bob.core_creepage_m is None or bob.wall_voltage_v is None:
@@ -378,7 +430,7 @@ def _one(state: DesignState, basis: InsulationBasis, b: Barrier) -> BarrierResul
         problems.append(f"creepage needs {creep_req:.2f} mm, the build gives {prov.path}")
     if prov.clearance_mm is not None and prov.clearance_mm + 1e-9 < clear_req:
         problems.append(f"clearance needs {clear_req:.2f} mm, the build gives {prov.clearance_mm:.2f} mm")
-    if not prov.solid_ok and not prov.problems:
+    if not prov.solid_ok and not prov.solid_said:
         problems.append(f"solid insulation needs {coord.solid.rule} at {coord.hipot.type_test_v:.0f} V; "
                         f"the build has {prov.solid}")
     ok = not problems
@@ -428,10 +480,11 @@ def _tape_cover(state: DesignState) -> list[Check]:
     if former.kind == "toroid":
         return []
     out: list[Check] = []
-    breadth = former.breadth_m
     barrier_below = _barrier_interfaces(spec, state.built.sections)
+    last = {s.chamber: s for s in state.built.sections if s.wound_with is None or s.tape_after}
     for s in state.built.sections:
         sb = s.build
+        breadth = _breadth(state, s.chamber)
         if spec.layer_tape is not None and len(sb.layers) > 1:
             w = cat.tapes[spec.layer_tape.tape].width_m
             if w + 1e-9 < sb.usable_breadth_m:
@@ -439,7 +492,7 @@ def _tape_cover(state: DesignState) -> list[Check]:
                                  f"layer tape {spec.layer_tape.tape} is {w * 1e3:g} mm wide but winding {s.winding} "
                                  f"lays {sb.usable_breadth_m * 1e3:.1f} mm of copper: a tape as wide as the "
                                  f"copper (or two widths overlapped) is needed"))
-        if s.tape_after and s is state.built.sections[-1]:
+        if s.tape_after and s is last[s.chamber]:
             w = cat.tapes[s.tape_after].width_m
             if w + 1e-9 < sb.usable_breadth_m:
                 out.append(Check("fail", "tape-width",
@@ -465,7 +518,9 @@ def _barrier_interfaces(spec: Spec, sections: Sequence[BuiltSection]) -> dict[tu
     """Sections whose tape above is a safety barrier: the next section is on the other side of a declared
     barrier that is more than functional. Maps (winding, section) to the barrier's grade."""
     out: dict[tuple[str, int], str] = {}
-    for lo, hi in zip(sections, sections[1:]):
+    pairs = [(lo, hi) for c in dict.fromkeys(s.chamber for s in sections)
+             for lo, hi in zip([s for s in sections if s.chamber == c], [s for s in sections if s.chamber == c][1:])]
+    for lo, hi in pairs:
         for b in spec.barriers:
             if b.rating == "functional" or "core" in (b.a.strip(), b.b.strip()):
                 continue
@@ -485,8 +540,9 @@ def _unique(checks: list[Check]) -> list[Check]:
 
 def _split_bobbin(state: DesignState) -> list[Check]:
     bob = state.parts.bobbin
-    if bob is None or bob.sections < 2:
+    if bob is None or bob.sections < 2 or any(w.chamber for w in state.spec.windings):
         return []
     return [Check("fail", "split-bobbin",
-                  f"bobbin {bob.id} has {bob.sections} chambers; this build lays every winding in one chamber's "
-                  f"breadth: choose the single-chamber bobbin (chamber assignment is not modelled yet)")]
+                  f"bobbin {bob.id} has {bob.sections} chambers but no winding names one: give each winding its "
+                  f"chamber (chamber: 1 at the start flange .. {bob.sections}; the primary in one, the secondaries "
+                  f"in the other), or choose the single-chamber bobbin")]

@@ -89,7 +89,8 @@ def _sections(spec: Spec, built: BuiltWindow, ev: Evaluation[Any], w: Winding) -
                            start_pin=sp, finish_pin=fp, fr=ev.frs.get((w.name, s.index), 1.0),
                            layer_tape=spec.layer_tape.tape if layered and spec.layer_tape else None,
                            layer_tape_layers=spec.layer_tape.layers if layered and spec.layer_tape else 0,
-                           margin_tape=spec.margin_tape if s.margin_m > 0 else None, wound_with=s.wound_with))
+                           margin_tape=spec.margin_tape if s.margin_m > 0 else None, wound_with=s.wound_with,
+                           chamber=s.chamber))
     return tuple(out)
 
 

@@ -114,10 +114,11 @@ def resolve_core(spec: Spec, cat: Catalog) -> Parts:
         breadth = dims["height"]
     else:
         bobbin = resolve_bobbin(spec, cat, core, stack)
+        chambers = bobbin.chambers if bobbin.sections > 1 else ()
         former = Former(kind="rect" if bobbin.shape == "rect" else "round", tube_width_m=bobbin.tube_width_m,
-                        tube_depth_m=bobbin.tube_depth_m,
-                        breadth_m=bobbin.breadth_m / bobbin.sections if bobbin.sections > 1 else bobbin.breadth_m,
-                        height_m=bobbin.height_m)
+                        tube_depth_m=bobbin.tube_depth_m, breadth_m=chambers[0] if chambers else bobbin.breadth_m,
+                        height_m=bobbin.height_m, chambers=chambers,
+                        divider_m=(bobbin.divider_thickness_m or 0.0) if chambers else 0.0)
         breadth = geometry.window_breadth_m(core.shape, dims)
     return Parts(core, material, bobbin, stack, former, ae, le, ve, amin, wa, source, breadth, surface)
 
@@ -148,7 +149,8 @@ def resolve_bobbin(spec: Spec, cat: Catalog, core: Core, stack: float | None) ->
                                + (f" at stack {stack * 1e3:g} mm" if stack else ""), "core", "id")
     # a bobbin rated for the insulation system's class (IEC 60085) first; where none is, the highest rated
     # (the material-class check then says so)
-    first: Bobbin = sorted(fits, key=lambda b: (b.thermal_class_c < spec.insulation_class_c,
+    split = any(getattr(w, "chamber", None) for w in spec.windings)    # chambers given: a split bobbin
+    first: Bobbin = sorted(fits, key=lambda b: ((b.sections > 1) != split, b.thermal_class_c < spec.insulation_class_c,
                                                 -b.thermal_class_c if b.thermal_class_c < spec.insulation_class_c else 0,
                                                 b.id))[0]
     return first
@@ -196,6 +198,26 @@ def check_pins(spec: Spec, parts: Parts) -> None:
                                        f"on one {what} would join them (across any barrier between them)",
                                  "windings", i, key)
             used[pin] = w.name
+    check_chambers(spec, parts)
+
+
+def check_chambers(spec: Spec, parts: Parts) -> None:
+    """A winding's chamber is on a split bobbin, within its chambers; on a split bobbin every winding has one
+    (a bifilar follower is wound in its partner's). None given at all is the ``split-bobbin`` check's to say."""
+    bobbin = parts.bobbin
+    given = [(i, w) for i, w in enumerate(spec.windings) if getattr(w, "chamber", None) is not None]
+    if not given:
+        return
+    i, first = given[0]
+    if bobbin is None or bobbin.sections < 2:
+        what = "a toroid is wound without a bobbin" if bobbin is None else f"bobbin {bobbin.id} has one chamber"
+        raise spec_error(spec, f"'chamber' is for a split bobbin; {what}", "windings", i, "chamber")
+    for i, w in enumerate(spec.windings):
+        if w.chamber is not None and w.chamber > bobbin.sections:
+            raise spec_error(spec, f"bobbin {bobbin.id} has chambers 1..{bobbin.sections}", "windings", i, "chamber")
+        if w.chamber is None and w.wound_with is None:
+            raise spec_error(spec, f"bobbin {bobbin.id} is split into {bobbin.sections} chambers: give {w.name} its "
+                                   f"chamber (1 at the start flange .. {bobbin.sections})", "windings", i)
 
 
 def _tape(spec: Spec, cat: Catalog, tape_id: str | None, *keys: str | int) -> Tape | None:

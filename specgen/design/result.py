@@ -53,6 +53,7 @@ class Section:
     layer_tape_layers: int = 0
     margin_tape: str | None = None   # built up in the margins each side
     wound_with: str | None = None    # bifilar: the winding laid turn by turn in the same layers
+    chamber: int = 0                 # split bobbin: the chamber it is wound in, 1 at the start flange (0: one)
 
 
 @record
@@ -322,7 +323,10 @@ class CoreOutline:
     outer_diameter_m: float | None   # toroid
     height_m: float | None           # toroid: the ring (or stack) height
     coating_m: float                 # toroid: coating or core-box wall on each face
-    winding_breadth_m: float         # bobbin: breadth of one chamber between the flanges; toroid: ring height
+    winding_breadth_m: float         # bobbin: between the flanges (split: chambers and dividers); toroid: ring height
+    chambers: tuple[float, ...] = ()  # split bobbin: each chamber's breadth, start flange first
+    divider_m: float = 0.0           # split bobbin: the divider wall's thickness (0: not on file)
+    divider_height_m: float = 0.0    # split bobbin: the divider wall's height above the tube (as drawn)
 
 
 @record(slots=True)
@@ -542,6 +546,7 @@ class Design:
                                 "build_mm": l.build_to_centre_m * 1e3} for l in s.layers],
                     "start_pin": s.start_pin, "finish_pin": s.finish_pin, "fr": s.fr,
                     **({"wound_with": s.wound_with} if s.wound_with else {}),
+                    **({"chamber": s.chamber} if s.chamber else {}),
                 } for s in w.sections],
             } for w in self.windings],
             "build": {

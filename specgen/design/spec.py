@@ -100,6 +100,7 @@ class Winding:
     taps: tuple[Tap, ...] = ()       # leads brought out at the turns that give these voltages
     turns_ratio: float | None = None  # a forward converter's reset winding: N_p / N_reset (1: bifilar 1:1)
     section_shares: tuple[float, ...] = ()   # a deliberately uneven split: each section's share of the turns
+    chamber: int | None = None       # split bobbin: the chamber it is wound in (1 at the start flange)
 
 
 @record
@@ -227,6 +228,7 @@ def _winding(r: Reader, kind: str) -> Winding:
         voltage_tolerance=r.tolerance_pair("voltage_tolerance", None), line=r.line, path=r.path,
         load=parse_load(r, role), wound_with=r.text("wound_with", None, max_len=40), taps=parse_taps(r),
         turns_ratio=parse_reset_ratio(r, role), section_shares=_section_shares(r, sections),
+        chamber=r.integer("chamber", None, minimum=1, maximum=4),
     )
     r.done(renamed=RENAMED_KEYS["windings"])
     if w.start == w.finish:
@@ -482,6 +484,9 @@ def _check_bifilar(kind: str, windings: tuple[Winding, ...], wreaders: list[Read
             raise wr.error(f"only a winding of the same role can be wound with {lead.name}", "wound_with")
         if w.sections != 1 or lead.sections != 1:
             raise wr.error("windings wound together are one section each", "wound_with")
+        if w.chamber is not None and w.chamber != lead.chamber:
+            raise wr.error(f"windings wound together share one chamber: {w.name} is wound in {lead.name}'s "
+                           f"layers (leave out 'chamber' here)", "chamber")
         if w.wire != lead.wire and not w.wire.startswith("auto"):
             raise wr.error(f"windings wound together share one wire: {w.name} gives {w.wire}, {lead.name} "
                            f"{lead.wire}", "wire")

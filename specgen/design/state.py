@@ -36,6 +36,8 @@ class Former:
     od_m: float = 0.0         # toroid, over its coating
     id_m: float = 0.0
     core_height_m: float = 0.0
+    chambers: tuple[float, ...] = ()   # split bobbin: each chamber's breadth (breadth_m is chamber 1's)
+    divider_m: float = 0.0             # split bobbin: the wall between chambers (0 where not on file)
 
     def mlt_m(self, build_to_centre_m: float) -> float:
         """Mean length of one turn whose centre line sits ``build_to_centre_m`` out from the former
@@ -137,6 +139,7 @@ class BuiltSection:
     tape_after: str | None
     tape_after_layers: int
     wound_with: str | None = None  # bifilar: the partner laid turn by turn in the same layers
+    chamber: int = 0               # split bobbin: its chamber, 1 at the start flange (0: one chamber)
 
 
 @record(slots=True)

@@ -278,6 +278,8 @@ class SectionDraw:
     layer_tape_m: float       # between layers (0: none)
     colour_index: int = 0
     slot: tuple[int, int] = (0, 1)   # (place, of) among windings wound together in one layer (bifilar: of 2)
+    x0_m: float = 0.0         # split bobbin: where its chamber starts, from the start flange
+    breadth_m: float = 0.0    # split bobbin: its chamber's breadth (0: the whole breadth)
 
 
 def choose_scale(real_w_mm: float, real_h_mm: float, max_w_mm: float, max_h_mm: float) -> float:
@@ -296,13 +298,16 @@ def scale_text(scale: float) -> str:
 
 # long: one SVG drawn top to bottom, a block per visible element
 def window_section(breadth_m: float, available_m: float, bulged_m: float, sections: list, *,
-                   max_w_mm: float = 112.0, max_h_mm: float = 95.0) -> tuple:
+                   max_w_mm: float = 112.0, max_h_mm: float = 95.0,
+                   dividers: tuple[tuple[float, float, float], ...] = ()) -> tuple:
     """Cross-section of a bobbin window to scale: (svg, scale).
 
     Horizontal: the winding breadth between the flanges; vertical: the build from the tube outwards.
     Each section's layers are rows of wire circles (or bands where a circle would be too small to see),
     its margins hatched, tapes drawn as lines at their true positions (the line is drawn at least 0.35 mm
     wide so that a 25 um tape can be seen), the available build height dashed.
+    A split bobbin's dividers (x from the start flange, thickness, height) are drawn as walls, each section
+    in its own chamber.
     """
     bw, ah = breadth_m * 1e3, available_m * 1e3
     s = choose_scale(bw, ah * 1.08, max_w_mm, max_h_mm)
@@ -328,6 +333,9 @@ def window_section(breadth_m: float, available_m: float, bulged_m: float, sectio
     for fx in (left - flange, left + W):
         body.append(f'<rect x="{_n(fx)}" y="{_n(Y(available_m) - 2)}" width="{_n(flange)}" '
                     f'height="{_n(base - Y(available_m) + 2)}" fill="{LIGHT}" stroke="{GREY}" stroke-width="0.3"/>')
+    for dx, dt, dh in dividers:
+        body.append(f'<rect class="divider" x="{_n(X(dx))}" y="{_n(Y(dh))}" width="{_n(max(0.4, dt * 1e3 * s))}" '
+                    f'height="{_n(base - Y(dh))}" fill="{LIGHT}" stroke="{GREY}" stroke-width="0.3"/>')
     body.append(_t(left + W / 2, base + 7.5, "bobbin tube (core centre leg below)", 3.2, "middle", fill="#333"))
     # available build
     body.append(f'<line class="available" x1="{_n(left - flange - 3)}" y1="{_n(Y(available_m))}" '
@@ -339,13 +347,20 @@ def window_section(breadth_m: float, available_m: float, bulged_m: float, sectio
                     f'y2="{_n(Y(bulged_m))}" stroke="{GREY}" stroke-width="0.3" stroke-dasharray="0.8 0.8"/>')
 
     labels = []
+    whole = breadth_m
     for sec in sections:
         colour = COPPER[sec.colour_index % len(COPPER)]
         lh = sec.layer_height_m
         m = sec.margin_m
+        breadth_m = sec.breadth_m or whole
+        x0 = sec.x0_m
+
+        def xs(m: float, x0: float = x0) -> float:      # along the breadth of the section's chamber
+            return left + (x0 + m) * 1e3 * s
+
         if m > 0:
             for mx in (0.0, breadth_m - m):
-                body.append(f'<rect class="margin" x="{_n(X(mx))}" y="{_n(Y(sec.end_m))}" '
+                body.append(f'<rect class="margin" x="{_n(xs(mx))}" y="{_n(Y(sec.end_m))}" '
                             f'width="{_n(m * 1e3 * s)}" height="{_n((sec.end_m - sec.start_m) * 1e3 * s)}" '
                             f'fill="url(#hatch)" stroke="#777" stroke-width="0.25"/>')
         usable = breadth_m - 2 * m
@@ -365,28 +380,28 @@ def window_section(breadth_m: float, available_m: float, bulged_m: float, sectio
                 cy = Y(layer.centre_m)
                 parts = []
                 for k in range(n):
-                    cx = X(x_start + pitch * (k * of + place + 0.5))
+                    cx = xs(x_start + pitch * (k * of + place + 0.5))
                     parts.append(f'<circle cx="{_n(cx)}" cy="{_n(cy)}" r="{_n(r * 0.92)}"/>')
                 body.append(f'<g class="layer" data-section="{escape(sec.label)}" data-turns="{layer.turns}" '
                             f'fill="{colour}" fill-opacity="0.85" stroke="none">' + "".join(parts) + "</g>")
             else:
                 body.append(f'<rect class="layer" data-section="{escape(sec.label)}" data-turns="{layer.turns}" '
-                            f'x="{_n(X(x_start))}" y="{_n(Y(y1))}" width="{_n(width * 1e3 * s)}" '
+                            f'x="{_n(xs(x_start))}" y="{_n(Y(y1))}" width="{_n(width * 1e3 * s)}" '
                             f'height="{_n(lh * 1e3 * s)}" fill="{colour}" fill-opacity="0.75"/>')
             if sec.layer_tape_m > 0 and i < len(sec.layers) - 1:
                 ty = Y(y1 + sec.layer_tape_m / 2)
-                body.append(f'<line class="tape" x1="{_n(X(0))}" y1="{_n(ty)}" x2="{_n(X(breadth_m))}" '
+                body.append(f'<line class="tape" x1="{_n(xs(0))}" y1="{_n(ty)}" x2="{_n(xs(breadth_m))}" '
                             f'y2="{_n(ty)}" stroke="{TAPE}" stroke-width="{_n(max(0.35, sec.layer_tape_m * 1e3 * s))}"/>')
         if sec.tape_after and sec.tape_after_m > 0:
             ty = Y(sec.end_m + sec.tape_after_m / 2)
-            body.append(f'<line class="tape" x1="{_n(X(0))}" y1="{_n(ty)}" x2="{_n(X(breadth_m))}" y2="{_n(ty)}" '
+            body.append(f'<line class="tape" x1="{_n(xs(0))}" y1="{_n(ty)}" x2="{_n(xs(breadth_m))}" y2="{_n(ty)}" '
                         f'stroke="{TAPE}" stroke-width="{_n(max(0.5, sec.tape_after_m * 1e3 * s))}"/>')
-        labels.append((sec, colour, Y((sec.start_m + sec.end_m) / 2)))
+        labels.append((sec, colour, xs(breadth_m), Y((sec.start_m + sec.end_m) / 2)))
 
     # labels in a column to the right, leader lines to each section's middle
     lx = left + W + flange + 8
     # the outermost section is drawn highest: stack its label first, the rest below it
-    _section_labels(body, [(sec, colour, left + W, y) for sec, colour, y in labels], lx, upward=True)
+    _section_labels(body, labels, lx, upward=True)
     # scale bar: 5 mm
     bar = 5.0 * s if 5.0 * s <= 60 else 1.0 * s
     bar_mm = 5 if 5.0 * s <= 60 else 1

@@ -220,8 +220,11 @@ def _drawings(design, settings) -> dict:
 
     text_width_mm = settings.paper_width_m * 1e3 - 2 * SIDE_MARGIN_MM
     secs = []
+    outline = floor.outline
+    starts = [sum(outline.chambers[:i]) + i * outline.divider_m for i in range(len(outline.chambers))]
     for w, s in _sections_in_order(design):
         tapes = floor.section(w.name, s.index)
+        x0, breadth = (starts[s.chamber - 1], outline.chambers[s.chamber - 1]) if s.chamber else (0.0, 0.0)
         secs.append(dr.SectionDraw(
             order=s.order, label=section_label(w, s), winding=w.name, turns=s.turns, start_m=s.start_build_m,
             end_m=s.end_build_m, layer_height_m=tapes.layer_height_m,
@@ -230,8 +233,9 @@ def _drawings(design, settings) -> dict:
             round_wire=w.wire_kind in ("round", "litz", "tiw"), tape_after=s.tape_after,
             tape_after_m=tapes.after.build_m if tapes.after else 0.0,
             layer_tape_m=tapes.between_layers.build_m if tapes.between_layers else 0.0,
-            colour_index=index[w.name], slot=_bifilar_slot(design, w, s)))
-    outline = floor.outline
+            colour_index=index[w.name], slot=_bifilar_slot(design, w, s), x0_m=x0, breadth_m=breadth))
+    dividers = tuple((x - outline.divider_m, outline.divider_m, outline.divider_height_m)
+                     for x in starts[1:])
     sectors = sector_context(design, text_width_mm)
     if sectors is not None:      # sector winding: every sector builds alike; the bore shows the first
         secs = secs[:1]
@@ -243,7 +247,8 @@ def _drawings(design, settings) -> dict:
     else:
         window_svg, scale = _fit_to_text_width(
             lambda w: dr.window_section(outline.winding_breadth_m, design.build.available_m,
-                                        design.build.bulged_height_m, secs, max_w_mm=w), text_width_mm, 112.0)
+                                        design.build.bulged_height_m, secs, max_w_mm=w, dividers=dividers),
+            text_width_mm, 112.0)
     if sectors is not None:
         sectors["scale"] = dr.scale_text(sectors["scale"])
     return {"pin_svg": pin_svg, "window_svg": window_svg, "window_scale": dr.scale_text(scale),
@@ -278,6 +283,17 @@ def bifilar_rows(rows: list, w, mate, pin_word: str) -> tuple[list, str, list]:
              f"them flat and never let them cross. Mark the {mate.name} wire at its start (a sleeve or a pen "
              f"mark) so the ends can be told apart; {mate.name}'s dot is at {pin_word} {mate.dot_pin}."]
     return out, heading, lines
+
+
+def chamber_row(d, s) -> tuple[str, str, str]:
+    """Which chamber of a split bobbin a section is wound in, as the winder finds it on the bobbin."""
+    outline = d.floor.outline
+    n = len(outline.chambers)
+    side = "at the start flange" if s.chamber == 1 else ("at the finish flange" if s.chamber == n else "between dividers")
+    return ("Chamber", f"{s.chamber} of {n}, {side}: {outline.chambers[s.chamber - 1] * 1e3:.1f} mm between the "
+                       f"{'start flange' if s.chamber == 1 else 'divider'} and the "
+                       f"{'finish flange' if s.chamber == n else 'divider'}; keep every turn on this side of the "
+                       f"divider", "key")
 
 
 def tap_line(t, w, pin_word: str) -> str:
@@ -395,7 +411,7 @@ def build_context(design, settings, *, number: str, qty: int, due: str | None = 
                       "rows": [], "layers": [], "dot": ""})
 
     order = _sections_in_order(d)
-    last_order = order[-1][1].order if order else 0
+    last_in = {s.chamber: s.order for _, s in order}       # the outer wrap goes on the last in each chamber
     by_name = {w.name: w for w in d.windings}
     wound: set[tuple[str, int]] = set()
     for w, s in order:
@@ -425,7 +441,8 @@ def build_context(design, settings, *, number: str, qty: int, due: str | None = 
             start_value += f"   ● DOT: mark {pin_word} {s.start_pin} with the polarity dot"
         if dot and w.dot_pin == s.finish_pin:
             finish_value += f"   ● DOT: mark {pin_word} {s.finish_pin} with the polarity dot"
-        rows = [
+        rows = [chamber_row(d, s)] if s.chamber else []
+        rows += [
             (f"Start {pin_word}", start_value, "dot" if dot and w.dot_pin == s.start_pin else "key"),
             ("Direction", direction_text(w.direction, toroid), "key"),
             ("Wire", f"{w.wire}: {w.wire_label}, {w.strands} in hand", "key"),
@@ -443,7 +460,7 @@ def build_context(design, settings, *, number: str, qty: int, due: str | None = 
         else:
             rows.append(("Between layers", "— (one layer)" if len(s.layers) <= 1 else "no tape", ""))
         if s.tape_after:
-            what = "outer wrap" if s.order == last_order else "before the next section"
+            what = "outer wrap" if s.order == last_in[s.chamber] else "before the next section"
             rows.append(("After this section", f"{s.tape_after} × {s.tape_after_layers} ({what}"
                          + (", half-lapped)" if toroid else ")"), "key"))
         else:
@@ -454,7 +471,8 @@ def build_context(design, settings, *, number: str, qty: int, due: str | None = 
             sleeve = f"; sleeve with {w.lead_sleeving}" if w.lead_sleeving else ""
             beyond = "beyond the pin" if not toroid else "free lead"
             rows.append(("Leads", f"{fmt_mm(lead_m)} {beyond} at the {' and '.join(ends)}{sleeve}", ""))
-        heading = f"Wind {label}" + (f" (section {s.index} of {len(w.sections)})" if len(w.sections) > 1 else "")
+        heading = (f"Wind {label}" + (f" (section {s.index} of {len(w.sections)})" if len(w.sections) > 1 else "")
+                   + (f" in chamber {s.chamber}" if s.chamber else ""))
         lines = [tap_line(t, w, pin_word) for t in d.taps if t.winding == w.name and t.section == s.index]
         if mate is not None:
             rows, heading, more = bifilar_rows(rows, w, mate, pin_word)
