@@ -179,3 +179,76 @@ def test_the_catalogue_refuses_chamber_figures_that_do_not_add_up(tmp_path, old,
     (d / "bobbins.yaml").write_text(text.replace(old, new, 1))
     problems = [str(p) for p in check_catalog(d)]
     assert any("bobbins.yaml:" in p and says in p for p in problems), problems
+
+
+# ------------------------------------------------------------------------ the outer winding to the core
+
+def test_the_outer_winding_to_the_core_over_the_top(cat):
+    d = design_file(DEMOS["BH-1042"], cat=cat)
+    b = _barrier(d, "all", "core")
+    # S2 is outermost: round the 44.5 mm wrap's edge (the 2 mm margin) and across the gap left above the
+    # bulged build to the core's outer leg
+    gap_mm = (d.build.available_m - d.build.bulged_height_m) * 1e3
+    assert b.clearance_available_mm == pytest.approx(2.0 + gap_mm, rel=1e-9)
+    assert "outer winding S2 to the core over the top" in b.path
+    assert b.creepage_available_mm == pytest.approx(6.0)        # over the flange: 2 mm margin + 4 mm moulded path
+    assert "clearance 1.50 mm needed, " + f"{b.clearance_available_mm:.2f} mm given" in b.message
+
+
+def test_an_outer_winding_that_touches_the_core_fails_creepage_over_the_top(cat):
+    # forty wraps of outer tape bulge the build up to the core's outer leg: the creepage is round the wrap's
+    # edge alone (the 2 mm margin), short of the 2.53 mm basic 253 V needs (Table F.4, PD2, IIIa, from memory)
+    d = _variant(cat, "BH-1042", ("  outer_wrap: {tape: TAPE-PET50-44.5MM, layers: 2}",
+                                  "  outer_wrap: {tape: TAPE-PET50-44.5MM, layers: 40}"))
+    b = _barrier(d, "all", "core")
+    assert "touches the core over the top" in b.path
+    assert b.creepage_available_mm == pytest.approx(2.0)
+    assert not b.ok and "creepage needs 2.53 mm" in b.message
+
+
+def test_a_toroids_leads_across_a_barrier_leave_far_enough_apart(cat):
+    d = design_file(DEMOS["BH-4120"], cat=cat)
+    b = _barrier(d, "P", "S")
+    assert b.lead_exit_opposite and "opposite each other" in b.path
+    # the leads 2 mm apart round the core, in 2.0 mm sleeving: nothing between them
+    close = _variant(cat, "BH-4120", ("  mains_voltage: 120 V", "  mains_voltage: 120 V\n  lead_exit_spacing: 2 mm"))
+    c = _barrier(close, "P", "S")
+    assert not c.ok and c.creepage_available_mm == pytest.approx(0.0)
+    assert "creepage needs 1.52 mm" in c.message and "between the leads where they leave the ring" in c.message
+    assert not c.lead_exit_opposite and c.lead_exit_mm == pytest.approx(2.0)
+
+
+def test_the_work_order_says_where_a_toroids_leads_leave():
+    from specgen.catalog.loader import load_catalog as load
+    from specgen.documents.settings import DocumentSettings
+    from specgen.documents.workorder import build_context
+    cat = load(None)
+    d = design_file(DEMOS["BH-4120"], cat=cat)
+    steps = build_context(d, DocumentSettings.from_shop(cat.shop), number="WO-TEST", qty=1)["steps"]
+    wind_s = next(s for s in steps if s["kind"] == "wind" and s["winding"] == "S")
+    assert any(line.startswith("LEAD EXIT: bring the leads of S out of the ring on the opposite side from the "
+                               "leads of P") for line in wind_s["lines"])
+
+
+def test_paths_over_a_wall_and_round_a_ring():
+    """IEC 60664-1 Annex A (from memory): creepage up, across and down a rib; clearance the shortest air path.
+    The ring: a chord where it clears the hole, else tangents and the hole's arc (plane geometry)."""
+    from specgen.physics import insulation_paths as p
+    # 1 mm margins, copper 2 mm high, a 5 mm wall 1.5 mm thick: 1 + 3 + 1.5 + 3 + 1 = 9.5 mm
+    assert p.over_wall_creepage_m(1e-3, 2e-3, 1e-3, 2e-3, 5e-3, 1.5e-3) == pytest.approx(9.5e-3)
+    assert p.over_wall_clearance_m(1e-3, 2e-3, 1e-3, 2e-3, 5e-3, 1.5e-3) == pytest.approx(
+        2 * math.sqrt(1 + 9) * 1e-3 + 1.5e-3)
+    # copper built above the wall: straight across its top
+    assert p.over_wall_creepage_m(1e-3, 6e-3, 1e-3, 6e-3, 5e-3, 1.5e-3) == pytest.approx(3.5e-3)
+    # no hole: the chord; across a diameter 2 R
+    assert p.ring_face_path_m(1.0, 0.0, math.pi) == pytest.approx(2.0)
+    # the chord just clears the hole where R cos(theta / 2) = r: both forms agree there
+    theta = 2 * math.acos(0.6)
+    assert p.ring_face_path_m(1.0, 0.6, theta) == pytest.approx(2 * math.sin(theta / 2))
+    assert p.ring_face_path_m(1.0, 0.6 - 1e-9, theta) == pytest.approx(2 * math.sin(theta / 2), rel=1e-6)
+    # a hole nearly as large as the ring: the path hugs the rim, the arc R theta
+    assert p.ring_face_path_m(1.0, 0.999999, math.pi) == pytest.approx(math.pi, rel=1e-3)
+    # tangents and arc: 2 sqrt(1 - 0.81) + 0.9 (pi - 2 acos 0.9) across a diameter round a 0.9 hole
+    assert p.ring_face_path_m(1.0, 0.9, math.pi) == pytest.approx(
+        2 * math.sqrt(0.19) + 0.9 * (math.pi - 2 * math.acos(0.9)))
+    assert p.chord_m(1.0, math.pi / 3) == pytest.approx(1.0)

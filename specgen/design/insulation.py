@@ -36,7 +36,7 @@ import math
 from collections.abc import Sequence
 from dataclasses import replace
 
-from ..catalog.models import InsulationBasis, Tape
+from ..catalog.models import InsulationBasis, Sleeving, Tape
 from ..physics import insulation_paths as paths
 from ..records import record
 from ..standards import insulation as ins
@@ -59,6 +59,7 @@ class _Provided:
     problems: tuple[str, ...] = ()
     unknown: tuple[str, ...] = ()       # what the catalogue lacks to check (a warning: measure it)
     solid_said: bool = False            # a problem already says what the solid insulation lacks
+    lead_exit_mm: float | None = None   # toroid: the leads of the two sides leave this far apart
 
 
 def side_names(spec: Spec, side: str) -> list[str]:
@@ -197,6 +198,47 @@ def _bifilar_across(state: DesignState, a: list[str], b: list[str], grade: str) 
     return carried, problems
 
 
+def lead_exit_spacing_m(state: DesignState) -> float:
+    """How far apart round the toroid's outside the leads of two windings across a barrier leave: the spec's
+    ``insulation.lead_exit_spacing``, else on opposite sides of the ring (half the core's outer circumference)."""
+    spec, former = state.spec, state.parts.former
+    if spec.lead_exit_spacing_m is not None:
+        return spec.lead_exit_spacing_m
+    return math.pi * former.od_m / 2.0
+
+
+def _lead_od_m(state: DesignState, name: str) -> float:
+    """A lead's outside diameter where it leaves the winding: its sleeving's, else the wire's."""
+    sid = state.spec.winding(name).lead_sleeving or state.spec.sleeving
+    if sid:
+        sl: Sleeving = state.cat.sleevings[sid]
+        return sl.bore_m + 2.0 * sl.wall_m
+    return state.states[name].wire.overall_diameter_m
+
+
+def _lead_exit(state: DesignState, a: list[str], b: list[str]) -> tuple[float, float, str]:
+    """Creepage and clearance between the leads of the two sides where they leave a toroid.
+
+    The leads leave at the core's outer edge (radius R over its insulation: conservative, the wound ring is
+    larger) an arc s apart, so theta = s / R. Creepage: the shorter of the arc round the outside and the path
+    across the ring's end face (``physics.insulation_paths.ring_face_path_m``, round the finished bore);
+    clearance: the chord through air. Less half of each lead's outside diameter (its sleeving, or the wire).
+    """
+    former = state.parts.former
+    radius = former.od_m / 2.0
+    bore = max(0.0, former.id_m / 2.0 - state.built.height_m)
+    spacing = min(lead_exit_spacing_m(state), math.pi * radius)
+    theta = spacing / radius
+    leads = (max(_lead_od_m(state, n) for n in a) + max(_lead_od_m(state, n) for n in b)) / 2.0
+    face = paths.ring_face_path_m(radius, bore, theta)
+    creep = max(0.0, min(spacing, face) - leads) * 1e3
+    clear = max(0.0, paths.chord_m(radius, theta) - leads) * 1e3
+    where = ("opposite each other" if state.spec.lead_exit_spacing_m is None
+             else f"{spacing * 1e3:.0f} mm apart round the core")
+    return creep, clear, (f"{creep:.2f} mm between the leads where they leave the ring ({where}; "
+                          f"{clear:.2f} mm through air)")
+
+
 def _across(lo: BuiltSection, hi: BuiltSection, a: list[str], b: list[str]) -> bool:
     """Two built sections on opposite sides of a barrier, one over the other (not a bifilar pair's two wires
     in the same layers, which ``_bifilar_across`` judges)."""
@@ -232,9 +274,12 @@ def _between_windings(state: DesignState, a: list[str], b: list[str], coord: ins
         lap_mm, bds, words = worst if worst else (0.0, [], "nothing")
         solid_ok = bool(tiw) or _layers_pass(bds, test_v, coord.solid)
         words = "; ".join([*carried, words]) if carried else words
-        return _Provided(lap_mm, lap_mm, "along the laps of the half-lapped tape between the windings",
+        exit_creep, exit_clear, exit_path = _lead_exit(state, a, b)
+        return _Provided(min(lap_mm, exit_creep), min(lap_mm, exit_clear),
+                         f"{lap_mm:.2f} mm along the laps of the half-lapped tape between the windings; {exit_path}",
                          solid_ok, words + (f"; {sleeve_words}" if sleeve_words else ""),
-                         tuple(problems + ([] if sleeve_ok else [sleeve_words])))
+                         tuple(problems + ([] if sleeve_ok else [sleeve_words])),
+                         lead_exit_mm=min(lead_exit_spacing_m(state), math.pi * state.parts.former.od_m / 2) * 1e3)
     secs = built.sections
     worst_creep: tuple[float, float, str] | None = None
     worst_solid: tuple[bool, str] | None = None
@@ -385,9 +430,49 @@ def _to_core(state: DesignState, names: list[str], coord: ins.BarrierCoordinatio
                                   f"flange and the wall are not checked; measure them before relying on them",))
     margin = min((s.margin_m for s in state.built.sections if s.winding in names), default=0.0)
     creep = (margin + bob.core_creepage_m) * 1e3
-    return _Provided(creep, creep, f"{margin * 1e3:g} mm margin + {bob.core_creepage_m * 1e3:g} mm over the flange "
-                                   f"of {bob.id}", bob.wall_voltage_v >= test_v,
-                     f"bobbin wall rated {bob.wall_voltage_v / 1e3:g} kV")
+    path = f"{margin * 1e3:g} mm margin + {bob.core_creepage_m * 1e3:g} mm over the flange of {bob.id}"
+    clear = creep
+    for top in _over_the_top(state, names):
+        path += f"; {top.path}"
+        clear = min(clear, top.clearance_mm) if top.clearance_mm is not None else clear
+        creep = min(creep, top.creepage_mm) if top.creepage_mm is not None else creep
+    return _Provided(creep, clear, path, bob.wall_voltage_v >= test_v, f"bobbin wall rated {bob.wall_voltage_v / 1e3:g} kV")
+
+
+def _over_the_top(state: DesignState, names: list[str]) -> list[_Provided]:
+    """The outermost winding of each chamber (where it is on this side) to the core over the top of the build.
+
+    Above the outer wrap the window's edge is the core (an E or EI core's outer leg, the yoke of the window):
+    the gap is the available build less the build as wound, taken bulged by the shop's factor (conservative).
+    Clearance: round the outer wrap's edge (its overhang past the copper, at most the margin, as between
+    windings) and across the gap. Creepage: none over the top while the gap is open (the surface path is over
+    the flange); where the bulged build reaches the core, the wrap's surface touches it, and the creepage is
+    the path round the wrap's edge alone."""
+    cat, built, former = state.cat, state.built, state.parts.former
+    out = []
+    for chamber in dict.fromkeys(s.chamber for s in built.sections):
+        top = [s for s in built.sections if s.chamber == chamber][-1]
+        if top.wound_with is not None and top.tape_after is None:      # a bifilar follower: its leader's wrap
+            top = next(s for s in built.sections if s.winding == top.wound_with and s.order == top.order)
+        if top.winding not in names and (top.wound_with is None or top.wound_with not in names):
+            continue
+        tape = cat.tapes[top.tape_after] if top.tape_after else None
+        build = top.build.end_build_m + (tape.thickness_m * top.tape_after_layers if tape else 0.0)
+        gap = former.height_m - build * cat.shop.bulge_factor
+        edge = _edge_mm(top, tape.width_m if tape else None, _breadth(state, chamber))
+        clear = edge + max(0.0, gap) * 1e3
+        where = f" in chamber {chamber}" if chamber else ""
+        wrap = f"round the {tape.width_m * 1e3:g} mm outer wrap's edge" if tape else "with no outer wrap"
+        if gap > 0:
+            path = (f"outer winding {top.winding}{where} to the core over the top: {edge:.2f} mm {wrap} + "
+                    f"{gap * 1e3:.2f} mm gap (build {build * 1e3:.2f} mm x {cat.shop.bulge_factor:g} bulge under "
+                    f"{former.height_m * 1e3:.2f} mm)")
+            out.append(_Provided(None, clear, path, True, ""))
+        else:
+            path = (f"outer winding {top.winding}{where} touches the core over the top (build {build * 1e3:.2f} mm "
+                    f"x {cat.shop.bulge_factor:g} bulge reaches {former.height_m * 1e3:.2f} mm): {edge:.2f} mm {wrap}")
+            out.append(_Provided(edge, edge, path, True, ""))
+    return out
 
 
 def _one(state: DesignState, basis: InsulationBasis, b: Barrier) -> BarrierResult:
@@ -434,12 +519,12 @@ def _one(state: DesignState, basis: InsulationBasis, b: Barrier) -> BarrierResul
         problems.append(f"solid insulation needs {coord.solid.rule} at {coord.hipot.type_test_v:.0f} V; "
                         f"the build has {prov.solid}")
     ok = not problems
-    if ok and prov.unknown:
-        message = f"{label} at {b.working_voltage_v:g} V: " + "; ".join(prov.unknown)
-    elif ok:
-        given = "" if prov.creepage_mm is None else f", {prov.creepage_mm:.2f} mm given"
-        message = (f"{label} at {b.working_voltage_v:g} V: clearance {clear_req:.2f} mm and creepage "
-                   f"{creep_req:.2f} mm needed{given}; solid: {prov.solid}")
+    if ok:
+        def given(x: float | None) -> str:
+            return "no path on this side" if x is None else f"{x:.2f} mm given"
+        message = (f"{label} at {b.working_voltage_v:g} V: clearance {clear_req:.2f} mm needed, "
+                   f"{given(prov.clearance_mm)}; creepage {creep_req:.2f} mm needed, {given(prov.creepage_mm)}; "
+                   f"solid: {prov.solid}" + ("".join(f"; NOT CHECKED: {u}" for u in prov.unknown)))
     else:
         message = f"{label} at {b.working_voltage_v:g} V: " + "; ".join(problems)
     return BarrierResult(
@@ -448,6 +533,8 @@ def _one(state: DesignState, basis: InsulationBasis, b: Barrier) -> BarrierResul
         creepage_required_mm=creep_req, creepage_available_mm=prov.creepage_mm, solid_required=coord.solid.rule,
         solid_provided=prov.solid, ok=ok, path=prov.path, message=message, type_test_v=coord.hipot.type_test_v,
         routine_test_v=coord.hipot.routine_v, hipot_rule=coord.hipot.rule, checked=not prov.unknown,
+        lead_exit_mm=prov.lead_exit_mm,
+        lead_exit_opposite=prov.lead_exit_mm is not None and spec.lead_exit_spacing_m is None,
         rows=f"impulse {coord.impulse.row}; clearance {coord.clearance.row}; creepage {coord.creepage.row}")
 
 

@@ -182,6 +182,8 @@ class BarrierResult:
     hipot_rule: str
     rows: str                        # the table rows the requirements came from
     checked: bool = True             # False: the catalogue lacks a figure the check needs (a warning)
+    lead_exit_mm: float | None = None  # toroid: the leads of the two sides leave this far apart round the core
+    lead_exit_opposite: bool = False   # toroid: ... on opposite sides of the ring (no spacing in the spec)
 
 
 @record

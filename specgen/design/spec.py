@@ -166,6 +166,7 @@ class Spec:
     history: tuple[dict[str, Any], ...]
     core_wrap: TapeUse | None = None          # toroid: tape wrapped on the core under the first winding
     insulation_basis: dict[str, Any] = field(default_factory=dict)   # this part's own mains voltage, OVC, PD
+    lead_exit_spacing_m: float | None = None  # toroid: round the core's outside between leads across a barrier
     data: Any = field(compare=False, repr=False, default_factory=dict)   # the parsed YAML, for fingerprints
     current_transformer: CurrentTransformerReq | None = None
     flyback: FlybackReq | None = None
@@ -351,7 +352,9 @@ def parse_spec(data: Any, name: str) -> Spec:
     margin_tape = sleeving = varnish = None
     barriers: tuple[Barrier, ...] = ()
     basis: dict[str, Any] = {}
+    lead_exit = None
     if ins is not None:
+        lead_exit = ins.quantity("lead_exit_spacing", "length", None)
         layer_tape, winding_tape = _tape_use(ins, "layer_tape"), _tape_use(ins, "winding_tape")
         outer_wrap = _tape_use(ins, "outer_wrap")
         core_wrap = _tape_use(ins, "core_wrap")
@@ -389,7 +392,7 @@ def parse_spec(data: Any, name: str) -> Spec:
         insulation_class_c=cls, flux_limit_t=flux_limit_t, efficiency_guess=efficiency_guess,
         layer_tape=layer_tape, winding_tape=winding_tape, outer_wrap=outer_wrap, margin_m=margin_m,
         margin_tape=margin_tape, sleeving=sleeving, varnish=varnish, barriers=barriers, core_wrap=core_wrap,
-        insulation_basis=basis, connections=connections, frequencies_hz=freqs,
+        insulation_basis=basis, lead_exit_spacing_m=lead_exit, connections=connections, frequencies_hz=freqs,
     )
     refuse_unused_keys(kind, core, op, windings, wreaders)
     core.done(("gap", "gap_arrangement"))

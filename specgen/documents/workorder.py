@@ -296,6 +296,20 @@ def chamber_row(d, s) -> tuple[str, str, str]:
                        f"divider", "key")
 
 
+def lead_exit_lines(d, w, s) -> list[str]:
+    """A toroid's leads across a barrier: where this winding's leads leave, against the other side's."""
+    if d.insulation is None or s.index != 1:
+        return []
+    return [f"LEAD EXIT: bring the leads of {w.name} out of the ring "
+            + (f"on the opposite side from the leads of {b.between[0]} ({b.lead_exit_mm:.0f} mm round the core's "
+               f"outside)" if b.lead_exit_opposite else
+               f"at least {b.lead_exit_mm:.0f} mm round the core's outside from the leads of {b.between[0]}")
+            + f": the {b.grade} barrier's creepage where the leads leave. Keep each winding's leads together, "
+              f"sleeved into the winding."
+            for b in d.insulation.barriers
+            if b.lead_exit_mm is not None and w.name in [n.strip() for n in b.between[1].split("+")]]
+
+
 def tap_line(t, w, pin_word: str) -> str:
     """Where a tap comes out, in the winder's count: the layer and the turn in it."""
     sleeve = f", sleeved with {w.lead_sleeving}" if w.lead_sleeving else ""
@@ -474,6 +488,7 @@ def build_context(design, settings, *, number: str, qty: int, due: str | None = 
         heading = (f"Wind {label}" + (f" (section {s.index} of {len(w.sections)})" if len(w.sections) > 1 else "")
                    + (f" in chamber {s.chamber}" if s.chamber else ""))
         lines = [tap_line(t, w, pin_word) for t in d.taps if t.winding == w.name and t.section == s.index]
+        lines += lead_exit_lines(d, w, s) if toroid else []
         if mate is not None:
             rows, heading, more = bifilar_rows(rows, w, mate, pin_word)
             lines = more + lines
