@@ -23,8 +23,12 @@ insulation, hipot). What the build provides is measured here, once:
 - to the core on a bobbin: the winding's margin plus the bobbin's moulded path over the flange and the rated
   strength of its wall, both from the catalogue (missing figures fail: the bobbin must be measured).
 
-Also here: whether the barrier, layer and wrap tapes cover what they must (``tape-width``), and split
-two-chamber bobbins, which this build model does not lay out chamber by chamber yet (refused, not mis-built).
+- between the chambers of a split bobbin: over the divider wall (``physics.insulation_paths``), the wall itself
+  the solid insulation (its rated strength; its thickness where the grade asks one);
+- the outermost winding of each chamber to the core over the top of the build, and a toroid's lead exits.
+
+Also here: whether the barrier, layer and wrap tapes cover what they must (``tape-width``), and a split
+bobbin whose windings name no chamber (``split-bobbin``).
 
 Figures from the standards are recalled from memory (see ``standards.insulation``); the applicable product
 safety standard, the customer's drawing, local codes and licensed practice decide.
