@@ -131,7 +131,7 @@ def test_a_split_bobbin_without_divider_figures_says_what_is_missing(cat):
     c = next(c for c in d.checks if c.code == "insulation" and c.message.startswith("P to S"))
     assert c.level == "warn" and not b.checked
     assert "has no divider_thickness, divider_height, wall_voltage on file" in c.message
-    assert "pin row spacing or pin size on file" in c.message
+    assert "has no pin_row_spacing, pin_size on file: the pin gap is not checked" in c.message
 
 
 def test_side_by_side_chambers_give_the_textbook_leakage():
@@ -252,3 +252,44 @@ def test_paths_over_a_wall_and_round_a_ring():
     assert p.ring_face_path_m(1.0, 0.9, math.pi) == pytest.approx(
         2 * math.sqrt(0.19) + 0.9 * (math.pi - 2 * math.acos(0.9)))
     assert p.chord_m(1.0, math.pi / 3) == pytest.approx(1.0)
+
+
+# ------------------------------------------------------------------------------ tapes in two widths
+
+def test_a_barrier_tape_in_two_widths_covers_and_the_work_order_says_how(cat):
+    from specgen.documents.settings import DocumentSettings
+    from specgen.documents.workorder import build_context
+    narrow = ("  winding_tape: {tape: TAPE-PI25-26MM, layers: 3}", "  winding_tape: {tape: TAPE-PI25-20MM, layers: 3}")
+    one = _variant(cat, "BH-2210", narrow)
+    assert any(c.code == "tape-width" and "widths: 2" in c.message for c in one.failed)
+    two = _variant(cat, "BH-2210", (narrow[0], narrow[1].replace("layers: 3}", "layers: 3, widths: 2}")))
+    assert not any(c.code == "tape-width" for c in two.failed)
+    ps = _barrier(two, "P", "S")
+    # two 20 mm widths, each against a flange of the 25.7 mm breadth: they overlap 14.3 mm, so the barrier
+    # reaches flange to flange and the path round it is both 4 mm margins again (8 mm)
+    assert ps.ok and ps.creepage_available_mm == pytest.approx(8.0)
+    after = two.floor.section("P", 1).after
+    assert after.widths == 2 and after.overlap_m == pytest.approx(0.0143)
+    steps = build_context(two, DocumentSettings.from_shop(cat.shop), number="WO-TEST", qty=1)["steps"]
+    p1 = next(s for s in steps if s["kind"] == "wind" and s["winding"] == "P")
+    assert any("lay each layer of TAPE-PI25-20MM as two widths of 20 mm" in line and "by 14.3 mm" in line
+               for line in p1["lines"])
+    # two 12 mm widths reach only 24 mm of the 25.7 mm breadth
+    short = _variant(cat, "BH-2210", (narrow[0], narrow[1].replace("TAPE-PI25-20MM, layers: 3}",
+                                                                   "TAPE-PET25-12MM, layers: 3, widths: 2}")))
+    assert any(c.code == "tape-width" and "in two widths covers at most 24 mm" in c.message for c in short.failed)
+
+
+def test_a_tape_in_two_widths_is_pulled_twice(cat):
+    wrap = ("  outer_wrap: {tape: TAPE-PI50-25MM, layers: 2}", "  outer_wrap: {tape: TAPE-PI50-25MM, layers: 2, widths: 2}")
+    one = design_file(DEMOS["BH-2210"], cat=cat)
+    two = _variant(cat, "BH-2210", wrap)
+
+    def qty(d):
+        return next(m.quantity for m in d.materials if m.id == "TAPE-PI50-25MM")
+    assert qty(two) == pytest.approx(2 * qty(one))
+
+
+def test_a_core_wrap_in_two_widths_is_refused(cat):
+    with pytest.raises(SpecError, match="'widths' is for a bobbin's"):
+        _variant(cat, "BH-4120", ("{tape: TAPE-PET50-19MM, layers: 2}     #", "{tape: TAPE-PET50-19MM, layers: 2, widths: 2} #"))

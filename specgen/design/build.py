@@ -119,15 +119,17 @@ def lay_out(spec: Spec, parts: Parts, states: Mapping[str, WindingState], cat: C
         h = sb.end_build_m
         tape_layers = wind_tape.layers if wind_tape else 0
         tape_id = wind_tape.tape if wind_tape else None
+        widths = wind_tape.widths if wind_tape else 1
         if order == last_in[chamber]:
             wrap = spec.outer_wrap or wind_tape
             tape_id = wrap.tape if wrap else None
             tape_layers = wrap.layers if wrap else 0
+            widths = wrap.widths if wrap else 1
             h += (cat.tapes[wrap.tape].thickness_m * wrap.layers * tf) if wrap else 0.0
         else:
             h += wt * tf
         heights[chamber] = h
-        out.append(BuiltSection(name, k, order + 1, sb, margin, tape_id, tape_layers, partner, chamber))
+        out.append(BuiltSection(name, k, order + 1, sb, margin, tape_id, tape_layers, partner, chamber, widths))
         if partner is not None:        # the same layers, turn for turn (equal turns are held by the kind)
             out.append(BuiltSection(partner, k, order + 1, sb, margin, None, 0, name, chamber))
     return BuiltWindow(tuple(out), max(heights.values(), default=0.0), True, "")

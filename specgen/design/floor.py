@@ -17,27 +17,34 @@ from .spec import TapeUse
 from .state import BuiltWindow, Parts
 
 
-def tape_wrap(cat: Catalog, tape_id: str | None, layers: int, lap_factor: float) -> TapeWrap | None:
-    """A tape as wound: ``layers`` wraps of the catalogue's tape, building ``thickness x layers x lap``."""
+def tape_wrap(cat: Catalog, tape_id: str | None, layers: int, lap_factor: float, widths: int = 1,
+              breadth_m: float = 0.0) -> TapeWrap | None:
+    """A tape as wound: ``layers`` wraps of the catalogue's tape, building ``thickness x layers x lap``;
+    in two widths a layer, one against each flange of ``breadth_m``, overlapping by ``2 w - breadth``."""
     if not tape_id or layers <= 0 or tape_id not in cat.tapes:
         return None
     t = cat.tapes[tape_id]
     return TapeWrap(id=t.id, name=t.name, thickness_m=t.thickness_m, width_m=t.width_m, layers=layers,
-                    lap_factor=lap_factor, build_m=t.thickness_m * layers * lap_factor)
+                    lap_factor=lap_factor, build_m=t.thickness_m * layers * lap_factor, widths=widths,
+                    overlap_m=2.0 * t.width_m - breadth_m if widths > 1 else None)
 
 
-def section_tapes(cat: Catalog, parts: Parts, built: BuiltWindow,
-                  windings: Iterable[WindingResult]) -> tuple[SectionTapes, ...]:
+def section_tapes(cat: Catalog, parts: Parts, built: BuiltWindow, windings: Iterable[WindingResult],
+                  layer_widths: int = 1) -> tuple[SectionTapes, ...]:
     """Each section's layer height and tapes, in build order (the Design's sections name the tapes)."""
     lap = tape_factor(parts.former)
     by_key = {(w.name, s.index): s for w in windings for s in w.sections}
     out = []
     for b in sorted(built.sections, key=lambda x: x.order):
         s = by_key[(b.winding, b.index)]
-        between = tape_wrap(cat, s.layer_tape, s.layer_tape_layers, lap) if len(s.layers) > 1 else None
+        f = parts.former
+        breadth = f.chambers[b.chamber - 1] if b.chamber and f.chambers else f.breadth_m
+        between = (tape_wrap(cat, s.layer_tape, s.layer_tape_layers, lap, layer_widths, breadth)
+                   if len(s.layers) > 1 else None)
         out.append(SectionTapes(winding=b.winding, index=b.index, order=b.order,
                                 layer_height_m=b.build.layer_height_m, between_layers=between,
-                                after=tape_wrap(cat, s.tape_after, s.tape_after_layers, lap)))
+                                after=tape_wrap(cat, s.tape_after, s.tape_after_layers, lap, b.tape_after_widths,
+                                                breadth)))
     return tuple(out)
 
 
@@ -85,13 +92,13 @@ def varnish_cure(cat: Catalog, varnish_id: str | None) -> VarnishCure | None:
 
 
 def floor_data(cat: Catalog, parts: Parts, built: BuiltWindow, windings: Iterable[WindingResult],
-               varnish_id: str | None, core_wrap: TapeUse | None = None) -> FloorData:
+               varnish_id: str | None, core_wrap: TapeUse | None = None, layer_widths: int = 1) -> FloorData:
     ws = tuple(windings)
     wrap = None
     if core_wrap is not None and parts.core.is_toroid:
         # half-lapped, so each wrap builds two thicknesses (the same factor the build and the barrier count)
         wrap = tape_wrap(cat, core_wrap.tape, core_wrap.layers, 2.0)
-    return FloorData(sections=section_tapes(cat, parts, built, ws), outline=core_outline(parts),
+    return FloorData(sections=section_tapes(cat, parts, built, ws, layer_widths), outline=core_outline(parts),
                      pins=pin_layout(parts, ws), varnish=varnish_cure(cat, varnish_id), core_wrap=wrap)
 
 

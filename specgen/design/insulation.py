@@ -134,12 +134,17 @@ def _edge_mm(sec: BuiltSection, tape_width_m: float | None, breadth_m: float) ->
     return min(sec.margin_m, overhang) * 1e3
 
 
+def _lacking(**figures: float | None) -> str:
+    """The catalogue keys among ``figures`` that are not on file, as the check names them."""
+    return ", ".join(k for k, v in figures.items() if v is None)
+
+
 def _pin_gap_mm(state: DesignState, a: list[str], b: list[str]) -> tuple[float | None, str]:
     bob = state.parts.bobbin
     if bob is None:
         return None, ""
     if bob.pin_size_m is None or (bob.pin_rows > 1 and bob.pin_row_spacing_m is None):
-        return None, f"bobbin {bob.id} has no pin row spacing or pin size on file"
+        return None, f"bobbin {bob.id} has no {_lacking(pin_row_spacing=bob.pin_row_spacing_m, pin_size=bob.pin_size_m)} on file"
     pa = [p for n in a for p in winding_pins(state.spec.winding(n))]
     pb = [p for n in b for p in winding_pins(state.spec.winding(n))]
     per_row = math.ceil(len(bob.pins) / bob.pin_rows)
@@ -332,14 +337,24 @@ def _same_chamber(state: DesignState, lo: BuiltSection, hi: BuiltSection, betwee
     edge across both margins, the tapes between them as the solid insulation."""
     cat = state.cat
     breadth = _breadth(state, lo.chamber)
-    over = cat.tapes[lo.tape_after].width_m if lo.tape_after else None
-    under = cat.tapes[between[-1].tape_after].width_m if between and between[-1].tape_after else None
+    # the barrier tape as laid: its width, or two widths side by side, one against each flange
+    over = cat.tapes[lo.tape_after].width_m * lo.tape_after_widths if lo.tape_after else None
+    top = between[-1] if between else None
+    under = cat.tapes[top.tape_after].width_m * top.tape_after_widths if top and top.tape_after else None
     e1, e2 = _edge_mm(lo, over, breadth), _edge_mm(hi, under, breadth)
     where = f" in chamber {lo.chamber}" if lo.chamber else ""
-    desc = (f"{e1:.2f} + {e2:.2f} mm round the edge of the {(over or 0.0) * 1e3:g} mm tape over {lo.winding}"
-            f" on the {breadth * 1e3:g} mm breadth{where}")
+    laid = (f"two widths of {cat.tapes[lo.tape_after].width_m * 1e3:g} mm tape" if lo.tape_after_widths > 1 and
+            lo.tape_after else f"{(over or 0.0) * 1e3:g} mm tape")
+    desc = f"{e1:.2f} + {e2:.2f} mm round the edge of the {laid} over {lo.winding} on the {breadth * 1e3:g} mm breadth{where}"
+    creep = e1 + e2
+    for s in between:          # a tape laid in two widths: the seam between them runs along their overlap
+        if s.tape_after and s.tape_after_widths > 1:
+            overlap = max(0.0, 2.0 * cat.tapes[s.tape_after].width_m - breadth) * 1e3
+            if overlap < creep:
+                creep = overlap
+                desc += f"; {overlap:.2f} mm along the overlap of the two widths of {s.tape_after} over {s.winding}"
     bds, words = _tape_layers(state, [(s.tape_after, s.tape_after_layers) for s in between if s.tape_after])
-    return _Provided(e1 + e2, e1 + e2, desc, tiw or _layers_pass(bds, coord.hipot.type_test_v, coord.solid), words)
+    return _Provided(creep, creep, desc, tiw or _layers_pass(bds, coord.hipot.type_test_v, coord.solid), words)
 
 
 def _breadth(state: DesignState, chamber: int) -> float:
@@ -356,10 +371,9 @@ def _across_divider(state: DesignState, lo: BuiltSection, hi: BuiltSection,
     assert bob is not None
     wall_t, wall_h = bob.divider_thickness_m, bob.divider_height_m
     if wall_t is None or wall_h is None or bob.wall_voltage_v is None:
-        lack = [k for k, v in (("divider_thickness", wall_t), ("divider_height", wall_h),
-                               ("wall_voltage", bob.wall_voltage_v)) if v is None]
+        lack = _lacking(divider_thickness=wall_t, divider_height=wall_h, wall_voltage=bob.wall_voltage_v)
         return _Provided(None, None, "", True, "", unknown=(
-            f"bobbin {bob.id} has no {', '.join(lack)} on file: the path across the divider between "
+            f"bobbin {bob.id} has no {lack} on file: the path across the divider between "
             f"{lo.winding} and {hi.winding} is not checked; measure the bobbin and add it to the catalogue",))
     a_top, b_top = lo.build.end_build_m, hi.build.end_build_m
     creep = paths.over_wall_creepage_m(lo.margin_m, a_top, hi.margin_m, b_top, wall_h, wall_t) * 1e3
@@ -429,9 +443,10 @@ def _to_core(state: DesignState, names: list[str], coord: ins.BarrierCoordinatio
     bob = parts.bobbin
     assert bob is not None
     if bob.core_creepage_m is None or bob.wall_voltage_v is None:
+        missing = _lacking(core_creepage=bob.core_creepage_m, wall_voltage=bob.wall_voltage_v)
         return _Provided(None, None, "", True, "the bobbin wall (strength not on file)",
-                         unknown=(f"bobbin {bob.id} has no core_creepage or wall_voltage on file: the path over the "
-                                  f"flange and the wall are not checked; measure them before relying on them",))
+                         unknown=(f"bobbin {bob.id} has no {missing} on file: the path over the flange to the core "
+                                  f"and the wall are not checked; measure the bobbin and add them to the catalogue",))
     margin = min((s.margin_m for s in state.built.sections if s.winding in names), default=0.0)
     creep = (margin + bob.core_creepage_m) * 1e3
     path = f"{margin * 1e3:g} mm margin + {bob.core_creepage_m * 1e3:g} mm over the flange of {bob.id}"
@@ -566,43 +581,50 @@ def coordinate(state: DesignState) -> tuple[InsulationResult | None, list[Check]
 
 
 def _tape_cover(state: DesignState) -> list[Check]:
-    """Layer tape over the copper it separates; winding tapes and the outer wrap flange to flange."""
-    spec, cat, former = state.spec, state.cat, state.parts.former
+    """Layer tape over the copper it separates; winding tapes and the outer wrap flange to flange.
+    A tape laid in two widths a layer (``widths: 2``, one against each flange) covers up to twice its width."""
+    spec, former = state.spec, state.parts.former
     if former.kind == "toroid":
         return []
     out: list[Check] = []
     barrier_below = _barrier_interfaces(spec, state.built.sections)
     last = {s.chamber: s for s in state.built.sections if s.wound_with is None or s.tape_after}
     for s in state.built.sections:
-        sb = s.build
-        breadth = _breadth(state, s.chamber)
-        if spec.layer_tape is not None and len(sb.layers) > 1:
-            w = cat.tapes[spec.layer_tape.tape].width_m
-            if w + 1e-9 < sb.usable_breadth_m:
-                out.append(Check("fail", "tape-width",
-                                 f"layer tape {spec.layer_tape.tape} is {w * 1e3:g} mm wide but winding {s.winding} "
-                                 f"lays {sb.usable_breadth_m * 1e3:.1f} mm of copper: a tape as wide as the "
-                                 f"copper (or two widths overlapped) is needed"))
-        if s.tape_after and s is last[s.chamber]:
-            w = cat.tapes[s.tape_after].width_m
-            if w + 1e-9 < sb.usable_breadth_m:
-                out.append(Check("fail", "tape-width",
-                                 f"outer wrap {s.tape_after} is {w * 1e3:g} mm wide but winding {s.winding} lays "
-                                 f"{sb.usable_breadth_m * 1e3:.1f} mm of copper: it must cover the copper"))
-        elif s.tape_after and (s.winding, s.index) in barrier_below:
-            w = cat.tapes[s.tape_after].width_m
-            if w + 1e-9 < breadth:
-                out.append(Check("fail", "tape-width",
-                                 f"tape {s.tape_after} over {s.winding} is {w * 1e3:g} mm wide on a "
-                                 f"{breadth * 1e3:g} mm breadth: as a {barrier_below[(s.winding, s.index)]} barrier "
-                                 f"it must run flange to flange over the margins"))
-        elif s.tape_after:
-            w = cat.tapes[s.tape_after].width_m
-            if w + 1e-9 < sb.usable_breadth_m:
-                out.append(Check("fail", "tape-width",
-                                 f"tape {s.tape_after} over {s.winding} is {w * 1e3:g} mm wide but covers "
-                                 f"{sb.usable_breadth_m * 1e3:.1f} mm of copper"))
+        copper = s.build.usable_breadth_m
+        if spec.layer_tape is not None and len(s.build.layers) > 1:
+            lt = spec.layer_tape
+            if (short := _short(state, lt.tape, lt.widths, copper)):
+                out.append(Check("fail", "tape-width", f"layer tape {short} but winding {s.winding} lays "
+                                                       f"{copper * 1e3:.1f} mm of copper: it must cover the copper"
+                                                       + _remedy(lt.widths)))
+        if not s.tape_after:
+            continue
+        if s is last[s.chamber]:
+            short = _short(state, s.tape_after, s.tape_after_widths, copper)
+            what = f"outer wrap {short} but winding {s.winding} lays {copper * 1e3:.1f} mm of copper: it must cover it"
+        elif (s.winding, s.index) in barrier_below:
+            breadth = _breadth(state, s.chamber)
+            short = _short(state, s.tape_after, s.tape_after_widths, breadth)
+            what = (f"tape {short} over {s.winding} on a {breadth * 1e3:g} mm breadth: as a "
+                    f"{barrier_below[(s.winding, s.index)]} barrier it must run flange to flange over the margins")
+        else:
+            short = _short(state, s.tape_after, s.tape_after_widths, copper)
+            what = f"tape {short} over {s.winding} but covers {copper * 1e3:.1f} mm of copper"
+        if short:
+            out.append(Check("fail", "tape-width", what + _remedy(s.tape_after_widths)))
     return _unique(out)
+
+
+def _short(state: DesignState, tape_id: str, widths: int, needed_m: float) -> str:
+    """'' where the tape as laid covers ``needed_m``; else what it is, in words for the tape-width check."""
+    w = state.cat.tapes[tape_id].width_m
+    if widths * w + 1e-9 >= needed_m:
+        return ""
+    return f"{tape_id} in two widths covers at most {2 * w * 1e3:g} mm" if widths > 1 else f"{tape_id} is {w * 1e3:g} mm wide"
+
+
+def _remedy(widths: int) -> str:
+    return "; use a wider tape" + (" or lay it in two widths (widths: 2)" if widths == 1 else "")
 
 
 def _barrier_interfaces(spec: Spec, sections: Sequence[BuiltSection]) -> dict[tuple[str, int], str]:

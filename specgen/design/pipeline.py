@@ -196,5 +196,6 @@ def finish(spec: Spec, cat: Catalog, parts: Parts, kind: PartKind, ev: Evaluatio
         frequencies_hz=spec.frequencies_hz, taps=taps, reset=s.reset, common_mode_choke=s.common_mode_choke,
         rise_basis=temp.r_th_basis,
         air_speed_m_s=K.cooling_model(spec.cooling, spec.air_speed_m_s, cat.shop.cooling).air_speed_m_s,
-        floor=floor_data(cat, parts, ev.built, windings, spec.varnish, getattr(spec, "core_wrap", None)),
+        floor=floor_data(cat, parts, ev.built, windings, spec.varnish, getattr(spec, "core_wrap", None),
+                         spec.layer_tape.widths if spec.layer_tape else 1),
     )

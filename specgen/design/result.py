@@ -304,6 +304,8 @@ class TapeWrap:
     layers: int                      # wraps laid
     lap_factor: float                # radial build of one wrap / thickness (2 on a toroid: half-lapped)
     build_m: float                   # thickness x layers x lap_factor, as the build counted it
+    widths: int = 1                  # 2: each layer two widths side by side, one against each flange
+    overlap_m: float | None = None   # two widths: how far the second overlaps the first (2 w - breadth)
 
 
 @record(slots=True)

@@ -54,6 +54,7 @@ THROUGH_CONDUCTOR = "conductor"   # the low-voltage range of IEC 60664-1's table
 class TapeUse:
     tape: str            # catalogue id
     layers: int
+    widths: int = 1      # 2: each layer laid as two widths side by side, overlapped in the middle
 
 
 @record
@@ -199,7 +200,11 @@ def _tape_use(r: Reader, key: str) -> TapeUse | None:
         r.raw(key, None)
         return None
     t = _section(r, key)
-    out = TapeUse(tape=t.text("tape"), layers=t.integer("layers", 1, minimum=0, maximum=50))
+    out = TapeUse(tape=t.text("tape"), layers=t.integer("layers", 1, minimum=0, maximum=50),
+                  widths=t.integer("widths", 1, minimum=1, maximum=2))
+    if out.widths > 1 and key == "core_wrap":
+        raise t.error("a core wrap is half-lapped round the ring, one width at a time; 'widths' is for a "
+                      "bobbin's layer, winding and outer tapes", "widths")
     t.done()
     return out
 

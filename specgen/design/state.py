@@ -140,6 +140,7 @@ class BuiltSection:
     tape_after_layers: int
     wound_with: str | None = None  # bifilar: the partner laid turn by turn in the same layers
     chamber: int = 0               # split bobbin: its chamber, 1 at the start flange (0: one chamber)
+    tape_after_widths: int = 1     # the tape after it laid as this many widths side by side a layer
 
 
 @record(slots=True)

@@ -144,11 +144,12 @@ def materials_per_unit(state: DesignState, core: CoreResult) -> list[MaterialLin
         if sec.wound_with is not None and spec.build_order and (sec.winding, sec.index) not in spec.build_order:
             continue                       # bifilar: its partner's layers, tapes and margins already counted
         if spec.layer_tape and len(sb.layers) > 1:
-            for layer in sb.layers[:-1]:
-                add_tape(spec.layer_tape.tape, wrap_length(spec.layer_tape.tape, layer.mlt_m, spec.layer_tape.layers))
+            for layer in sb.layers[:-1]:          # two widths a layer: twice the tape
+                add_tape(spec.layer_tape.tape, spec.layer_tape.widths
+                         * wrap_length(spec.layer_tape.tape, layer.mlt_m, spec.layer_tape.layers))
         if tape_id and tape_layers:
             outer = parts.former.mlt_m(sb.end_build_m)
-            add_tape(tape_id, wrap_length(tape_id, outer, tape_layers))
+            add_tape(tape_id, sec.tape_after_widths * wrap_length(tape_id, outer, tape_layers))
         if spec.margin_tape and margin > 0 and not tf_toroid:
             t = cat.tapes[spec.margin_tape].thickness_m
             wraps = math.ceil(sb.layer_height_m / t - 1e-9)

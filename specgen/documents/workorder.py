@@ -310,6 +310,18 @@ def lead_exit_lines(d, w, s) -> list[str]:
             if b.lead_exit_mm is not None and w.name in [n.strip() for n in b.between[1].split("+")]]
 
 
+def _two_widths(t) -> str:
+    return ", two widths a layer (see below)" if t is not None and t.widths > 1 else ""
+
+
+def two_widths_line(t, where: str) -> str:
+    """How the winder lays a tape in two widths so that it covers from flange to flange."""
+    return (f"TWO WIDTHS {where.upper()}: lay each layer of {t.id} as two widths of {fmt_mm(t.width_m)}: the "
+            f"first against the start flange, the second against the finish flange, lying over the first by "
+            f"{t.overlap_m * 1e3:.1f} mm in the middle. Every layer the same way, each width pulled flat and tight "
+            f"to its flange: no gap at a flange and no gap at the overlap (the inspector checks both).")
+
+
 def tap_line(t, w, pin_word: str) -> str:
     """Where a tap comes out, in the winder's count: the layer and the turn in it."""
     sleeve = f", sleeved with {w.lead_sleeving}" if w.lead_sleeving else ""
@@ -468,15 +480,16 @@ def build_context(design, settings, *, number: str, qty: int, due: str | None = 
             rows.append(("Margins", (f"{fmt_mm(s.margin_m)} each side: {s.margin_tape} built up to the "
                                      f"height of each layer" if s.margin_tape else f"{fmt_mm(s.margin_m)} each side")
                          if s.margin_m > 0 else "none", ""))
+        tapes = d.floor.section(w.name, s.index)
         if s.layer_tape:
             rows.append(("Between layers", f"{s.layer_tape} × {s.layer_tape_layers}"
-                         + (", half-lapped" if toroid else ""), ""))
+                         + (", half-lapped" if toroid else "") + _two_widths(tapes.between_layers), ""))
         else:
             rows.append(("Between layers", "— (one layer)" if len(s.layers) <= 1 else "no tape", ""))
         if s.tape_after:
             what = "outer wrap" if s.order == last_in[s.chamber] else "before the next section"
             rows.append(("After this section", f"{s.tape_after} × {s.tape_after_layers} ({what}"
-                         + (", half-lapped)" if toroid else ")"), "key"))
+                         + (", half-lapped)" if toroid else ")") + _two_widths(tapes.after), "key"))
         else:
             rows.append(("After this section", "no tape", ""))
         rows.append((f"Finish {pin_word}", finish_value, "dot" if dot and w.dot_pin == s.finish_pin else "key"))
@@ -489,6 +502,9 @@ def build_context(design, settings, *, number: str, qty: int, due: str | None = 
                    + (f" in chamber {s.chamber}" if s.chamber else ""))
         lines = [tap_line(t, w, pin_word) for t in d.taps if t.winding == w.name and t.section == s.index]
         lines += lead_exit_lines(d, w, s) if toroid else []
+        lines += [two_widths_line(t, where) for t, where in ((tapes.between_layers, "between the layers"),
+                                                             (tapes.after, "after this section"))
+                  if t is not None and t.widths > 1]
         if mate is not None:
             rows, heading, more = bifilar_rows(rows, w, mate, pin_word)
             lines = more + lines
