@@ -274,6 +274,9 @@ def test_a_barrier_tape_in_two_widths_covers_and_the_work_order_says_how(cat):
     p1 = next(s for s in steps if s["kind"] == "wind" and s["winding"] == "P")
     assert any("lay each layer of TAPE-PI25-20MM as two widths of 20 mm" in line and "by 14.3 mm" in line
                for line in p1["lines"])
+    after_row = next(r[1] for r in p1["rows"] if r[0] == "After this section")
+    assert "two widths a layer" in after_row
+    assert "the reinforced barrier, flange to flange over the margin tapes, no gap at either flange" in after_row
     # two 12 mm widths reach only 24 mm of the 25.7 mm breadth
     short = _variant(cat, "BH-2210", (narrow[0], narrow[1].replace("TAPE-PI25-20MM, layers: 3}",
                                                                    "TAPE-PET25-12MM, layers: 3, widths: 2}")))

@@ -30,9 +30,11 @@ def tape_wrap(cat: Catalog, tape_id: str | None, layers: int, lap_factor: float,
 
 
 def section_tapes(cat: Catalog, parts: Parts, built: BuiltWindow, windings: Iterable[WindingResult],
-                  layer_widths: int = 1) -> tuple[SectionTapes, ...]:
+                  layer_widths: int = 1, barriers: Mapping[tuple[str, int], str] | None = None
+                  ) -> tuple[SectionTapes, ...]:
     """Each section's layer height and tapes, in build order (the Design's sections name the tapes)."""
     lap = tape_factor(parts.former)
+    barriers = barriers or {}
     by_key = {(w.name, s.index): s for w in windings for s in w.sections}
     out = []
     for b in sorted(built.sections, key=lambda x: x.order):
@@ -42,6 +44,7 @@ def section_tapes(cat: Catalog, parts: Parts, built: BuiltWindow, windings: Iter
         between = (tape_wrap(cat, s.layer_tape, s.layer_tape_layers, lap, layer_widths, breadth)
                    if len(s.layers) > 1 else None)
         out.append(SectionTapes(winding=b.winding, index=b.index, order=b.order,
+                                barrier=barriers.get((b.winding, b.index), ""),
                                 layer_height_m=b.build.layer_height_m, between_layers=between,
                                 after=tape_wrap(cat, s.tape_after, s.tape_after_layers, lap, b.tape_after_widths,
                                                 breadth)))
@@ -92,13 +95,14 @@ def varnish_cure(cat: Catalog, varnish_id: str | None) -> VarnishCure | None:
 
 
 def floor_data(cat: Catalog, parts: Parts, built: BuiltWindow, windings: Iterable[WindingResult],
-               varnish_id: str | None, core_wrap: TapeUse | None = None, layer_widths: int = 1) -> FloorData:
+               varnish_id: str | None, core_wrap: TapeUse | None = None, layer_widths: int = 1,
+               barriers: Mapping[tuple[str, int], str] | None = None) -> FloorData:
     ws = tuple(windings)
     wrap = None
     if core_wrap is not None and parts.core.is_toroid:
         # half-lapped, so each wrap builds two thicknesses (the same factor the build and the barrier count)
         wrap = tape_wrap(cat, core_wrap.tape, core_wrap.layers, 2.0)
-    return FloorData(sections=section_tapes(cat, parts, built, ws, layer_widths), outline=core_outline(parts),
+    return FloorData(sections=section_tapes(cat, parts, built, ws, layer_widths, barriers), outline=core_outline(parts),
                      pins=pin_layout(parts, ws), varnish=varnish_cure(cat, varnish_id), core_wrap=wrap)
 
 

@@ -587,7 +587,7 @@ def _tape_cover(state: DesignState) -> list[Check]:
     if former.kind == "toroid":
         return []
     out: list[Check] = []
-    barrier_below = _barrier_interfaces(spec, state.built.sections)
+    barrier_below = barrier_interfaces(spec, state.built.sections)
     last = {s.chamber: s for s in state.built.sections if s.wound_with is None or s.tape_after}
     for s in state.built.sections:
         copper = s.build.usable_breadth_m
@@ -627,7 +627,7 @@ def _remedy(widths: int) -> str:
     return "; use a wider tape" + (" or lay it in two widths (widths: 2)" if widths == 1 else "")
 
 
-def _barrier_interfaces(spec: Spec, sections: Sequence[BuiltSection]) -> dict[tuple[str, int], str]:
+def barrier_interfaces(spec: Spec, sections: Sequence[BuiltSection]) -> dict[tuple[str, int], str]:
     """Sections whose tape above is a safety barrier: the next section is on the other side of a declared
     barrier that is more than functional. Maps (winding, section) to the barrier's grade."""
     out: dict[tuple[str, int], str] = {}

@@ -27,7 +27,7 @@ from .build import copper_lengths_m, winding_fr
 from .checks import run_checks
 from .floor import floor_data, history_entries
 from .flux import b_sat_hot_t
-from .insulation import coordinate
+from .insulation import barrier_interfaces, coordinate
 from .kinds import PartKind, kind_for
 from .resolve import catalog_ids, check_pins, check_references, core_result, resolve_core, spec_error
 from .result import Build, Design, Losses, Section, WindingResult
@@ -197,5 +197,5 @@ def finish(spec: Spec, cat: Catalog, parts: Parts, kind: PartKind, ev: Evaluatio
         rise_basis=temp.r_th_basis,
         air_speed_m_s=K.cooling_model(spec.cooling, spec.air_speed_m_s, cat.shop.cooling).air_speed_m_s,
         floor=floor_data(cat, parts, ev.built, windings, spec.varnish, getattr(spec, "core_wrap", None),
-                         spec.layer_tape.widths if spec.layer_tape else 1),
+                         spec.layer_tape.widths if spec.layer_tape else 1, barrier_interfaces(spec, ev.built.sections)),
     )

@@ -317,6 +317,7 @@ class SectionTapes:
     layer_height_m: float            # radial height of one wire layer
     between_layers: TapeWrap | None  # tape between this section's layers (None with one layer)
     after: TapeWrap | None           # tape wrapped after the section (the outer wrap after the last)
+    barrier: str = ""                # the tape after is a safety barrier of this grade (flange to flange)
 
 
 @record(slots=True)

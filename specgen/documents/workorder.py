@@ -489,7 +489,10 @@ def build_context(design, settings, *, number: str, qty: int, due: str | None = 
         if s.tape_after:
             what = "outer wrap" if s.order == last_in[s.chamber] else "before the next section"
             rows.append(("After this section", f"{s.tape_after} × {s.tape_after_layers} ({what}"
-                         + (", half-lapped)" if toroid else ")") + _two_widths(tapes.after), "key"))
+                         + (", half-lapped)" if toroid else ")") + _two_widths(tapes.after)
+                         + (f": the {tapes.barrier} barrier, flange to flange"
+                            + (" over the margin tapes" if s.margin_tape else "") + ", no gap at either flange"
+                            if tapes.barrier and not toroid else ""), "key"))
         else:
             rows.append(("After this section", "no tape", ""))
         rows.append((f"Finish {pin_word}", finish_value, "dot" if dot and w.dot_pin == s.finish_pin else "key"))
