@@ -435,7 +435,7 @@ def _to_core(state: DesignState, names: list[str], coord: ins.BarrierCoordinatio
                              _layers_pass(bds, test_v, coord.solid), f"core wrap: {words}")
         if core.coating_voltage_v is not None:
             ok = core.coating_voltage_v >= test_v
-            return _Provided(None, None, "the core is enclosed in its coating (no surface path to bare steel)", ok,
+            return _Provided(None, None, "the core is enclosed in its coating (no surface path to the bare core)", ok,
                              f"core coating rated {core.coating_voltage_v / 1e3:g} kV")
         return _Provided(None, None, "nothing under the first winding", False, "nothing",
                          (f"nothing insulates the first winding from core {core.id}: add a core wrap "
@@ -540,7 +540,7 @@ def _one(state: DesignState, basis: InsulationBasis, b: Barrier) -> BarrierResul
     ok = not problems
     if ok:
         def given(x: float | None) -> str:
-            return "no path on this side" if x is None else f"{x:.2f} mm given"
+            return "no open path (solid insulation encloses it)" if x is None else f"{x:.2f} mm given"
         message = (f"{label} at {b.working_voltage_v:g} V: clearance {clear_req:.2f} mm needed, "
                    f"{given(prov.clearance_mm)}; creepage {creep_req:.2f} mm needed, {given(prov.creepage_mm)}; "
                    f"solid: {prov.solid}" + ("".join(f"; NOT CHECKED: {u}" for u in prov.unknown)))
