@@ -296,3 +296,20 @@ def test_a_tape_in_two_widths_is_pulled_twice(cat):
 def test_a_core_wrap_in_two_widths_is_refused(cat):
     with pytest.raises(SpecError, match="'widths' is for a bobbin's"):
         _variant(cat, "BH-4120", ("{tape: TAPE-PET50-19MM, layers: 2}     #", "{tape: TAPE-PET50-19MM, layers: 2, widths: 2} #"))
+
+
+def test_the_work_order_shows_the_chamber_layout(cat):
+    from specgen.documents.settings import DocumentSettings
+    from specgen.documents.workorder import build_context
+    d = _split(cat)
+    ctx = build_context(d, DocumentSettings.from_shop(cat.shop), number="WO-TEST", qty=1, draft=True)
+    bobbin = next(v for k, v in ctx["summary"] if k == "Bobbin")
+    assert bobbin == "BOB-EI125-32-SPLIT, split: 2 chambers of 21.3 + 21.3 mm, 1.5 mm divider"
+    winds = [s for s in ctx["steps"] if s["kind"] == "wind"]
+    assert [s["heading"] for s in winds] == ["Wind P in chamber 1", "Wind S1 in chamber 2", "Wind S2 in chamber 2"]
+    chamber = next(r[1] for r in winds[0]["rows"] if r[0] == "Chamber")
+    assert chamber.startswith("1 of 2, at the start flange: 21.3 mm between the start flange and the divider")
+    # the last section in each chamber takes the outer wrap
+    after = [next(r[1] for r in s["rows"] if r[0] == "After this section") for s in winds]
+    assert "(outer wrap)" in after[0] and "(before the next section)" in after[1] and "(outer wrap)" in after[2]
+    assert ctx["window_svg"].count('class="divider"') == 1

@@ -310,6 +310,15 @@ def lead_exit_lines(d, w, s) -> list[str]:
             if b.lead_exit_mm is not None and w.name in [n.strip() for n in b.between[1].split("+")]]
 
 
+def _chambers_text(outline) -> str:
+    """A split bobbin's chambers as the summary names them: their breadths and the divider between them."""
+    if not outline.chambers:
+        return ""
+    wall = f", {outline.divider_m * 1e3:g} mm divider" if outline.divider_m else ""
+    return (f", split: {len(outline.chambers)} chambers of "
+            + " + ".join(f"{c * 1e3:.1f}" for c in outline.chambers) + f" mm{wall}")
+
+
 def _two_widths(t) -> str:
     return ", two widths a layer (see below)" if t is not None and t.widths > 1 else ""
 
@@ -395,7 +404,8 @@ def build_context(design, settings, *, number: str, qty: int, due: str | None = 
         ("Part", f"{d.part} rev {d.revision} ({d.status})"), ("Kind", d.kind),
         ("Core", f"{d.core.id}, {d.core.material_name}"
                  + (f", stack {fmt_mm(d.core.stack_m)}" if d.core.stack_m and not toroid else "")),
-        ("Bobbin", d.core.bobbin if d.core.bobbin else "none (toroid, wound on the core)"),
+        ("Bobbin", (d.core.bobbin + _chambers_text(d.floor.outline)) if d.core.bobbin
+         else "none (toroid, wound on the core)"),
         ("Windings", ", ".join(f"{w.name} {w.turns} t" for w in d.windings)),
         ("Operating", f"{present.frequency(d.frequency_hz)}, insulation class {d.insulation_class_c}"),
     ]
