@@ -23,6 +23,7 @@ from pathlib import Path
 from .. import present
 from ..errors import DesignFailed, SpecError
 from .connections_doc import connections_context
+from .insulation_words import chamber_row, chambers_text, lead_exit_lines, two_widths_line, two_widths_note
 from .settings import DocumentSettings
 from .test_record import RECORD_BOTTOM_MM, RECORD_TOP_MM, build_record
 
@@ -285,52 +286,6 @@ def bifilar_rows(rows: list, w, mate, pin_word: str) -> tuple[list, str, list]:
     return out, heading, lines
 
 
-def chamber_row(d, s) -> tuple[str, str, str]:
-    """Which chamber of a split bobbin a section is wound in, as the winder finds it on the bobbin."""
-    outline = d.floor.outline
-    n = len(outline.chambers)
-    side = "at the start flange" if s.chamber == 1 else ("at the finish flange" if s.chamber == n else "between dividers")
-    return ("Chamber", f"{s.chamber} of {n}, {side}: {outline.chambers[s.chamber - 1] * 1e3:.1f} mm between the "
-                       f"{'start flange' if s.chamber == 1 else 'divider'} and the "
-                       f"{'finish flange' if s.chamber == n else 'divider'}; keep every turn on this side of the "
-                       f"divider", "key")
-
-
-def lead_exit_lines(d, w, s) -> list[str]:
-    """A toroid's leads across a barrier: where this winding's leads leave, against the other side's."""
-    if d.insulation is None or s.index != 1:
-        return []
-    return [f"LEAD EXIT: bring the leads of {w.name} out of the ring "
-            + (f"on the opposite side from the leads of {b.between[0]} ({b.lead_exit_mm:.0f} mm round the core's "
-               f"outside)" if b.lead_exit_opposite else
-               f"at least {b.lead_exit_mm:.0f} mm round the core's outside from the leads of {b.between[0]}")
-            + f": the {b.grade} barrier's creepage where the leads leave. Keep each winding's leads together, "
-              f"sleeved into the winding."
-            for b in d.insulation.barriers
-            if b.lead_exit_mm is not None and w.name in [n.strip() for n in b.between[1].split("+")]]
-
-
-def _chambers_text(outline) -> str:
-    """A split bobbin's chambers as the summary names them: their breadths and the divider between them."""
-    if not outline.chambers:
-        return ""
-    wall = f", {outline.divider_m * 1e3:g} mm divider" if outline.divider_m else ""
-    return (f", split: {len(outline.chambers)} chambers of "
-            + " + ".join(f"{c * 1e3:.1f}" for c in outline.chambers) + f" mm{wall}")
-
-
-def _two_widths(t) -> str:
-    return ", two widths a layer (see below)" if t is not None and t.widths > 1 else ""
-
-
-def two_widths_line(t, where: str) -> str:
-    """How the winder lays a tape in two widths so that it covers from flange to flange."""
-    return (f"TWO WIDTHS {where.upper()}: lay each layer of {t.id} as two widths of {fmt_mm(t.width_m)}: the "
-            f"first against the start flange, the second against the finish flange, lying over the first by "
-            f"{t.overlap_m * 1e3:.1f} mm in the middle. Every layer the same way, each width pulled flat and tight "
-            f"to its flange: no gap at a flange and no gap at the overlap (the inspector checks both).")
-
-
 def tap_line(t, w, pin_word: str) -> str:
     """Where a tap comes out, in the winder's count: the layer and the turn in it."""
     sleeve = f", sleeved with {w.lead_sleeving}" if w.lead_sleeving else ""
@@ -404,7 +359,7 @@ def build_context(design, settings, *, number: str, qty: int, due: str | None = 
         ("Part", f"{d.part} rev {d.revision} ({d.status})"), ("Kind", d.kind),
         ("Core", f"{d.core.id}, {d.core.material_name}"
                  + (f", stack {fmt_mm(d.core.stack_m)}" if d.core.stack_m and not toroid else "")),
-        ("Bobbin", (d.core.bobbin + _chambers_text(d.floor.outline)) if d.core.bobbin
+        ("Bobbin", (d.core.bobbin + chambers_text(d.floor.outline)) if d.core.bobbin
          else "none (toroid, wound on the core)"),
         ("Windings", ", ".join(f"{w.name} {w.turns} t" for w in d.windings)),
         ("Operating", f"{present.frequency(d.frequency_hz)}, insulation class {d.insulation_class_c}"),
@@ -493,13 +448,13 @@ def build_context(design, settings, *, number: str, qty: int, due: str | None = 
         tapes = d.floor.section(w.name, s.index)
         if s.layer_tape:
             rows.append(("Between layers", f"{s.layer_tape} × {s.layer_tape_layers}"
-                         + (", half-lapped" if toroid else "") + _two_widths(tapes.between_layers), ""))
+                         + (", half-lapped" if toroid else "") + two_widths_note(tapes.between_layers), ""))
         else:
             rows.append(("Between layers", "— (one layer)" if len(s.layers) <= 1 else "no tape", ""))
         if s.tape_after:
             what = "outer wrap" if s.order == last_in[s.chamber] else "before the next section"
             rows.append(("After this section", f"{s.tape_after} × {s.tape_after_layers} ({what}"
-                         + (", half-lapped)" if toroid else ")") + _two_widths(tapes.after)
+                         + (", half-lapped)" if toroid else ")") + two_widths_note(tapes.after)
                          + (f": the {tapes.barrier} barrier, flange to flange"
                             + (" over the margin tapes" if s.margin_tape else "") + ", no gap at either flange"
                             if tapes.barrier and not toroid else ""), "key"))
