@@ -313,3 +313,17 @@ def test_the_work_order_shows_the_chamber_layout(cat):
     after = [next(r[1] for r in s["rows"] if r[0] == "After this section") for s in winds]
     assert "(outer wrap)" in after[0] and "(before the next section)" in after[1] and "(outer wrap)" in after[2]
     assert ctx["window_svg"].count('class="divider"') == 1
+
+
+def test_the_window_drawing_lays_tapes_at_their_true_width(cat):
+    from specgen.documents.settings import DocumentSettings
+    from specgen.documents.workorder import build_context
+    one = design_file(DEMOS["BH-2210"], cat=cat)
+    two = _variant(cat, "BH-2210", ("  winding_tape: {tape: TAPE-PI25-26MM, layers: 3}",
+                                    "  winding_tape: {tape: TAPE-PI25-20MM, layers: 3, widths: 2}"))
+
+    def tapes(d):
+        svg = build_context(d, DocumentSettings.from_shop(cat.shop), number="WO-TEST", qty=1, draft=True)["window_svg"]
+        return str(svg).count('class="tape"')
+    # P.1 and S each get one more line (their barrier tape in two widths); P.2's outer wrap stays one
+    assert tapes(two) == tapes(one) + 2

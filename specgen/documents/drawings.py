@@ -280,6 +280,15 @@ class SectionDraw:
     slot: tuple[int, int] = (0, 1)   # (place, of) among windings wound together in one layer (bifilar: of 2)
     x0_m: float = 0.0         # split bobbin: where its chamber starts, from the start flange
     breadth_m: float = 0.0    # split bobbin: its chamber's breadth (0: the whole breadth)
+    tape_widths_m: tuple = ()         # the tape after: each width as laid, (from, to) along the breadth
+    layer_tape_widths_m: tuple = ()   # the layer tape: the same (empty: drawn across the whole breadth)
+
+
+def _tape_lines(widths: tuple, xs, y: float, stroke: float) -> list[str]:
+    """A tape across the breadth at its true width: one line per width as laid (two widths overlap, the
+    second drawn a stroke higher so the overlap shows)."""
+    return [f'<line class="tape" x1="{_n(xs(a))}" y1="{_n(y - k * stroke)}" x2="{_n(xs(b))}" y2="{_n(y - k * stroke)}" '
+            f'stroke="{TAPE}" stroke-width="{_n(stroke)}"/>' for k, (a, b) in enumerate(widths)]
 
 
 def choose_scale(real_w_mm: float, real_h_mm: float, max_w_mm: float, max_h_mm: float) -> float:
@@ -389,13 +398,11 @@ def window_section(breadth_m: float, available_m: float, bulged_m: float, sectio
                             f'x="{_n(xs(x_start))}" y="{_n(Y(y1))}" width="{_n(width * 1e3 * s)}" '
                             f'height="{_n(lh * 1e3 * s)}" fill="{colour}" fill-opacity="0.75"/>')
             if sec.layer_tape_m > 0 and i < len(sec.layers) - 1:
-                ty = Y(y1 + sec.layer_tape_m / 2)
-                body.append(f'<line class="tape" x1="{_n(xs(0))}" y1="{_n(ty)}" x2="{_n(xs(breadth_m))}" '
-                            f'y2="{_n(ty)}" stroke="{TAPE}" stroke-width="{_n(max(0.35, sec.layer_tape_m * 1e3 * s))}"/>')
+                body += _tape_lines(sec.layer_tape_widths_m or ((0.0, breadth_m),), xs, Y(y1 + sec.layer_tape_m / 2),
+                                    max(0.35, sec.layer_tape_m * 1e3 * s))
         if sec.tape_after and sec.tape_after_m > 0:
-            ty = Y(sec.end_m + sec.tape_after_m / 2)
-            body.append(f'<line class="tape" x1="{_n(xs(0))}" y1="{_n(ty)}" x2="{_n(xs(breadth_m))}" y2="{_n(ty)}" '
-                        f'stroke="{TAPE}" stroke-width="{_n(max(0.5, sec.tape_after_m * 1e3 * s))}"/>')
+            body += _tape_lines(sec.tape_widths_m or ((0.0, breadth_m),), xs, Y(sec.end_m + sec.tape_after_m / 2),
+                                max(0.5, sec.tape_after_m * 1e3 * s))
         labels.append((sec, colour, xs(breadth_m), Y((sec.start_m + sec.end_m) / 2)))
 
     # labels in a column to the right, leader lines to each section's middle
@@ -409,7 +416,8 @@ def window_section(breadth_m: float, available_m: float, bulged_m: float, sectio
     body.append(f'<path d="M{_n(left)} {_n(by)} h{_n(bar)} M{_n(left)} {_n(by - 1.2)} v2.4 M{_n(left + bar)} '
                 f'{_n(by - 1.2)} v2.4" stroke="{INK}" stroke-width="0.4" fill="none"/>')
     body.append(_t(left + bar + 2, by + 1.2, f"{bar_mm} mm   (scale {scale_text(s)} when printed at 100 %)", 3.0))
-    body.append(_t(left, by + 6.0, "Tape lines are drawn at least 0.35 mm wide so that thin tape shows.", 3.0,
+    body.append(_t(left, by + 6.0, "Tapes at their true width (two widths one above the other), at least "
+                                   "0.35 mm thick so thin tape shows.", 3.0,
                    fill="#444"))
     return _svg(width_mm, height, body, "window cross-section to scale", "window-section"), s
 

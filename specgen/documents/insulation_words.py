@@ -52,3 +52,17 @@ def two_widths_line(t, where: str) -> str:
             f"first against the start flange, the second against the finish flange, lying over the first by "
             f"{t.overlap_m * 1e3:.1f} mm in the middle. Every layer the same way, each width pulled flat and tight "
             f"to its flange: no gap at a flange and no gap at the overlap (the inspector checks both).")
+
+
+def laid_widths(t, breadth_m: float) -> tuple[tuple[float, float], ...]:
+    """Where a tape lies along the breadth, width by width, for the drawing: two widths each against its
+    flange; one width narrower than the breadth centred over the copper; else flange to flange."""
+    if t is None:
+        return ()
+    w = t.width_m
+    if t.widths > 1:
+        return ((0.0, min(w, breadth_m)), (max(0.0, breadth_m - w), breadth_m))
+    if w >= breadth_m:
+        return ((0.0, breadth_m),)
+    centre = breadth_m / 2.0
+    return ((centre - w / 2.0, centre + w / 2.0),)

@@ -23,7 +23,14 @@ from pathlib import Path
 from .. import present
 from ..errors import DesignFailed, SpecError
 from .connections_doc import connections_context
-from .insulation_words import chamber_row, chambers_text, lead_exit_lines, two_widths_line, two_widths_note
+from .insulation_words import (
+    chamber_row,
+    chambers_text,
+    laid_widths,
+    lead_exit_lines,
+    two_widths_line,
+    two_widths_note,
+)
 from .settings import DocumentSettings
 from .test_record import RECORD_BOTTOM_MM, RECORD_TOP_MM, build_record
 
@@ -234,7 +241,9 @@ def _drawings(design, settings) -> dict:
             round_wire=w.wire_kind in ("round", "litz", "tiw"), tape_after=s.tape_after,
             tape_after_m=tapes.after.build_m if tapes.after else 0.0,
             layer_tape_m=tapes.between_layers.build_m if tapes.between_layers else 0.0,
-            colour_index=index[w.name], slot=_bifilar_slot(design, w, s), x0_m=x0, breadth_m=breadth))
+            colour_index=index[w.name], slot=_bifilar_slot(design, w, s), x0_m=x0, breadth_m=breadth,
+            tape_widths_m=laid_widths(tapes.after, breadth or outline.winding_breadth_m),
+            layer_tape_widths_m=laid_widths(tapes.between_layers, breadth or outline.winding_breadth_m)))
     dividers = tuple((x - outline.divider_m, outline.divider_m, outline.divider_height_m)
                      for x in starts[1:])
     sectors = sector_context(design, text_width_mm)
