@@ -1,4 +1,5 @@
-"""A split bobbin's chambers as the catalogue gives them: each chamber's breadth and the divider between them.
+"""A bobbin's own keys read apart from the loader: the cores it fits, and a split bobbin's chambers (each
+chamber's breadth and the divider between them).
 
 Read with the bobbin (``loader._bobbin``): the breadths, start flange first, add up to the bobbin's breadth
 (both chambers, the divider excluded); the divider is no higher than the flanges' build height.
@@ -7,7 +8,7 @@ Read with the bobbin (``loader._bobbin``): the breadths, start flange first, add
 from __future__ import annotations
 
 from .. import units as _units
-from ..loading import Reader
+from ..loading import RENAMED_KEYS, Reader
 from .models import Bobbin
 
 
@@ -44,3 +45,15 @@ def check_chambers(r: Reader, b: Bobbin) -> None:
     if b.divider_height_m is not None and b.divider_height_m > b.height_m + 1e-9:
         raise r.error(f"the divider ({b.divider_height_m * 1e3:g} mm) is higher than the flanges' build height "
                       f"{b.height_m * 1e3:g} mm", "divider_height")
+
+
+def core_ids(r: Reader) -> tuple[str, ...]:
+    """The ids of the cores a bobbin fits: one body in several grades takes the same bobbin."""
+    ids = tuple(str(c).strip() for c in r.list_of("cores", None) or ())
+    if not ids or not all(ids):
+        if r.has("core"):
+            raise r.error(RENAMED_KEYS["bobbins"]["core"], "core")
+        raise r.error("list the cores this bobbin fits, e.g. cores: [ETD-39-F100, ETD-39-F300]", "cores")
+    if len(set(ids)) != len(ids):
+        raise r.error("a core is listed twice", "cores")
+    return ids

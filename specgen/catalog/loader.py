@@ -17,7 +17,7 @@ from typing import Any
 
 from ..errors import SpecError
 from ..loading import RENAMED_KEYS, Reader, load_yaml
-from .chambers import chamber_breadths, check_chambers
+from .chambers import chamber_breadths, check_chambers, core_ids
 from .fits import check_bobbins
 from .models import (
     CORE_SHAPES,
@@ -328,7 +328,7 @@ def _bobbin(r: Reader) -> Bobbin:
         n = r.integer("pins", minimum=1, maximum=200)
         pins = tuple(str(i) for i in range(1, n + 1))
     b = Bobbin(
-        id=r.text("id"), cores=_core_ids(r), shape=shape, tube_width_m=tube_w, tube_depth_m=tube_d,
+        id=r.text("id"), cores=core_ids(r), shape=shape, tube_width_m=tube_w, tube_depth_m=tube_d,
         breadth_m=r.quantity("breadth", "length", maximum=MAX_DIMENSION_M),
         height_m=r.quantity("height", "length", maximum=MAX_DIMENSION_M),
         pins=pins, pin_pitch_m=r.quantity("pin_pitch", "length", 0.005),
@@ -347,18 +347,6 @@ def _bobbin(r: Reader) -> Bobbin:
     r.done(renamed=RENAMED_KEYS["bobbins"])
     check_chambers(r, b)
     return b
-
-
-def _core_ids(r: Reader) -> tuple[str, ...]:
-    """The ids of the cores a bobbin fits: one body in several grades takes the same bobbin."""
-    ids = tuple(str(c).strip() for c in r.list_of("cores", None) or ())
-    if not ids or not all(ids):
-        if r.has("core"):
-            raise r.error(RENAMED_KEYS["bobbins"]["core"], "core")
-        raise r.error("list the cores this bobbin fits, e.g. cores: [ETD-39-F100, ETD-39-F300]", "cores")
-    if len(set(ids)) != len(ids):
-        raise r.error("a core is listed twice", "cores")
-    return ids
 
 
 def _tape(r: Reader) -> Tape:

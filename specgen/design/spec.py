@@ -354,15 +354,13 @@ def parse_spec(data: Any, name: str) -> Spec:
     ins = r.mapping("insulation", None)
     layer_tape = winding_tape = outer_wrap = core_wrap = None
     margin_m = 0.0
-    margin_tape = sleeving = varnish = None
+    margin_tape = sleeving = varnish = lead_exit = None
     barriers: tuple[Barrier, ...] = ()
     basis: dict[str, Any] = {}
-    lead_exit = None
     if ins is not None:
         lead_exit = ins.quantity("lead_exit_spacing", "length", None)
         layer_tape, winding_tape = _tape_use(ins, "layer_tape"), _tape_use(ins, "winding_tape")
-        outer_wrap = _tape_use(ins, "outer_wrap")
-        core_wrap = _tape_use(ins, "core_wrap")
+        outer_wrap, core_wrap = _tape_use(ins, "outer_wrap"), _tape_use(ins, "core_wrap")
         basis = _insulation_basis(ins)
         margin_m = ins.quantity("margin", "length", 0.0, allow_zero=True)
         margin_tape, sleeving = ins.text("margin_tape", None), ins.text("sleeving", None)
