@@ -43,12 +43,15 @@ def _page(n: int, fill: float, text: str = "", min_pt: float = 10.0, paths: list
 
 def test_the_rules_catch_what_a_reader_objects_to():
     wo, quote = Path("WO-2026-00001.pdf"), Path("BH-1-revA-quote.pdf")
-    # a middle page filled to 40 % is flagged; the same page before the test sheet, or as the last, is not
+    record = "7. Test record\nTest record BH-1042 rev A, lot DEMO-BH-1042: serials 1-12 of 50"
+    # a middle page filled to 40 % is flagged; the same page before the test record, or as the last, is not
     assert pagecheck.problems(wo, [_page(1, 0.9), _page(2, 0.4), _page(3, 0.9)])
-    assert not pagecheck.problems(wo, [_page(1, 0.9), _page(2, 0.4), _page(3, 0.9, "4. Test sheet\nDC")])
+    assert not pagecheck.problems(wo, [_page(1, 0.9), _page(2, 0.4), _page(3, 0.9, record)])
     assert not pagecheck.problems(wo, [_page(1, 0.9), _page(2, 0.4)])
-    # the fresh start is the work order's own: a quote page before a 'Test sheet' heading still counts
-    assert pagecheck.problems(quote, [_page(1, 0.4), _page(2, 0.9, "4. Test sheet")])
+    # the test sheet (limits) flows on after the steps: it is no reason for a loose page
+    assert pagecheck.problems(wo, [_page(1, 0.9), _page(2, 0.4), _page(3, 0.9, "4. Test sheet\nDC")])
+    # the fresh start is the work order's own: a quote page before a 'Test record' heading still counts
+    assert pagecheck.problems(quote, [_page(1, 0.4), _page(2, 0.9, record)])
     assert pagecheck.problems(quote, [_page(1, 0.9, min_pt=8.0)])
     assert not pagecheck.problems(quote, [_page(1, 0.9, min_pt=8.47)])
     assert pagecheck.problems(quote, [_page(1, 0.9, paths=["/work/x/catalog"])])

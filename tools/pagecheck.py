@@ -50,9 +50,6 @@ FOOTER_SLACK_MM = 1.0
 #: and the reason. The page before one may stay under half full.
 FRESH_STARTS: dict[str, dict[str, str]] = {
     "workorder": {
-        r"\d+\. Test sheet": "the test sheet is a record of its own (it goes to the test station with the lot "
-                             "and is filed apart from the build steps): it starts a new page (specgen.css "
-                             ".page-break)",
         r"Test record \S+ rev \S+, lot": "the test record is printed landscape (a column for every test, wide "
                                            "enough to write in): its pages turn the paper and start fresh",
     },
