@@ -327,3 +327,19 @@ def test_the_window_drawing_lays_tapes_at_their_true_width(cat):
         return str(svg).count('class="tape"')
     # P.1 and S each get one more line (their barrier tape in two widths); P.2's outer wrap stays one
     assert tapes(two) == tapes(one) + 2
+
+
+def test_a_toroid_on_its_coating_and_a_toroids_barrier_tape_are_spelt_out(cat):
+    from specgen.documents.settings import DocumentSettings
+    from specgen.documents.workorder import build_context
+    settings = DocumentSettings.from_shop(cat.shop)
+    coated = design_file(DEMOS["BH-5018"], cat=cat)
+    steps = build_context(coated, settings, number="WO-TEST", qty=1)["steps"]
+    assert steps[0]["heading"] == "Inspect the core's coating before winding"
+    assert "rated 1.5 kV" in steps[0]["lines"][0]
+    wrapped = design_file(DEMOS["BH-4120"], cat=cat)
+    steps = build_context(wrapped, settings, number="WO-TEST", qty=1)["steps"]
+    assert not any(s["heading"].startswith("Inspect the core's coating") for s in steps)
+    wind_p = next(s for s in steps if s["kind"] == "wind" and s["winding"] == "P")
+    after = next(r[1] for r in wind_p["rows"] if r[0] == "After this section")
+    assert "the basic barrier, half-lapped all round the ring, no gap at the bore" in after

@@ -58,7 +58,7 @@ def core_outline(parts: Parts) -> CoreOutline:
         dims = core.dims
         return CoreOutline(shape=core.shape, inner_diameter_m=dims.get("id"), outer_diameter_m=dims.get("od"),
                            height_m=dims.get("height"), coating_m=core.coating_m,
-                           winding_breadth_m=parts.window_breadth_m)
+                           winding_breadth_m=parts.window_breadth_m, coating_voltage_v=core.coating_voltage_v)
     former = parts.former
     if former.chambers:
         whole = sum(former.chambers) + former.divider_m * (len(former.chambers) - 1)

@@ -329,6 +329,7 @@ class CoreOutline:
     height_m: float | None           # toroid: the ring (or stack) height
     coating_m: float                 # toroid: coating or core-box wall on each face
     winding_breadth_m: float         # bobbin: between the flanges (split: chambers and dividers); toroid: ring height
+    coating_voltage_v: float | None = None   # toroid: the coating's rated voltage (None: not rated on file)
     chambers: tuple[float, ...] = ()  # split bobbin: each chamber's breadth, start flange first
     divider_m: float = 0.0           # split bobbin: the divider wall's thickness (0: not on file)
     divider_height_m: float = 0.0    # split bobbin: the divider wall's height above the tube (as drawn)

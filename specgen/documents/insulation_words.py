@@ -66,3 +66,24 @@ def laid_widths(t, breadth_m: float) -> tuple[tuple[float, float], ...]:
         return ((0.0, breadth_m),)
     centre = breadth_m / 2.0
     return ((centre - w / 2.0, centre + w / 2.0),)
+
+
+def barrier_note(grade: str, toroid: bool, margin_tape: bool) -> str:
+    """What the winder must see on a tape that is a safety barrier: it covers without a gap."""
+    if not grade:
+        return ""
+    if toroid:
+        return f": the {grade} barrier, half-lapped all round the ring, no gap at the bore or the outside edge"
+    return (f": the {grade} barrier, flange to flange" + (" over the margin tapes" if margin_tape else "")
+            + ", no gap at either flange")
+
+
+def coating_step(d, n: int) -> dict:
+    """A toroid wound straight onto its coated core: the coating is the barrier to the core, inspected first."""
+    outline = d.floor.outline
+    return {"n": n, "kind": "core", "heading": "Inspect the core's coating before winding",
+            "lines": [f"The core's coating (rated {outline.coating_voltage_v / 1e3:g} kV in the catalogue) is the "
+                      f"insulation between the winding and the core: nothing else is wound under the first turn.",
+                      "Before the first turn look over the whole core, the bore and both edges: set aside a core "
+                      "with a chip, a crack or bare metal showing; never file or sand a coated core."],
+            "rows": [], "layers": [], "dot": ""}

@@ -24,8 +24,10 @@ from .. import present
 from ..errors import DesignFailed, SpecError
 from .connections_doc import connections_context
 from .insulation_words import (
+    barrier_note,
     chamber_row,
     chambers_text,
+    coating_step,
     laid_widths,
     lead_exit_lines,
     two_widths_line,
@@ -399,6 +401,9 @@ def build_context(design, settings, *, number: str, qty: int, due: str | None = 
                       "lines": lines, "rows": [], "layers": [], "dot": ""})
 
     wrap = d.floor.core_wrap
+    if toroid and wrap is None and d.floor.outline.coating_voltage_v and d.insulation is not None:
+        n += 1
+        steps.append(coating_step(d, n))
     if toroid and wrap is not None:
         n += 1
         steps.append({"n": n, "kind": "core", "heading": "Insulate the core before winding",
@@ -464,9 +469,7 @@ def build_context(design, settings, *, number: str, qty: int, due: str | None = 
             what = "outer wrap" if s.order == last_in[s.chamber] else "before the next section"
             rows.append(("After this section", f"{s.tape_after} × {s.tape_after_layers} ({what}"
                          + (", half-lapped)" if toroid else ")") + two_widths_note(tapes.after)
-                         + (f": the {tapes.barrier} barrier, flange to flange"
-                            + (" over the margin tapes" if s.margin_tape else "") + ", no gap at either flange"
-                            if tapes.barrier and not toroid else ""), "key"))
+                         + barrier_note(tapes.barrier, toroid, bool(s.margin_tape)), "key"))
         else:
             rows.append(("After this section", "no tape", ""))
         rows.append((f"Finish {pin_word}", finish_value, "dot" if dot and w.dot_pin == s.finish_pin else "key"))
