@@ -15,6 +15,7 @@ sector as an open core, from memory); J. A. Osborn, Phys. Rev. 67 (1945) 351 and
 from __future__ import annotations
 
 import math
+import re
 
 import numpy as np
 import pytest
@@ -222,6 +223,10 @@ def test_test_plan_and_work_order(choke, cat):
     html = render_work_order_html(choke, DocumentSettings.from_shop(cat.shop), number="WO-TEST-1", qty=10, draft=True)
     assert "Sector plan" in html and html.count("SAME SENSE") >= 3
     assert "25° to 155°" in html or "from the 0° mark" in html
+    # the same-sense rule is a winding instruction, not a hazard: the signal-word frames and colours stay with
+    # the hazards (ANSI Z535.4 / ISO 3864-2, from memory: DANGER red, WARNING orange, CAUTION yellow)
+    boxes = re.findall(r'<div class="([^"]+)"><div class="[^"]+">SAME SENSE</div>', html)
+    assert len(boxes) == 2 and all("caution" not in b and "sign-" not in b for b in boxes)
     # a test-record column for each reading (the station's columns: L_CM and L_DM each their own)
     assert 'data-key="inductance/common-mode inductance L_CM/lines in parallel"' in html
     assert 'data-key="inductance/differential-mode inductance (2 x L_DM)/L against N"' in html
