@@ -230,6 +230,13 @@ def test_test_plan_and_work_order(choke, cat):
     # a test-record column for each reading (the station's columns: L_CM and L_DM each their own)
     assert 'data-key="inductance/common-mode inductance L_CM/lines in parallel"' in html
     assert 'data-key="inductance/differential-mode inductance (2 x L_DM)/L against N"' in html
+    # ... under plain headings (the keys above stay: the web app and the record share them)
+    from specgen.station.plan import station_columns
+    labels = {c.key: c.label for c in station_columns(choke)}
+    assert labels["inductance/differential-mode inductance (2 x L_DM)/L against N"] == \
+        "2 × L_DM, L and N opposed"
+    assert labels["inductance/common-mode inductance L_CM/lines in parallel"] == "L_CM, lines in parallel"
+    assert "(2 x L_DM) L against N" not in html
 
 
 def test_json_carries_the_choke_figures(choke):

@@ -235,6 +235,7 @@ class Limit:
     condition: str                   # the whole instruction: pins, instrument setting, then the kind's note
     pins: str = ""                   # which pins: "pins 1-2", "P 1-2 driven, S1 7-8 read"
     setting: TestSetting | None = None
+    heading: str = ""                # the record's column heading where "name item" reads badly (blank: those)
 
 
 @record
@@ -628,6 +629,11 @@ def _tests_dict(tests: TestPlan) -> dict[str, Any]:
     out: dict[str, Any] = _plain(asdict(tests))
     if not tests.cautions:
         del out["cautions"]
+    for rows in out.values():        # a limit's heading is print wording: the JSON names it by name and item
+        if isinstance(rows, list):
+            for row in rows:
+                if isinstance(row, dict):
+                    row.pop("heading", None)
     return out
 
 

@@ -56,7 +56,7 @@ def station_columns(design: Any) -> tuple[Column, ...]:
             shown, factor = shown_unit(lim.unit, lim.nominal)
             if lim.name.startswith("AL") and lim.unit == "H":
                 shown += "/turn²"
-            cols.append(Column(key=f"{field.name}/{lim.name}/{lim.item}", label=f"{lim.name} {lim.item}",
+            cols.append(Column(key=f"{field.name}/{lim.name}/{lim.item}", label=lim.heading or f"{lim.name} {lim.item}",
                                    kind=kind, unit=lim.unit, nominal=lim.nominal, low=lim.low, high=lim.high,
                                    condition=lim.condition, shown_unit=shown, shown_factor=factor))
     ir_min = plan.insulation_resistance_min_ohm

@@ -260,7 +260,7 @@ class CommonModeChokeKind:
         ind = [Limit(name="common-mode inductance L_CM", item="lines in parallel", nominal=lcm, low=lcm * (1 - t_l),
                      high=lcm * (1 + t_l), unit="H", setting=setting,
                      pins=f"starts {starts} joined, finishes {finishes} joined; between the two joints",
-                     condition=f"the figure stated at {at}")]
+                     condition=f"the figure stated at {at}", heading="L_CM, lines in parallel")]
         a, b = lines[0], lines[1]
         ldm = 2.0 * c.leakage_inductance_h
         low = ldm * LEAKAGE_BAND[0]
@@ -270,7 +270,8 @@ class CommonModeChokeKind:
                          low=low, high=ldm * LEAKAGE_BAND[1], unit="H", setting=setting,
                          pins=f"finishes {a.finish} and {b.finish} joined; {a.start} to {b.start}",
                          condition=("the third line open; " if len(lines) > 2 else "")
-                                   + "the line currents oppose, so only the leakage of the two lines is read"))
+                                   + "the line currents oppose, so only the leakage of the two lines is read",
+                         heading=f"2 × L_DM, {a.name} and {b.name} opposed"))
         polarity = (f"SAME SENSE: every line is wound in the same direction, each start ({starts}) on the same side "
                     f"of its sector, all dotted. Check: join {a.finish} to {b.start} (lines in series, aiding) and "
                     f"measure {a.start} to {b.finish}: about 4 x L_CM ({si(4 * lcm, 'H', 3)}). A reading near "
