@@ -5,7 +5,8 @@
   70.18 mΩ, 1.5 Ω); never ``100000 Hz`` or ``0.003628 H``.
 - shop units where the trade does not prefix: ``mm`` (lengths on the bench), ``metres`` (wire
   runs), ``mass``, ``litres``, ``seconds``, ``temp_c``, ``kelvin``, ``percent``, ``fraction_pct``,
-  ``ratio``, ``count``, ``test_volts``, ``milliamps``;
+  ``ratio``, ``count``, ``test_volts``, ``milliamps``, ``tesla`` (a flux density as the checks write it);
+- ``rating(value, unit)``: a rated figure as people write it (230 V, 2.5 A, 60 VA), the quote's ratings;
 - ``quantity(value, unit)``: one of the above chosen by a unit key (what the change summary uses);
 - ``table(headers, rows, align)``: a plain-text table (the terminal, the change summary, the catalogue).
 
@@ -163,6 +164,17 @@ def count(n: float, unit: str) -> str:
     names = {"pcs": ("piece", "pieces"), "sets": ("set", "sets"), "pairs": ("pair", "pairs")}
     one, many = names.get(unit, (unit, unit))
     return f"{n:,} {one if n == 1 else many}"
+
+
+def tesla(b_t: float) -> str:
+    """A flux density as the checks write it: '0.312 T', '1.55 T'."""
+    return f"{b_t:.3f} T" if b_t < 1.0 else f"{b_t:.2f} T"
+
+
+def rating(value: float, unit: str) -> str:
+    """A rating as people write it: 230 V, 25.6 V, 2.5 A, 60 VA (four significant figures at most, never an
+    exponent: 12000 A, not 1.2e+04 A)."""
+    return f"{sig_trimmed(value, 4)} {unit}"
 
 
 def test_volts(value_v: float) -> str:

@@ -49,3 +49,21 @@ def test_table_aligns_columns():
     lines = text.splitlines()
     assert lines[0] == "  name  turns" and lines[1] == "  ----  -----"
     assert lines[2] == "  P       843" and lines[3] == "  S12      47"
+
+
+@pytest.mark.parametrize("value", [230.0, 25.6, 2.5, 60.0, 0.1234567, 1.0, 0.05, 999.95, 3.14159])
+def test_rating_is_four_significant_figures_as_python_writes_them(value):
+    """A rating agrees with Python's own general format '.4g' (the language's format specification, outside
+    this project) wherever that writes no exponent."""
+    assert present.rating(value, "V") == f"{value:.4g} V"
+
+
+def test_rating_never_writes_an_exponent():
+    assert present.rating(12000.0, "A") == "12000 A"           # '.4g' would write 1.2e+04
+    assert float(present.rating(12345.6, "A").split()[0]) == pytest.approx(12346)
+
+
+@pytest.mark.parametrize("b_t, text", [(0.3124, "0.312 T"), (1.554, "1.55 T"), (0.0456, "0.046 T")])
+def test_tesla_as_the_checks_write_it(b_t, text):    # pint reads it back, to the last place written
+    assert present.tesla(b_t) == text
+    assert UREG.Quantity(float(text.split()[0]), "T").to("mT").magnitude == pytest.approx(b_t * 1e3, abs=5.0)

@@ -23,7 +23,7 @@ from dataclasses import dataclass, replace
 from decimal import Decimal
 from pathlib import Path
 
-from ..present import frequency
+from ..present import frequency, rating
 from ..quote import COPPER_HIGH, COPPER_LOW, Quote, count, money, plain
 
 TEMPLATE = "quote.html"
@@ -57,11 +57,6 @@ def _thermal_class(class_c) -> str:
     return class_label(class_c)
 
 
-def _num(x: float, unit: str) -> str:
-    """A rating as people write it: 230 V, 25.6 V, 2.5 A, 60 VA (four significant figures at most)."""
-    return f"{x:.4g} {unit}"
-
-
 def _weeks(seconds: float | None) -> str:
     if seconds is None:
         return ""
@@ -76,10 +71,10 @@ def _ct_ratings(ct, freq: str) -> list[Rating]:
     return [
         Rating("Ratio", f"{ct.primary_turns}:{ct.secondary_turns}",
                "single primary conductor through the core" if ct.primary_turns == 1 else "wound primary"),
-        Rating("Rated primary current", f"{_num(ct.primary_current_a, 'A')}, up to {_num(ct.primary_current_max_a, 'A')}",
+        Rating("Rated primary current", f"{rating(ct.primary_current_a, 'A')}, up to {rating(ct.primary_current_max_a, 'A')}",
                f"{freq}, sine"),
-        Rating("Rated burden", f"{_num(ct.burden_ohm, 'ohm')}, secondary {_num(ct.secondary_current_a, 'A')}",
-               f"knee burden {_num(ct.knee_burden_ohm, 'ohm')}"),
+        Rating("Rated burden", f"{rating(ct.burden_ohm, 'ohm')}, secondary {rating(ct.secondary_current_a, 'A')}",
+               f"knee burden {rating(ct.knee_burden_ohm, 'ohm')}"),
         Rating("Accuracy", f"ratio error within {max(abs(ct.ratio_error_pct), abs(ct.ratio_error_max_pct)):.2g} %, "
                            f"phase within {max(abs(ct.phase_error_deg), abs(ct.phase_error_max_deg)) * 60:.2g} min",
                "calculated, at the rated burden over the current range"),
@@ -89,7 +84,7 @@ def _ct_ratings(ct, freq: str) -> list[Rating]:
 def _cmc_ratings(c, freq: str, limits) -> list[Rating]:
     """A common-mode choke's guaranteed figures: lines, current, voltage, L_CM and the leakage (from the Design)."""
     from .workorder import fmt_henry
-    out = [Rating("Lines", f"{c.lines} x {_num(c.line_current_a, 'A')} rms, {_num(c.line_voltage_v, 'V')}", freq)]
+    out = [Rating("Lines", f"{c.lines} x {rating(c.line_current_a, 'A')} rms, {rating(c.line_voltage_v, 'V')}", freq)]
     for lim in limits:
         out.append(Rating(lim.name[0].upper() + lim.name[1:], f"{fmt_henry(lim.low)} to {fmt_henry(lim.high)}",
                           lim.item if lim.item != "lines in parallel" else
@@ -106,9 +101,9 @@ def ratings(design) -> list[Rating]:
     freq = frequency(d.frequency_hz)
     prim = next((w for w in d.windings if w.role == "primary"), None)
     if prim is not None and prim.voltage_v:
-        top = f", up to {_num(prim.voltage_max_v, 'V')}" if prim.voltage_max_v and \
+        top = f", up to {rating(prim.voltage_max_v, 'V')}" if prim.voltage_max_v and \
             prim.voltage_max_v > prim.voltage_v * 1.0005 else ""
-        out.append(Rating(f"Input ({prim.name})", f"{_num(prim.voltage_v, 'V')}{top}", f"{freq}, {d.waveform}"))
+        out.append(Rating(f"Input ({prim.name})", f"{rating(prim.voltage_v, 'V')}{top}", f"{freq}, {d.waveform}"))
     ct = getattr(d, "current_transformer", None)
     if ct is not None:
         out += _ct_ratings(ct, freq)
@@ -116,18 +111,18 @@ def ratings(design) -> list[Rating]:
     for w in d.windings:
         if ct is not None or d.flyback is not None or w.role not in ("secondary", "auxiliary") or not w.voltage_v:
             continue
-        value = f"{_num(w.voltage_v, 'V')} at {_num(w.current_a, 'A')} (full load)"
+        value = f"{rating(w.voltage_v, 'V')} at {rating(w.current_a, 'A')} (full load)"
         lim = ocv.get(w.name)
         if lim is not None and lim.low is not None and lim.high is not None:
-            value += f"; {_num(lim.low, 'V')} to {_num(lim.high, 'V')} (no load)"
+            value += f"; {rating(lim.low, 'V')} to {rating(lim.high, 'V')} (no load)"
         out.append(Rating(f"Output {w.name}", value, "at rated input"))
     if d.output_power_w and d.kind not in ("inductor", "current_transformer", "flyback"):
-        out.append(Rating("Rated output", _num(d.output_power_w, "VA"), f"continuous, ambient up to {d.ambient_c:g} °C"))
+        out.append(Rating("Rated output", rating(d.output_power_w, "VA"), f"continuous, ambient up to {d.ambient_c:g} °C"))
     if d.flyback is not None:
         fb = d.flyback
         for fw in fb.windings:
             if fw.output_voltage_v is not None:
-                out.append(Rating(f"Output {fw.name}", f"{_num(fw.output_voltage_v, 'V')} at {_num(fw.dc_current_a, 'A')} "
+                out.append(Rating(f"Output {fw.name}", f"{rating(fw.output_voltage_v, 'V')} at {rating(fw.dc_current_a, 'A')} "
                                                        f"DC", "rectified, from the turns ratio, full load"))
         out.append(Rating("Primary inductance", f"{fmt_henry(fb.inductance_h)}", f"{freq} switching, "
                                                                             f"{fb.mode.upper()} at the lowest input"))
@@ -137,11 +132,11 @@ def ratings(design) -> list[Rating]:
     if d.inductor is not None and d.flyback is None:
         ind = d.inductor
         if ind.carries_dc:
-            out.append(Rating("Rated current", f"{_num(ind.current_dc_a, 'A')} DC",
-                              f"{_num(ind.ripple_a, 'A')} peak-to-peak ripple at {freq}" if ind.ripple_a else ""))
+            out.append(Rating("Rated current", f"{rating(ind.current_dc_a, 'A')} DC",
+                              f"{rating(ind.ripple_a, 'A')} peak-to-peak ripple at {freq}" if ind.ripple_a else ""))
         else:                                    # an AC reactor: the whole sine, no DC and no ripple
-            out.append(Rating("Rated current", f"{_num(ind.current_dc_a, 'A')} rms",
-                              f"{freq}, {d.waveform}; no saturation up to {_num(ind.current_peak_a, 'A')} peak"))
+            out.append(Rating("Rated current", f"{rating(ind.current_dc_a, 'A')} rms",
+                              f"{freq}, {d.waveform}; no saturation up to {rating(ind.current_peak_a, 'A')} peak"))
         for lim in d.tests.inductance:
             if lim.name.startswith("AL"):
                 continue                         # a bench check of the core set, not a rating

@@ -40,8 +40,3 @@ class PartKind(Protocol):
 
     def test_limits(self, state: DesignState) -> KindTests:
         ...
-
-
-def flux_text(b_t: float) -> str:
-    """A flux density as the checks write it: '0.312 T', '1.55 T'."""
-    return f"{b_t:.3f} T" if b_t < 1.0 else f"{b_t:.2f} T"

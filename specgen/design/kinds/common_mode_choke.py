@@ -30,7 +30,7 @@ from ...physics import common_mode as cm
 from ...physics import faraday
 from ...physics import gap as gapmod
 from ...present import frequency as _freq
-from ...present import si
+from ...present import si, tesla
 from ...records import record
 from .. import kernel as K
 from .. import test_setup as ts
@@ -54,7 +54,6 @@ from ..state import (
     WireChoice,
 )
 from ..wires import choose_wire
-from .base import flux_text
 
 LEAKAGE_METHOD = ("sector as an open rod core (Nave 1991), demagnetising factor of a prolate spheroid (Osborn "
                   "1945): an estimate, measure the first piece")
@@ -238,9 +237,9 @@ class CommonModeChokeKind:
         s = state.summary
         c = s.common_mode_choke
         assert c is not None
-        said = (f"B_pk {flux_text(s.b_peak_max_t)} = common mode {flux_text(c.b_cm_peak_t)} "
+        said = (f"B_pk {tesla(s.b_peak_max_t)} = common mode {tesla(c.b_cm_peak_t)} "
                 f"({c.common_mode_current_a * 1e3:.3g} mA to ground: {c.common_mode_current_basis}) + differential "
-                f"mode {flux_text(c.b_dm_peak_t)} (the leakage at {c.current_dm_peak_a:.3g} A peak)")
+                f"mode {tesla(c.b_dm_peak_t)} (the leakage at {c.current_dm_peak_a:.3g} A peak)")
         return saturation_checks(state, said, s.b_peak_max_t, "fewer turns on a larger core, or a separate "
                                                                "differential-mode choke", limit_in_pass=False)
 

@@ -15,7 +15,7 @@ import math
 from ...catalog.models import Catalog
 from ...physics import gap as gapmod
 from ...physics import permeability
-from ...present import si, si_set
+from ...present import si, si_set, tesla
 from ...records import record
 from .. import kernel as K
 from .. import test_setup as ts
@@ -36,7 +36,6 @@ from ..state import (
     WireChoice,
 )
 from ..wires import choose_wire
-from .base import flux_text as _fmt_t
 
 BIAS_DROP_WARN_PCT = 50.0    # more than half the permeability gone at full current: a poor use of powder (common practice)
 
@@ -290,15 +289,15 @@ def powder_flux_checks(state: DesignState) -> list[Check]:
     left = ""
     if ind.inductance_at_peak_h is not None and ind.inductance_zero_bias_h > 0:
         left = f" ({ind.inductance_at_peak_h / ind.inductance_zero_bias_h:.0%} of the permeability left)"
-    at = f"B_pk {_fmt_t(b)} at the peak current {ind.current_peak_a:.3g} A{left}"
+    at = f"B_pk {tesla(b)} at the peak current {ind.current_peak_a:.3g} A{left}"
     if b > sat * 1.0005:
         return [Check("fail", "saturation",
-                      f"{at} is past {_fmt_t(sat)}, where {mat.id} counts as saturated ({s.flux_limit.basis}): "
+                      f"{at} is past {tesla(sat)}, where {mat.id} counts as saturated ({s.flux_limit.basis}): "
                       f"a larger core, more turns on it, or a powder that rolls off less")]
     if b > limit * 1.0005:
-        return [Check("warn", "saturation", f"{at} is above the {_fmt_t(limit)} limit ({s.flux_limit.basis})")]
-    return [Check("pass", "saturation", f"{at}, limit {_fmt_t(min(limit, sat))}; B_sat at {temp.hot_c:.0f} °C "
-                                        f"is {_fmt_t(bsat)}")]
+        return [Check("warn", "saturation", f"{at} is above the {tesla(limit)} limit ({s.flux_limit.basis})")]
+    return [Check("pass", "saturation", f"{at}, limit {tesla(min(limit, sat))}; B_sat at {temp.hot_c:.0f} °C "
+                                        f"is {tesla(bsat)}")]
 
 
 class InductorKind:
@@ -321,16 +320,16 @@ class InductorKind:
             # N = L I_pk / (B_limit Ae), plus one for the gap rounded down to the shop's step
             need = math.ceil(ind.inductance_h * ind.current_peak_a / (limit * state.parts.ae_m2) - 1e-9) + 1
             return [Check("fail", "saturation",
-                          f"B_pk {_fmt_t(b)} at the peak current {ind.current_peak_a:.3g} A exceeds "
-                          f"B_sat {_fmt_t(bsat)} at {temp.hot_c:.0f} °C: use more turns with a larger gap, about "
+                          f"B_pk {tesla(b)} at the peak current {ind.current_peak_a:.3g} A exceeds "
+                          f"B_sat {tesla(bsat)} at {temp.hot_c:.0f} °C: use more turns with a larger gap, about "
                           f"{need} turns (or let specgen choose them), or a core with more Ae")]
         if b > limit * 1.0005:
             return [Check("warn", "saturation",
-                          f"B_pk {_fmt_t(b)} at the peak current is above the {_fmt_t(limit)} working "
-                          f"limit ({s.flux_limit.basis}) though below B_sat {_fmt_t(bsat)}")]
+                          f"B_pk {tesla(b)} at the peak current is above the {tesla(limit)} working "
+                          f"limit ({s.flux_limit.basis}) though below B_sat {tesla(bsat)}")]
         return [Check("pass", "saturation",
-                      f"B_pk {_fmt_t(b)} at the peak current {ind.current_peak_a:.3g} A, limit "
-                      f"{_fmt_t(limit)}; B_sat at {temp.hot_c:.0f} °C is {_fmt_t(bsat)}")]
+                      f"B_pk {tesla(b)} at the peak current {ind.current_peak_a:.3g} A, limit "
+                      f"{tesla(limit)}; B_sat at {temp.hot_c:.0f} °C is {tesla(bsat)}")]
 
     def test_limits(self, state: DesignState) -> KindTests:
         """A choke: inductance small-signal and at its rated DC current (the defining figure), at the peak

@@ -14,7 +14,7 @@ from dataclasses import replace
 
 from ...catalog.models import Catalog
 from ...physics import faraday
-from ...present import frequency
+from ...present import frequency, tesla
 from ...records import record
 from .. import forward as FW
 from .. import kernel as K
@@ -39,7 +39,6 @@ from ..state import (
 )
 from ..windings_result import ConnectionResult, LoadResult
 from ..wires import choose_wire
-from .base import flux_text as _fmt_t
 from .transformer_tests import transformer_tests
 
 MAGNETIZING_WARN = 0.35      # magnetizing current above this share of the primary current (common practice)
@@ -553,17 +552,17 @@ class TransformerKind:
         if s.b_peak_max_t > limit * 1.0005:
             add = math.ceil(prim.turns * s.b_peak_max_t / limit) - prim.turns
             out.append(Check("fail", "saturation",
-                             f"{what} {_fmt_t(s.b_peak_max_t)} at the top of the primary range exceeds the "
-                             f"{_fmt_t(limit)} limit ({s.flux_limit.basis}): add {add} primary turns or use a core "
+                             f"{what} {tesla(s.b_peak_max_t)} at the top of the primary range exceeds the "
+                             f"{tesla(limit)} limit ({s.flux_limit.basis}): add {add} primary turns or use a core "
                              f"with more Ae (the next stack)"))
         else:
             out.append(Check("pass", "saturation",
-                             f"{what} {_fmt_t(s.b_peak_max_t)} at the top of the primary range, limit {_fmt_t(limit)} "
-                             f"({s.flux_limit.basis}); B_sat at {temp.hot_c:.0f} °C is {_fmt_t(bsat)}"))
+                             f"{what} {tesla(s.b_peak_max_t)} at the top of the primary range, limit {tesla(limit)} "
+                             f"({s.flux_limit.basis}); B_sat at {temp.hot_c:.0f} °C is {tesla(bsat)}"))
         if spec.waveform == "unipolar" and s.b_peak_max_t + mat.b_r_t > bsat:
             out.append(Check("fail", "remanence",
-                             f"a unipolar pulse starts from the residual flux: B_r {_fmt_t(mat.b_r_t)} + ΔB "
-                             f"{_fmt_t(s.b_peak_max_t)} exceeds B_sat {_fmt_t(bsat)}: add turns"
+                             f"a unipolar pulse starts from the residual flux: B_r {tesla(mat.b_r_t)} + ΔB "
+                             f"{tesla(s.b_peak_max_t)} exceeds B_sat {tesla(bsat)}: add turns"
                              + (" or a core with more Ae" if s.reset is not None else
                                 ", gap the core or add a reset winding")))
         # inrush: switched on at a voltage zero, the flux swings 2 B_pk from wherever the residual flux left it
@@ -574,7 +573,7 @@ class TransformerKind:
             if worst > bsat:
                 out.append(Check("warn", "inrush",
                                  f"switched on at a voltage zero with residual flux, the core can reach B_r + 2 B_pk = "
-                                 f"{_fmt_t(worst)} against B_sat {_fmt_t(bsat)}: expect an inrush of many times the "
+                                 f"{tesla(worst)} against B_sat {tesla(bsat)}: expect an inrush of many times the "
                                  f"rated current; specify a soft-start or a slow-blow fuse on the label and test the "
                                  f"first article"))
         return out
