@@ -11,6 +11,7 @@ defines them (from memory); Faraday's law V = 4.44 f N B A (McLyman).
 from __future__ import annotations
 
 import math
+import re
 
 import numpy as np
 import pytest
@@ -180,6 +181,11 @@ def test_open_secondary_caution_on_the_test_plan_and_the_work_order(ct, cat):
     html = render_work_order_html(ct, DocumentSettings.from_shop(cat.shop), number="WO-TEST-1", qty=10, draft=True)
     assert html.count("open-circuit the secondary") >= 2      # the winding steps and the test sheet
     assert "licensed practice" in html
+    # an open secondary under primary current can reach a hazardous voltage that could kill: the signal word
+    # WARNING with its safety colour, orange (ANSI Z535.4 / ISO 3864-2, from memory: DANGER red for what will
+    # kill, WARNING orange for what could, CAUTION yellow for minor injury)
+    boxes = re.findall(r'<div class="caution ([^"]*)">\s*<div class="caution-title">([A-Z]+): open secondary', html)
+    assert len(boxes) == 2 and all("sign-warning" in cls and word == "WARNING" for cls, word in boxes), boxes
 
 
 def test_json_carries_the_ct_figures(ct):
